@@ -1,0 +1,35 @@
+# coolmargin: every target creates the virtualenv and installs the project first.
+PYTHON ?= python3
+VENV ?= .venv
+BIN := $(VENV)/bin
+HOST ?= 127.0.0.1
+PORT ?= 8000
+
+.PHONY: install run test bench lint load clean
+
+$(BIN)/.installed: pyproject.toml
+	$(PYTHON) -m venv $(VENV)
+	$(BIN)/python -m pip install --quiet --upgrade pip
+	$(BIN)/python -m pip install --quiet -e '.[test]'
+	touch $@
+
+install: $(BIN)/.installed
+
+run: install
+	COOLMARGIN_BIND=$(HOST):$(PORT) $(BIN)/gunicorn --config docker/gunicorn.conf.py 'api.wsgi:app'
+
+test: install
+	$(BIN)/python -m pytest
+
+bench: install
+	$(BIN)/python tests/benchmarks/bench.py
+
+load: install
+	$(BIN)/python tests/benchmarks/load.py
+
+lint: install
+	$(BIN)/python -m compileall -q api calc schemas tests
+	$(BIN)/python -m pytest -q tests/test_openapi.py
+
+clean:
+	rm -rf $(VENV) build *.egg-info .pytest_cache .hypothesis

@@ -1,0 +1,106 @@
+"""Warnings, validity ranges and input errors shared by every calculation module.
+
+A correlation used outside the range its authors tested is still evaluated (engineers need a number),
+but the result carries a warning naming the correlation, the quantity, its value and the published
+range. Physically impossible input raises :class:`InputError`, naming the request field at fault.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class CalcWarning:
+    """A note that travels with a result and never fails the request."""
+
+    code: str
+    message: str
+
+
+class InputError(ValueError):
+    """Input that no calculation can honour (negative size, level above the brim, frozen coolant).
+
+    ``field`` is the dotted path of the request field at fault, as the API names it
+    (``"vessel.jacket.top"``); the API turns this into a 422 problem.
+    """
+
+    def __init__(self, field: str, message: str):
+        super().__init__(f"{field}: {message}")
+        self.field = field
+        self.message = message
+
+
+class CalculationError(RuntimeError):
+    """A numerical method failed for input that was itself valid (no root, no convergence)."""
+
+
+def _format(value: float) -> str:
+    return f"{value:.4g}"
+
+
+def range_warning(correlation: str, quantity: str, value: float,
+                  low: float | None = None, high: float | None = None) -> CalcWarning | None:
+    """Return a warning when ``value`` lies outside [low, high] (either bound may be open), else None.
+
+    >>> range_warning("Lehrer (1970)", "Re", 50.0, 1e3, 1e5).code
+    'outside_validity_range'
+    >>> range_warning("Lehrer (1970)", "Re", 5e3, 1e3, 1e5) is None
+    True
+    """
+    if not math.isfinite(value):
+        return CalcWarning("non_finite_value", f"{correlation}: {quantity} is not a finite number")
+    below = low is not None and value < low
+    above = high is not None and value > high
+    if not (below or above):
+        return None
+    lo = "-inf" if low is None else _format(low)
+    hi = "inf" if high is None else _format(high)
+    return CalcWarning(
+        "outside_validity_range",
+        f"{correlation}: {quantity} = {_format(value)} is outside the published range [{lo}, {hi}]; "
+        "the result is an extrapolation",
+    )
+
+
+class Warnings(list):
+    """A list of :class:`CalcWarning` that drops duplicates and knows how to check a range."""
+
+    def add(self, warning: CalcWarning | None) -> None:
+        if warning is not None and warning not in self:
+            self.append(warning)
+
+    def check(self, correlation: str, quantity: str, value: float,
+              low: float | None = None, high: float | None = None) -> None:
+        self.add(range_warning(correlation, quantity, value, low, high))
+
+    def extend_unique(self, warnings) -> None:
+        for w in warnings:
+            self.add(w)
+
+
+def require_positive(field: str, value: float) -> float:
+    """Raise :class:`InputError` unless ``value`` is a finite number > 0."""
+    if not (math.isfinite(value) and value > 0):
+        raise InputError(field, f"must be a positive number, got {value!r}")
+    return value
+
+
+@dataclass(frozen=True)
+class Correlation:
+    """A registry entry: the function, its published source and its validity range per quantity.
+
+    ``validity`` maps the name of an argument (as the function spells it, e.g. ``"Re"``) to
+    ``(low, high)``; either bound may be None.
+    """
+
+    name: str  # the authors and year, as cited: "Lehrer (1970)"
+    function: object
+    source: str
+    validity: dict = None  # type: ignore[assignment]
+
+    def check(self, warnings: Warnings, **values: float) -> None:
+        """Add a warning to ``warnings`` for every given quantity outside this correlation's range."""
+        for quantity, value in values.items():
+            low, high = (self.validity or {}).get(quantity, (None, None))
+            warnings.check(self.name, quantity, value, low, high)
