@@ -1,0 +1,95 @@
+"""coolmargin HTTP API: ``create_app`` builds the Flask application; nothing happens at import time."""
+from __future__ import annotations
+
+import logging
+import os
+import re
+import time
+import uuid
+from importlib import metadata
+
+from flask import Flask, g, request
+
+from . import errors
+
+try:
+    VERSION = metadata.version("coolmargin")
+except metadata.PackageNotFoundError:  # running from a source tree that was never installed
+    VERSION = "0.0.0"
+
+DEFAULTS = {
+    "MAX_CONTENT_LENGTH": 1024 * 1024,  # bytes; a larger body is a 413
+    "MAX_NESTING_DEPTH": 32,  # levels of JSON objects/arrays
+    "MAX_BATCH_CASES": 50,  # cases in one {"cases": [...]} call
+    "MAX_SCALES": 20,  # targets in one scale-up
+    "MAX_SERIES_POINTS": 2000,  # points in a returned time series
+    "MAX_SIMULATION_HORIZON": 7 * 24 * 3600.0,  # s of simulated time
+    "SIMULATION_WALL_TIME": 10.0,  # s of computing per simulation request
+    "AUTH_TOKENS": "",  # comma-separated bearer tokens; empty means open
+    "AUTH_TOKENS_FILE": "",
+    "CORS_ORIGINS": "",  # comma-separated allow-list
+    "OPENAPI_PATH": os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "openapi.yaml"),
+}
+_ENV_PREFIX = "COOLMARGIN_"
+_REQUEST_ID = re.compile(r"^[A-Za-z0-9._-]{1,64}$")
+
+
+def _from_environment() -> dict:
+    """Settings from COOLMARGIN_* environment variables, typed like the defaults."""
+    settings = {}
+    for key, default in DEFAULTS.items():
+        raw = os.environ.get(_ENV_PREFIX + key)
+        if raw is None:
+            continue
+        settings[key] = type(default)(raw) if not isinstance(default, str) else raw
+    return settings
+
+
+class _RequestIdFilter(logging.Filter):
+    def filter(self, record: logging.LogRecord) -> bool:
+        if not hasattr(record, "request_id"):
+            try:
+                record.request_id = g.get("request_id", "-")
+            except RuntimeError:  # outside a request
+                record.request_id = "-"
+        return True
+
+
+def _configure_logging() -> None:
+    logger = logging.getLogger("coolmargin")
+    if not logger.handlers:
+        handler = logging.StreamHandler()
+        handler.setFormatter(logging.Formatter("%(asctime)s %(levelname)s [%(request_id)s] %(name)s: %(message)s"))
+        handler.addFilter(_RequestIdFilter())
+        logger.addHandler(handler)
+        logger.setLevel(logging.INFO)
+        logger.propagate = False
+
+
+def create_app(config: dict | None = None) -> Flask:
+    """Build the application. ``config`` overrides defaults and COOLMARGIN_* environment variables."""
+    app = Flask(__name__)
+    app.config.update(DEFAULTS)
+    app.config.update(_from_environment())
+    app.config.update(config or {})
+    app.json.sort_keys = False
+    _configure_logging()
+    errors.register(app)
+
+    @app.before_request
+    def _start():
+        incoming = request.headers.get("X-Request-ID", "")
+        g.request_id = incoming if _REQUEST_ID.match(incoming) else uuid.uuid4().hex
+        g.started = time.perf_counter()
+
+    @app.after_request
+    def _finish(response):
+        response.headers["X-Request-ID"] = g.get("request_id", "-")
+        response.headers.setdefault("X-Content-Type-Options", "nosniff")
+        return response
+
+    from . import properties, service
+
+    for module in (service, properties):
+        app.register_blueprint(module.bp)
+    return app

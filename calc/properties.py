@@ -263,6 +263,29 @@ class ExplicitLiquid(Liquid):
                                 self.viscosity_at(temperature), self.thermal_conductivity)
 
 
+@dataclass(frozen=True)
+class PropertyReport:
+    """One state of a library liquid with its liquid range, for the properties resource."""
+
+    fluid: str
+    name: str
+    pressure: float  # Pa
+    mass_fraction: float | None
+    state: LiquidProperties
+    freezing_point: float  # K, lower end of the liquid range
+    boiling_point: float  # K, upper end of the liquid range at the pressure
+    source: str
+
+
+def property_report(fluid: str, temperature: float, mass_fraction: float | None = None,
+                    pressure: float = STANDARD_PRESSURE) -> PropertyReport:
+    """Properties of ``fluid`` at (T, p) together with its liquid range and source."""
+    info = fluid_info(fluid)
+    state = liquid_properties(fluid, temperature, mass_fraction, pressure)
+    low, high = liquid_range(fluid, mass_fraction, pressure)
+    return PropertyReport(fluid, info.name, pressure, mass_fraction, state, low, high, info.source)
+
+
 def library() -> list[FluidInfo]:
     """The built-in fluids, in a stable order."""
     return list(FLUIDS.values())

@@ -1,0 +1,202 @@
+"""Request parsing and response negotiation shared by every calculation resource.
+
+POST takes a JSON object; GET takes the same object flattened to dotted query parameters.
+Responses are JSON (with ``units``) by default, CSV with ``?format=csv`` or ``Accept: text/csv``,
+a single value as text/plain with ``?field=a.b``, and a chart where the resource draws one.
+"""
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+from typing import Any, Callable
+
+from flask import Response, current_app, request
+from marshmallow import Schema, ValidationError
+
+from schemas.base import clean, unflatten, unit_map
+
+from .errors import ProblemError
+
+RESERVED_PARAMETERS = {"format", "field"}
+FORMATS = {"json": "application/json", "csv": "text/csv", "svg": "image/svg+xml", "png": "image/png"}
+_UNIT_CACHE: dict[type, dict[str, str]] = {}
+
+
+def _reject_constant(name: str):
+    raise ValueError(f"{name} is not valid JSON")
+
+
+def _depth(value: Any, limit: int, level: int = 0) -> int:
+    if level > limit:
+        return level
+    if isinstance(value, dict):
+        return max([_depth(v, limit, level + 1) for v in value.values()] or [level + 1])
+    if isinstance(value, list):
+        return max([_depth(v, limit, level + 1) for v in value] or [level + 1])
+    return level
+
+
+def request_object() -> dict:
+    """The request's input object: the JSON body (POST) or the unflattened query (GET)."""
+    if request.method == "GET":
+        params = {k: v for k, v in request.args.items() if k not in RESERVED_PARAMETERS}
+        return unflatten(params)
+    mimetype = request.mimetype or ""
+    if not (mimetype == "application/json" or mimetype.endswith("+json")):
+        raise ProblemError(415, f"send the body as application/json, not {mimetype or 'no content type'}")
+    raw = request.get_data(cache=True)
+    if not raw.strip():
+        raise ProblemError(400, "the request body is empty; send a JSON object")
+    try:
+        data = json.loads(raw, parse_constant=_reject_constant)
+    except (ValueError, RecursionError) as exc:
+        raise ProblemError(400, f"the body is not valid JSON: {exc}") from None
+    if not isinstance(data, dict):
+        raise ProblemError(422, "the body must be a JSON object", [{"field": "(body)", "message": "must be an object"}])
+    limit = current_app.config["MAX_NESTING_DEPTH"]
+    if _depth(data, limit) > limit:
+        raise ProblemError(413, f"the body is nested deeper than {limit} levels")
+    return data
+
+
+def load(schema: Schema, data: dict | None = None) -> dict:
+    """Validate and convert the request object with ``schema`` (ValidationError -> 422)."""
+    return schema.load(request_object() if data is None else data)
+
+
+def units_of(schema: Schema) -> dict[str, str]:
+    key = type(schema)
+    if key not in _UNIT_CACHE:
+        _UNIT_CACHE[key] = unit_map(schema)
+    return _UNIT_CACHE[key]
+
+
+def requested_format() -> str:
+    fmt = request.args.get("format")
+    if fmt is not None:
+        if fmt not in FORMATS:
+            raise ProblemError(422, f"unknown format {fmt!r}",
+                               [{"field": "format", "message": f"must be one of {', '.join(FORMATS)}"}])
+        return fmt
+    best = request.accept_mimetypes.best_match(["application/json", "text/csv", "image/svg+xml", "image/png"],
+                                               default="application/json")
+    return {v: k for k, v in FORMATS.items()}.get(best, "json")
+
+
+def pick(payload: Any, path: str) -> Any:
+    """The value at dotted ``path`` (``scales[1].margin`` or ``scales.1.margin``) of a response."""
+    node = payload
+    for segment in path.replace("]", "").replace("[", ".").split("."):
+        if segment == "":
+            continue
+        if isinstance(node, list) and segment.isdigit() and int(segment) < len(node):
+            node = node[int(segment)]
+        elif isinstance(node, dict) and segment in node:
+            node = node[segment]
+        else:
+            raise ProblemError(422, f"the response has no field {path!r}",
+                               [{"field": "field", "message": f"no field {path!r} in this response"}])
+    return node
+
+
+def _flatten(value: Any, prefix: str, row: dict) -> None:
+    if isinstance(value, dict):
+        for key, item in value.items():
+            _flatten(item, f"{prefix}.{key}" if prefix else key, row)
+    elif isinstance(value, list) and value and all(isinstance(v, dict) for v in value):
+        if all(set(v) <= {"code", "message"} for v in value):
+            row[prefix] = " | ".join(v.get("message", "") for v in value)
+        else:
+            for i, item in enumerate(value):
+                _flatten(item, f"{prefix}[{i}]", row)
+    elif isinstance(value, list):
+        row[prefix] = " | ".join("" if v is None else str(v) for v in value)
+    else:
+        row[prefix] = value
+
+
+def _unit_for(column: str, units: dict[str, str]) -> str | None:
+    if column in units:
+        return units[column]
+    generic = ".".join("*" if p.isdigit() else p for p in column.replace("]", "").replace("[", ".").split("."))
+    for key, unit in units.items():
+        pattern = key.replace("[]", "")
+        if pattern == generic or (pattern.endswith(".*") and generic.startswith(pattern[:-1])):
+            return unit
+    return None
+
+
+def to_csv(rows: list[dict], units: dict[str, str]) -> str:
+    """CSV with one row per item and the unit of each column in the header: ``density [kg/m^3]``."""
+    flat_rows = []
+    for row in rows:
+        flat: dict = {}
+        _flatten(row, "", flat)
+        flat_rows.append(flat)
+    columns: list[str] = []
+    for flat in flat_rows:
+        columns.extend(c for c in flat if c not in columns)
+    header = []
+    for column in columns:
+        unit = _unit_for(column, units)
+        header.append(f"{column} [{unit}]" if unit else column)
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\r\n")
+    writer.writerow(header)
+    for flat in flat_rows:
+        writer.writerow([_csv_cell(flat.get(c)) for c in columns])
+    return buffer.getvalue()
+
+
+def _csv_cell(value: Any) -> Any:
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, float):
+        return repr(value) if math.isfinite(value) else ""
+    return value
+
+
+def respond(result: Any, schema: Schema, *, rows: str | None = None,
+            chart: Callable[[dict, str], bytes] | None = None, status: int = 200) -> Response:
+    """Dump ``result`` with ``schema`` and answer in the negotiated format.
+
+    ``rows`` names the list that becomes one CSV row per item (e.g. ``"scales"``); ``chart`` draws
+    the dumped payload as SVG or PNG.
+    """
+    payload = clean(schema.dump(result))
+    units = units_of(schema)
+    field = request.args.get("field")
+    if field:
+        value = pick(payload, field)
+        if isinstance(value, (dict, list)):
+            text = json.dumps(value)
+        elif isinstance(value, bool):
+            text = "true" if value else "false"
+        else:
+            text = "" if value is None else str(value)
+        return Response(text + "\n", status=status, mimetype="text/plain")
+    fmt = requested_format()
+    if fmt == "csv":
+        items = payload.get(rows, []) if rows else [payload]
+        row_units = {k[len(rows) + 1:]: v for k, v in units.items() if rows and k.startswith(rows + ".")} if rows else units
+        return Response(to_csv(items, row_units), status=status, mimetype="text/csv")
+    if fmt in ("svg", "png"):
+        if chart is None:
+            raise ProblemError(422, "this resource has no chart; use format json or csv",
+                               [{"field": "format", "message": "no chart for this resource"}])
+        return Response(chart(payload, fmt), status=status, mimetype=FORMATS[fmt])
+    body = dict(payload)
+    body["units"] = units
+    return Response(json.dumps(body, allow_nan=False), status=status, mimetype="application/json")
+
+
+def list_response(items: list[dict], schema: Schema) -> Response:
+    """A library listing: ``{"items": [...]}`` as JSON, or CSV one row per item."""
+    dumped = clean(schema.dump(items, many=True))
+    if requested_format() == "csv":
+        return Response(to_csv(dumped, units_of(schema)), mimetype="text/csv")
+    return Response(json.dumps({"items": dumped, "units": units_of(schema)}), mimetype="application/json")

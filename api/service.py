@@ -1,0 +1,112 @@
+"""Service endpoints: liveness, readiness, the OpenAPI contract and its HTML reference."""
+from __future__ import annotations
+
+from functools import lru_cache
+
+import yaml
+from flask import Blueprint, Response, current_app, jsonify, render_template
+
+from calc import properties
+
+from . import VERSION
+from .errors import problem
+
+bp = Blueprint("service", __name__)
+
+
+@lru_cache(maxsize=4)
+def _spec_text(path: str) -> str:
+    with open(path, encoding="utf-8") as handle:
+        return handle.read()
+
+
+def spec_text() -> str:
+    return _spec_text(current_app.config["OPENAPI_PATH"])
+
+
+@lru_cache(maxsize=4)
+def _spec(path: str) -> dict:
+    return yaml.safe_load(_spec_text(path))
+
+
+def spec() -> dict:
+    return _spec(current_app.config["OPENAPI_PATH"])
+
+
+@bp.get("/health")
+def health():
+    return jsonify(status="ok", version=VERSION)
+
+
+@bp.get("/ready")
+def ready():
+    try:
+        spec()
+        properties.liquid_properties("water", 293.15)
+    except Exception as exc:  # readiness reports, it never raises
+        return problem(503, f"not ready: {type(exc).__name__}")
+    return jsonify(status="ready", version=VERSION)
+
+
+@bp.get("/openapi.yaml")
+def openapi():
+    return Response(spec_text(), mimetype="application/yaml")
+
+
+def _resolve(node, document: dict):
+    if isinstance(node, dict) and "$ref" in node:
+        target = document
+        for part in node["$ref"].lstrip("#/").split("/"):
+            target = target[part]
+        return target
+    return node
+
+
+def _rows(schema, document: dict, prefix: str = "", depth: int = 0) -> list[dict]:
+    """Flatten a JSON schema into table rows: dotted name, type, unit, description."""
+    schema = _resolve(schema or {}, document)
+    rows: list[dict] = []
+    if depth > 6:
+        return rows
+    for variant in schema.get("oneOf", []) + schema.get("anyOf", []):
+        rows.extend(_rows(variant, document, prefix, depth + 1))
+    required = set(schema.get("required", []))
+    for name, sub in (schema.get("properties") or {}).items():
+        sub = _resolve(sub, document)
+        path = f"{prefix}.{name}" if prefix else name
+        kind = sub.get("type", "object" if "properties" in sub else "")
+        if isinstance(kind, list):
+            kind = " | ".join(kind)
+        if "enum" in sub:
+            kind = "one of: " + ", ".join(str(v) for v in sub["enum"])
+        rows.append({"name": path, "type": kind, "unit": sub.get("x-unit", ""),
+                     "required": name in required, "description": sub.get("description", "")})
+        if "properties" in sub or "oneOf" in sub:
+            rows.extend(_rows(sub, document, path, depth + 1))
+        elif sub.get("type") == "array" and isinstance(sub.get("items"), dict):
+            rows.extend(_rows(sub["items"], document, path + "[]", depth + 1))
+    return rows
+
+
+@bp.get("/docs")
+def docs():
+    document = spec()
+    operations = []
+    for path, item in document.get("paths", {}).items():
+        for method, op in item.items():
+            if method not in {"get", "post", "put", "delete", "patch"}:
+                continue
+            body = op.get("requestBody", {}).get("content", {}).get("application/json", {}).get("schema")
+            ok = (op.get("responses", {}).get("200", {}).get("content", {})
+                  .get("application/json", {}).get("schema"))
+            parameters = [_resolve(p, document) for p in op.get("parameters", [])]
+            operations.append({
+                "method": method.upper(), "path": path, "summary": op.get("summary", ""),
+                "description": op.get("description", ""), "tag": (op.get("tags") or ["service"])[0],
+                "parameters": [{"name": p.get("name"), "where": p.get("in"),
+                                "unit": _resolve(p.get("schema", {}), document).get("x-unit", ""),
+                                "description": p.get("description", "")} for p in parameters],
+                "body": _rows(body, document), "result": _rows(ok, document),
+                "anchor": f"{method}-{path.strip('/').replace('/', '-').replace('{', '').replace('}', '')}",
+            })
+    return render_template("docs.html", info=document.get("info", {}), operations=operations, version=VERSION)

@@ -1,0 +1,182 @@
+"""Quantities at the API boundary: a number in the field's default unit, or a string with a unit.
+
+One pint registry serves the whole process. Each quantity kind names its default API unit (what a
+bare number means and what responses use) and the SI unit that ``calc`` works in. Numbers convert
+with a precomputed factor and offset; strings go through pint, so "150 rpm", "25 degC", "20 m^3/h"
+and "6 ft" all work and a wrong dimension is refused with a message that names both sides.
+"""
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+
+import pint
+from marshmallow import ValidationError, fields
+
+UREG = pint.UnitRegistry()
+_NUMBER_THEN_UNIT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
+_MAX_TEXT = 80
+
+
+@dataclass(frozen=True)
+class Kind:
+    """A physical quantity kind: its name in messages, default API unit and calc (SI) unit."""
+
+    name: str
+    api_unit: str
+    si_unit: str
+    difference: bool = False  # a temperature difference: degC means delta_degC
+
+    @property
+    def dimensionality(self):
+        return UREG.Quantity(1, self.si_unit).dimensionality
+
+    def factor_offset(self) -> tuple[float, float]:
+        zero = UREG.Quantity(0.0, self.api_unit).to(self.si_unit).magnitude
+        one = UREG.Quantity(1.0, self.api_unit).to(self.si_unit).magnitude
+        return one - zero, zero
+
+
+KINDS: dict[str, Kind] = {k.name: k for k in [
+    Kind("length", "m", "m"),
+    Kind("area", "m^2", "m^2"),
+    Kind("volume", "m^3", "m^3"),
+    Kind("mass", "kg", "kg"),
+    Kind("time", "s", "s"),
+    Kind("mass flow", "kg/s", "kg/s"),
+    Kind("volume flow", "m^3/s", "m^3/s"),
+    Kind("density", "kg/m^3", "kg/m^3"),
+    Kind("heat capacity", "J/(kg*K)", "J/(kg*K)"),
+    Kind("temperature", "degC", "K"),
+    Kind("temperature difference", "K", "K", difference=True),
+    Kind("agitator speed", "rpm", "revolution/s"),
+    Kind("power", "W", "W"),
+    Kind("heat-transfer coefficient", "W/(m^2*K)", "W/(m^2*K)"),
+    Kind("thermal conductance", "W/K", "W/K"),
+    Kind("fouling resistance", "m^2*K/W", "m^2*K/W"),
+    Kind("viscosity", "Pa*s", "Pa*s"),
+    Kind("thermal conductivity", "W/(m*K)", "W/(m*K)"),
+    Kind("molar enthalpy", "J/mol", "J/mol"),
+    Kind("activation energy", "J/mol", "J/mol"),
+    Kind("specific energy", "J/kg", "J/kg"),
+    Kind("specific power", "W/kg", "W/kg"),
+    Kind("power per volume", "W/m^3", "W/m^3"),
+    Kind("pressure", "Pa", "Pa"),
+    Kind("velocity", "m/s", "m/s"),
+    Kind("angle", "degree", "degree"),
+    Kind("amount of substance", "mol", "mol"),
+    Kind("concentration", "mol/m^3", "mol/m^3"),
+    Kind("molar mass", "kg/mol", "kg/mol"),
+    Kind("molar flow", "mol/s", "mol/s"),
+    Kind("frequency", "1/s", "1/s"),
+    Kind("area per volume", "1/m", "1/m"),
+    Kind("dimensionless", "", ""),
+]}
+_FACTORS = {name: kind.factor_offset() for name, kind in KINDS.items()}
+_OFFSET_UNITS = {"degree_Celsius": "delta_degree_Celsius", "degree_Fahrenheit": "delta_degree_Fahrenheit"}
+
+
+def to_si(kind_name: str, value: float) -> float:
+    """Convert a number in the kind's default API unit to SI."""
+    factor, offset = _FACTORS[kind_name]
+    return value * factor + offset
+
+
+def from_si(kind_name: str, value: float) -> float:
+    """Convert an SI number to the kind's default API unit."""
+    factor, offset = _FACTORS[kind_name]
+    return (value - offset) / factor
+
+
+def parse_quantity(kind_name: str, raw) -> float:
+    """Parse a number (default unit) or "number unit" text and return the SI value.
+
+    Raises marshmallow.ValidationError with a message a caller can act on.
+
+    >>> parse_quantity("agitator speed", "150 rpm")
+    2.5
+    >>> parse_quantity("temperature", 25)
+    298.15
+    """
+    kind = KINDS[kind_name]
+    if isinstance(raw, bool):
+        raise ValidationError(f"expected a {kind.name} (a number or a string such as '{_example(kind)}')")
+    if isinstance(raw, (int, float)):
+        value = float(raw)
+        if not math.isfinite(value):
+            raise ValidationError("must be a finite number")
+        return to_si(kind_name, value)
+    if not isinstance(raw, str):
+        raise ValidationError(f"expected a {kind.name} (a number or a string such as '{_example(kind)}')")
+    if len(raw) > _MAX_TEXT:
+        raise ValidationError(f"quantity text is longer than {_MAX_TEXT} characters")
+    match = _NUMBER_THEN_UNIT.match(raw)
+    if match is None:
+        raise ValidationError(f"expected a number with an optional unit, e.g. '{_example(kind)}'; got {raw!r}")
+    number, unit = float(match.group(1)), match.group(2)
+    if not math.isfinite(number):
+        raise ValidationError("must be a finite number")
+    if unit == "":
+        return to_si(kind_name, number)
+    try:
+        quantity = UREG.Quantity(number, unit)
+    except (pint.PintError, AttributeError, TypeError, ValueError, SyntaxError, KeyError):
+        raise ValidationError(f"unknown unit {unit!r}") from None
+    if kind.difference:
+        name = str(quantity.units)
+        if name in _OFFSET_UNITS:
+            quantity = UREG.Quantity(number, _OFFSET_UNITS[name])
+    if kind_name == "agitator speed" and quantity.dimensionality == UREG.Quantity(1, "1/s").dimensionality:
+        base = quantity.to_base_units()
+        turns = base.magnitude / (2 * math.pi) if "radian" in str(base.units) else base.magnitude
+        return float(turns)
+    if quantity.dimensionality != kind.dimensionality:
+        raise ValidationError(f"expected a {kind.name}, got {unit!r}")
+    try:
+        value = float(quantity.to(kind.si_unit).magnitude)
+    except pint.PintError as exc:
+        raise ValidationError(f"cannot convert {unit!r} to {kind.api_unit}: {exc}") from None
+    if not math.isfinite(value):
+        raise ValidationError("must be a finite number")
+    return value
+
+
+def _example(kind: Kind) -> str:
+    return f"1 {kind.api_unit}" if kind.api_unit else "0.5"
+
+
+class Quantity(fields.Field):
+    """A marshmallow field for a physical quantity: API units outside, SI inside.
+
+    ``minimum``/``maximum`` are in the API unit; ``exclusive_minimum`` makes the lower bound strict.
+    """
+
+    def __init__(self, kind: str, *, minimum: float | None = None, maximum: float | None = None,
+                 exclusive_minimum: bool = False, description: str = "", **kwargs):
+        if kind not in KINDS:
+            raise KeyError(kind)
+        self.kind = kind
+        self.minimum, self.maximum, self.exclusive_minimum = minimum, maximum, exclusive_minimum
+        metadata = dict(kwargs.pop("metadata", {}))
+        metadata.update(unit=KINDS[kind].api_unit, kind=kind, description=description)
+        super().__init__(metadata=metadata, **kwargs)
+
+    def _deserialize(self, value, attr, data, **kwargs) -> float:
+        si = parse_quantity(self.kind, value)
+        api = from_si(self.kind, si)
+        unit = KINDS[self.kind].api_unit
+        if self.minimum is not None:
+            too_low = api <= self.minimum if self.exclusive_minimum else api < self.minimum
+            if too_low:
+                relation = "greater than" if self.exclusive_minimum else "at least"
+                raise ValidationError(f"must be {relation} {self.minimum:g} {unit}".rstrip())
+        if self.maximum is not None and api > self.maximum:
+            raise ValidationError(f"must be at most {self.maximum:g} {unit}".rstrip())
+        return si
+
+    def _serialize(self, value, attr, obj, **kwargs):
+        if value is None:
+            return None
+        result = from_si(self.kind, float(value))
+        return result if math.isfinite(result) else None

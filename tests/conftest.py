@@ -1,0 +1,13 @@
+import pytest
+
+from api import create_app
+
+
+@pytest.fixture(scope="session")
+def app():
+    return create_app({"TESTING": True})
+
+
+@pytest.fixture()
+def client(app):
+    return app.test_client()

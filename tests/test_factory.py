@@ -1,0 +1,31 @@
+"""The app factory, service endpoints and request ids."""
+from api import create_app
+
+
+def test_config_overrides_defaults_and_environment(monkeypatch):
+    monkeypatch.setenv("COOLMARGIN_MAX_BATCH_CASES", "7")
+    assert create_app().config["MAX_BATCH_CASES"] == 7
+    assert create_app({"MAX_BATCH_CASES": 3}).config["MAX_BATCH_CASES"] == 3
+
+
+def test_health_and_ready(client):
+    health = client.get("/health")
+    assert health.status_code == 200 and health.json["status"] == "ok" and health.json["version"]
+    ready = client.get("/ready")
+    assert ready.status_code == 200 and ready.json["status"] == "ready"
+
+
+def test_request_id_is_echoed_or_generated(client):
+    assert client.get("/health", headers={"X-Request-ID": "abc-123"}).headers["X-Request-ID"] == "abc-123"
+    generated = client.get("/health", headers={"X-Request-ID": "bad id with spaces"}).headers["X-Request-ID"]
+    assert len(generated) == 32 and " " not in generated
+
+
+def test_docs_page_lists_every_operation(client):
+    page = client.get("/docs").get_data(as_text=True)
+    spec = client.get("/openapi.yaml").get_data(as_text=True)
+    import yaml
+
+    for path in yaml.safe_load(spec)["paths"]:
+        assert path in page
+    assert "licensed engineer" in page
