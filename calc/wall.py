@@ -1,0 +1,315 @@
+"""Vessel and coil walls: materials, conduction through cylindrical layers, fouling, overall U.
+
+Every resistance is referred to the process-side surface (the area the geometry module reports:
+the wetted inside area of a jacketed vessel, the outside area of an internal coil), so that
+1/U = sum of the resistances and U A uses that one area. A layer between radii a < b, conductivity k,
+referred to the area at radius r_ref is R = r_ref ln(b/a) / k; a film or fouling layer at radius r
+is R = (1/h or R_f) r_ref / r (Incropera & DeWitt, *Fundamentals of Heat and Mass Transfer*, 6th ed.,
+2007, eqs. 3.28 and 11.1-11.5). A flat wall is the limit r -> infinity (``math.inf``).
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+from .validity import CalcWarning, InputError, Warnings, require_positive
+
+#: Order of the resistances from the process to the coolant.
+LAYERS = ("process_film", "process_fouling", "lining", "wall", "service_fouling", "service_film")
+
+
+@dataclass(frozen=True)
+class Material:
+    """A wall material of the built-in library; conductivities at about room temperature."""
+
+    id: str
+    name: str
+    conductivity: float  # W/(m K)
+    source: str
+    lining_thickness: float | None = None  # m, default lining on the process side
+    lining_conductivity: float | None = None  # W/(m K)
+    lining_source: str | None = None
+
+
+MATERIALS: dict[str, Material] = {m.id: m for m in [
+    Material("stainless_316l", "Stainless steel 316L", 13.4,
+             "Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, 6th ed., Table A.1, AISI 316 at 300 K "
+             "(from memory); the lower of the published values (DIN EN 12524 via the VDI Heat Atlas gives 17), "
+             "so the wall resistance errs on the safe side"),
+    Material("stainless_304", "Stainless steel 304", 14.9,
+             "Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, 6th ed., Table A.1, AISI 304 at 300 K "
+             "(from memory)"),
+    Material("carbon_steel", "Carbon steel (pressure-vessel grade)", 50.0,
+             "DIN EN 12524 (2000), steel, as tabulated in the VDI Heat Atlas, 2nd ed., 2010; pressure-vessel "
+             "grades 45-52 W/(m K) (from memory)"),
+    Material("hastelloy_c276", "Nickel alloy C-276", 10.0,
+             "producer data sheet for alloy C-276, about 10 W/(m K) at room temperature, 9.8-11 over "
+             "20-200 degC (from memory)"),
+    Material("nickel_200", "Nickel 200", 70.0,
+             "producer data sheet for commercially pure nickel 200, about 70 W/(m K) at room temperature "
+             "(from memory; pure nickel is 90.7 at 300 K, Incropera & DeWitt Table A.1)"),
+    Material("glass_lined_steel", "Glass-lined carbon steel", 50.0,
+             "carbon steel as above (DIN EN 12524 via the VDI Heat Atlas, 2010)",
+             lining_thickness=1.5e-3, lining_conductivity=1.0,
+             lining_source="enamel 1.0-2.0 mm thick, 1.5 mm typical (from memory); conductivity of soda-lime "
+                           "glass 1.0 W/(m K), DIN EN 12524 via the VDI Heat Atlas (2010); published enamel "
+                           "values range 0.9-1.2 W/(m K)"),
+]}
+
+
+def material(material_id: str, field_name: str = "vessel.wall.material") -> Material:
+    """Look up a wall material by id; unknown ids are an :class:`InputError` listing the known ones."""
+    try:
+        return MATERIALS[material_id]
+    except KeyError:
+        raise InputError(field_name, f"unknown material {material_id!r}; known materials: "
+                                     f"{', '.join(sorted(MATERIALS))}") from None
+
+
+@dataclass(frozen=True)
+class WallSpec:
+    """A wall as the request gives it; None means 'take the library value of the material'.
+
+    ``lining_thickness = 0`` removes the lining of a lined material; a lining on any other material
+    needs its conductivity.
+    """
+
+    thickness: float  # m, metal only
+    material: str = "stainless_316l"
+    conductivity: float | None = None  # W/(m K), overrides the library value
+    lining_thickness: float | None = None  # m, on the process side
+    lining_conductivity: float | None = None  # W/(m K)
+
+
+@dataclass(frozen=True)
+class Fouling:
+    """Fouling resistances on each side, each referred to its own surface, m2 K/W."""
+
+    process: float = 0.0
+    service: float = 0.0
+
+
+@dataclass(frozen=True)
+class OverallResult:
+    """Overall coefficient on the process-side area and its resistances (m2 K/W, same basis)."""
+
+    U: float  # W/(m2 K), referred to the process-side surface
+    resistances: dict  # name -> m2 K/W, in the order of LAYERS
+    controlling: str  # name of the largest resistance
+    reference_radius: float  # m, radius of the process-side surface (inf for a flat wall)
+    service_radius: float  # m, radius of the service-side surface
+    warnings: Warnings = field(default_factory=Warnings)
+
+
+@dataclass(frozen=True)
+class WallTemperatures:
+    """Steady temperatures through the wall for given bulk temperatures on each side."""
+
+    heat_flux: float  # W/m2 on the process-side area, positive from process to coolant
+    process_surface: float  # K, surface the process film sees (fouling surface if fouled)
+    service_surface: float  # K, surface the service film sees
+    interfaces: tuple  # ((name of the layer just crossed, K), ...) from process to coolant
+
+
+def layer_resistance(inner_radius: float, thickness: float, conductivity: float,
+                     reference_radius: float) -> float:
+    """Conduction resistance of a cylindrical layer referred to the area at ``reference_radius``.
+
+    R = r_ref ln(1 + t / r_i) / k, tending to t/k for a flat wall (r_i = r_ref -> inf)
+
+    Parameters
+    ----------
+    inner_radius : float
+        Inner radius of the layer, [m]; ``math.inf`` for a flat wall
+    thickness : float
+        Thickness of the layer, [m]
+    conductivity : float
+        Thermal conductivity of the layer, [W/(m K)]
+    reference_radius : float
+        Radius of the surface the resistance is referred to, [m]; ``math.inf`` for a flat wall
+
+    Returns
+    -------
+    R : float
+        Resistance per unit reference area, [m2 K/W]
+
+    Examples
+    --------
+    3 mm of 316L on a 1 m inside radius, referred to the inside: 0.003/13.4 (1 - 0.0015) m2K/W
+
+    >>> round(layer_resistance(1.0, 0.003, 13.4, 1.0) * 1e4, 4)
+    2.2355
+
+    References
+    ----------
+    Incropera, F. P.; DeWitt, D. P. *Fundamentals of Heat and Mass Transfer*, 6th ed. Wiley, 2007, eq. 3.28.
+    """
+    if thickness == 0.0:
+        return 0.0
+    if math.isinf(inner_radius):
+        return thickness / conductivity
+    # r_ref ln(1 + t/r_i)/k, written with log1p so that thin walls on large radii stay exact
+    return reference_radius * math.log1p(thickness / inner_radius) / conductivity
+
+
+def _resolve(wall: WallSpec, field_name: str) -> tuple[float, float, float, float, Warnings]:
+    """Metal thickness and conductivity, lining thickness and conductivity, with library defaults."""
+    mat = material(wall.material, f"{field_name}.material")
+    warnings = Warnings()
+    require_positive(f"{field_name}.thickness", wall.thickness)
+    k = mat.conductivity if wall.conductivity is None else require_positive(f"{field_name}.conductivity",
+                                                                            wall.conductivity)
+    if wall.conductivity is not None and not 0.5 * mat.conductivity <= k <= 2.0 * mat.conductivity:
+        warnings.add(CalcWarning("conductivity_unusual",
+                                 f"wall conductivity {k:.4g} W/(m K) differs by more than a factor of 2 from "
+                                 f"the library value for {mat.name} ({mat.conductivity:g}); check the unit"))
+    t_lining = mat.lining_thickness if wall.lining_thickness is None else wall.lining_thickness
+    t_lining = 0.0 if t_lining is None else t_lining
+    if not (math.isfinite(t_lining) and t_lining >= 0):
+        raise InputError(f"{field_name}.lining_thickness", f"must be a number >= 0, got {t_lining!r}")
+    k_lining = mat.lining_conductivity if wall.lining_conductivity is None else wall.lining_conductivity
+    if t_lining > 0:
+        if k_lining is None:
+            raise InputError(f"{field_name}.lining_conductivity",
+                             f"{mat.name} has no library lining; give the lining's conductivity")
+        require_positive(f"{field_name}.lining_conductivity", k_lining)
+    return wall.thickness, k, t_lining, (k_lining or 1.0), warnings
+
+
+def overall_coefficient(h_process: float, h_service: float, wall: WallSpec, fouling: Fouling | None = None,
+                        process_radius: float = math.inf, process_side: str = "inside",
+                        field_name: str = "vessel.wall") -> OverallResult:
+    """Overall heat-transfer coefficient through films, fouling, lining and wall (series resistances).
+
+    1/U = 1/h_p + R_f,p + R_lining + R_wall + R_f,s r_p/r_s + (1/h_s) r_p/r_s, each layer term
+    r_p ln(b/a)/k, all on the process-side area at radius r_p
+
+    Parameters
+    ----------
+    h_process : float
+        Process-side film coefficient, [W/(m2 K)]
+    h_service : float
+        Coolant-side film coefficient, [W/(m2 K)]
+    wall : WallSpec
+        Wall material, thickness and optional lining (the lining faces the process), [-]
+    fouling : Fouling, optional
+        Fouling resistances on each side, each on its own surface, [m2 K/W]
+    process_radius : float
+        Radius of the process-side surface: vessel inside radius, or coil tube outside radius, [m];
+        ``math.inf`` (default) for a flat wall
+    process_side : str
+        ``"inside"`` for a jacketed vessel (process inside the cylinder), ``"outside"`` for a coil
+        (process outside the tube, coolant inside), [-]
+    field_name : str
+        Request path of the wall, used in error messages, [-]
+
+    Returns
+    -------
+    OverallResult
+
+    Notes
+    -----
+    The glass lining alone of a glass-lined vessel (1.5 mm at 1.0 W/(m K)) is 0.0015 m2K/W, so U never
+    exceeds about 670 W/(m2 K) whatever the films.
+
+    Examples
+    --------
+    Flat 316L wall 6 mm, films 1000 and 3000 W/(m2 K), no fouling: 1/U = 1e-3 + 4.478e-4 + 3.333e-4
+
+    >>> r = overall_coefficient(1000.0, 3000.0, WallSpec(0.006, "stainless_316l"))
+    >>> round(r.U, 1), r.controlling
+    (561.5, 'process_film')
+
+    References
+    ----------
+    Incropera, F. P.; DeWitt, D. P. *Fundamentals of Heat and Mass Transfer*, 6th ed. Wiley, 2007,
+    section 11.2 (overall coefficient with fouling, eq. 11.5).
+    """
+    require_positive("process_film", h_process)
+    require_positive("service_film", h_service)
+    fouling = Fouling() if fouling is None else fouling
+    for side, value in (("process", fouling.process), ("service", fouling.service)):
+        if not (math.isfinite(value) and value >= 0):
+            raise InputError(f"vessel.fouling.{side}", f"must be a number >= 0, got {value!r}")
+    if not (process_radius > 0 and not math.isnan(process_radius)):
+        raise InputError("vessel.diameter", f"must be a positive number, got {process_radius!r}")
+    thickness, k, t_lining, k_lining, warnings = _resolve(wall, field_name)
+
+    r_p = process_radius
+    if process_side == "inside":
+        r_lining_end = r_p + t_lining
+        r_s = r_lining_end + thickness
+        lining = layer_resistance(r_p, t_lining, k_lining, r_p)
+        metal = layer_resistance(r_lining_end, thickness, k, r_p)
+    elif process_side == "outside":
+        r_lining_end = r_p - t_lining
+        r_s = r_lining_end - thickness
+        if not r_s > 0:
+            raise InputError(f"{field_name}.thickness", "wall and lining are thicker than the tube radius")
+        lining = layer_resistance(r_lining_end, t_lining, k_lining, r_p)
+        metal = layer_resistance(r_s, thickness, k, r_p)
+    else:
+        raise InputError("process_side", f"unknown option {process_side!r}; known: inside, outside")
+    area_ratio = 1.0 if math.isinf(r_p) else r_p / r_s  # service surface to process surface, per area
+
+    resistances = {
+        "process_film": 1.0 / h_process,
+        "process_fouling": fouling.process,
+        "lining": lining,
+        "wall": metal,
+        "service_fouling": fouling.service * area_ratio,
+        "service_film": area_ratio / h_service,
+    }
+    total = sum(resistances.values())
+    controlling = max(resistances, key=resistances.get)
+    if controlling in ("lining", "wall"):
+        warnings.add(CalcWarning("wall_controlling",
+                                 f"the {controlling} is the largest resistance: better films or colder coolant "
+                                 "gain little"))
+    return OverallResult(1.0 / total, resistances, controlling, r_p, r_s, warnings)
+
+
+def interface_temperatures(result: OverallResult, process_temperature: float,
+                           coolant_temperature: float) -> WallTemperatures:
+    """Temperatures at each interface for bulk process and coolant temperatures (steady series conduction).
+
+    q = U (T_p - T_c);  T after each layer = T_p - q (sum of the resistances crossed so far)
+
+    Parameters
+    ----------
+    result : OverallResult
+        From :func:`overall_coefficient`, [-]
+    process_temperature : float
+        Bulk temperature of the contents, [K]
+    coolant_temperature : float
+        Bulk (mean) coolant temperature, [K]
+
+    Returns
+    -------
+    WallTemperatures
+        ``process_surface`` and ``service_surface`` are the temperatures at which the wall viscosity of
+        each film is evaluated.
+
+    Examples
+    --------
+    >>> r = overall_coefficient(1000.0, 3000.0, WallSpec(0.006, "stainless_316l"))
+    >>> t = interface_temperatures(r, 353.15, 303.15)
+    >>> round(t.process_surface - 273.15, 2), round(t.service_surface - 273.15, 2)
+    (51.93, 39.36)
+    """
+    for name, value in (("process_temperature", process_temperature), ("coolant.temperature", coolant_temperature)):
+        if not (math.isfinite(value) and value > 0):
+            raise InputError(name, f"must be an absolute temperature above 0 K, got {value!r}")
+    flux = result.U * (process_temperature - coolant_temperature)
+    crossed = 0.0
+    interfaces = []
+    for name in LAYERS:
+        crossed += result.resistances[name]
+        interfaces.append((name, process_temperature - flux * crossed))
+    by_name = dict(interfaces)
+    return WallTemperatures(flux, by_name["process_film"], by_name["service_fouling"], tuple(interfaces))
+
+
+def library() -> list[Material]:
+    """The built-in materials, in a stable order."""
+    return list(MATERIALS.values())

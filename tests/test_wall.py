@@ -1,0 +1,146 @@
+"""Wall conduction, fouling and overall U against closed forms, ht (test-only oracle) and limits."""
+import math
+
+import pytest
+from ht.conduction import R_cylinder, cylindrical_heat_transfer
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from scipy.integrate import quad
+
+from calc.validity import InputError
+from calc.wall import (LAYERS, MATERIALS, Fouling, WallSpec, interface_temperatures, layer_resistance, material,
+                       overall_coefficient)
+
+films = st.floats(min_value=10.0, max_value=1e5)
+
+
+def test_layer_resistance_is_the_cylinder_closed_form():
+    # Closed form for a cylinder: R A_i = r_i ln(r_o/r_i)/k (Incropera eq. 3.28), checked two independent ways:
+    r_i, t, k = 0.9, 0.012, 13.4
+    ours = layer_resistance(r_i, t, k, r_i)
+    # (1) ht.conduction.R_cylinder (test-only oracle; its code is ln(Do/Di)/(2 pi k L)) times the inside area
+    assert ours == pytest.approx(R_cylinder(2 * r_i, 2 * (r_i + t), k, 1.0) * 2 * math.pi * r_i, rel=1e-12)
+    # (2) Fourier's law integrated numerically: R A_i = r_i/k * integral of dr/r
+    integral, _ = quad(lambda r: 1.0 / r, r_i, r_i + t, epsrel=1e-13)
+    assert ours == pytest.approx(r_i * integral / k, rel=1e-11)
+    # flat-wall limit t/k (common practice, no source) on an infinite radius and almost on a huge one
+    assert layer_resistance(math.inf, t, k, math.inf) == t / k
+    assert layer_resistance(1e9, t, k, 1e9) == pytest.approx(t / k, rel=1e-10)
+
+
+def test_overall_coefficient_matches_ht_cylindrical_heat_transfer():
+    # ht.conduction.cylindrical_heat_transfer (test-only oracle; read: layers r_o ln(...)/k on the outer
+    # area, films hi, ho, U_inner = UA/A_inner) for a glass-lined vessel of 2.0 m inside diameter.
+    wall = WallSpec(0.016, "glass_lined_steel")
+    ours = overall_coefficient(800.0, 2500.0, wall, process_radius=1.0)
+    oracle = cylindrical_heat_transfer(Ti=350.0, To=300.0, hi=800.0, ho=2500.0, Di=2.0,
+                                       ts=[1.5e-3, 0.016], ks=[1.0, 50.0])
+    assert ours.U == pytest.approx(oracle["U_inner"], rel=1e-12)
+
+
+def test_coil_wall_on_the_outside_area_matches_ht():
+    # Coil: process outside the tube, coolant inside. U on the outer area is ht's U_outer (test-only oracle).
+    d_o, t = 0.0603, 0.00277
+    ours = overall_coefficient(1200.0, 4000.0, WallSpec(t, "stainless_316l"), process_radius=d_o / 2,
+                               process_side="outside")
+    oracle = cylindrical_heat_transfer(Ti=300.0, To=350.0, hi=4000.0, ho=1200.0, Di=d_o - 2 * t, ts=[t], ks=[13.4])
+    assert ours.U == pytest.approx(oracle["U_outer"], rel=1e-12)
+    assert ours.service_radius == pytest.approx(d_o / 2 - t)
+
+
+def test_fouling_and_service_film_are_referred_by_the_radius_ratio():
+    # Hand computation of the definition: a resistance on the service surface counts r_p/r_s on the process area.
+    r_p, t = 0.5, 0.01
+    r = overall_coefficient(1000.0, 2000.0, WallSpec(t, "carbon_steel"), Fouling(2e-4, 3.5e-4), process_radius=r_p)
+    ratio = r_p / (r_p + t)
+    assert r.resistances["service_fouling"] == pytest.approx(3.5e-4 * ratio, rel=1e-14)
+    assert r.resistances["service_film"] == pytest.approx(ratio / 2000.0, rel=1e-14)
+    assert r.resistances["process_fouling"] == 2e-4
+    assert r.resistances["lining"] == 0.0
+    assert list(r.resistances) == list(LAYERS)
+    assert 1.0 / r.U == pytest.approx(sum(r.resistances.values()), rel=1e-14)
+
+
+@settings(max_examples=50, deadline=None)
+@given(films, films, st.floats(min_value=0.2, max_value=3.0), st.floats(min_value=0.004, max_value=0.03))
+def test_glass_lined_U_never_above_the_lining_limit(h_p, h_s, radius, thickness):
+    # METHODS 6 (derived): 1.5 mm enamel at k = 1.0 W/(m K) is 0.0015 m2K/W alone, so U <= about 667 W/(m2 K).
+    r = overall_coefficient(h_p, h_s, WallSpec(thickness, "glass_lined_steel"), process_radius=radius)
+    assert r.U < 1.0 / 0.0015 * (1 + 1e-9)
+    # cylinder closed form for the enamel itself: r ln(1 + t/r)/k, within t/(2r) of the flat value 0.0015
+    assert r.resistances["lining"] == pytest.approx(radius * math.log(1 + 0.0015 / radius) / 1.0, rel=1e-12)
+    assert r.resistances["lining"] == pytest.approx(0.0015, rel=0.0015 / radius)
+
+
+@settings(max_examples=50, deadline=None)
+@given(films, films, st.floats(min_value=1.0001, max_value=10.0))
+def test_better_films_never_lower_U(h_p, h_s, factor):
+    # Series resistances (common practice, no source): a larger film coefficient never lowers U.
+    wall = WallSpec(0.008, "stainless_304")
+    base = overall_coefficient(h_p, h_s, wall, process_radius=0.8).U
+    assert overall_coefficient(h_p * factor, h_s, wall, process_radius=0.8).U >= base
+    assert overall_coefficient(h_p, h_s * factor, wall, process_radius=0.8).U >= base
+
+
+@settings(max_examples=50, deadline=None)
+@given(films, films, st.floats(min_value=280.0, max_value=450.0), st.floats(min_value=250.0, max_value=450.0))
+def test_interface_temperatures_conserve_the_flux(h_p, h_s, t_p, t_c):
+    # Steady series conduction (definition): the same flux crosses every layer, and the last interface is
+    # the coolant bulk temperature.
+    r = overall_coefficient(h_p, h_s, WallSpec(0.01, "glass_lined_steel"), Fouling(1e-4, 2e-4), process_radius=1.1)
+    temps = interface_temperatures(r, t_p, t_c)
+    assert temps.interfaces[-1][1] == pytest.approx(t_c, abs=1e-9)
+    previous = t_p
+    for name, value in temps.interfaces:
+        if r.resistances[name] > 0:
+            assert (previous - value) / r.resistances[name] == pytest.approx(temps.heat_flux, rel=1e-9, abs=1e-6)
+        previous = value
+    assert min(t_p, t_c) - 1e-9 <= temps.service_surface <= max(t_p, t_c) + 1e-9
+    assert (temps.process_surface - temps.service_surface) * (t_p - t_c) >= 0
+
+
+def test_glass_lined_vessel_wall_temperatures_by_hand():
+    # Hand computation: flat wall, films 600 and 2000, 1.5 mm glass at 1.0 + 12 mm steel at 50 W/(m K).
+    r = overall_coefficient(600.0, 2000.0, WallSpec(0.012, "glass_lined_steel"))
+    total = 1 / 600 + 0.0015 + 0.012 / 50 + 1 / 2000
+    assert r.U == pytest.approx(1 / total, rel=1e-14)
+    assert r.controlling == "process_film"
+    t = interface_temperatures(r, 353.15, 293.15)
+    q = 60.0 / total
+    assert t.heat_flux == pytest.approx(q, rel=1e-14)
+    assert t.process_surface == pytest.approx(353.15 - q / 600, rel=1e-14)
+    assert t.service_surface == pytest.approx(293.15 + q / 2000, rel=1e-14)
+
+
+def test_registry_has_sources_and_rejects_unknown_ids():
+    assert set(MATERIALS) == {"stainless_316l", "stainless_304", "carbon_steel", "hastelloy_c276",
+                              "nickel_200", "glass_lined_steel"}
+    for key, m in MATERIALS.items():
+        assert m.id == key and m.source and m.conductivity > 0
+    # Incropera & DeWitt Table A.1 (from memory): AISI 316 13.4 and AISI 304 14.9 W/(m K) at 300 K
+    assert MATERIALS["stainless_316l"].conductivity == 13.4
+    assert MATERIALS["stainless_304"].conductivity == 14.9
+    with pytest.raises(InputError) as err:
+        material("unobtainium")
+    assert err.value.field == "vessel.wall.material"
+
+
+@pytest.mark.parametrize("wall, field", [
+    (WallSpec(-0.01), "vessel.wall.thickness"),
+    (WallSpec(0.01, conductivity=0.0), "vessel.wall.conductivity"),
+    (WallSpec(0.01, lining_thickness=0.002), "vessel.wall.lining_conductivity"),
+    (WallSpec(0.01, "glass_lined_steel", lining_thickness=-1.0), "vessel.wall.lining_thickness"),
+    (WallSpec(0.01, "titanium"), "vessel.wall.material"),
+])
+def test_bad_wall_input_names_the_field(wall, field):
+    with pytest.raises(InputError) as err:
+        overall_coefficient(500.0, 500.0, wall, process_radius=1.0)
+    assert err.value.field == field
+
+
+def test_lining_can_be_removed_and_overrides_apply():
+    bare = overall_coefficient(500.0, 500.0, WallSpec(0.01, "glass_lined_steel", lining_thickness=0.0))
+    assert bare.resistances["lining"] == 0.0
+    warned = overall_coefficient(500.0, 500.0, WallSpec(0.01, "stainless_316l", conductivity=130.0))
+    assert warned.resistances["wall"] == pytest.approx(0.01 / 130.0)
+    assert any(w.code == "conductivity_unusual" for w in warned.warnings)
