@@ -435,7 +435,7 @@ class HeadProfile:
 
     @property
     def full_area(self) -> float:
-        return self.area(self.depth)
+        return self.area(math.inf)  # every head clips z; a flat bottom is wetted by any z > 0
 
 
 @dataclass(frozen=True)
@@ -573,10 +573,17 @@ class FillGeometry:
     warnings: Warnings
 
 
+# Sizes outside these bounds are no stirred tank, and would overflow or underflow the closed forms.
+LENGTH_RANGE = (1e-3, 1e3)  # m, for the diameter and the straight side
+
+
 @lru_cache(maxsize=256)
 def _head(shape: VesselShape) -> HeadProfile:
-    require_positive("vessel.diameter", shape.diameter)
-    require_positive("vessel.straight_side", shape.straight_side)
+    for name in ("diameter", "straight_side"):
+        value = require_positive(f"vessel.{name}", getattr(shape, name))
+        if not LENGTH_RANGE[0] <= value <= LENGTH_RANGE[1]:
+            raise InputError(f"vessel.{name}", f"must lie between {LENGTH_RANGE[0]:g} m and {LENGTH_RANGE[1]:g} m, "
+                                               f"got {value!r}")
     head = HEADS.get(shape.bottom_head)
     if head is None:
         raise InputError("vessel.bottom_head",
@@ -610,6 +617,9 @@ def volume_at_level(shape: VesselShape, level: float) -> float:
 
     Levels below 0 give 0; above the brim the shell is treated as continuing upward (callers check
     the brim; :func:`fill` does).
+
+    >>> volume_at_level(VesselShape(2.5, 2.8, "torispherical_klopper"), 1.5)
+    6.531484
     """
     head = _head(shape)
     if level <= head.depth:
@@ -621,6 +631,9 @@ def level_at_volume(shape: VesselShape, volume: float) -> float:
     """Liquid level [m above the lowest inside point] at which the empty vessel holds ``volume`` [m3].
 
     Closed form in the shell; Brent's method inside the head (volume rises monotonically with level).
+
+    >>> level_at_volume(VesselShape(0.1, 0.15, "ellipsoidal_2_1"), 0.8e-3)
+    0.110192
     """
     head = _head(shape)
     if volume <= 0.0:
@@ -635,7 +648,7 @@ def wetted_area(shape: VesselShape, level: float) -> float:
     """Inside wall area [m2] (bottom head + shell) below ``level`` [m above the lowest inside point]."""
     head = _head(shape)
     shell = math.pi * shape.diameter * max(level - head.depth, 0.0)
-    return head.area(min(level, head.depth)) + shell
+    return head.area(level) + shell
 
 
 def _jacket_top(shape: VesselShape, jacket: JacketCoverage) -> float:
@@ -653,7 +666,7 @@ def jacketed_area(shape: VesselShape, jacket: JacketCoverage, level: float) -> f
     head, and the shell up to min(level, jacket top)."""
     head = _head(shape)
     top = min(level, _jacket_top(shape, jacket))
-    head_part = head.area(min(top, head.depth)) if jacket.covers_bottom_head else 0.0
+    head_part = head.area(top) if jacket.covers_bottom_head else 0.0
     return head_part + math.pi * shape.diameter * max(top - head.depth, 0.0)
 
 
@@ -753,6 +766,13 @@ def fill(shape: VesselShape, jacket: JacketCoverage | None = None, coils: tuple[
     Coils displace liquid: for a given liquid volume the level is found where the vessel volume below
     it minus the submerged coil volume equals the liquid volume (Brent's method). The heat-transfer
     area is the jacketed part of the wetted wall plus the submerged coil outer area.
+
+    A 2.5 m plant vessel on a DIN 28011 head with a full jacket and a 12-turn coil, holding 10 m3:
+
+    >>> coil = HelicalCoil(tube_outer_diameter=0.0603, tube_wall=0.0039, helix_diameter=2.0, turns=12, pitch=0.12)
+    >>> r = fill(VesselShape(2.5, 2.8, "torispherical_klopper"), JacketCoverage(), (coil,), volume=10.0)
+    >>> round(r.liquid_level, 4), round(r.jacketed_area, 2), round(r.coil_area, 2), round(r.area_per_volume, 3)
+    (2.2505, 20.06, 14.29, 3.434)
     """
     head = _head(shape)
     coils = tuple(coils)
@@ -763,18 +783,21 @@ def fill(shape: VesselShape, jacket: JacketCoverage | None = None, coils: tuple[
     brim = brim_height(shape)
     if (volume is None) == (level is None):
         raise InputError("fill", "give exactly one of volume or level")
+    field = "fill.level" if level is not None else "fill.volume"
     if level is not None:
         if not (math.isfinite(level) and 0.0 < level <= brim):
-            raise InputError("fill.level", f"must be above 0 and at most the top of the straight side "
+            raise InputError(field, f"must be above 0 and at most the top of the straight side "
                                            f"({brim:.4g} m), got {level!r}")
         displaced = _coils_submerged(shape, coils, level)[0]
         volume = volume_at_level(shape, level) - displaced
+        if volume <= 0.0:
+            raise InputError(field, f"the coils take up the whole vessel below {level:.4g} m")
     else:
         capacity = volume_at_level(shape, brim) - _coils_submerged(shape, coils, brim)[0]
         if not (math.isfinite(volume) and 0.0 < volume <= capacity * (1.0 + 1e-12)):
-            raise InputError("fill.volume", f"must be above 0 and at most what the vessel holds up to the top "
+            raise InputError(field, f"must be above 0 and at most what the vessel holds up to the top "
                                             f"of the straight side ({capacity:.4g} m3), got {volume!r}")
-        level = _level_with_coils(shape, coils, min(volume, capacity))
+        level = min(_level_with_coils(shape, coils, min(volume, capacity)), brim)
     displaced, coil_area = _coils_submerged(shape, coils, level)
 
     warnings = Warnings()
@@ -795,6 +818,8 @@ def fill(shape: VesselShape, jacket: JacketCoverage | None = None, coils: tuple[
             warnings.add(CalcWarning("coil_not_submerged", f"coil {i} {state} at level {level:.4g} m; "
                                                            "only its submerged area counts"))
     area = jacketed + coil_area
+    if not math.isfinite(area / volume):
+        raise InputError(field, f"too small a charge ({volume:.4g} m3) for an area per volume")
     return FillGeometry(volume=volume, liquid_level=level, wetted_area=wetted_area(shape, level),
                         jacketed_area=jacketed, coil_area=coil_area, heat_transfer_area=area,
                         area_per_volume=area / volume, displaced_volume=displaced,
