@@ -306,6 +306,8 @@ def test_jacketed_area_coverage_cases():
     shell_only = JacketCoverage(covers_bottom_head=False, top=depth + 0.7)
     assert jacketed_area(PLANT, shell_only, depth + 1.0) == pytest.approx(math.pi * 2.5 * 0.7)
     assert jacketed_area(PLANT, shell_only, depth / 2) == 0.0
+    part_head = JacketCoverage(top=depth / 2)  # a jacket round the lower half of the head only
+    assert jacketed_area(PLANT, part_head, depth + 1.0) == pytest.approx(wetted_area(PLANT, depth / 2))
     low = fill(PLANT, shell_only, level=depth / 2)
     assert low.jacketed_area == 0.0 and [w.code for w in low.warnings] == ["jacket_not_wetted"]
     assert low.wetted_area == pytest.approx(wetted_area(PLANT, depth / 2))
