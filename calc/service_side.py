@@ -1,0 +1,840 @@
+"""Coolant-side (service-side) film coefficients: jackets and the inside of helical coils.
+
+The caller gives the coolant's properties at its mean temperature and its viscosity at the wall
+temperature (and iterates both; see :mod:`calc.wall` for the wall temperatures). Each correlation is one
+function below, registered with its source and validity range in :data:`CORRELATIONS`; every call
+checks the ranges and returns warnings with the result.
+
+Jacket types (``JacketSpec.type``):
+
+- ``annular``: plain annular jacket without baffles. Lehrer (1970) (default, the lower of the two
+  for the VDI Heat Atlas worked example: 2922 against 5695 W/m2K) or Stein & Schmidt (1993).
+- ``annular_spiral_baffle``: the annulus is a helical channel pitch x gap; part of the flow bypasses the
+  baffle through the clearance (default: design on 50 % effective flow).
+- ``half_pipe``: half-pipe coil welded on the shell (180 degree section by default).
+- ``none``: no jacket; asking for its film is an input error.
+
+``passes`` splits the flow into that many equal zones fed in parallel (each with 1/passes of the flow and
+1/passes of the jacket height). The spiral-baffle and half-pipe channels share one set of tube
+correlations (laminar, transitional, turbulent with the curvature factor 1 + 3.5 De/D_c).
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import NamedTuple
+
+from scipy.constants import g
+from scipy.special import wrightomega
+
+from .properties import LiquidProperties
+from .validity import CalcWarning, Correlation, InputError, Warnings, require_positive
+
+#: Below this coolant velocity a jacket fouls and its film is poor (common practice, no source).
+LOW_VELOCITY = 0.3  # m/s
+#: Spiral baffle: share of the flow that bypasses the baffle by default; design on 50 % effective flow
+#: (bypass "can exceed 1/3 to 1/2", Perry's Chemical Engineers' Handbook, from memory).
+DEFAULT_BYPASS_FRACTION = 0.5
+#: Tube-flow regime limits for jacket channels (Sieder & Tate 1936; Hausen 1943 for the band between).
+LAMINAR_LIMIT, TURBULENT_LIMIT = 2100.0, 1.0e4
+#: Laminar limit of the Darcy friction factor used with the Stein & Schmidt tangential-inlet model
+#: (Avila et al., Science 333, 192, 2011: Re_c = 2040; from memory).
+PIPE_TRANSITION = 2040.0
+
+INLET_TYPES = ("tangential", "radial")
+INLET_LOCATIONS = ("bottom", "top")
+
+
+class _Flow(NamedTuple):
+    h: float
+    reynolds: float
+    velocity: float
+    nusselt: float
+    length_scale: float
+
+
+# ---------------------------------------------------------------- correlations
+
+
+def friction_factor_Colebrook_1939(Re: float, relative_roughness: float = 0.0) -> float:
+    """Darcy friction factor, Colebrook (1939), solved exactly with Wright's omega function.
+
+    1/sqrt(f) = -2 log10(e/(3.7 D) + 2.51/(Re sqrt(f)));  with s = 2.51 (2/ln 10)/Re, c = e/(3.7 D):
+    1/sqrt(f) = -(2/ln 10) ln(y),  y = s omega(c/s - ln s).  Laminar f = 64/Re below Re = 2040.
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number, [-]
+    relative_roughness : float
+        Roughness over diameter e/D, [-]
+
+    Returns
+    -------
+    f : float
+        Darcy friction factor, [-]
+
+    Notes
+    -----
+    The omega form is the Lambert-W solution of Colebrook's equation (Keady, 1998), exact to rounding.
+
+    Examples
+    --------
+    >>> round(friction_factor_Colebrook_1939(1e5), 6)
+    0.01799
+
+    References
+    ----------
+    Colebrook, C. F. "Turbulent Flow in Pipes". J. Inst. Civ. Eng. 11, 133-156 (1939).
+    Keady, G. "Colebrook-White formula for pipe flows". J. Hydraul. Eng. 124, 96-97 (1998).
+    """
+    if Re < PIPE_TRANSITION:
+        return 64.0 / Re
+    a = 2.0 / math.log(10.0)
+    s = a * 2.51 / Re
+    c = relative_roughness / 3.7
+    y = s * float(wrightomega(c / s - math.log(s)).real)
+    return 1.0 / (a * math.log(y)) ** 2
+
+
+def h_jacket_Lehrer_1970(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type="tangential",
+                         inlet_location="bottom", rho_w=None, beta=None, dT=None, warnings=None) -> _Flow:
+    """Plain annular jacket, Lehrer (1970), as given in the VDI Heat Atlas (2010).
+
+    Nu = 0.03 Re^0.75 Pr / [1 + 1.74 (Pr - 1) Re^-0.125] (mu/mu_w)^0.14,  Nu = h d_g/k,  d_g = (8/3)^0.5 gap
+    Re = rho v_h d_g / mu,  v_h = (v_s v_in)^0.5 + v_A,  v_in = Q/(pi d_in^2/4),  v_s = Q/(H gap),
+    v_A = +-0.5 (2 g H beta dT)^0.5 for a radial inlet (0 for a tangential one)
+
+    Parameters
+    ----------
+    m : float
+        Coolant mass flow through the jacket, [kg/s]
+    D_tank : float
+        Outside diameter of the vessel shell, [m]
+    gap : float
+        Annular gap between shell and jacket, [m]
+    H : float
+        Height of the jacket, [m]
+    d_inlet : float
+        Inside diameter of the inlet nozzle, [m]
+    rho, cp, k, mu : float
+        Coolant density [kg/m3], heat capacity [J/(kg K)], conductivity [W/(m K)], viscosity [Pa s]
+    mu_w : float
+        Coolant viscosity at the wall temperature, [Pa s]
+    inlet_type, inlet_location : str
+        ``tangential``/``radial`` and ``bottom``/``top``, [-]
+    rho_w : float, optional
+        Unused here (the Stein & Schmidt buoyancy term needs it), [kg/m3]
+    beta : float, optional
+        Coolant volumetric expansion coefficient, for the radial-inlet buoyancy term, [1/K]
+    dT : float, optional
+        Coolant temperature rise through the jacket (negative when the coolant is cooled), [K]
+    warnings : Warnings, optional
+        Collects notes on the buoyancy term, [-]
+
+    Returns
+    -------
+    _Flow
+        h [W/(m2 K)], Reynolds number [-], velocity v_h [m/s], Nusselt number [-], d_g [m]
+
+    Notes
+    -----
+    The cross-flow velocity v_s uses the vertical section H x gap that a swirling inlet jet crosses. The
+    printed ht docstring shows the annulus area pi/4 (D_j^2 - D_t^2) instead, but only H x gap reproduces
+    the VDI Heat Atlas worked example (2922 W/m2K), so H x gap is used. The buoyancy velocity needs beta
+    and dT (Lehrer's dT is taken as the coolant temperature change through the jacket, as in that
+    example); it is added when buoyancy helps the flow (heated coolant entering at the bottom, cooled at
+    the top). When it opposes and exceeds the forced term the correlation does not apply; the term is
+    then left out with a warning. Lehrer's data: water, H/D about 1 (abstract); the Re and Pr ranges
+    registered are from memory.
+
+    Examples
+    --------
+    VDI Heat Atlas (2010) example: 2.5 kg/s water, D_t = 0.6 m, D_j = 0.65 m, H = 0.6 m, d_in = 0.025 m
+
+    >>> round(h_jacket_Lehrer_1970(2.5, 0.6, 0.025, 0.6, 0.025, 995.7, 4178.1, 0.615, 798e-6, 355e-6).h)
+    2922
+
+    References
+    ----------
+    Lehrer, I. H. "Jacket-Side Nusselt Number". Ind. Eng. Chem. Process Des. Dev. 9, 553-558 (1970),
+    doi:10.1021/i260036a010. VDI Heat Atlas, 2nd ed., Springer 2010 (worked example).
+    """
+    Q = m / rho
+    Pr = cp * mu / k
+    v_in = Q / (math.pi / 4 * d_inlet ** 2)
+    v_s = Q / (H * gap)
+    forced = math.sqrt(v_s * v_in)
+    v_a = 0.0
+    if inlet_type == "radial" and beta is not None and dT is not None and dT != 0.0:
+        magnitude = 0.5 * math.sqrt(2 * g * H * abs(beta * dT))
+        assists = (dT > 0) == (inlet_location == "bottom")
+        v_a = magnitude if assists else -magnitude
+        if forced + v_a <= 0.5 * forced:
+            v_a = 0.0
+            if warnings is not None:
+                warnings.add(CalcWarning("buoyancy_opposes_flow",
+                                         "Lehrer (1970): buoyancy opposes the jacket flow and exceeds half the "
+                                         "forced velocity; the buoyancy term is left out (not conservative)"))
+    v_h = forced + v_a
+    d_g = math.sqrt(8.0 / 3.0) * gap
+    Re = rho * v_h * d_g / mu
+    Nu = 0.03 * Re ** 0.75 * Pr / (1 + 1.74 * (Pr - 1) * Re ** -0.125) * (mu / mu_w) ** 0.14
+    return _Flow(Nu * k / d_g, Re, v_h, Nu, d_g)
+
+
+def h_jacket_Stein_Schmidt_1993(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type="tangential",
+                                inlet_location="bottom", rho_w=None, beta=None, dT=None, roughness=0.0,
+                                warnings=None) -> _Flow:
+    """Plain annular jacket, Stein & Schmidt (1993), as given in the VDI Heat Atlas (2010).
+
+    Nu = (Nu_A^3 + Nu_B^3 + Nu_C^3 + Nu_D^3)^(1/3) (mu/mu_w)^0.14,  Nu = h d_ch/k,  d_ch = 2 gap,
+    l_ch = [(pi/2)^2 D_t^2 + H^2]^0.5;  Nu_A = 3.66,  Nu_B = 1.62 (Re Pr d_ch/l_ch)^(1/3),
+    Nu_C = 0.664 Pr^(1/3) (Re d_ch/l_ch)^0.5,
+    Nu_D = 0.0115 Pr^(1/3) Re^0.9 [1 - (2300/Re)^2.5] [1 + (d_ch/l_ch)^(2/3)] for Re > 2300, else 0;
+    Re = Re_eq = [Re_J^2 +- |Gr| (H/d_ch)/50]^0.5,  Gr = g rho (rho - rho_w) d_ch^3 / mu^2.
+    Tangential inlet: v = (v_x^2 + v_z^2)^0.5 with v_z = Q/(pi D_t gap),
+    v_x = v_in ln[1 + (f D_t H/d_in^2) v_x0/v_in] / (f D_t H/d_in^2), v_x0 = K3 + (K3^2 + K4)^0.5,
+    K3 = v_in/4 - d_in^2 v_in/(4 f D_t H), K4 = d_in^2 v_in^2/(2 f D_t H), f the Darcy friction factor at Re_J.
+    Radial inlet: v = v_M ln(b_M/b_E)/(1 - b_E/b_M), b_E = pi d_in^2/(8 gap),
+    b_M = (pi/2) D_t [1 + (pi^2/4) D_t^2/H^2]^0.5, v_M = Q/(2 gap b_M).
+
+    Parameters
+    ----------
+    m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type, inlet_location :
+        As :func:`h_jacket_Lehrer_1970`, same units
+    rho_w : float, optional
+        Coolant density at the wall temperature, for the buoyancy term, [kg/m3]
+    beta, dT : float, optional
+        Unused here (Lehrer's buoyancy term needs them), [1/K], [K]
+    roughness : float
+        Roughness of the jacket walls, [m]
+    warnings : Warnings, optional
+        Collects notes on the buoyancy term, [-]
+
+    Returns
+    -------
+    _Flow
+        h [W/(m2 K)], equivalent Reynolds number [-], channel velocity [m/s], Nusselt number [-], d_ch [m]
+
+    Notes
+    -----
+    Buoyancy adds to Re when it helps the flow (coolant heated at the wall, rho_w < rho, entering at the
+    bottom; or cooled and entering at the top) and subtracts otherwise; Re_eq is kept >= 0, so Nu >= 3.66.
+    The tangential-inlet friction factor is iterated to a fixed point (Colebrook, smooth by default).
+    Covers laminar to turbulent flow by the blend of Nu_A..Nu_D.
+
+    Examples
+    --------
+    VDI Heat Atlas (2010) example, as Lehrer's, with rho_w = 971.8 kg/m3
+
+    >>> round(h_jacket_Stein_Schmidt_1993(2.5, 0.6, 0.025, 0.6, 0.025, 995.7, 4178.1, 0.615, 798e-6,
+    ...                                   355e-6, rho_w=971.8).h)
+    5695
+
+    References
+    ----------
+    Stein, W. A.; Schmidt, W. "Wärmeübergang auf der Wärmeträgerseite eines Rührbehälters mit einem
+    einfachen Mantel". Forsch. Ingenieurwes. 59, 73-90 (1993), doi:10.1007/BF02561203.
+    VDI Heat Atlas, 2nd ed., Springer 2010 (worked example).
+    """
+    Q = m / rho
+    Pr = cp * mu / k
+    d_ch = 2.0 * gap
+    l_ch = math.sqrt((math.pi / 2) ** 2 * D_tank ** 2 + H ** 2)
+    v_in = Q / (math.pi / 4 * d_inlet ** 2)
+    if inlet_type == "radial":
+        b_in = math.pi / 8 * d_inlet ** 2 / gap
+        b_mid = math.pi / 2 * D_tank * math.sqrt(1 + math.pi ** 2 / 4 * D_tank ** 2 / H ** 2)
+        ratio = b_in / b_mid
+        shape = 1.0 if abs(ratio - 1.0) < 1e-12 else -math.log(ratio) / (1.0 - ratio)
+        v_ch = Q / (2 * gap * b_mid) * shape
+    else:
+        v_z = Q / (math.pi * D_tank * gap)
+        f = friction_factor_Colebrook_1939(1e5, roughness / d_ch)
+        v_ch = 0.0
+        for _ in range(100):
+            spread = f * D_tank * H / d_inlet ** 2
+            K3 = v_in / 4 - v_in / (4 * spread)
+            K4 = v_in ** 2 / (2 * spread)
+            v_x0 = K3 + math.sqrt(K3 ** 2 + K4)
+            v_x = v_in * math.log1p(spread * v_x0 / v_in) / spread
+            previous, v_ch = v_ch, math.hypot(v_x, v_z)
+            f = friction_factor_Colebrook_1939(rho * v_ch * d_ch / mu, roughness / d_ch)
+            if abs(v_ch - previous) <= 1e-13 * v_ch:
+                break
+    Re = rho * v_ch * d_ch / mu
+    if rho_w is not None and rho_w != rho:
+        buoyancy = g * rho * abs(rho - rho_w) * d_ch ** 3 / mu ** 2 * H / d_ch / 50.0
+        assists = (rho_w < rho) == (inlet_location == "bottom")
+        squared = Re ** 2 + buoyancy if assists else Re ** 2 - buoyancy
+        if squared < 0.25 * Re ** 2 and warnings is not None:
+            warnings.add(CalcWarning("buoyancy_opposes_flow",
+                                     "Stein & Schmidt (1993): buoyancy opposes the jacket flow and dominates it; "
+                                     "mixed convection, the film coefficient is uncertain"))
+        Re = math.sqrt(max(squared, 0.0))
+    Nu_A = 3.66
+    Nu_B = 1.62 * (Re * Pr * d_ch / l_ch) ** (1 / 3)
+    Nu_C = 0.664 * Pr ** (1 / 3) * math.sqrt(Re * d_ch / l_ch)
+    Nu_D = 0.0 if Re <= 2300 else (0.0115 * Pr ** (1 / 3) * Re ** 0.9 * (1 - (2300 / Re) ** 2.5)
+                                   * (1 + (d_ch / l_ch) ** (2 / 3)))
+    Nu = (Nu_A ** 3 + Nu_B ** 3 + Nu_C ** 3 + Nu_D ** 3) ** (1 / 3) * (mu / mu_w) ** 0.14
+    return _Flow(Nu * k / d_ch, Re, v_ch, Nu, d_ch)
+
+
+def Nu_laminar_Sieder_Tate_1936(Re: float, Pr: float, De_over_L: float) -> float:
+    """Laminar flow in a channel, Sieder & Tate (1936), with the fully developed floor 3.66.
+
+    Nu = max[1.86 (Re Pr De/L)^(1/3), 3.66]   (times (mu/mu_w)^0.14 by the caller)
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on De, [-]
+    Pr : float
+        Prandtl number, [-]
+    De_over_L : float
+        Equivalent diameter over channel length, [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number on De, [-]
+
+    Notes
+    -----
+    Re < 2100, 0.48 < Pr < 16700 (from memory). The floor is the fully developed constant-wall-temperature
+    value (Incropera & DeWitt eq. 8.55) for long channels, where Re Pr De/L < about 8.
+
+    Examples
+    --------
+    >>> round(Nu_laminar_Sieder_Tate_1936(1000.0, 10.0, 0.01), 3)
+    8.633
+
+    References
+    ----------
+    Sieder, E. N.; Tate, G. E. "Heat Transfer and Pressure Drop of Liquids in Tubes". Ind. Eng. Chem. 28,
+    1429-1435 (1936), doi:10.1021/ie50324a027.
+    """
+    return max(1.86 * (Re * Pr * De_over_L) ** (1 / 3), 3.66)
+
+
+def Nu_transition_Hausen_1943(Re: float, Pr: float, De_over_L: float) -> float:
+    """Transitional flow in a channel, Hausen (1943).
+
+    Nu = 0.116 (Re^(2/3) - 125) Pr^(1/3) [1 + (De/L)^(2/3)]   (times (mu/mu_w)^0.14 by the caller)
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on De, [-]
+    Pr : float
+        Prandtl number, [-]
+    De_over_L : float
+        Equivalent diameter over channel length, [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number on De, [-]
+
+    Notes
+    -----
+    2100 < Re < 10^4 (from memory, as quoted for half-pipe jackets after Garvin, CEP 1999).
+
+    Examples
+    --------
+    >>> round(Nu_transition_Hausen_1943(5000.0, 5.0, 0.001), 3)
+    33.537
+
+    References
+    ----------
+    Hausen, H. "Darstellung des Wärmeüberganges in Rohren durch verallgemeinerte Potenzbeziehungen".
+    Z. VDI Beih. Verfahrenstech. 4, 91-98 (1943).
+    """
+    return 0.116 * (Re ** (2 / 3) - 125.0) * Pr ** (1 / 3) * (1 + De_over_L ** (2 / 3))
+
+
+def Nu_turbulent_Sieder_Tate_1936(Re: float, Pr: float, De_over_Dc: float) -> float:
+    """Turbulent flow in a coiled channel, Sieder & Tate (1936) with the curvature factor.
+
+    Nu = 0.027 Re^0.8 Pr^(1/3) (1 + 3.5 De/D_c)   (times (mu/mu_w)^0.14 by the caller)
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on De, [-]
+    Pr : float
+        Prandtl number, [-]
+    De_over_Dc : float
+        Equivalent diameter over the centre-line diameter of the coiled channel, [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number on De, [-]
+
+    Notes
+    -----
+    Re > 10^4, 0.7 < Pr < 16700 (from memory). The curvature factor 1 + 3.5 De/D_c is the McAdams
+    coil correction used for half-pipe and spiral-baffle jackets (Garvin, CEP 1999, from memory).
+
+    Examples
+    --------
+    >>> round(Nu_turbulent_Sieder_Tate_1936(1e5, 1.2, 0.0), 3)
+    286.918
+
+    References
+    ----------
+    Sieder, E. N.; Tate, G. E. Ind. Eng. Chem. 28, 1429-1435 (1936), doi:10.1021/ie50324a027.
+    """
+    return 0.027 * Re ** 0.8 * Pr ** (1 / 3) * (1 + 3.5 * De_over_Dc)
+
+
+def Nu_coil_laminar_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
+    """Laminar flow inside a helical coil, Schmidt (1967), as given in the VDI Heat Atlas.
+
+    Nu = 3.66 + 0.08 [1 + 0.8 r^0.9] Re^m Pr^(1/3),  m = 0.5 + 0.2903 r^0.194,  r = d/D_c
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on the tube inside diameter, [-]
+    Pr : float
+        Prandtl number, [-]
+    r : float
+        Tube inside diameter over curvature diameter of the coil, [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number on the tube inside diameter, [-]
+
+    Notes
+    -----
+    100 < Re < Re_crit = 2300 (1 + 8.6 r^0.45) (VDI Heat Atlas, Gc; ranges from memory).
+
+    Examples
+    --------
+    >>> round(Nu_coil_laminar_Schmidt_1967(1000.0, 5.0, 0.05), 3)
+    17.654
+
+    References
+    ----------
+    Schmidt, E. F. "Wärmeübergang und Druckverlust in Rohrschlangen". Chem. Ing. Tech. 39, 781-789 (1967),
+    doi:10.1002/cite.330391302. VDI Heat Atlas, chapter Gc (helically coiled tubes; Gnielinski).
+    """
+    m = 0.5 + 0.2903 * r ** 0.194
+    return 3.66 + 0.08 * (1 + 0.8 * r ** 0.9) * Re ** m * Pr ** (1 / 3)
+
+
+def Nu_coil_turbulent_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
+    """Turbulent flow inside a helical coil, Schmidt (1967).
+
+    Re_crit < Re < 2.2e4: Nu = 0.023 [1 + 14.8 (1 + r) r^(1/3)] Re^(0.8 - 0.22 r^0.1) Pr^(1/3)
+    2.2e4 < Re < 1.5e5:   Nu = 0.023 [1 + 3.6 (1 - r) r^0.8] Re^0.8 Pr^(1/3)
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on the tube inside diameter, [-]
+    Pr : float
+        Prandtl number, [-]
+    r : float
+        Tube inside diameter over curvature diameter of the coil, [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number on the tube inside diameter, [-]
+
+    Notes
+    -----
+    Re_crit = 2300 (1 + 8.6 r^0.45) < Re < 1.5e5.
+
+    Examples
+    --------
+    >>> round(Nu_coil_turbulent_Schmidt_1967(2e5, 0.7, 0.05), 1)
+    466.3
+
+    References
+    ----------
+    Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
+    """
+    if Re <= 2.2e4:
+        return 0.023 * (1 + 14.8 * (1 + r) * r ** (1 / 3)) * Re ** (0.8 - 0.22 * r ** 0.1) * Pr ** (1 / 3)
+    return 0.023 * (1 + 3.6 * (1 - r) * r ** 0.8) * Re ** 0.8 * Pr ** (1 / 3)
+
+
+def Nu_coil_turbulent_Mori_Nakayama_1967(Re: float, Pr: float, r: float) -> float:
+    """Turbulent flow inside a helical coil, Mori & Nakayama (1967).
+
+    Pr >= 1: Nu = Pr^0.4/41 Re^(5/6) r^(1/12) [1 + 0.061/(Re r^2.5)^(1/6)]
+    Pr < 1:  Nu = Pr/[26.2 (Pr^(2/3) - 0.074)] Re^0.8 r^0.1 [1 + 0.098/(Re r^2)^0.2]
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on the tube inside diameter, [-]
+    Pr : float
+        Prandtl number, [-]
+    r : float
+        Tube inside diameter over curvature diameter of the coil, [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number on the tube inside diameter, [-]
+
+    Notes
+    -----
+    Re r^2 > 0.1 (El-Genk & Schriener 2016 review, as quoted in ht).
+
+    Examples
+    --------
+    >>> round(Nu_coil_turbulent_Mori_Nakayama_1967(2e5, 0.7, 0.05), 1)
+    496.3
+
+    References
+    ----------
+    Mori, Y.; Nakayama, W. "Study on Forced Convective Heat Transfer in Curved Pipes". Int. J. Heat Mass
+    Transfer 10, 681-695 (1967), doi:10.1016/0017-9310(67)90113-5.
+    """
+    if Pr < 1:
+        return Pr / (26.2 * (Pr ** (2 / 3) - 0.074)) * Re ** 0.8 * r ** 0.1 * (1 + 0.098 * (Re * r * r) ** -0.2)
+    return Pr ** 0.4 / 41 * Re ** (5 / 6) * r ** (1 / 12) * (1 + 0.061 / (Re * r ** 2.5) ** (1 / 6))
+
+
+_VDI = "VDI Heat Atlas, 2nd ed., Springer 2010"
+CORRELATIONS: dict[str, Correlation] = {
+    "lehrer_1970": Correlation(
+        "Lehrer (1970)", h_jacket_Lehrer_1970,
+        "Lehrer, Ind. Eng. Chem. Process Des. Dev. 9, 553 (1970), doi:10.1021/i260036a010; " + _VDI,
+        {"Re": (1e3, 1e5), "Pr": (1.0, 20.0), "H/D": (0.5, 2.0)}),  # from memory; data: water, H/D = 1
+    "stein_schmidt_1993": Correlation(
+        "Stein & Schmidt (1993)", h_jacket_Stein_Schmidt_1993,
+        "Stein & Schmidt, Forsch. Ingenieurwes. 59, 73 (1993), doi:10.1007/BF02561203; " + _VDI,
+        {"Pr": (0.6, 1000.0)}),  # from memory
+    "sieder_tate_1936_laminar": Correlation(
+        "Sieder & Tate (1936), laminar", Nu_laminar_Sieder_Tate_1936,
+        "Sieder & Tate, Ind. Eng. Chem. 28, 1429 (1936)", {"Re": (None, LAMINAR_LIMIT), "Pr": (0.48, 16700.0)}),
+    "hausen_1943": Correlation(
+        "Hausen (1943)", Nu_transition_Hausen_1943,
+        "Hausen, Z. VDI Beih. Verfahrenstech. 4, 91 (1943)", {"Re": (LAMINAR_LIMIT, TURBULENT_LIMIT)}),
+    "sieder_tate_1936_turbulent": Correlation(
+        "Sieder & Tate (1936), turbulent, coil factor 1 + 3.5 De/Dc", Nu_turbulent_Sieder_Tate_1936,
+        "Sieder & Tate, Ind. Eng. Chem. 28, 1429 (1936); curvature factor after McAdams",
+        {"Re": (TURBULENT_LIMIT, None), "Pr": (0.7, 16700.0)}),
+    "schmidt_1967_laminar": Correlation(
+        "Schmidt (1967), laminar", Nu_coil_laminar_Schmidt_1967,
+        "Schmidt, Chem. Ing. Tech. 39, 781 (1967); " + _VDI, {"Re": (100.0, None)}),
+    "schmidt_1967": Correlation(
+        "Schmidt (1967)", Nu_coil_turbulent_Schmidt_1967,
+        "Schmidt, Chem. Ing. Tech. 39, 781 (1967)", {"Re": (None, 1.5e5)}),
+    "mori_nakayama_1967": Correlation(
+        "Mori & Nakayama (1967)", Nu_coil_turbulent_Mori_Nakayama_1967,
+        "Mori & Nakayama, Int. J. Heat Mass Transfer 10, 681 (1967)", {"Re r^2": (0.1, None)}),
+}
+#: Options of ``JacketSpec.correlation`` for plain annular jackets, and of the coil's turbulent correlation.
+ANNULAR_CORRELATIONS = ("lehrer_1970", "stein_schmidt_1993")
+COIL_CORRELATIONS = ("schmidt_1967", "mori_nakayama_1967")
+
+
+# ---------------------------------------------------------------- inputs and results
+
+
+@dataclass(frozen=True)
+class JacketSpec:
+    """The jacket as the request gives it (``vessel.jacket``); lengths in m, angles in rad."""
+
+    type: str
+    gap: float | None = None  # annular gap (annular, spiral baffle)
+    baffle_pitch: float | None = None  # spiral baffle: axial distance between baffle turns
+    pipe_diameter: float | None = None  # half pipe: inside diameter of the pipe that was halved
+    pipe_pitch: float | None = None  # half pipe: axial distance between turns
+    passes: int = 1  # equal zones fed in parallel
+    inlet_diameter: float | None = None  # annular: inlet nozzle; default = gap (as in the VDI example)
+    inlet_type: str = "tangential"  # annular: tangential | radial
+    inlet_location: str = "bottom"  # bottom | top (coolant usually enters low so the jacket vents)
+    bypass_fraction: float | None = None  # spiral baffle: default DEFAULT_BYPASS_FRACTION
+    correlation: str = "lehrer_1970"  # annular only: one of ANNULAR_CORRELATIONS
+    pipe_section_angle: float = math.pi  # half pipe: pi for 180 degree, 2 pi/3 for 120 degree
+    roughness: float = 0.0  # wall roughness, m
+
+
+@dataclass(frozen=True)
+class FilmResult:
+    """A coolant-side film coefficient with the numbers behind it."""
+
+    h: float  # W/(m2 K)
+    reynolds: float  # -
+    velocity: float  # m/s
+    correlation: str  # authors and year, as cited
+    nusselt: float  # -
+    prandtl: float  # -
+    equivalent_diameter: float  # m, length scale of Re and Nu
+    regime: str  # laminar | transitional | turbulent
+    warnings: Warnings = field(default_factory=Warnings)
+
+
+# ---------------------------------------------------------------- jacket films
+
+
+def _positive(jacket_field: str, value: float | None, what: str) -> float:
+    if value is None:
+        raise InputError(f"vessel.jacket.{jacket_field}", f"is required for {what}")
+    return require_positive(f"vessel.jacket.{jacket_field}", value)
+
+
+def _common_warnings(warnings: Warnings, Re: float, velocity: float, laminar_below: float, name: str) -> str:
+    if velocity < LOW_VELOCITY:
+        warnings.add(CalcWarning("low_velocity",
+                                 f"coolant velocity {velocity:.3g} m/s is below {LOW_VELOCITY} m/s: poor film "
+                                 "coefficient and fouling likely (common practice)"))
+    if Re < laminar_below:
+        warnings.add(CalcWarning("laminar_flow", f"{name}: laminar coolant flow (Re = {Re:.4g}); the film "
+                                                 "coefficient is low and sensitive to geometry"))
+        return "laminar"
+    return "turbulent" if Re >= TURBULENT_LIMIT else "transitional"
+
+
+def _annular(jacket, props, m, mu_wall, D_o, H, warnings, rho_wall, beta, dT) -> FilmResult:
+    if jacket.correlation not in ANNULAR_CORRELATIONS:
+        raise InputError("vessel.jacket.correlation", f"unknown option {jacket.correlation!r}; known: "
+                                                      f"{', '.join(ANNULAR_CORRELATIONS)}")
+    gap = _positive("gap", jacket.gap, "an annular jacket")
+    if jacket.inlet_diameter is None:
+        d_in = gap
+        warnings.add(CalcWarning("assumed_inlet_diameter", "jacket inlet nozzle diameter not given; taken "
+                                 "equal to the gap (as in the VDI Heat Atlas example); give the real nozzle"))
+    else:
+        d_in = require_positive("vessel.jacket.inlet_diameter", jacket.inlet_diameter)
+    for name, value, options in (("inlet_type", jacket.inlet_type, INLET_TYPES),
+                                 ("inlet_location", jacket.inlet_location, INLET_LOCATIONS)):
+        if value not in options:
+            raise InputError(f"vessel.jacket.{name}", f"unknown option {value!r}; known: {', '.join(options)}")
+    entry = CORRELATIONS[jacket.correlation]
+    flow = entry.function(m, D_o, gap, H, d_in, props.density, props.heat_capacity, props.thermal_conductivity,
+                          props.viscosity, mu_wall, inlet_type=jacket.inlet_type,
+                          inlet_location=jacket.inlet_location, rho_w=rho_wall, beta=beta, dT=dT,
+                          warnings=warnings)
+    entry.check(warnings, Re=flow.reynolds, Pr=props.prandtl, **{"H/D": H / D_o})
+    regime = _common_warnings(warnings, flow.reynolds, flow.velocity, 2300.0, entry.name)
+    return FilmResult(flow.h, flow.reynolds, flow.velocity, entry.name, flow.nusselt, props.prandtl,
+                      flow.length_scale, regime, warnings)
+
+
+def _channel(props, m_channel, area, d_e, length, d_curve, mu_wall, warnings) -> FilmResult:
+    """Film in a coiled channel (spiral baffle, half pipe): laminar, transitional or turbulent."""
+    velocity = m_channel / (props.density * area)
+    Re = props.density * velocity * d_e / props.viscosity
+    Pr = props.prandtl
+    if Re < LAMINAR_LIMIT:
+        key, args = "sieder_tate_1936_laminar", (Re, Pr, d_e / length)
+    elif Re < TURBULENT_LIMIT:
+        key, args = "hausen_1943", (Re, Pr, d_e / length)
+    else:
+        key, args = "sieder_tate_1936_turbulent", (Re, Pr, d_e / d_curve)
+    entry = CORRELATIONS[key]
+    Nu = entry.function(*args) * (props.viscosity / mu_wall) ** 0.14
+    entry.check(warnings, Re=Re, Pr=Pr)
+    regime = _common_warnings(warnings, Re, velocity, LAMINAR_LIMIT, entry.name)
+    return FilmResult(Nu * props.thermal_conductivity / d_e, Re, velocity, entry.name, Nu, Pr, d_e, regime,
+                      warnings)
+
+
+def _spiral_baffle(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> FilmResult:
+    gap = _positive("gap", jacket.gap, "a spiral-baffle jacket")
+    pitch = _positive("baffle_pitch", jacket.baffle_pitch, "a spiral-baffle jacket")
+    bypass = DEFAULT_BYPASS_FRACTION if jacket.bypass_fraction is None else jacket.bypass_fraction
+    if not (math.isfinite(bypass) and 0.0 <= bypass < 1.0):
+        raise InputError("vessel.jacket.bypass_fraction", f"must be in [0, 1), got {bypass!r}")
+    if jacket.bypass_fraction is None:
+        warnings.add(CalcWarning("assumed_bypass", f"spiral baffle: {100 * bypass:g} % of the flow assumed to "
+                                                   "bypass the baffle (design on 50 % effective flow)"))
+    d_curve = D_o + gap
+    turns = H / pitch
+    length = turns * math.hypot(math.pi * d_curve, pitch)
+    return _channel(props, m * (1.0 - bypass), pitch * gap, 4.0 * gap, length, d_curve, mu_wall, warnings)
+
+
+def _half_pipe(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> FilmResult:
+    d = _positive("pipe_diameter", jacket.pipe_diameter, "a half-pipe jacket")
+    pitch = _positive("pipe_pitch", jacket.pipe_pitch, "a half-pipe jacket")
+    theta = jacket.pipe_section_angle
+    if not (math.isfinite(theta) and 0.0 < theta <= math.pi):
+        raise InputError("vessel.jacket.pipe_section_angle", "must be between 0 and 180 degrees")
+    chord = d * math.sin(theta / 2)
+    if pitch < chord:
+        raise InputError("vessel.jacket.pipe_pitch", f"{pitch:g} m is less than the half-pipe width "
+                                                     f"{chord:g} m: turns would overlap")
+    area = d * d / 8.0 * (theta - math.sin(theta))  # circular segment
+    d_e = 4.0 * area / chord  # heat-transfer equivalent diameter (pi d/2 for 180 degrees)
+    length = H / pitch * math.hypot(math.pi * D_o, pitch)
+    return _channel(props, m, area, d_e, length, D_o, mu_wall, warnings)
+
+
+def _no_jacket(*_args) -> FilmResult:
+    raise InputError("vessel.jacket.type", "the vessel has no jacket (type 'none'): there is no jacket film")
+
+
+_JACKET_TYPES = {"annular": _annular, "annular_spiral_baffle": _spiral_baffle, "half_pipe": _half_pipe,
+                 "none": _no_jacket}
+
+
+def service_film_jacket(jacket: JacketSpec, coolant_props: LiquidProperties, mass_flow: float, mu_wall: float,
+                        vessel_outer_diameter: float, jacket_height: float, rho_wall: float | None = None,
+                        expansion_coefficient: float | None = None,
+                        temperature_rise: float | None = None) -> FilmResult:
+    """Coolant film coefficient in a jacket, referred to the jacket's heated wall.
+
+    Parameters
+    ----------
+    jacket : JacketSpec
+        Jacket type and dimensions, [-]
+    coolant_props : LiquidProperties
+        Coolant properties at its mean temperature, [-]
+    mass_flow : float
+        Total coolant mass flow (split over ``jacket.passes``), [kg/s]
+    mu_wall : float
+        Coolant viscosity at the wall temperature, [Pa s]
+    vessel_outer_diameter : float
+        Outside diameter of the shell, [m]
+    jacket_height : float
+        Height of shell covered by the jacket, [m]
+    rho_wall : float, optional
+        Coolant density at the wall temperature (Stein & Schmidt buoyancy term), [kg/m3]
+    expansion_coefficient : float, optional
+        Coolant volumetric expansion coefficient (Lehrer radial-inlet buoyancy term), [1/K]
+    temperature_rise : float, optional
+        Coolant temperature rise through the jacket (Lehrer buoyancy term), [K]
+
+    Returns
+    -------
+    FilmResult
+
+    Examples
+    --------
+    >>> from calc.properties import LiquidProperties
+    >>> water = LiquidProperties(303.15, 995.7, 4178.1, 798e-6, 0.615)
+    >>> r = service_film_jacket(JacketSpec("annular", gap=0.025, inlet_diameter=0.025), water, 2.5, 355e-6,
+    ...                         0.6, 0.6)
+    >>> round(r.h), r.correlation
+    (2922, 'Lehrer (1970)')
+    """
+    try:
+        handler = _JACKET_TYPES[jacket.type]
+    except KeyError:
+        raise InputError("vessel.jacket.type", f"unknown option {jacket.type!r}; known: "
+                                               f"{', '.join(_JACKET_TYPES)}") from None
+    require_positive("coolant.flow", mass_flow)
+    require_positive("coolant.viscosity_at_wall", mu_wall)
+    require_positive("vessel.diameter", vessel_outer_diameter)
+    require_positive("vessel.jacket.top", jacket_height)
+    if not (isinstance(jacket.passes, int) and jacket.passes >= 1):
+        raise InputError("vessel.jacket.passes", f"must be a whole number >= 1, got {jacket.passes!r}")
+    if not (math.isfinite(jacket.roughness) and jacket.roughness >= 0):
+        raise InputError("vessel.jacket.roughness", f"must be a number >= 0, got {jacket.roughness!r}")
+    warnings = Warnings()
+    n = jacket.passes
+    return handler(jacket, coolant_props, mass_flow / n, mu_wall, vessel_outer_diameter, jacket_height / n,
+                   warnings, rho_wall, expansion_coefficient, temperature_rise)
+
+
+# ---------------------------------------------------------------- coil (tube side)
+
+
+def coil_critical_reynolds_Schmidt_1967(r: float) -> float:
+    """Laminar-turbulent transition inside a helical coil, Schmidt (1967): Re_crit = 2300 (1 + 8.6 r^0.45).
+
+    Parameters
+    ----------
+    r : float
+        Tube inside diameter over curvature diameter, [-]
+
+    Returns
+    -------
+    Re_crit : float
+        Critical Reynolds number, [-]
+
+    Examples
+    --------
+    >>> round(coil_critical_reynolds_Schmidt_1967(0.05))
+    7438
+
+    References
+    ----------
+    Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
+    """
+    return 2300.0 * (1 + 8.6 * r ** 0.45)
+
+
+def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant_props: LiquidProperties,
+                      mass_flow: float, mu_wall: float, pitch: float | None = None, parallel_tubes: int = 1,
+                      correlation: str = "schmidt_1967") -> FilmResult:
+    """Coolant film coefficient inside a helical coil, on the tube inside area.
+
+    Laminar below Re_crit (Schmidt 1967, VDI form), turbulent above (``correlation``); both times
+    (mu/mu_w)^0.14 (Sieder & Tate's viscosity correction, common practice). With a pitch, the curvature
+    diameter is D_c [1 + (p/(pi D_c))^2] (VDI Heat Atlas, Gc).
+
+    Parameters
+    ----------
+    tube_inner_diameter : float
+        Inside diameter of the coil tube, [m]
+    helix_diameter : float
+        Centre-line diameter of the helix, [m]
+    coolant_props : LiquidProperties
+        Coolant properties at its mean temperature, [-]
+    mass_flow : float
+        Total coolant flow, split over ``parallel_tubes``, [kg/s]
+    mu_wall : float
+        Coolant viscosity at the wall temperature, [Pa s]
+    pitch : float, optional
+        Axial pitch of the turns, [m]
+    parallel_tubes : int
+        Number of coils fed in parallel, [-]
+    correlation : str
+        Turbulent correlation, one of COIL_CORRELATIONS, [-]
+
+    Returns
+    -------
+    FilmResult
+
+    Examples
+    --------
+    >>> from calc.properties import LiquidProperties
+    >>> water = LiquidProperties(293.15, 998.2, 4184.0, 1.0016e-3, 0.5984)
+    >>> r = service_film_coil(0.05, 1.0, water, 2.0, 1.0016e-3)
+    >>> r.regime, round(r.reynolds)
+    ('turbulent', 50848)
+    """
+    if correlation not in COIL_CORRELATIONS:
+        raise InputError("vessel.coils.correlation", f"unknown option {correlation!r}; known: "
+                                                     f"{', '.join(COIL_CORRELATIONS)}")
+    d = require_positive("vessel.coils.tube_inner_diameter", tube_inner_diameter)
+    D_c = require_positive("vessel.coils.helix_diameter", helix_diameter)
+    if D_c <= d:
+        raise InputError("vessel.coils.helix_diameter", "must exceed the tube diameter")
+    require_positive("coolant.flow", mass_flow)
+    require_positive("coolant.viscosity_at_wall", mu_wall)
+    if not (isinstance(parallel_tubes, int) and parallel_tubes >= 1):
+        raise InputError("vessel.coils.parallel_tubes", f"must be a whole number >= 1, got {parallel_tubes!r}")
+    if pitch is not None:
+        D_c *= 1 + (require_positive("vessel.coils.pitch", pitch) / (math.pi * D_c)) ** 2
+    warnings = Warnings()
+    props = coolant_props
+    m_tube = mass_flow / parallel_tubes
+    velocity = m_tube / (props.density * math.pi / 4 * d * d)
+    Re = props.density * velocity * d / props.viscosity
+    Pr = props.prandtl
+    r = d / D_c
+    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
+    key = "schmidt_1967_laminar" if Re < Re_crit else correlation
+    entry = CORRELATIONS[key]
+    Nu = entry.function(Re, Pr, r) * (props.viscosity / mu_wall) ** 0.14
+    entry.check(warnings, Re=Re, **{"Re r^2": Re * r * r})
+    regime = _common_warnings(warnings, Re, velocity, Re_crit, entry.name)
+    if regime != "laminar":
+        regime = "turbulent" if Re >= 2.2e4 else "transitional"
+    return FilmResult(Nu * props.thermal_conductivity / d, Re, velocity, entry.name, Nu, Pr, d, regime, warnings)
