@@ -633,6 +633,11 @@ def _channel(props, m_channel, area, d_e, length, d_curve, mu_wall, warnings) ->
         key, args = "sieder_tate_1936_laminar", (Re, Pr, d_e / length)
     elif Re < TURBULENT_LIMIT:
         key, args = "hausen_1943", (Re, Pr, d_e / length)
+        # Short channels: the laminar entry value can exceed Hausen's just above Re = 2100; transitional
+        # flow never transfers less than laminar flow would (common practice, no source), so h stays
+        # monotonic in the flow across the regime boundary.
+        if Nu_laminar_Sieder_Tate_1936(*args) > Nu_transition_Hausen_1943(*args):
+            key = "sieder_tate_1936_laminar"
     else:
         key, args = "sieder_tate_1936_turbulent", (Re, Pr, d_e / d_curve)
     entry = CORRELATIONS[key]
