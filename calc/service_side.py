@@ -98,7 +98,8 @@ def friction_factor_Colebrook_1939(Re: float, relative_roughness: float = 0.0) -
 
 
 def h_jacket_Lehrer_1970(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type="tangential",
-                         inlet_location="bottom", rho_w=None, beta=None, dT=None, warnings=None) -> _Flow:
+                         inlet_location="bottom", rho_w=None, beta=None, dT=None, roughness=0.0,
+                         warnings=None) -> _Flow:
     """Plain annular jacket, Lehrer (1970), as given in the VDI Heat Atlas (2010).
 
     Nu = 0.03 Re^0.75 Pr / [1 + 1.74 (Pr - 1) Re^-0.125] (mu/mu_w)^0.14,  Nu = h d_g/k,  d_g = (8/3)^0.5 gap
@@ -129,6 +130,8 @@ def h_jacket_Lehrer_1970(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet
         Coolant volumetric expansion coefficient, for the radial-inlet buoyancy term, [1/K]
     dT : float, optional
         Coolant temperature rise through the jacket (negative when the coolant is cooled), [K]
+    roughness : float
+        Unused here (same call signature as :func:`h_jacket_Stein_Schmidt_1993`), [m]
     warnings : Warnings, optional
         Collects notes on the buoyancy term, [-]
 
@@ -617,7 +620,7 @@ def _annular(jacket, props, m, mu_wall, D_o, H, warnings, rho_wall, beta, dT) ->
     flow = entry.function(m, D_o, gap, H, d_in, props.density, props.heat_capacity, props.thermal_conductivity,
                           props.viscosity, mu_wall, inlet_type=jacket.inlet_type,
                           inlet_location=jacket.inlet_location, rho_w=rho_wall, beta=beta, dT=dT,
-                          warnings=warnings)
+                          roughness=jacket.roughness, warnings=warnings)
     entry.check(warnings, Re=flow.reynolds, Pr=props.prandtl, **{"H/D": H / D_o})
     regime = _common_warnings(warnings, flow.reynolds, flow.velocity, 2300.0, entry.name)
     return FilmResult(flow.h, flow.reynolds, flow.velocity, entry.name, flow.nusselt, props.prandtl,
