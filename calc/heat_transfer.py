@@ -1,0 +1,261 @@
+"""The heat-transfer network of a jacketed, agitated vessel: films, wall, overall U, UA and the coolant.
+
+For well-mixed contents at T_r, each coolant stream (the jacket; each internal coil) exchanges
+heat through one or more surfaces in parallel. Each surface is a series of resistances (process
+film, process fouling, lining, wall, service fouling, service film: ``calc.wall``). Two things are
+solved together, by fixed-point iteration to 1e-6 K:
+
+* the coolant's mean temperature, which sets its properties and is set by the outlet temperature the
+  stream's UA produces (``calc.coolant``: T_out = T_r - (T_r - T_in) exp(-UA / m c_p));
+* the wall surface temperatures on both sides, which set the wall viscosities of the Sieder-Tate
+  factor (mu/mu_w)^0.14 and are set by the heat flux through the resistances.
+
+The iteration is a contraction in practice (viscosity-ratio exponents are small); it is capped, and a
+stream that does not settle is reported in ``warnings``, never silently.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+from typing import Callable
+
+from . import agitation, coolant as coolant_balance_module, geometry, process_side, service_side, wall
+from .properties import LiquidProperties
+from .validity import CalcWarning, InputError, Warnings
+from .vessel import Charge, Coolant, Vessel
+
+TOLERANCE = 1e-6  # K
+MAX_ITERATIONS = 60
+
+
+@dataclass(frozen=True)
+class Surface:
+    """One heat-transfer surface: its area and the resistances across it at the solved state."""
+
+    name: str  # "jacket_shell", "jacket_bottom_head", "coil_0", ...
+    area: float  # m2, process side
+    process_film: object  # process_side.FilmResult
+    service_film: object  # service_side.FilmResult
+    overall: wall.OverallResult
+    process_wall_temperature: float  # K
+    service_wall_temperature: float  # K
+
+    @property
+    def ua(self) -> float:
+        return self.overall.U * self.area
+
+
+@dataclass(frozen=True)
+class Stream:
+    """One coolant circuit (the jacket, or one coil) at its solved state."""
+
+    name: str  # "jacket" or "coil_0", ...
+    mass_flow: float  # kg/s
+    surfaces: tuple[Surface, ...]
+    balance: coolant_balance_module.CoolantBalance
+    mean_temperature: float  # K
+    iterations: int
+
+    @property
+    def ua(self) -> float:
+        return sum(s.ua for s in self.surfaces)
+
+
+@dataclass(frozen=True)
+class HeatTransferResult:
+    """Everything the network gives at one process temperature."""
+
+    process_temperature: float  # K
+    process_properties: LiquidProperties
+    fill: geometry.FillGeometry
+    agitation: agitation.AgitationResult
+    streams: tuple[Stream, ...]
+    warnings: Warnings = field(default_factory=Warnings)
+
+    @property
+    def ua(self) -> float:
+        return sum(s.ua for s in self.streams)
+
+    @property
+    def area(self) -> float:
+        return sum(surface.area for stream in self.streams for surface in stream.surfaces)
+
+    @property
+    def overall_coefficient(self) -> float:
+        """Area-weighted U over every surface, W/(m2 K); 0 when nothing is wetted."""
+        area = self.area
+        return self.ua / area if area > 0 else 0.0
+
+    @property
+    def duty(self) -> float:
+        """Heat removed from the contents by all streams, W."""
+        return sum(s.balance.duty for s in self.streams)
+
+    def stream(self, name: str) -> Stream | None:
+        return next((s for s in self.streams if s.name == name), None)
+
+    @property
+    def controlling(self) -> str:
+        """The resistance that is largest on the surface carrying most of the UA."""
+        surfaces = [surface for stream in self.streams for surface in stream.surfaces]
+        if not surfaces:
+            return "none"
+        return max(surfaces, key=lambda s: s.ua).overall.controlling
+
+
+@dataclass(frozen=True)
+class _SurfaceModel:
+    """What a surface needs from the iteration: films as functions of the wall temperatures."""
+
+    name: str
+    area: float
+    wall: wall.WallSpec
+    process_radius: float
+    process_side: str
+    process_film: Callable[[float], object]  # mu_wall -> process FilmResult
+    service_film: Callable[[LiquidProperties, float, float], object]  # props, mu_wall, rho_wall -> FilmResult
+
+
+def _process_viscosity(charge: Charge, temperature: float) -> float:
+    return charge.liquid.at(temperature, field="process_temperature").viscosity
+
+
+def _coolant_state(coolant: Coolant, temperature: float) -> LiquidProperties:
+    """Coolant properties at a temperature, clamped into the liquid's range near its ends.
+
+    The mean and wall temperatures are computed, not given; when they approach the end of a
+    table, the nearest valid state is used (the inlet temperature itself is checked strictly).
+    """
+    liquid_range = getattr(coolant.liquid, "liquid_range", None)
+    if liquid_range is not None:
+        low, high = liquid_range()
+        temperature = min(max(temperature, low + 1e-3), high - 1e-2)
+    return coolant.liquid.at(temperature, field="coolant.inlet_temperature")
+
+
+def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolant: Coolant, mass_flow: float,
+                  process_temperature: float, fouling: wall.Fouling, warnings: Warnings) -> Stream:
+    inlet = coolant.inlet_temperature
+    freezing = None
+    if hasattr(coolant.liquid, "liquid_range"):
+        freezing = coolant.liquid.liquid_range()[0]
+    mean = inlet
+    walls = [(0.5 * (process_temperature + inlet),) * 2 for _ in models]
+    surfaces: list[Surface] = []
+    balance = None
+    iterations = 0
+    for iterations in range(1, MAX_ITERATIONS + 1):
+        state = _coolant_state(coolant, mean)
+        surfaces = []
+        for model, (process_wall, service_wall) in zip(models, walls):
+            process_film = model.process_film(_process_viscosity(charge, process_wall))
+            service_wall_state = _coolant_state(coolant, service_wall)
+            service_film = model.service_film(state, service_wall_state.viscosity, service_wall_state.density)
+            overall = wall.overall_coefficient(process_film.h, service_film.h, model.wall, fouling,
+                                               process_radius=model.process_radius, process_side=model.process_side)
+            surfaces.append(Surface(model.name, model.area, process_film, service_film, overall,
+                                    process_wall, service_wall))
+        ua = sum(s.ua for s in surfaces)
+        balance = coolant_balance_module.coolant_balance(process_temperature, inlet, ua, mass_flow,
+                                                         state.heat_capacity, freezing)
+        new_mean = 0.5 * (inlet + balance.outlet_temperature)
+        new_walls = []
+        for surface in surfaces:
+            temperatures = wall.interface_temperatures(surface.overall, process_temperature, new_mean)
+            new_walls.append((temperatures.process_surface, temperatures.service_surface))
+        change = max([abs(new_mean - mean)] + [abs(a - b) for old, new in zip(walls, new_walls)
+                                                 for a, b in zip(old, new)])
+        mean, walls = new_mean, new_walls
+        if change < TOLERANCE:
+            break
+    else:
+        warnings.add(CalcWarning("iteration_not_converged",
+                                 f"{name}: coolant and wall temperatures did not settle within "
+                                 f"{MAX_ITERATIONS} iterations; results are approximate"))
+    for surface in surfaces:
+        warnings.extend_unique(surface.process_film.warnings)
+        warnings.extend_unique(surface.service_film.warnings)
+        warnings.extend_unique(surface.overall.warnings)
+    warnings.extend_unique(balance.warnings)
+    return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations)
+
+
+def _outer_diameter(vessel: Vessel) -> float:
+    """Outside diameter of the shell, m (inside diameter + lining + metal, both sides)."""
+    spec = vessel.wall
+    lining = spec.lining_thickness
+    if lining is None:
+        lining = wall.material(spec.material).lining_thickness or 0.0
+    return vessel.shape.diameter + 2.0 * (spec.thickness + lining)
+
+
+def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> HeatTransferResult:
+    """Solve the vessel's heat-transfer network at the process temperature ``process_temperature`` (K)."""
+    warnings = Warnings()
+    if coolant.inlet_temperature >= process_temperature:
+        raise InputError("coolant.inlet_temperature",
+                         "must be below the process temperature for cooling "
+                         f"({coolant.inlet_temperature - 273.15:.2f} degC >= {process_temperature - 273.15:.2f} degC)")
+    props = charge.liquid.at(process_temperature, field="process_temperature")
+    volume = charge.liquid_volume(process_temperature)
+    filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume)
+    warnings.extend_unique(filled.warnings)
+    stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
+    warnings.extend_unique(stirred.warnings)
+    shape, agitator, level = vessel.shape, vessel.agitator, filled.liquid_level
+    streams: list[Stream] = []
+
+    if vessel.jacket is not None and filled.jacketed_area > 0:
+        head_area = 0.0
+        if vessel.coverage.covers_bottom_head and shape.bottom_head != "flat":
+            head_area = geometry.wetted_area(shape, min(level, geometry.head_depth(shape)))
+        elif vessel.coverage.covers_bottom_head:
+            head_area = math.pi * shape.diameter ** 2 / 4.0
+        head_area = min(head_area, filled.jacketed_area)
+        shell_area = filled.jacketed_area - head_area
+        top = vessel.coverage.top if vessel.coverage.top is not None else geometry.brim_height(shape)
+        jacket_height = top if vessel.coverage.covers_bottom_head else top - geometry.head_depth(shape)
+        outer = _outer_diameter(vessel)
+
+        def service(props_c, mu_w, rho_w, _jacket=vessel.jacket):
+            return service_side.service_film_jacket(_jacket, props_c, coolant.mass_flow(), mu_w, outer,
+                                                    max(jacket_height, 1e-3), rho_wall=rho_w)
+
+        models = []
+        for name, area, surface, radius in (("jacket_shell", shell_area, "wall", shape.diameter / 2.0),
+                                            ("jacket_bottom_head", head_area, "bottom_head", math.inf)):
+            if area <= 0:
+                continue
+            models.append(_SurfaceModel(
+                name, area, vessel.wall, radius, "inside",
+                lambda mu_w, _surface=surface: process_side.process_film_jacket(
+                    agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
+                    baffled=agitator.baffled, surface=_surface),
+                service))
+        streams.append(_solve_stream("jacket", models, charge, coolant, coolant.mass_flow(), process_temperature,
+                                     vessel.fouling, warnings))
+    elif vessel.jacket is not None:
+        warnings.add(CalcWarning("jacket_not_wetted", "the liquid does not reach the jacket: no jacket heat transfer"))
+
+    coil_area_total = 0.0
+    for index, coil in enumerate(vessel.coils):
+        _, area = geometry.coil_submerged(shape, coil, level)
+        coil_area_total += area
+        if area <= 0:
+            continue
+        coil_wall = replace(vessel.wall, thickness=coil.tube_wall, lining_thickness=0.0, lining_conductivity=None)
+        if wall.material(coil_wall.material).lining_thickness:  # a glass-lined vessel's coils are alloy
+            coil_wall = replace(coil_wall, material="stainless_316l")
+        model = _SurfaceModel(
+            f"coil_{index}", area, coil_wall, coil.tube_outer_diameter / 2.0, "outside",
+            lambda mu_w, _coil=coil: process_side.process_film_coil(
+                agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
+                _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled),
+            lambda props_c, mu_w, rho_w, _coil=coil: service_side.service_film_coil(
+                _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
+                pitch=_coil.pitch))
+        streams.append(_solve_stream(f"coil_{index}", [model], charge, coolant, coolant.coil_mass_flow(),
+                                     process_temperature, vessel.fouling, warnings))
+    if not streams:
+        warnings.add(CalcWarning("no_cooling_surface", "no wetted jacket or coil area: the vessel cannot be cooled"))
+    return HeatTransferResult(process_temperature, props, filled, stirred, tuple(streams), warnings)

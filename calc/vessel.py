@@ -1,0 +1,103 @@
+"""The three things every thermal check is about: the vessel, its charge and the coolant.
+
+These are plain descriptions in SI units, assembled by ``schemas`` from a request and consumed by
+``calc.heat_transfer`` and the modules built on it. They hold no behaviour beyond resolving the
+coolant's mass flow and the charge's volume.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+
+from . import geometry
+from .agitation import Agitator
+from .properties import Liquid
+from .validity import InputError
+from .wall import Fouling, WallSpec
+
+
+@dataclass(frozen=True)
+class Vessel:
+    """A jacketed, agitated vertical vessel. ``jacket`` is a ``calc.service_side.JacketSpec`` or None."""
+
+    shape: geometry.VesselShape
+    wall: WallSpec
+    agitator: Agitator
+    coverage: geometry.JacketCoverage = field(default_factory=geometry.JacketCoverage)
+    jacket: object | None = None
+    coils: tuple[geometry.HelicalCoil, ...] = ()
+    fouling: Fouling = field(default_factory=Fouling)
+    name: str = "vessel"
+
+    def scaled(self, factor: float, agitator_speed: float | None = None, name: str | None = None) -> "Vessel":
+        """A geometrically similar vessel: every length times ``factor``; wall thickness kept.
+
+        Wall thickness, fouling and the jacket's flow passages are kept as they are: a larger vessel
+        is not built with a proportionally thicker wall or a proportionally wider jacket gap
+        (common practice, no source). The agitator diameter scales; its speed is ``agitator_speed``.
+        """
+        agitator = replace(self.agitator, diameter=self.agitator.diameter * factor,
+                           speed=self.agitator.speed if agitator_speed is None else agitator_speed)
+        return replace(
+            self,
+            shape=geometry.scale_shape(self.shape, factor),
+            coverage=geometry.scale_jacket(self.coverage, factor),
+            coils=tuple(geometry.scale_coil(c, factor) for c in self.coils),
+            agitator=agitator,
+            name=name or f"{self.name} x{factor:.3g}",
+        )
+
+
+@dataclass(frozen=True)
+class Charge:
+    """The vessel contents: a liquid and how much of it (volume, or mass converted with the density)."""
+
+    liquid: Liquid
+    volume: float | None = None  # m3
+    mass: float | None = None  # kg
+
+    def liquid_volume(self, temperature: float) -> float:
+        """Liquid volume, m3; a mass is converted with the density at ``temperature``."""
+        if self.volume is not None:
+            return self.volume
+        if self.mass is None:
+            raise InputError("charge", "give the charge's volume or mass")
+        return self.mass / self.liquid.at(temperature, field="process_temperature").density
+
+
+@dataclass(frozen=True)
+class Coolant:
+    """The utility: a liquid, its inlet temperature and its flow through the jacket (and each coil).
+
+    ``flow_kind`` is ``"mass"`` (kg/s) or ``"volume"`` (m3/s, converted with the density at the inlet).
+    ``coil_flow`` is the flow through each internal coil, of the same kind; None means the same as
+    the jacket flow (a separate supply of equal size).
+    """
+
+    liquid: Liquid
+    inlet_temperature: float  # K
+    flow: float
+    flow_kind: str = "mass"
+    coil_flow: float | None = None
+
+    def _mass(self, value: float, field_name: str) -> float:
+        if not (math.isfinite(value) and value > 0):
+            raise InputError(field_name, f"must be a positive flow, got {value!r}")
+        if self.flow_kind == "mass":
+            return value
+        density = self.liquid.at(self.inlet_temperature, field="coolant.inlet_temperature").density
+        return value * density
+
+    def mass_flow(self) -> float:
+        """Jacket coolant mass flow, kg/s."""
+        return self._mass(self.flow, "coolant.flow")
+
+    def coil_mass_flow(self) -> float:
+        """Coolant mass flow through each coil, kg/s."""
+        return self._mass(self.flow if self.coil_flow is None else self.coil_flow, "coolant.coil_flow")
+
+    def with_mass_flow(self, mass_flow: float) -> "Coolant":
+        """The same coolant at a different jacket mass flow (coil flow scaled in proportion)."""
+        ratio = mass_flow / self.mass_flow()
+        coil = None if self.coil_flow is None else self.coil_mass_flow() * ratio
+        return replace(self, flow=mass_flow, flow_kind="mass", coil_flow=coil)
