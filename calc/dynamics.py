@@ -31,6 +31,7 @@ data, follow local codes and have a licensed engineer review it.
 from __future__ import annotations
 
 import math
+import numbers
 import time
 from dataclasses import dataclass, field
 from typing import Callable
@@ -416,7 +417,7 @@ class _Model:
         mass = self.M @ n + mb
         V = mass / self.rho
         logc = np.log(np.maximum(n / V, 1e-300))
-        rV = self.k_ref * np.exp(np.minimum(self.orders @ logc - self.E_R * (1.0 / T - self.inv_Tref), 600.0)) * V
+        rV = self.k_ref * np.exp(np.minimum(self.orders @ logc - self.E_R * (1.0 / T - self.inv_Tref), 300.0)) * V
         C = self.Mcp @ n + mb * self.cp_b
         q_ref = -(self.dH @ rV)
         q_T = q_ref - (T - self.Th) * (self.dcp @ rV)
@@ -496,7 +497,7 @@ def _default_limiting(inp: SimulationInput, names) -> str:
 # ----------------------------------------------------------------------------- validation
 
 def _finite(field_name: str, value: float) -> float:
-    if not (isinstance(value, (int, float)) and math.isfinite(value)):
+    if not (isinstance(value, numbers.Real) and math.isfinite(value)):
         raise InputError(field_name, f"must be a finite number, got {value!r}")
     return value
 
@@ -571,7 +572,7 @@ def _validate(inp: SimulationInput, warnings: Warnings) -> None:
     if not (isinstance(b.output_points, int) and 2 <= b.output_points <= b.maximum_output_points):
         raise InputError("budget.output_points", f"must be an integer from 2 to {b.maximum_output_points}")
     require_positive("budget.wall_time", b.wall_time)
-    if not (isinstance(inp.rtol, float) and 1e-12 <= inp.rtol <= 1e-3):
+    if not (isinstance(inp.rtol, numbers.Real) and 1e-12 <= inp.rtol <= 1e-3):
         raise InputError("rtol", "must lie between 1e-12 and 1e-3")
     mode = MODES[inp.mode]
     if mode.has_feed != (inp.feed is not None):
@@ -653,8 +654,13 @@ def _run(model: _Model, t0: float, y0: np.ndarray, t1: float, failed: bool, stop
          limits: tuple) -> _Track:
     """Integrate from t0 to t1, one solver per interval between feed breakpoints."""
     track = _Track([t0], [y0.copy()])
+    with np.errstate(all="ignore"):  # overflow shows up as a failed step, reported in the status
+        _integrate(model, track, model.breakpoints(t0, t1), failed, stop_feed, limits)
+    return track
+
+
+def _integrate(model: _Model, track: _Track, points: list, failed: bool, stop_feed: bool, limits: tuple) -> None:
     inp = model.inp
-    points = model.breakpoints(t0, t1)
     for a, b in zip(points[:-1], points[1:]):
         F = 0.0 if failed and stop_feed else model.feed_rate(0.5 * (a + b))
         cooling = 0.0 if failed else 1.0
@@ -666,9 +672,12 @@ def _run(model: _Model, t0: float, y0: np.ndarray, t1: float, failed: bool, stop
                 message = solver.step()
                 if solver.status == "failed":
                     track.status, track.message = -1, f"{MESSAGES[-1]}: {message}"
-                    return track
+                    return
                 sol = solver.dense_output()
                 t_new, y_new = solver.t, solver.y.copy()
+                if not np.all(np.isfinite(y_new)):
+                    track.status, track.message = -1, f"{MESSAGES[-1]}: the state left the finite numbers"
+                    return
                 stop = None
                 for lim in limits:
                     tc = _crossing(lim, model.iT, sol, t_old, y_old, t_new, y_new)
@@ -685,14 +694,13 @@ def _run(model: _Model, t0: float, y0: np.ndarray, t1: float, failed: bool, stop
                 track.params.append((F, cooling))
                 if stop is not None:
                     track.status, track.message = 1, MESSAGES[1]
-                    return track
+                    return
         except _BudgetExhausted:
             track.status, track.message = 2, MESSAGES[2]
-            return track
+            return
         except (ArithmeticError, ValueError, np.linalg.LinAlgError) as exc:
             track.status, track.message = -1, f"{MESSAGES[-1]}: {exc}"
-            return track
-    return track
+            return
 
 
 def _truncate(track: _Track, t: float) -> _Track:
@@ -823,6 +831,23 @@ def _result(model: _Model, track: _Track, t_fail, search, warnings: Warnings) ->
 def simulate(inp: SimulationInput) -> SimulationResult:
     """Integrate the mole and energy balances of one stirred-tank run, with an optional cooling failure.
 
+    Parameters
+    ----------
+    inp : SimulationInput
+        Mode, species, reactions, charge, feed, jacket, controller, failure, limits, solver and budget;
+        all quantities SI (K, kg, mol, m3, s, W, J/mol).
+
+    Returns
+    -------
+    result : SimulationResult
+        Time series downsampled to ``budget.output_points``, summary, failure search, solver cost.
+
+    Notes
+    -----
+    Cooling failure sets the jacket duty to zero (a holdup jacket keeps its temperature) and, with
+    ``stop_feed``, the feed; shaft work continues. The worst failure time is searched on a 13-point
+    grid over the window, then refined with a bounded scalar minimiser around the best grid point
+    (Brent 1973); its criterion is the highest temperature reached after failure (the simulated MTSR).
     Never raises for numerical trouble: a failed integration or an exhausted wall-time budget comes
     back as ``success=False`` with ``status`` and ``message`` and the part computed so far. Invalid
     input raises :class:`~calc.validity.InputError` naming the field.
@@ -837,6 +862,12 @@ def simulate(inp: SimulationInput) -> SimulationResult:
     >>> r = simulate(SimulationInput("batch", sp, rx, ch, horizon=1000.0))
     >>> r.status, round(r.summary.final_conversion, 6), round(1 - math.exp(-1.0), 6)
     (0, 0.632121, 0.632121)
+
+    References
+    ----------
+    Fogler, H. S. *Elements of Chemical Reaction Engineering*, 5th ed., Prentice Hall, 2016, ch. 13;
+    Stoessel, F. *Thermal Safety of Chemical Processes*, Wiley-VCH, 2008, ch. 7;
+    Brent, R. P. *Algorithms for Minimization without Derivatives*, Prentice-Hall, 1973.
     """
     warnings = Warnings()
     model = _Model(inp, warnings)

@@ -107,6 +107,17 @@ def test_energy_balance_closes(name, inp):
     assert r.summary.closure_error < 1e-6, f"{name}: energy balance closure {r.summary.closure_error:.3g}"
 
 
+@pytest.mark.parametrize("method", ["LSODA", "Radau"])
+def test_other_stiff_methods_agree_with_bdf(method):
+    # Independent integrators (scipy LSODA: Petzold 1983; Radau IIA: Hairer & Wanner 1996) on the same
+    # balances must agree on the simulated MTSR within their tolerances.
+    bdf = simulate(semi_batch(failure=CoolingFailure(3 * HOUR), rtol=1e-9))
+    other = simulate(semi_batch(failure=CoolingFailure(3 * HOUR), rtol=1e-9, method=method))
+    assert other.success, other.message
+    assert other.summary.maximum_temperature == pytest.approx(bdf.summary.maximum_temperature, abs=1e-4)
+    assert other.summary.closure_error < 1e-6
+
+
 def test_single_pass_jacket_cooling_matches_closed_form():
     # No reaction: C dT/dt = -m cp (1 - exp(-NTU)) (T - T_in), so T - T_in decays exponentially
     # (Incropera & DeWitt 2007, eq. 11.35a, effectiveness of an exchanger with one side isothermal).
