@@ -259,3 +259,25 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     if not streams:
         warnings.add(CalcWarning("no_cooling_surface", "no wetted jacket or coil area: the vessel cannot be cooled"))
     return HeatTransferResult(process_temperature, props, filled, stirred, tuple(streams), warnings)
+
+
+def coolant_balance_at_mean(coolant: Coolant, process_temperature: float, ua: float
+                            ) -> tuple[coolant_balance_module.CoolantBalance, float, float]:
+    """Single-pass coolant balance with c_p at the mean coolant temperature it produces.
+
+    Returns (balance, mass flow kg/s, heat capacity J/(kg K)). Fixed-point iteration on the mean
+    temperature; c_p varies slowly, so a few passes reach 1e-6 K.
+    """
+    mass_flow = coolant.mass_flow()
+    freezing = coolant.liquid.liquid_range()[0] if hasattr(coolant.liquid, "liquid_range") else None
+    coolant.liquid.at(coolant.inlet_temperature, field="coolant.inlet_temperature")
+    mean = coolant.inlet_temperature
+    for _ in range(MAX_ITERATIONS):
+        heat_capacity = _coolant_state(coolant, mean).heat_capacity
+        balance = coolant_balance_module.coolant_balance(process_temperature, coolant.inlet_temperature, ua,
+                                                         mass_flow, heat_capacity, freezing)
+        new_mean = 0.5 * (coolant.inlet_temperature + balance.outlet_temperature)
+        if abs(new_mean - mean) < TOLERANCE:
+            break
+        mean = new_mean
+    return balance, mass_flow, heat_capacity

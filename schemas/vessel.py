@@ -108,7 +108,7 @@ class VesselSchema(StrictSchema):
     wall = fields.Nested(WallSchema, load_default=None)
     jacket = fields.Nested(JacketSchema, load_default=None)
     coils = fields.List(fields.Nested(CoilSchema), load_default=list, validate=validate.Length(max=6))
-    agitator = fields.Nested(AgitatorSchema, required=True)
+    agitator = fields.Nested(AgitatorSchema, load_default=None)
     fouling = fields.Nested(FoulingSchema, load_default=None)
 
     @post_load

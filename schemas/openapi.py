@@ -1,0 +1,171 @@
+"""JSON Schema (OpenAPI 3.1 dialect) of the marshmallow schemas, so openapi.yaml and the code agree.
+
+``python -m schemas.openapi`` prints the components block; tests compare it with openapi.yaml.
+"""
+from __future__ import annotations
+
+import sys
+
+import yaml
+from marshmallow import Schema, fields, validate
+
+from .units import Quantity
+
+
+def _field(field: fields.Field, refs: dict[str, type]) -> dict:
+    metadata = field.metadata or {}
+    if isinstance(field, Quantity):
+        out: dict = {"$ref": "#/components/schemas/QuantityText", "x-unit": metadata["unit"]}
+    elif field.__class__.__name__ == "Flow":
+        out = {"$ref": "#/components/schemas/QuantityText", "x-unit": metadata["unit"]}
+    elif isinstance(field, fields.Nested):
+        nested = field.nested if isinstance(field.nested, type) else type(field.schema)
+        name = nested.__name__.removesuffix("Schema")
+        refs[name] = nested
+        out = {"$ref": f"#/components/schemas/{name}"}
+    elif isinstance(field, fields.List):
+        out = {"type": "array", "items": _field(field.inner, refs)}
+    elif isinstance(field, fields.Dict):
+        out = {"type": "object", "additionalProperties": _field(field.value_field, refs) if field.value_field else {}}
+    elif isinstance(field, fields.Boolean):
+        out = {"type": "boolean"}
+    elif isinstance(field, fields.Integer):
+        out = {"type": "integer"}
+    elif isinstance(field, (fields.Float, fields.Number)):
+        out = {"type": "number"}
+    else:
+        out = {"type": "string"}
+    for validator in getattr(field, "validators", []):
+        if isinstance(validator, validate.OneOf):
+            out["enum"] = list(validator.choices)
+        elif isinstance(validator, validate.Range) and "type" in out:
+            if validator.min is not None:
+                out["exclusiveMinimum" if not validator.min_inclusive else "minimum"] = validator.min
+            if validator.max is not None:
+                out["exclusiveMaximum" if not validator.max_inclusive else "maximum"] = validator.max
+        elif isinstance(validator, validate.Length):
+            key = "maxItems" if out.get("type") == "array" else "maxLength"
+            if validator.max is not None:
+                out[key] = validator.max
+    if field.allow_none and "$ref" not in out and "type" in out:
+        out["type"] = [out["type"], "null"]
+    elif field.allow_none:
+        out = {"oneOf": [out, {"type": "null"}]}
+    description = metadata.get("description")
+    if description:
+        out["description"] = description
+    return out
+
+
+def json_schema(schema_cls: type[Schema], refs: dict[str, type] | None = None, *, response: bool = False) -> dict:
+    """The JSON Schema of one marshmallow schema class; nested classes are collected in ``refs``."""
+    refs = {} if refs is None else refs
+    schema = schema_cls()
+    properties = {}
+    required = []
+    for name, field in schema.fields.items():
+        key = field.data_key or name
+        properties[key] = _field(field, refs)
+        if field.required:
+            required.append(key)
+    out: dict = {"type": "object", "properties": properties}
+    if not response:
+        out["additionalProperties"] = False
+    if required:
+        out["required"] = required
+    return out
+
+
+def components(request_roots: list[type], response_roots: list[type]) -> dict:
+    """Every schema reachable from the roots, keyed by class name without 'Schema'."""
+    done: dict[str, dict] = {}
+    for roots, response in ((request_roots, False), (response_roots, True)):
+        pending = {cls.__name__.removesuffix("Schema"): cls for cls in roots}
+        while pending:
+            name, cls = pending.popitem()
+            if name in done:
+                continue
+            refs: dict[str, type] = {}
+            done[name] = json_schema(cls, refs, response=response)
+            pending.update({k: v for k, v in refs.items() if k not in done})
+    for cls in response_roots:
+        done[_name(cls)]["properties"]["units"] = {"$ref": "#/components/schemas/Units"}
+    return dict(sorted(done.items()))
+
+
+def roots() -> tuple[list[type], list[type]]:
+    from . import registry
+
+    return registry.REQUEST_SCHEMAS, registry.RESPONSE_SCHEMAS
+
+
+_PROBLEM = {"$ref": "#/components/responses/Problem"}
+_QUERY_OBJECT = {
+    "name": "query", "in": "query", "style": "form", "explode": True,
+    "description": "The request object's fields as dotted query parameters, e.g. vessel.diameter=2.2",
+    "schema": {"type": "object", "additionalProperties": {"type": "string"}},
+}
+
+
+def _name(cls: type) -> str:
+    return cls.__name__.removesuffix("Schema")
+
+
+def _ok(response: type, media: tuple) -> dict:
+    content = {"application/json": {"schema": {"$ref": f"#/components/schemas/{_name(response)}"}}}
+    for kind in media:
+        content[kind] = {"schema": {"type": "string"}}
+    return {"description": "The result, with the unit of each quantity in `units`.", "content": content}
+
+
+def paths() -> dict:
+    """Path items of every calculation and library resource in the registry."""
+    from . import registry
+
+    out: dict = {}
+    for calc in registry.CALCULATIONS:
+        operation_id = "".join(part.capitalize() for part in calc.path.split("/")[-1].split("-"))
+        common = {"tags": [calc.tag], "summary": calc.summary, "description": calc.description}
+        params = [{"$ref": "#/components/parameters/format"}, {"$ref": "#/components/parameters/field"}]
+        body_schema: dict = {"$ref": f"#/components/schemas/{_name(calc.request)}"}
+        ok = _ok(calc.response, calc.media)
+        if calc.batch:
+            body_schema = {"oneOf": [body_schema, {"$ref": f"#/components/schemas/{_name(calc.request)}Batch"}]}
+            ok["content"]["application/json"]["schema"] = {"oneOf": [
+                ok["content"]["application/json"]["schema"], {"$ref": "#/components/schemas/BatchResult"}]}
+        out[calc.path] = {
+            "get": common | {"operationId": "get" + operation_id, "parameters": params + [_QUERY_OBJECT],
+                             "responses": {"200": _ok(calc.response, calc.media), "422": _PROBLEM}},
+            "post": common | {"operationId": "post" + operation_id, "parameters": params,
+                              "requestBody": {"required": True,
+                                              "content": {"application/json": {"schema": body_schema}}},
+                              "responses": {"200": ok, "400": _PROBLEM, "413": _PROBLEM, "415": _PROBLEM,
+                                            "422": _PROBLEM}},
+        }
+    for library in registry.LIBRARIES:
+        item = {"$ref": f"#/components/schemas/{_name(library.item)}"}
+        out[library.path] = {"get": {
+            "tags": [library.tag], "summary": library.summary,
+            "operationId": "list" + library.path.split("/")[-1].capitalize(),
+            "parameters": [{"$ref": "#/components/parameters/format"}],
+            "responses": {"200": {"description": "Library entries; the id is what requests use.", "content": {
+                "application/json": {"schema": {"type": "object", "required": ["items"], "properties": {
+                    "items": {"type": "array", "items": item}, "units": {"$ref": "#/components/schemas/Units"}}}},
+                "text/csv": {"schema": {"type": "string"}}}},
+                "422": _PROBLEM}}}
+    return out
+
+
+def write(path: str) -> None:
+    """Replace the generated component schemas in the OpenAPI document at ``path``."""
+    with open(path, encoding="utf-8") as handle:
+        document = yaml.safe_load(handle)
+    requests, responses = roots()
+    document["components"]["schemas"].update(components(requests, responses))
+    document["paths"].update(paths())
+    with open(path, "w", encoding="utf-8") as handle:
+        yaml.safe_dump(document, handle, sort_keys=False, width=110, allow_unicode=True)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    write(sys.argv[1] if len(sys.argv) > 1 else "openapi.yaml")

@@ -1,0 +1,59 @@
+"""The resources whose contract openapi.yaml carries, with their request and response schemas.
+
+``python -m schemas.openapi`` regenerates the matching parts of openapi.yaml from this list; a test
+fails when the file and the schemas disagree.
+"""
+from dataclasses import dataclass
+
+from .heat_transfer import (AgitationRequestSchema, AgitationResultSchema, CoolantBalanceRequestSchema,
+                            CoolantBalanceResultSchema, GeometryRequestSchema, GeometryResultSchema,
+                            HeatTransferRequestSchema, HeatTransferResultSchema, ImpellerSchema, MaterialSchema)
+from .properties import FluidSchema, PropertiesResultSchema
+
+
+@dataclass(frozen=True)
+class Calculation:
+    """A resource answering POST (JSON body) and GET (the same fields as dotted query parameters)."""
+
+    path: str
+    tag: str
+    summary: str
+    description: str
+    request: type
+    response: type
+    media: tuple = ("text/csv", "text/plain")  # besides application/json
+    batch: bool = False
+
+
+@dataclass(frozen=True)
+class Library:
+    path: str
+    tag: str
+    summary: str
+    item: type
+
+
+CALCULATIONS = [
+    Calculation("/v1/geometry", "heat transfer", "Liquid level, wetted, jacketed and coil areas of a filled vessel",
+                "Volume from level or level from volume (coils displace liquid), wetted and jacketed inside "
+                "area, submerged coil area and area per volume.", GeometryRequestSchema, GeometryResultSchema),
+    Calculation("/v1/agitation", "heat transfer", "Reynolds number, power number and power of the agitator",
+                "Impeller Reynolds number, power number across laminar, transitional and turbulent flow, "
+                "shaft power, power per volume, tip speed and Froude number.",
+                AgitationRequestSchema, AgitationResultSchema),
+    Calculation("/v1/heat-transfer", "heat transfer", "Film coefficients, resistances, overall U and UA",
+                "Process- and coolant-side film coefficients (wall viscosity at the solved wall temperature, "
+                "coolant properties at its solved mean temperature), wall and fouling resistances with the "
+                "controlling one named, U on the inside area and UA of jacket and coils.",
+                HeatTransferRequestSchema, HeatTransferResultSchema),
+    Calculation("/v1/coolant-balance", "heat transfer", "Coolant outlet temperature, duty and LMTD for a given UA",
+                "Single-pass coolant against well-mixed contents: T_out = T_r - (T_r - T_in) exp(-UA / m c_p), "
+                "with c_p at the mean coolant temperature.", CoolantBalanceRequestSchema, CoolantBalanceResultSchema),
+]
+LIBRARIES = [
+    Library("/v1/impellers", "libraries", "The impeller library with power numbers, film constants and sources",
+            ImpellerSchema),
+    Library("/v1/materials", "libraries", "The wall-material library with conductivities and sources", MaterialSchema),
+]
+REQUEST_SCHEMAS = [c.request for c in CALCULATIONS]
+RESPONSE_SCHEMAS = [PropertiesResultSchema, FluidSchema] + [c.response for c in CALCULATIONS] + [l.item for l in LIBRARIES]
