@@ -1,0 +1,164 @@
+"""Cooling check: verdict, margin, solved limits fed back, energy balance against CoolProp, cautions.
+
+Demo data are an invented scenario: the 5 m3 stainless reactor "K-12" (1.8 m, DIN-style dished
+bottom, half-pipe jacket) holding toluene at 60 degC, cooled with tower water at 15 degC.
+"""
+import math
+from dataclasses import replace
+
+import CoolProp.CoolProp as CP
+import pytest
+from hypothesis import given, settings, strategies as st
+
+from calc import agitation, geometry, service_side, wall
+from calc.cooling import CAUTIONS, DOSING_CAUTION, FLOW_SEARCH_CAP, cooling_check
+from calc.heat_load import Dosing, SpecificPower, TotalPower
+from calc.heat_transfer import heat_transfer
+from calc.properties import LibraryLiquid
+from calc.validity import InputError
+from calc.vessel import Charge, Coolant, Vessel
+
+K = 273.15
+HOUR = 3600.0
+T_R = K + 60
+SF = 1.3
+
+VESSEL = Vessel(shape=geometry.VesselShape(1.8, 2.0, "torispherical_fd"), wall=wall.WallSpec(0.012, "stainless_316l"),
+                agitator=agitation.Agitator("pitched_blade_turbine", 0.6, 1.5),
+                jacket=service_side.JacketSpec("half_pipe", pipe_diameter=0.1, pipe_pitch=0.14),
+                fouling=wall.Fouling(0.00018, 0.00018), name="K-12")
+CHARGE = Charge(LibraryLiquid("toluene"), volume=5.0)
+WATER = Coolant(LibraryLiquid("water"), K + 15, 4.0)
+DOSE = Dosing(-150e3, 800.0, 3 * HOUR, 120.0, K + 20, 1900.0)
+
+
+def check(heat_release, coolant=WATER, limits=False, **kw):
+    return cooling_check(VESSEL, CHARGE, coolant, T_R, heat_release, SF, limits=limits, **kw)
+
+
+def rel(a, b):
+    return abs(a / b - 1.0)
+
+
+@pytest.fixture(scope="module")
+def capacity():
+    return heat_transfer(VESSEL, CHARGE, WATER, T_R).duty
+
+
+def test_capacity_closes_the_coolant_energy_balance_against_coolprop():
+    # definition (steady-flow energy balance) with CoolProp's c_p of water at the stream's mean temperature
+    r = check(SpecificPower(10.0))
+    jacket = r.heat_transfer.stream("jacket")
+    cp = CP.PropsSI("C", "T", jacket.mean_temperature, "P", 101325.0, "Water")
+    rise = r.coolant_outlet_temperature - WATER.inlet_temperature
+    assert r.cooling_capacity == pytest.approx(4.0 * cp * rise, rel=1e-9)
+    # Incropera & DeWitt 6th ed. sec. 11.4: Q = U A LMTD for one stream at constant temperature
+    assert r.cooling_capacity == pytest.approx(jacket.ua * jacket.balance.log_mean_temperature_difference, rel=1e-9)
+
+
+def test_margin_is_capacity_over_load_and_the_verdict_flips_at_the_safety_factor(capacity):
+    # definition: margin = Q_capacity / Q_load with Q_load = Q_r + P_agitator; adequate when margin >= SF
+    agitator = check(TotalPower(0.0)).heat_load.agitator
+    assert agitator > 0
+    edge = capacity / SF - agitator  # the reaction power that puts the margin exactly at SF
+    just_in, exact, just_out = (check(TotalPower(edge * s)) for s in (1 - 1e-9, 1.0, 1 + 1e-9))
+    for r in (just_in, exact, just_out):
+        assert r.margin == pytest.approx(r.cooling_capacity / (r.heat_load.reaction + agitator), rel=1e-12)
+    assert exact.margin == pytest.approx(SF, rel=1e-12)
+    assert just_in.margin > SF > just_out.margin
+    assert just_in.adequate and not just_out.adequate
+
+
+@pytest.mark.parametrize("heat_release", [DOSE, SpecificPower(40.0), SpecificPower(10.0)])
+def test_each_solved_limit_fed_back_gives_the_safety_factor(heat_release):
+    # definition of each limit: the value at which margin == safety factor
+    r = check(heat_release, limits=True)
+    lim = r.limits
+    inlet = lim.maximum_coolant_inlet_temperature
+    assert inlet.reachable
+    back = check(heat_release, coolant=replace(WATER, inlet_temperature=inlet.value))
+    assert rel(back.margin, SF) < 1e-6
+    assert (inlet.value > WATER.inlet_temperature) == r.adequate
+    flow = lim.required_coolant_flow
+    assert flow.reachable
+    back = check(heat_release, coolant=WATER.with_mass_flow(flow.value))
+    assert rel(back.margin, SF) < 1e-6
+    assert (flow.value < WATER.mass_flow()) == r.adequate
+    if isinstance(heat_release, Dosing):
+        t = lim.minimum_dosing_time
+        assert t.reachable and t.value > 0
+        back = check(replace(heat_release, dosing_time=t.value))
+        assert rel(back.margin, SF) < 1e-9
+    else:
+        assert lim.minimum_dosing_time is None
+
+
+def test_minimum_dosing_time_closed_form(capacity):
+    # closed form: Q_load(t) = A/t + P_agitator = Q_capacity/SF  ->  t = A / (Q_capacity/SF - P_agitator)
+    r = check(DOSE, limits=True)
+    net = 150e3 * 800.0 - 120.0 * 1900.0 * 40.0
+    assert r.limits.minimum_dosing_time.value == pytest.approx(net / (capacity / SF - r.heat_load.agitator), rel=1e-12)
+
+
+def test_minimum_dosing_time_unreachable_when_the_agitator_uses_up_the_capacity():
+    # definition: with Q_capacity/SF <= P_agitator no dosing time is slow enough
+    warm = replace(WATER, inlet_temperature=T_R - 0.05)
+    r = check(DOSE, coolant=warm, limits=True)
+    assert r.cooling_capacity / SF < r.heat_load.agitator
+    assert r.limits.minimum_dosing_time.reachable is False and r.limits.minimum_dosing_time.value is None
+
+
+def test_unreachable_flow_and_inlet_temperature_report_the_limit_capacity(capacity):
+    # common practice, no source: capacity rises with flow toward the area/process-film limit
+    r = check(SpecificPower(80.0), limits=True)
+    assert not r.adequate
+    flow = r.limits.required_coolant_flow
+    assert flow.reachable is False and flow.value is None and "not reachable at any flow" in flow.message
+    at_cap = heat_transfer(VESSEL, CHARGE, WATER.with_mass_flow(FLOW_SEARCH_CAP * 4.0), T_R).duty
+    assert flow.cooling_capacity == pytest.approx(at_cap, rel=1e-9)
+    assert capacity < at_cap < SF * r.heat_load.total
+    inlet = r.limits.maximum_coolant_inlet_temperature
+    assert inlet.reachable is False and inlet.value is None
+
+
+def test_no_net_load_is_adequate_with_an_unbounded_margin():
+    # definition: nothing to remove; the margin is reported as None, never infinity
+    r = check(TotalPower(-5e3), limits=True)
+    assert r.heat_load.total < 0 and r.margin is None and r.adequate
+    assert "no_net_heat_load" in [w.code for w in r.warnings]
+    assert r.limits.required_coolant_flow.value == 0.0
+    assert r.limits.maximum_coolant_inlet_temperature.value == T_R
+
+
+@settings(max_examples=25, deadline=None)
+@given(q1=st.floats(1.0, 100.0), q2=st.floats(1.0, 100.0))
+def test_margin_falls_as_the_heat_release_rises(q1, q2):
+    # definition: capacity does not depend on the release; margin ~ 1 / load
+    low, high = sorted((q1, q2))
+    a, b = check(SpecificPower(low)), check(SpecificPower(high))
+    assert a.cooling_capacity == b.cooling_capacity
+    assert b.margin <= a.margin
+
+
+def test_cautions_ride_along():
+    # project rule: every verdict carries the screening cautions
+    r = check(SpecificPower(10.0))
+    text = " ".join(r.cautions)
+    assert r.cautions[:len(CAUTIONS)] == CAUTIONS
+    for phrase in ("25-30 %", "calorimetry", "plant data", "licensed engineer", "cooling failure"):
+        assert phrase in text
+    assert DOSING_CAUTION in check(DOSE).cautions and DOSING_CAUTION not in r.cautions
+
+
+@pytest.mark.parametrize("kw, field", [
+    ({"safety_factor": 0.8}, "safety_factor"),
+    ({"safety_factor": math.inf}, "safety_factor"),
+    ({"coolant": replace(WATER, inlet_temperature=T_R + 1)}, "coolant.inlet_temperature"),
+])
+def test_bad_input_names_the_field(kw, field):
+    args = dict(vessel=VESSEL, charge=CHARGE, coolant=WATER, process_temperature=T_R,
+                heat_release=SpecificPower(10.0))
+    args.update(kw)
+    with pytest.raises(InputError) as info:
+        cooling_check(**args)
+    assert info.value.field == field
