@@ -9,6 +9,8 @@ from .heat_transfer import (AgitationRequestSchema, AgitationResultSchema, Coola
                             CoolantBalanceResultSchema, GeometryRequestSchema, GeometryResultSchema,
                             HeatTransferRequestSchema, HeatTransferResultSchema, ImpellerSchema, MaterialSchema)
 from .properties import FluidSchema, PropertiesResultSchema
+from .safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
+                     ThermalSafetyRequestSchema, ThermalSafetyResultSchema)
 
 
 @dataclass(frozen=True)
@@ -49,6 +51,27 @@ CALCULATIONS = [
     Calculation("/v1/coolant-balance", "heat transfer", "Coolant outlet temperature, duty and LMTD for a given UA",
                 "Single-pass coolant against well-mixed contents: T_out = T_r - (T_r - T_in) exp(-UA / m c_p), "
                 "with c_p at the mean coolant temperature.", CoolantBalanceRequestSchema, CoolantBalanceResultSchema),
+    Calculation("/v1/thermal-safety", "thermal safety", "Adiabatic rise, MTSR, T_D24, TMR_ad and criticality class",
+                "Cooling-failure scenario: MTSR = T_p + X_ac dT_ad (Stoessel 1993); T_D24 and the adiabatic time to "
+                "maximum rate at the MTSR from zero-order decomposition kinetics (Townsend & Tou 1980); MTT given or "
+                "the boiling point of the contents; criticality class 1-5 from the order of T_p, MTSR, MTT and "
+                "T_D24, with the reasoning. A screening estimate: confirm with reaction and adiabatic calorimetry; "
+                "local codes and a licensed engineer's review govern.",
+                ThermalSafetyRequestSchema, ThermalSafetyResultSchema),
+    Calculation("/v1/simulations", "thermal safety", "Dynamic batch, semi-batch or continuous run with the jacket",
+                "Mole and energy balances of a jacketed stirred tank integrated with a stiff solver: temperatures, "
+                "heat release, jacket duty, conversion and accumulation over time, optional PI control of the "
+                "coolant inlet, and a cooling failure at a given or the worst time. CSV gives one row per time "
+                "point; format=svg or png draws the run. A screening estimate: confirm with reaction calorimetry "
+                "and plant data; local codes and a licensed engineer's review govern.",
+                SimulationRequestSchema, SimulationResultSchema, media=("text/csv", "text/plain", "image/svg+xml",
+                                                                        "image/png")),
+    Calculation("/v1/cstr-steady-states", "thermal safety", "Steady states of a cooled CSTR and their stability",
+                "Every intersection of the heat-generation and heat-removal curves (Van Heerden 1953), with "
+                "slope and eigenvalue stability (Aris & Amundson 1958). CSV gives one row per state; format=svg "
+                "or png draws both curves with the states marked. A screening estimate: confirm with reaction "
+                "calorimetry and plant data; local codes and a licensed engineer's review govern.",
+                CSTRRequestSchema, CSTRResultSchema, media=("text/csv", "text/plain", "image/svg+xml", "image/png")),
 ]
 LIBRARIES = [
     Library("/v1/impellers", "libraries", "The impeller library with power numbers, film constants and sources",

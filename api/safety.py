@@ -1,0 +1,141 @@
+"""Thermal safety and dynamics: ``/v1/thermal-safety``, ``/v1/simulations``, ``/v1/cstr-steady-states``."""
+from __future__ import annotations
+
+import io
+
+from flask import Blueprint, Response, current_app, request
+
+from calc import dynamics, safety, steady_states
+from schemas.base import clean
+from schemas.safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
+                            ThermalSafetyRequestSchema, ThermalSafetyResultSchema, series_rows, simulation_dict,
+                            simulation_input, steady_states_dict, thermal_safety_dict)
+
+from .errors import ProblemError
+from .http import load, requested_format, respond, to_csv
+
+bp = Blueprint("safety", __name__, url_prefix="/v1")
+_safety_request, _safety_result = ThermalSafetyRequestSchema(), ThermalSafetyResultSchema()
+_simulation_request, _simulation_result = SimulationRequestSchema(), SimulationResultSchema()
+_cstr_request, _cstr_result = CSTRRequestSchema(), CSTRResultSchema()
+
+# One quiet chart style for every figure of this module.
+_STYLE = {"font.size": 9, "axes.spines.top": False, "axes.spines.right": False, "axes.grid": True,
+          "grid.color": "#dddddd", "grid.linewidth": 0.6, "axes.edgecolor": "#555555"}
+_COLOURS = ("#1f4e79", "#c0504d", "#4f8a3c", "#8064a2", "#d08a2b")
+
+
+def _figure(rows: int):
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    from cycler import cycler
+
+    style = dict(_STYLE, **{"axes.prop_cycle": cycler(color=_COLOURS)})
+    with plt.rc_context(style):
+        fig, axes = plt.subplots(rows, 1, figsize=(7.5, 2.6 * rows + 0.4), sharex=True, squeeze=False)
+    return fig, axes[:, 0]
+
+
+def _render(fig, fmt: str) -> bytes:
+    import matplotlib.pyplot as plt
+
+    buffer = io.BytesIO()
+    fig.tight_layout()
+    fig.savefig(buffer, format=fmt, dpi=120, metadata={"Date": None} if fmt == "svg" else None)
+    plt.close(fig)
+    return buffer.getvalue()
+
+
+def _footnote(fig) -> None:
+    fig.text(0.01, 0.003, "Screening estimate - confirm with reaction calorimetry and plant data.",
+             fontsize=7, color="#777777")
+
+
+# ---------------------------------------------------------------- thermal safety
+
+@bp.route("/thermal-safety", methods=["GET", "POST"])
+def thermal_safety():
+    inp = load(_safety_request)
+    return respond(thermal_safety_dict(safety.assess_thermal_safety(inp)), _safety_result)
+
+
+# ---------------------------------------------------------------- simulations
+
+def _simulation_chart(payload: dict, fmt: str) -> bytes:
+    s = payload["series"]
+    hours = [t / 3600.0 for t in s["time"]]
+    fig, (ax_t, ax_q, ax_x) = _figure(3)
+    ax_t.plot(hours, s["temperature"], label="contents")
+    ax_t.plot(hours, s["coolant_inlet_temperature"], label="coolant in", linewidth=0.9)
+    ax_t.plot(hours, s["coolant_outlet_temperature"], label="coolant out", linewidth=0.9, linestyle="--")
+    failure = payload["summary"].get("failure_time")
+    for ax in (ax_t, ax_q, ax_x):
+        if failure is not None:
+            ax.axvline(failure / 3600.0, color="#999999", linewidth=0.8, linestyle=":")
+    ax_t.set_ylabel("temperature, degC")
+    ax_t.legend(frameon=False, fontsize=8)
+    ax_q.plot(hours, [q / 1000.0 for q in s["heat_release_rate"]], label="reaction heat release")
+    ax_q.plot(hours, [q / 1000.0 for q in s["jacket_duty"]], label="jacket duty")
+    ax_q.set_ylabel("heat flow, kW")
+    ax_q.legend(frameon=False, fontsize=8)
+    ax_x.plot(hours, s["accumulation"], label="accumulation")
+    ax_x.plot(hours, s["conversion"], label="conversion", linewidth=0.9)
+    ax_x.set_ylabel("fraction")
+    ax_x.set_xlabel("time, h")
+    ax_x.legend(frameon=False, fontsize=8)
+    _footnote(fig)
+    return _render(fig, fmt)
+
+
+def _limited(field: str, value: float, limit: float, unit: str) -> None:
+    if value > limit:
+        raise ProblemError(422, f"{field}: must not exceed {limit:g} {unit} on this server",
+                           [{"field": field, "message": f"must not exceed {limit:g} {unit} on this server"}])
+
+
+@bp.route("/simulations", methods=["GET", "POST"])
+def simulations():
+    args = load(_simulation_request)
+    config = current_app.config
+    _limited("horizon", args["horizon"], float(config["MAX_SIMULATION_HORIZON"]), "s")
+    _limited("output_points", args["output_points"], int(config["MAX_SERIES_POINTS"]), "points")
+    budget = dynamics.Budget(horizon_limit=float(config["MAX_SIMULATION_HORIZON"]),
+                             output_points=args["output_points"],
+                             maximum_output_points=int(config["MAX_SERIES_POINTS"]),
+                             wall_time=float(config["SIMULATION_WALL_TIME"]))
+    result = simulation_dict(dynamics.simulate(simulation_input(args, budget)))
+    if not request.args.get("field") and requested_format() == "csv":
+        rows, units = series_rows(clean(_simulation_result.dump(result)))
+        return Response(to_csv(rows, units), mimetype="text/csv")
+    return respond(result, _simulation_result, chart=_simulation_chart)
+
+
+# ---------------------------------------------------------------- CSTR steady states
+
+def _cstr_chart(payload: dict, fmt: str) -> bytes:
+    curves = payload["curves"]
+    fig, (ax,) = _figure(1)
+    fig.set_size_inches(7.5, 4.2)
+    ax.plot(curves["temperature"], [q / 1000.0 for q in curves["heat_generation"]], label="heat generation")
+    ax.plot(curves["temperature"], [q / 1000.0 for q in curves["heat_removal"]], label="heat removal")
+    for state in payload["states"]:
+        filled = state["stable"]
+        ax.plot([state["temperature"]], [state["heat_generation"] / 1000.0], "o", markersize=7,
+                color="#222222", markerfacecolor="#222222" if filled else "white",
+                label=None)
+        ax.annotate(state["classification"], (state["temperature"], state["heat_generation"] / 1000.0),
+                    textcoords="offset points", xytext=(6, -12), fontsize=7)
+    ax.set_xlabel("reactor temperature, degC")
+    ax.set_ylabel("heat flow, kW")
+    ax.legend(frameon=False, fontsize=8, title="filled: stable, open: unstable", title_fontsize=7)
+    _footnote(fig)
+    return _render(fig, fmt)
+
+
+@bp.route("/cstr-steady-states", methods=["GET", "POST"])
+def cstr_steady_states():
+    inp = load(_cstr_request)
+    result = steady_states_dict(steady_states.cstr_steady_states(inp))
+    return respond(result, _cstr_result, rows="states", chart=_cstr_chart)
