@@ -4,7 +4,6 @@ Demo data are an invented scenario: the 5.6 m3 reactor "K-12" (1.8 m, dished bot
 jacket, pitched-blade turbine) taken to 8-64 m3 production vessels, toluene at 60 degC, tower water.
 """
 import math
-from dataclasses import replace
 
 import pytest
 from hypothesis import given, settings, strategies as st
