@@ -88,8 +88,8 @@ def create_app(config: dict | None = None) -> Flask:
         response.headers.setdefault("X-Content-Type-Options", "nosniff")
         return response
 
-    from . import agitation, geometry, heat_transfer, properties, safety, service
+    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service
 
-    for module in (service, properties, geometry, agitation, heat_transfer, safety):
+    for module in (service, properties, geometry, agitation, heat_transfer, cooling, safety):
         app.register_blueprint(module.bp)
     return app

@@ -1,10 +1,13 @@
 """Command-line client ``coolmargin``.
 
-``coolmargin serve`` runs the service with the container's gunicorn settings.
+``coolmargin serve`` runs the service with the container's gunicorn settings; ``coolmargin check
+FILE.json`` runs a cooling check (locally, or against ``--url``) and prints a table. Exit status:
+0 adequate (every case), 1 inadequate somewhere, 2 invalid input.
 """
 from __future__ import annotations
 
 import argparse
+import json
 import os
 import sys
 from pathlib import Path
@@ -21,6 +24,69 @@ def _serve(args: argparse.Namespace) -> int:
     return EXIT_OK  # pragma: no cover (exec does not return)
 
 
+def _post(path: str, body: dict, url: str | None) -> tuple[int, dict]:
+    """POST to the service at ``url``, or to an in-process app when no URL is given."""
+    if url is None:
+        from . import create_app
+
+        response = create_app().test_client().post(path, json=body)
+        return response.status_code, response.get_json()
+    import urllib.error
+    import urllib.request
+
+    request = urllib.request.Request(url.rstrip("/") + path, data=json.dumps(body).encode(),
+                                     headers={"Content-Type": "application/json"}, method="POST")
+    try:
+        with urllib.request.urlopen(request, timeout=120) as response:
+            return response.status, json.loads(response.read())
+    except urllib.error.HTTPError as error:
+        return error.code, json.loads(error.read() or b"{}")
+
+
+def _print_check(result: dict, units: dict, out) -> None:
+    rows = [("verdict", "ADEQUATE" if result["adequate"] else "NOT ADEQUATE", ""),
+            ("margin (capacity / load)", f"{result['margin']:.3g}" if result["margin"] is not None else "-", ""),
+            ("safety factor", f"{result['safety_factor']:g}", ""),
+            ("heat load", f"{result['heat_load']['total'] / 1e3:.4g}", "kW"),
+            ("cooling capacity", f"{result['cooling_capacity'] / 1e3:.4g}", "kW"),
+            ("coolant outlet", f"{result['coolant_outlet_temperature']:.4g}"
+             if result["coolant_outlet_temperature"] is not None else "-", units.get("coolant_outlet_temperature", ""))]
+    for key, value in result["limits"].items():
+        if not key.endswith("_note"):
+            rows.append((key.replace("_", " "), "-" if value is None else f"{value:.4g}", units.get(f"limits.{key}", "")))
+    width = max(len(r[0]) for r in rows)
+    for name, value, unit in rows:
+        print(f"  {name:<{width}}  {value:>14} {unit}", file=out)
+    for warning in result.get("warnings", []):
+        print(f"  warning: {warning['message']}", file=out)
+    print("  " + " ".join(result.get("cautions", [])[:1]), file=out)
+
+
+def _check(args: argparse.Namespace) -> int:
+    try:
+        body = json.loads(Path(args.file).read_text())
+    except (OSError, ValueError) as error:
+        print(f"coolmargin: cannot read {args.file}: {error}", file=sys.stderr)
+        return EXIT_INVALID
+    status, answer = _post("/v1/cooling-check", body, args.url)
+    if status != 200:
+        for error in (answer or {}).get("errors", []) or [{"field": "", "message": (answer or {}).get("detail", "")}]:
+            print(f"coolmargin: {error['field']}: {error['message']}", file=sys.stderr)
+        return EXIT_INVALID
+    cases = answer["cases"] if "cases" in answer else [{"status": 200, "result": answer}]
+    worst = EXIT_OK
+    for index, case in enumerate(cases):
+        print(f"case {index}:" if len(cases) > 1 else "cooling check:")
+        if case["status"] != 200:
+            print(f"  invalid: {case['problem']['detail']}")
+            worst = max(worst, EXIT_INVALID)
+            continue
+        _print_check(case["result"], answer["units"], sys.stdout)
+        if not case["result"]["adequate"]:
+            worst = max(worst, EXIT_INADEQUATE)
+    return worst
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(prog="coolmargin", description=__doc__.splitlines()[0])
     commands = parser.add_subparsers(dest="command", required=True)
@@ -28,6 +94,10 @@ def build_parser() -> argparse.ArgumentParser:
     serve.add_argument("--host", default="127.0.0.1")
     serve.add_argument("--port", type=int, default=8000)
     serve.set_defaults(handler=_serve)
+    check = commands.add_parser("check", help="cooling check of a request file (JSON, single or {'cases': [...]})")
+    check.add_argument("file")
+    check.add_argument("--url", default=None, help="service base URL; default: compute locally")
+    check.set_defaults(handler=_check)
     return parser
 
 

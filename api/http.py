@@ -200,3 +200,40 @@ def list_response(items: list[dict], schema: Schema) -> Response:
     if requested_format() == "csv":
         return Response(to_csv(dumped, units_of(schema)), mimetype="text/csv")
     return Response(json.dumps({"items": dumped, "units": units_of(schema)}), mimetype="application/json")
+
+
+def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict], result_schema: Schema) -> Response:
+    """Answer ``{"cases": [...]}``: each case its result or its own problem; one bad case fails no other."""
+    from .errors import problem_body, problem_for
+
+    limit = current_app.config["MAX_BATCH_CASES"]
+    if not isinstance(cases, list) or not cases:
+        raise ProblemError(422, "cases must be a non-empty list", [{"field": "cases", "message": "must be a non-empty list"}])
+    if len(cases) > limit:
+        raise ProblemError(413, f"at most {limit} cases per call", [{"field": "cases", "message": f"at most {limit} cases"}])
+    results = []
+    for index, case in enumerate(cases):
+        try:
+            if not isinstance(case, dict):
+                raise ValidationError(["must be an object"])
+            results.append({"status": 200, "result": clean(result_schema.dump(compute(schema.load(case))))})
+        except Exception as exc:  # each case reports its own problem
+            status, detail, errors, title = problem_for(exc)
+            if status >= 500:
+                current_app.logger.exception("batch case %d failed", index)
+            for error in errors:
+                error["field"] = f"cases[{index}].{error['field']}"
+            results.append({"status": status, "problem": problem_body(status, detail, errors, title)})
+    body = {"cases": results, "units": units_of(result_schema)}
+    return Response(json.dumps(body, allow_nan=False), mimetype="application/json")
+
+
+def calculate(schema: Schema, compute: Callable[[dict], dict], result_schema: Schema, **respond_options) -> Response:
+    """The whole life of a calculation request: single object or batch of cases, then the response."""
+    data = request_object()
+    if request.method == "POST" and "cases" in data:
+        if set(data) != {"cases"}:
+            raise ProblemError(422, "a batch body holds only 'cases'",
+                               [{"field": sorted(set(data) - {"cases"})[0], "message": "not allowed beside cases"}])
+        return batch_response(data["cases"], schema, compute, result_schema)
+    return respond(compute(schema.load(data)), result_schema, **respond_options)

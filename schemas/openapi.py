@@ -90,6 +90,21 @@ def components(request_roots: list[type], response_roots: list[type]) -> dict:
             pending.update({k: v for k, v in refs.items() if k not in done})
     for cls in response_roots:
         done[_name(cls)]["properties"]["units"] = {"$ref": "#/components/schemas/Units"}
+    from . import registry
+
+    for calc in registry.CALCULATIONS:
+        if calc.batch:
+            done[f"{_name(calc.request)}Batch"] = {
+                "type": "object", "additionalProperties": False, "required": ["cases"],
+                "description": "Several independent cases in one call; each gets its result or its own problem.",
+                "properties": {"cases": {"type": "array", "minItems": 1,
+                                         "items": {"$ref": f"#/components/schemas/{_name(calc.request)}"}}}}
+    if any(calc.batch for calc in registry.CALCULATIONS):
+        done["BatchResult"] = {"type": "object", "required": ["cases"], "properties": {
+            "cases": {"type": "array", "items": {"type": "object", "required": ["status"], "properties": {
+                "status": {"type": "integer"}, "result": {"type": "object"},
+                "problem": {"$ref": "#/components/schemas/Problem"}}}},
+            "units": {"$ref": "#/components/schemas/Units"}}}
     return dict(sorted(done.items()))
 
 
@@ -130,8 +145,8 @@ def paths() -> dict:
         body_schema: dict = {"$ref": f"#/components/schemas/{_name(calc.request)}"}
         ok = _ok(calc.response, calc.media)
         if calc.batch:
-            body_schema = {"oneOf": [body_schema, {"$ref": f"#/components/schemas/{_name(calc.request)}Batch"}]}
-            ok["content"]["application/json"]["schema"] = {"oneOf": [
+            body_schema = {"anyOf": [body_schema, {"$ref": f"#/components/schemas/{_name(calc.request)}Batch"}]}
+            ok["content"]["application/json"]["schema"] = {"anyOf": [
                 ok["content"]["application/json"]["schema"], {"$ref": "#/components/schemas/BatchResult"}]}
         out[calc.path] = {
             "get": common | {"operationId": "get" + operation_id, "parameters": params + [_QUERY_OBJECT],

@@ -8,6 +8,7 @@ from dataclasses import dataclass
 from .heat_transfer import (AgitationRequestSchema, AgitationResultSchema, CoolantBalanceRequestSchema,
                             CoolantBalanceResultSchema, GeometryRequestSchema, GeometryResultSchema,
                             HeatTransferRequestSchema, HeatTransferResultSchema, ImpellerSchema, MaterialSchema)
+from .cooling import CoolingCheckRequestSchema, CoolingCheckResultSchema
 from .properties import FluidSchema, PropertiesResultSchema
 from .safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
                      ThermalSafetyRequestSchema, ThermalSafetyResultSchema)
@@ -51,6 +52,14 @@ CALCULATIONS = [
     Calculation("/v1/coolant-balance", "heat transfer", "Coolant outlet temperature, duty and LMTD for a given UA",
                 "Single-pass coolant against well-mixed contents: T_out = T_r - (T_r - T_in) exp(-UA / m c_p), "
                 "with c_p at the mean coolant temperature.", CoolantBalanceRequestSchema, CoolantBalanceResultSchema),
+    Calculation("/v1/cooling-check", "cooling check", "Can this vessel remove this reaction's heat, with margin?",
+                "Heat load (reaction + agitator - sensible heat of cold feed) against the cooling capacity at the "
+                "process temperature; margin = capacity / load; adequate when margin >= safety_factor (default "
+                "1.3, a conservative engineering choice). Limits are solved: the shortest dosing time, the "
+                "warmest coolant inlet and the coolant flow that restore the safety factor. POST also takes "
+                "{\"cases\": [...]}. A screening estimate: confirm with reaction calorimetry and plant data; "
+                "local codes and a licensed engineer's review govern.",
+                CoolingCheckRequestSchema, CoolingCheckResultSchema, batch=True),
     Calculation("/v1/thermal-safety", "thermal safety", "Adiabatic rise, MTSR, T_D24, TMR_ad and criticality class",
                 "Cooling-failure scenario: MTSR = T_p + X_ac dT_ad (Stoessel 1993); T_D24 and the adiabatic time to "
                 "maximum rate at the MTSR from zero-order decomposition kinetics (Townsend & Tou 1980); MTT given or "

@@ -121,7 +121,7 @@ def parse_quantity(kind_name: str, raw) -> float:
         return to_si(kind_name, number)
     try:
         quantity = UREG.Quantity(number, unit)
-    except (pint.PintError, AttributeError, TypeError, ValueError, SyntaxError, KeyError):
+    except Exception:  # pint's parser raises assorted errors (even AssertionError) on garbage text
         raise ValidationError(f"unknown unit {unit!r}") from None
     if kind.difference:
         name = str(quantity.units)

@@ -120,3 +120,13 @@ def test_library_responses_conform(client, contract, path):
     response = client.get(path)
     assert response.status_code == 200 and all(item["source"] for item in response.json["items"])
     check_contract(contract, response)
+
+
+def test_cooling_check_and_batch_conform(client, contract):
+    body = json.loads((SPEC_PATH.parent / "examples" / "cooling_check_production.json").read_text())
+    check_contract(contract, client.post("/v1/cooling-check", json=body), body)
+    batch = {"cases": [body, dict(body, safety_factor=0.2)]}
+    response = client.post("/v1/cooling-check", json=batch)
+    assert [case["status"] for case in response.json["cases"]] == [200, 422]
+    assert response.json["cases"][1]["problem"]["errors"][0]["field"] == "cases[1].safety_factor"
+    check_contract(contract, response, batch)

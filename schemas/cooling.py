@@ -1,0 +1,179 @@
+"""Schemas of /v1/cooling-check and /v1/scale-up: the verdict, its margin, limits and scales."""
+from __future__ import annotations
+
+from marshmallow import ValidationError, fields, post_load, validate, validates_schema
+
+from calc import agitation, heat_load
+
+from .base import StrictSchema, finite_float
+from .heat_transfer import (HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema,
+                            heat_transfer_dict, warning_dicts)
+from .units import Quantity
+from .vessel import ABSOLUTE_ZERO_C, VesselSchema
+
+DEFAULT_SAFETY_FACTOR = 1.3
+SCALE_RULES = sorted(agitation.SCALE_UP_RULES) + ["as_given"]
+
+
+class HeatReleaseSchema(StrictSchema):
+    model = fields.String(required=True, validate=validate.OneOf(sorted(heat_load.MODELS)))
+    power_per_mass = Quantity("specific power", load_default=None, minimum=0,
+                              description="specific_power: heat release per kg of charge (e.g. a calorimeter peak)")
+    power = Quantity("power", load_default=None, minimum=0, description="total_power: heat release")
+    reaction_enthalpy = Quantity("molar enthalpy", load_default=None,
+                                 description="dosing: J per mol of dosed reagent, negative = exothermic")
+    dosed_amount = Quantity("amount of substance", load_default=None, minimum=0, exclusive_minimum=True)
+    dosing_time = Quantity("time", load_default=None, minimum=0, exclusive_minimum=True)
+    feed_mass = Quantity("mass", load_default=None, minimum=0)
+    feed_temperature = Quantity("temperature", load_default=None, minimum=ABSOLUTE_ZERO_C, exclusive_minimum=True)
+    feed_heat_capacity = Quantity("heat capacity", load_default=None, minimum=0, exclusive_minimum=True)
+
+    _FIELDS = {"specific_power": ("power_per_mass",), "total_power": ("power",),
+               "dosing": ("reaction_enthalpy", "dosed_amount", "dosing_time", "feed_mass", "feed_temperature",
+                          "feed_heat_capacity")}
+    _REQUIRED = {"specific_power": ("power_per_mass",), "total_power": ("power",),
+                 "dosing": ("reaction_enthalpy", "dosed_amount", "dosing_time")}
+
+    @validates_schema
+    def _fields_of_model(self, data, **kwargs):
+        model = data.get("model")
+        if model not in self._FIELDS:
+            return
+        for name in self._REQUIRED[model]:
+            if data.get(name) is None:
+                raise ValidationError(f"required for the {model} model", name)
+        for name, value in data.items():
+            if name != "model" and value is not None and name not in self._FIELDS[model]:
+                raise ValidationError(f"does not apply to the {model} model", name)
+
+    @post_load
+    def _build(self, data, **kwargs):
+        model = data.pop("model")
+        return heat_load.heat_release_model(model, **{k: v for k, v in data.items() if v is not None})
+
+
+class CoolingCheckRequestSchema(HeatTransferRequestSchema):
+    heat_release = fields.Nested(HeatReleaseSchema, required=True)
+    safety_factor = finite_float(load_default=DEFAULT_SAFETY_FACTOR, validate=validate.Range(1.0, 10.0),
+                                 metadata={"description": "required capacity / load; default 1.3 "
+                                                          "(a conservative engineering choice)"})
+
+
+class TargetSchema(StrictSchema):
+    """A scale-up target: an explicit vessel, or a volume for a geometrically similar vessel."""
+
+    volume = Quantity("volume", load_default=None, minimum=0, exclusive_minimum=True,
+                      description="nominal vessel volume (to the brim) of a similar vessel")
+    vessel = fields.Nested(VesselSchema, load_default=None)
+
+    @validates_schema
+    def _one(self, data, **kwargs):
+        if (data.get("volume") is None) == (data.get("vessel") is None):
+            raise ValidationError("give exactly one of volume and vessel", "volume")
+
+    @post_load
+    def _build(self, data, **kwargs):
+        return data["vessel"] if data["vessel"] is not None else data["volume"]
+
+
+class ScaleUpRequestSchema(StrictSchema):
+    reference = fields.Nested(VesselSchema, required=True)
+    targets = fields.List(fields.Nested(TargetSchema), required=True, validate=validate.Length(min=1, max=20))
+    rule = fields.String(load_default="constant_power_per_volume", validate=validate.OneOf(SCALE_RULES))
+    charge = HeatTransferRequestSchema._declared_fields["charge"]
+    coolant = HeatTransferRequestSchema._declared_fields["coolant"]
+    process_temperature = HeatTransferRequestSchema._declared_fields["process_temperature"]
+    heat_release = fields.Nested(HeatReleaseSchema, required=True)
+    safety_factor = CoolingCheckRequestSchema._declared_fields["safety_factor"]
+
+    @validates_schema
+    def _agitator(self, data, **kwargs):
+        vessel = data.get("reference")
+        if vessel is not None and vessel.agitator is None:
+            raise ValidationError({"reference": {"agitator": ["required for this calculation"]}})
+
+
+# ---------------------------------------------------------------- results
+
+class HeatLoadSchema(StrictSchema):
+    total = Quantity("power")
+    reaction = Quantity("power")
+    agitator = Quantity("power")
+    feed_sensible = Quantity("power", metadata={"description": "heat taken up by feed colder than the contents"})
+
+
+class LimitsSchema(StrictSchema):
+    minimum_dosing_time = Quantity("time", allow_none=True)
+    minimum_dosing_time_note = fields.String()
+    maximum_coolant_inlet_temperature = Quantity("temperature", allow_none=True)
+    maximum_coolant_inlet_temperature_note = fields.String()
+    required_coolant_flow = Quantity("mass flow", allow_none=True)
+    required_coolant_flow_note = fields.String()
+
+
+class CoolingCheckResultSchema(StrictSchema):
+    adequate = fields.Boolean()
+    margin = fields.Float(allow_none=True, metadata={"description": "cooling capacity / heat load; null when "
+                                                                     "there is no load to remove"})
+    safety_factor = fields.Float()
+    heat_load = fields.Nested(HeatLoadSchema)
+    cooling_capacity = Quantity("power")
+    coolant_outlet_temperature = Quantity("temperature", allow_none=True)
+    limits = fields.Nested(LimitsSchema)
+    heat_transfer = fields.Nested(HeatTransferResultSchema)
+    warnings = fields.List(fields.Nested(WarningSchema))
+    cautions = fields.List(fields.String())
+
+
+class ScaleSchema(CoolingCheckResultSchema):
+    volume = Quantity("volume", metadata={"description": "liquid volume at this scale"})
+    vessel_volume = Quantity("volume", metadata={"description": "vessel volume to the brim"})
+    scale_factor = fields.Float(metadata={"description": "length ratio to the reference vessel"})
+    name = fields.String()
+    diameter = Quantity("length")
+    impeller_diameter = Quantity("length")
+    agitator_speed = Quantity("agitator speed")
+    area_per_volume = Quantity("area per volume")
+    overall_coefficient = Quantity("heat-transfer coefficient")
+    controlling = fields.String()
+
+
+class ScaleUpResultSchema(StrictSchema):
+    rule = fields.String()
+    scales = fields.List(fields.Nested(ScaleSchema))
+    largest_adequate_volume = Quantity("volume", allow_none=True)
+    largest_adequate_volume_note = fields.String()
+    controlling_switch_volumes = fields.List(Quantity("volume"))
+    warnings = fields.List(fields.Nested(WarningSchema))
+    cautions = fields.List(fields.String())
+
+
+def _limit(limit, key: str) -> tuple:
+    if limit is None:
+        return None, "applies to the dosing model only"
+    value = getattr(limit, key, None)
+    return (value if limit.reachable else None), limit.message
+
+
+def cooling_check_dict(check) -> dict:
+    """Shape a calc.cooling.CoolingCheck for CoolingCheckResultSchema."""
+    load = check.heat_load
+    limits = check.limits
+    if limits is None:
+        skipped = "not solved for this result"
+        dosing, dosing_note, inlet, inlet_note, flow, flow_note = None, skipped, None, skipped, None, skipped
+    else:
+        dosing, dosing_note = _limit(limits.minimum_dosing_time, "value")
+        inlet, inlet_note = _limit(limits.maximum_coolant_inlet_temperature, "value")
+        flow, flow_note = _limit(limits.required_coolant_flow, "value")
+    return {
+        "adequate": check.adequate, "margin": check.margin, "safety_factor": check.safety_factor,
+        "heat_load": {"total": load.total, "reaction": load.reaction, "agitator": load.agitator,
+                      "feed_sensible": load.feed_sensible},
+        "cooling_capacity": check.cooling_capacity, "coolant_outlet_temperature": check.coolant_outlet_temperature,
+        "limits": {"minimum_dosing_time": dosing, "minimum_dosing_time_note": dosing_note,
+                   "maximum_coolant_inlet_temperature": inlet, "maximum_coolant_inlet_temperature_note": inlet_note,
+                   "required_coolant_flow": flow, "required_coolant_flow_note": flow_note},
+        "heat_transfer": heat_transfer_dict(check.heat_transfer),
+        "warnings": warning_dicts(check.warnings), "cautions": list(check.cautions),
+    }
