@@ -1,0 +1,119 @@
+"""Benchmark (``make bench``): ratios measured in one run, printed as a table. A script, not a test.
+
+1. Throughput over HTTP: gunicorn (2 workers) on 127.0.0.1, the load generator of load.py with a few client
+   threads for a few seconds per route. Each calculation route is compared with the trivial JSON endpoint
+   /health measured in the same run (before and after, averaged), so the ratio does not depend on the machine.
+   Targets: cooling check >= 0.5 of /health, scale-up with 5 scales >= 0.25.
+2. In-process median time of one request through the Flask test client (no network, no gunicorn).
+
+Routes not yet in openapi.yaml, or without a body in tests/benchmarks/requests.py, print "not available yet".
+
+    python tests/benchmarks/bench.py [--seconds 3] [--clients 4]
+"""
+from __future__ import annotations
+
+import argparse
+import statistics
+import sys
+import time
+from pathlib import Path
+
+if not __package__:  # run as a script: import from tests/ and the project, not from this folder
+    _HERE = Path(__file__).resolve().parent
+    # this folder's requests.py must not shadow the HTTP library of the same name for anything else
+    sys.path[:] = [p for p in sys.path if Path(p or ".").resolve() != _HERE]
+    sys.path[:0] = [str(_HERE.parent), str(_HERE.parents[1])]
+
+from benchmarks.load import run_load  # noqa: E402
+from benchmarks.requests import Example, available  # noqa: E402
+from serving import gunicorn  # noqa: E402
+
+BASELINE = "/health"
+# route -> minimum throughput relative to /health (None: measured and shown, no target)
+THROUGHPUT_TARGETS: dict[str, float | None] = {
+    "/v1/properties": None,
+    "/v1/cooling-check": 0.5,
+    "/v1/scale-up": 0.25,  # the example has 5 scales
+}
+IN_PROCESS = ["/v1/properties", "/v1/cooling-check", "/v1/scale-up"]
+
+
+def throughput(base: str, example: Example, clients: int, seconds: float) -> tuple[float, int]:
+    """Requests per second (2xx only counted as success; any error aborts the benchmark)."""
+    run_load(base, [example], clients=clients, seconds=min(0.5, seconds), max_requests=10_000)  # warm-up
+    result = run_load(base, [example], clients=clients, seconds=seconds, max_requests=1_000_000)
+    if result.errors:
+        raise SystemExit(f"{example} failed during the benchmark: {result.error_samples[:3]}")
+    return result.throughput, result.requests
+
+
+def in_process_median(example: Example, seconds: float, max_calls: int = 200) -> tuple[float, int]:
+    """Median wall time (s) of one request through the Flask test client, and how many calls were timed."""
+    from api import create_app
+
+    client = create_app().test_client()
+
+    def call() -> None:
+        response = client.open(example.path, method=example.method, json=example.body)
+        if response.status_code != 200:
+            raise SystemExit(f"{example} -> {response.status_code}: {response.get_data(as_text=True)[:300]}")
+
+    call()  # warm-up: imports, property tables, caches
+    times: list[float] = []
+    deadline = time.monotonic() + seconds
+    while len(times) < max_calls and (len(times) < 5 or time.monotonic() < deadline):
+        started = time.perf_counter()
+        call()
+        times.append(time.perf_counter() - started)
+    return statistics.median(times), len(times)
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+    parser.add_argument("--seconds", type=float, default=3.0, help="measuring time per route (default 3 s)")
+    parser.add_argument("--clients", type=int, default=4, help="client threads (default 4)")
+    args = parser.parse_args(argv)
+    if not (0 < args.seconds <= 60 and 1 <= args.clients <= 64):
+        parser.error("need 0-60 s per route and 1-64 clients")
+
+    baseline = available(BASELINE)
+    measured = {route: available(route) for route in THROUGHPUT_TARGETS}
+    misses = 0
+    with gunicorn(workers=2) as base:
+        print(f"gunicorn, 2 sync workers, {base}; {args.clients} client threads, {args.seconds:g} s per route")
+        before, _ = throughput(base, baseline, args.clients, args.seconds)
+        figures = {route: throughput(base, example, args.clients, args.seconds)
+                   for route, example in measured.items() if example is not None}
+        after, _ = throughput(base, baseline, args.clients, args.seconds)
+    reference = (before + after) / 2
+
+    print(f"\nThroughput over HTTP (trivial JSON endpoint {BASELINE}: {before:.0f} before, {after:.0f} after, "
+          f"mean {reference:.0f} requests/s)")
+    print(f"{'route':<22}{'requests/s':>12}{'requests':>10}{'ratio':>8}{'target':>9}  verdict")
+    for route, target in THROUGHPUT_TARGETS.items():
+        if route not in figures:
+            print(f"{route:<22}{'':>12}{'':>10}{'':>8}{'':>9}  not available yet")
+            continue
+        rate, count = figures[route]
+        ratio = rate / reference
+        verdict = "-" if target is None else ("meets target" if ratio >= target else "BELOW TARGET")
+        misses += verdict == "BELOW TARGET"
+        target_text = "" if target is None else f">= {target:g}"
+        print(f"{route:<22}{rate:>12.0f}{count:>10}{ratio:>8.2f}{target_text:>9}  {verdict}")
+
+    print("\nIn-process median time of one request (Flask test client, no network)")
+    print(f"{'route':<22}{'median ms':>12}{'calls':>10}")
+    for route in IN_PROCESS:
+        example = available(route)
+        if example is None:
+            print(f"{route:<22}{'':>12}{'':>10}  not available yet")
+            continue
+        median, calls = in_process_median(example, args.seconds)
+        print(f"{route:<22}{1000 * median:>12.2f}{calls:>10}")
+    if misses:
+        print(f"\n{misses} route(s) below the throughput target")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
