@@ -10,7 +10,7 @@ from importlib import metadata
 
 from flask import Flask, g, request
 
-from . import errors
+from . import errors, security
 
 try:
     VERSION = metadata.version("coolmargin")
@@ -87,6 +87,8 @@ def create_app(config: dict | None = None) -> Flask:
         response.headers["X-Request-ID"] = g.get("request_id", "-")
         response.headers.setdefault("X-Content-Type-Options", "nosniff")
         return response
+
+    security.register(app)  # after the request-id hook: refusals carry the request id
 
     from . import agitation, cooling, geometry, heat_transfer, properties, safety, service
 

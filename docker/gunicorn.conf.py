@@ -2,8 +2,11 @@
 
 Used by the container (docker/Dockerfile), by ``make run`` and by the tests that start a real server.
 """
+import json
 import multiprocessing
 import os
+
+from gunicorn import glogging
 
 
 def _int(name: str, default: int) -> int:
@@ -28,7 +31,22 @@ preload_app = True
 accesslog = os.environ.get("COOLMARGIN_ACCESS_LOG", "-")
 errorlog = "-"
 loglevel = os.environ.get("COOLMARGIN_LOG_LEVEL", "info")
-# Structured access log: one JSON object per request; no bodies, no Authorization header.
+# Structured access log: one JSON object per request; no bodies, no query strings, no Authorization header.
+# Every atom is JSON-string escaped (gunicorn's own wrapper escapes only '"'), so a path holding a backslash or
+# a %0A-encoded newline can neither break the JSON nor forge a second log line.
+
+
+class _JsonAtoms(glogging.SafeAtoms):
+    def __init__(self, atoms):
+        dict.__init__(self, {key: json.dumps(value)[1:-1] if isinstance(value, str) else value
+                             for key, value in atoms.items()})
+
+
+class _JsonAccessLogger(glogging.Logger):
+    atoms_wrapper_class = _JsonAtoms
+
+
+logger_class = _JsonAccessLogger
 access_log_format = (
     '{"time":"%(t)s","remote":"%(h)s","method":"%(m)s","path":"%(U)s","status":%(s)s,'
     '"bytes":"%(B)s","duration_us":%(D)s,"request_id":"%({x-request-id}o)s"}'
