@@ -1,8 +1,9 @@
 """Command-line client ``coolmargin``.
 
 ``coolmargin serve`` runs the service with the container's gunicorn settings; ``coolmargin check
-FILE.json`` runs a cooling check (locally, or against ``--url``) and prints a table. Exit status:
-0 adequate (every case), 1 inadequate somewhere, 2 invalid input.
+FILE.json`` runs a cooling check and ``coolmargin scale-up FILE.json`` a scale-up (locally, or against
+``--url``), each printing a table. Exit status: 0 adequate everywhere, 1 inadequate somewhere,
+2 invalid input.
 """
 from __future__ import annotations
 
@@ -62,17 +63,54 @@ def _print_check(result: dict, units: dict, out) -> None:
     print("  " + " ".join(result.get("cautions", [])[:1]), file=out)
 
 
-def _check(args: argparse.Namespace) -> int:
+def _request(path: str, args: argparse.Namespace) -> tuple[dict | None, int]:
+    """Read the request file and call ``path``; on failure print the problem and return the exit status."""
     try:
         body = json.loads(Path(args.file).read_text())
     except (OSError, ValueError) as error:
         print(f"coolmargin: cannot read {args.file}: {error}", file=sys.stderr)
-        return EXIT_INVALID
-    status, answer = _post("/v1/cooling-check", body, args.url)
+        return None, EXIT_INVALID
+    status, answer = _post(path, body, args.url)
     if status != 200:
         for error in (answer or {}).get("errors", []) or [{"field": "", "message": (answer or {}).get("detail", "")}]:
             print(f"coolmargin: {error['field']}: {error['message']}", file=sys.stderr)
-        return EXIT_INVALID
+        return None, EXIT_INVALID
+    return answer, EXIT_OK
+
+
+def _scale_up(args: argparse.Namespace) -> int:
+    answer, status = _request("/v1/scale-up", args)
+    if answer is None:
+        return status
+    units = answer["units"]
+    print(f"scale-up, rule {answer['rule']}, safety factor {answer['safety_factor']:g}")
+    header = f"  {'vessel':<34} {'volume':>9} {'A/V':>6} {'U':>6} {'load':>9} {'capacity':>9} {'margin':>7}  verdict"
+    print(header)
+    print(f"  {'':<34} {'m^3':>9} {'1/m':>6} {'W/m2K':>6} {'kW':>9} {'kW':>9} {'':>7}")
+    worst = EXIT_OK
+    for scale in answer["scales"]:
+        name = f"{scale['volume']:.3g} m^3 similar" if scale["generated"] else scale["name"][:34]
+        margin = "-" if scale["margin"] is None else f"{scale['margin']:.3g}"
+        verdict = "adequate" if scale["adequate"] else "NOT ADEQUATE"
+        print(f"  {name:<34} {scale['volume']:>9.4g} {scale['area_per_volume']:>6.3g} "
+              f"{scale['overall_coefficient']:>6.0f} {scale['heat_load']['total'] / 1e3:>9.4g} "
+              f"{scale['cooling_capacity'] / 1e3:>9.4g} {margin:>7}  {verdict}")
+        if not scale["adequate"]:
+            worst = EXIT_INADEQUATE
+    largest = answer["largest_adequate_volume"]
+    print(f"  largest adequate similar volume: {'-' if largest is None else f'{largest:.4g} m^3'} "
+          f"({answer['largest_adequate_volume_note']})")
+    for switch in answer["controlling_switches"]:
+        print(f"  controlling resistance: {switch['below']} -> {switch['above']} at {switch['volume']:.3g} "
+              f"{units.get('controlling_switches.volume', 'm^3')}")
+    print("  " + answer["cautions"][0])
+    return worst
+
+
+def _check(args: argparse.Namespace) -> int:
+    answer, status = _request("/v1/cooling-check", args)
+    if answer is None:
+        return status
     cases = answer["cases"] if "cases" in answer else [{"status": 200, "result": answer}]
     worst = EXIT_OK
     for index, case in enumerate(cases):
@@ -98,6 +136,10 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("file")
     check.add_argument("--url", default=None, help="service base URL; default: compute locally")
     check.set_defaults(handler=_check)
+    scale = commands.add_parser("scale-up", help="cooling check at every scale of a scale-up request file (JSON)")
+    scale.add_argument("file")
+    scale.add_argument("--url", default=None, help="service base URL; default: compute locally")
+    scale.set_defaults(handler=_scale_up)
     return parser
 
 

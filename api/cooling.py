@@ -1,9 +1,12 @@
 """The main job: ``/v1/cooling-check`` for one vessel and ``/v1/scale-up`` along a scale-up path."""
-from flask import Blueprint
+from flask import Blueprint, current_app
 
-from calc import cooling
-from schemas.cooling import CoolingCheckRequestSchema, CoolingCheckResultSchema, cooling_check_dict
+from calc import cooling, scaleup
+from schemas.cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
+                             ScaleUpResultSchema, cooling_check_dict, scale_up_dict)
 
+from . import charts
+from .errors import ProblemError
 from .http import calculate
 
 bp = Blueprint("cooling", __name__, url_prefix="/v1")
@@ -19,3 +22,61 @@ def _check(args: dict) -> dict:
 @bp.route("/cooling-check", methods=["GET", "POST"])
 def cooling_check():
     return calculate(_request, _check, _result)
+
+
+_scale_request, _scale_result = ScaleUpRequestSchema(), ScaleUpResultSchema()
+
+
+def _scale_up(args: dict) -> dict:
+    limit = current_app.config["MAX_SCALES"]
+    if len(args["targets"]) > limit:
+        raise ProblemError(413, f"at most {limit} targets per scale-up",
+                           [{"field": "targets", "message": f"at most {limit} targets"}])
+    result = scaleup.scale_up(args["reference"], args["targets"], args["rule"], args["charge"], args["coolant"],
+                              args["process_temperature"], args["heat_release"], args["safety_factor"],
+                              args["coolant_flow_rule"])
+    return scale_up_dict(result)
+
+
+def scale_up_chart(payload: dict, fmt: str) -> bytes:
+    """Heat load and cooling capacity against volume (log axes), and the margin of each scale."""
+    fig, (top, bottom) = charts.figure(2)
+    scales = sorted(payload["scales"], key=lambda s: s["volume"])
+    volumes = [s["volume"] for s in scales]
+    load = [s["heat_load"]["total"] / 1e3 for s in scales]
+    capacity = [s["cooling_capacity"] / 1e3 for s in scales]
+    factor = payload["safety_factor"]
+    top.plot(volumes, load, marker="o", label="heat load")
+    top.plot(volumes, capacity, marker="s", label="cooling capacity")
+    top.plot(volumes, [c / factor for c in capacity], linestyle="--", linewidth=0.9,
+             label=f"capacity / safety factor {factor:g}")
+    top.set_xscale("log")
+    top.set_yscale("log")
+    top.set_ylabel("kW")
+    margins = [s["margin"] if s["margin"] is not None else float("nan") for s in scales]
+    colours = [charts.COLOURS[2] if s["adequate"] else charts.COLOURS[1] for s in scales]
+    bottom.scatter(volumes, margins, c=colours, zorder=3)
+    for volume, margin, scale in zip(volumes, margins, scales):
+        label = f"{volume:.3g} m^3" if scale["generated"] else scale["name"].split(",")[0][:24]
+        bottom.annotate(label, (volume, margin), textcoords="offset points", xytext=(4, 4), fontsize=7)
+    bottom.axhline(factor, color="#555555", linestyle="--", linewidth=0.9, label="safety factor")
+    bottom.set_xscale("log")
+    bottom.set_ylabel("margin (capacity / load)")
+    bottom.set_xlabel("vessel volume, m^3")
+    largest = payload.get("largest_adequate_volume")
+    if largest is not None:
+        for axis in (top, bottom):
+            axis.axvline(largest, color=charts.COLOURS[3], linewidth=1.0, linestyle=":")
+        text = "adequate beyond" if payload.get("adequate_beyond_search") else "largest adequate"
+        top.annotate(f"{text} {largest:.3g} m^3", (largest, min(load)), fontsize=7, ha="right",
+                     textcoords="offset points", xytext=(-4, 0))
+    top.legend(fontsize=7, frameon=False)
+    bottom.legend(fontsize=7, frameon=False)
+    top.set_title(f"Cooling margin along the scale-up ({payload['rule'].replace('_', ' ')})", fontsize=10)
+    charts.footnote(fig)
+    return charts.render(fig, fmt)
+
+
+@bp.route("/scale-up", methods=["GET", "POST"])
+def scale_up():
+    return calculate(_scale_request, _scale_up, _scale_result, rows="scales", chart=scale_up_chart)

@@ -1,8 +1,6 @@
 """Thermal safety and dynamics: ``/v1/thermal-safety``, ``/v1/simulations``, ``/v1/cstr-steady-states``."""
 from __future__ import annotations
 
-import io
-
 from flask import Blueprint, Response, current_app, request
 
 from calc import dynamics, safety, steady_states
@@ -12,46 +10,13 @@ from schemas.safety import (CSTRRequestSchema, CSTRResultSchema, SimulationReque
                             simulation_input, steady_states_dict, thermal_safety_dict)
 
 from .errors import ProblemError
+from .charts import figure as _figure, footnote as _footnote, render as _render
 from .http import load, requested_format, respond, to_csv
 
 bp = Blueprint("safety", __name__, url_prefix="/v1")
 _safety_request, _safety_result = ThermalSafetyRequestSchema(), ThermalSafetyResultSchema()
 _simulation_request, _simulation_result = SimulationRequestSchema(), SimulationResultSchema()
 _cstr_request, _cstr_result = CSTRRequestSchema(), CSTRResultSchema()
-
-# One quiet chart style for every figure of this module.
-_STYLE = {"font.size": 9, "axes.spines.top": False, "axes.spines.right": False, "axes.grid": True,
-          "grid.color": "#dddddd", "grid.linewidth": 0.6, "axes.edgecolor": "#555555"}
-_COLOURS = ("#1f4e79", "#c0504d", "#4f8a3c", "#8064a2", "#d08a2b")
-
-
-def _figure(rows: int):
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-    from cycler import cycler
-
-    style = dict(_STYLE, **{"axes.prop_cycle": cycler(color=_COLOURS)})
-    with plt.rc_context(style):
-        fig, axes = plt.subplots(rows, 1, figsize=(7.5, 2.6 * rows + 0.4), sharex=True, squeeze=False)
-    return fig, axes[:, 0]
-
-
-def _render(fig, fmt: str) -> bytes:
-    import matplotlib.pyplot as plt
-
-    buffer = io.BytesIO()
-    fig.tight_layout()
-    fig.savefig(buffer, format=fmt, dpi=120, metadata={"Date": None} if fmt == "svg" else None)
-    plt.close(fig)
-    return buffer.getvalue()
-
-
-def _footnote(fig) -> None:
-    fig.text(0.01, 0.003, "Screening estimate - confirm with reaction calorimetry and plant data.",
-             fontsize=7, color="#777777")
-
 
 # ---------------------------------------------------------------- thermal safety
 

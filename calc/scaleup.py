@@ -195,12 +195,13 @@ def _given(reference: _Reference, vessel: Vessel, index: int, rule: str, coolant
 
 def _check_targets(targets) -> list:
     if isinstance(targets, (str, bytes)) or not hasattr(targets, "__iter__"):
-        raise InputError("targets", "must be a list of vessels or volumes")
+        raise InputError("targets", "must be a list of vessels, (vessel, coolant) pairs or volumes")
     targets = list(targets)
     if len(targets) > MAX_TARGETS:
         raise InputError("targets", f"at most {MAX_TARGETS} targets per request, got {len(targets)}")
     for i, target in enumerate(targets):
-        if isinstance(target, Vessel):
+        if isinstance(target, Vessel) or (isinstance(target, tuple) and len(target) == 2
+                                          and isinstance(target[0], Vessel) and isinstance(target[1], Coolant)):
             continue
         if isinstance(target, bool) or not isinstance(target, (int, float)) or not math.isfinite(target) \
                 or target <= 0:
@@ -291,9 +292,14 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
     scales = [ScaleResult(reference.name, ref.volume, ref.charge_volume, 1.0, False, reference.agitator.speed,
                           reference, coolant, first)]
     for i, target in enumerate(targets):
+        own_coolant = None
+        if isinstance(target, tuple):  # (vessel, its own utility)
+            target, own_coolant = target
         if isinstance(target, Vessel):
             vessel, scaled_charge, charge_volume, scaled_coolant, release, factor, volume = \
                 _given(ref, target, i, rule, coolant_flow_rule, warnings)
+            if own_coolant is not None:
+                scaled_coolant = own_coolant
             generated = False
         else:
             volume = float(target)

@@ -16,6 +16,9 @@ from .validity import InputError
 from .wall import Fouling, WallSpec
 
 
+_JACKET_LENGTHS = ("gap", "baffle_pitch", "pipe_diameter", "pipe_pitch", "inlet_diameter")
+
+
 @dataclass(frozen=True)
 class Vessel:
     """A jacketed, agitated vertical vessel. ``jacket`` is a ``calc.service_side.JacketSpec`` or None."""
@@ -30,16 +33,23 @@ class Vessel:
     name: str = "vessel"
 
     def scaled(self, factor: float, agitator_speed: float | None = None, name: str | None = None) -> "Vessel":
-        """A geometrically similar vessel: every length times ``factor``; wall thickness kept.
+        """A geometrically similar vessel: every length times ``factor``, wall thickness and fouling kept.
 
-        Wall thickness, fouling and the jacket's flow passages are kept as they are: a larger vessel
-        is not built with a proportionally thicker wall or a proportionally wider jacket gap
+        The jacket's passages (gap, baffle pitch, half-pipe diameter and pitch, inlet nozzle) scale
+        with the vessel, so a coolant flow scaled with the area keeps the jacket velocity roughly
+        constant. The wall keeps its thickness: it is set by pressure rating, not by similarity
         (common practice, no source). The agitator diameter scales; its speed is ``agitator_speed``.
         """
         agitator = replace(self.agitator, diameter=self.agitator.diameter * factor,
                            speed=self.agitator.speed if agitator_speed is None else agitator_speed)
+        jacket = self.jacket
+        if jacket is not None:
+            lengths = {name: getattr(jacket, name) * factor for name in _JACKET_LENGTHS
+                       if getattr(jacket, name, None) is not None}
+            jacket = replace(jacket, **lengths)
         return replace(
             self,
+            jacket=jacket,
             shape=geometry.scale_shape(self.shape, factor),
             coverage=geometry.scale_jacket(self.coverage, factor),
             coils=tuple(geometry.scale_coil(c, factor) for c in self.coils),

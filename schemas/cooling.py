@@ -3,13 +3,13 @@ from __future__ import annotations
 
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
-from calc import agitation, heat_load
+from calc import agitation, heat_load, scaleup
 
 from .base import StrictSchema, finite_float
 from .heat_transfer import (HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema,
                             heat_transfer_dict, warning_dicts)
 from .units import Quantity
-from .vessel import ABSOLUTE_ZERO_C, VesselSchema
+from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema
 
 DEFAULT_SAFETY_FACTOR = 1.3
 SCALE_RULES = sorted(agitation.SCALE_UP_RULES) + ["as_given"]
@@ -65,15 +65,22 @@ class TargetSchema(StrictSchema):
     volume = Quantity("volume", load_default=None, minimum=0, exclusive_minimum=True,
                       description="nominal vessel volume (to the brim) of a similar vessel")
     vessel = fields.Nested(VesselSchema, load_default=None)
+    coolant = fields.Nested(CoolantSchema, load_default=None,
+                            metadata={"description": "this vessel's own utility; default: the reference coolant "
+                                                     "under coolant_flow_rule"})
 
     @validates_schema
     def _one(self, data, **kwargs):
         if (data.get("volume") is None) == (data.get("vessel") is None):
             raise ValidationError("give exactly one of volume and vessel", "volume")
+        if data.get("coolant") is not None and data.get("vessel") is None:
+            raise ValidationError("a coolant of its own needs an explicit vessel", "coolant")
 
     @post_load
     def _build(self, data, **kwargs):
-        return data["vessel"] if data["vessel"] is not None else data["volume"]
+        if data["vessel"] is None:
+            return data["volume"]
+        return data["vessel"] if data["coolant"] is None else (data["vessel"], data["coolant"])
 
 
 class ScaleUpRequestSchema(StrictSchema):
@@ -85,6 +92,10 @@ class ScaleUpRequestSchema(StrictSchema):
     process_temperature = HeatTransferRequestSchema._declared_fields["process_temperature"]
     heat_release = fields.Nested(HeatReleaseSchema, required=True)
     safety_factor = CoolingCheckRequestSchema._declared_fields["safety_factor"]
+    coolant_flow_rule = fields.String(load_default="scale_with_area",
+                                      validate=validate.OneOf(["scale_with_area", "as_given"]),
+                                      metadata={"description": "coolant flow at each scale: in proportion to the "
+                                                               "heat-transfer area, or as given"})
 
     @validates_schema
     def _agitator(self, data, **kwargs):
@@ -126,10 +137,11 @@ class CoolingCheckResultSchema(StrictSchema):
 
 
 class ScaleSchema(CoolingCheckResultSchema):
-    volume = Quantity("volume", metadata={"description": "liquid volume at this scale"})
-    vessel_volume = Quantity("volume", metadata={"description": "vessel volume to the brim"})
-    scale_factor = fields.Float(metadata={"description": "length ratio to the reference vessel"})
     name = fields.String()
+    volume = Quantity("volume", metadata={"description": "nominal vessel volume (to the top of the straight side)"})
+    charge_volume = Quantity("volume", metadata={"description": "liquid volume at this scale"})
+    scale_factor = fields.Float(metadata={"description": "length ratio to the reference vessel"})
+    generated = fields.Boolean(metadata={"description": "geometrically similar vessel made from the reference"})
     diameter = Quantity("length")
     impeller_diameter = Quantity("length")
     agitator_speed = Quantity("agitator speed")
@@ -138,12 +150,24 @@ class ScaleSchema(CoolingCheckResultSchema):
     controlling = fields.String()
 
 
+class ControllingSwitchSchema(StrictSchema):
+    volume = Quantity("volume")
+    below = fields.String()
+    above = fields.String()
+
+
 class ScaleUpResultSchema(StrictSchema):
     rule = fields.String()
+    coolant_flow_rule = fields.String()
+    safety_factor = fields.Float()
     scales = fields.List(fields.Nested(ScaleSchema))
-    largest_adequate_volume = Quantity("volume", allow_none=True)
+    largest_adequate_volume = Quantity("volume", allow_none=True,
+                                       metadata={"description": "largest similar vessel (nominal volume) still "
+                                                                "adequate, solved on the continuous family"})
+    adequate_beyond_search = fields.Boolean()
+    search_upper_volume = Quantity("volume")
     largest_adequate_volume_note = fields.String()
-    controlling_switch_volumes = fields.List(Quantity("volume"))
+    controlling_switches = fields.List(fields.Nested(ControllingSwitchSchema))
     warnings = fields.List(fields.Nested(WarningSchema))
     cautions = fields.List(fields.String())
 
@@ -176,4 +200,28 @@ def cooling_check_dict(check) -> dict:
                    "required_coolant_flow": flow, "required_coolant_flow_note": flow_note},
         "heat_transfer": heat_transfer_dict(check.heat_transfer),
         "warnings": warning_dicts(check.warnings), "cautions": list(check.cautions),
+    }
+
+
+def scale_up_dict(result) -> dict:
+    """Shape a calc.scaleup.ScaleUp for ScaleUpResultSchema."""
+    scales = []
+    for scale in result.scales:
+        check = scale.check
+        heat = check.heat_transfer
+        scales.append(cooling_check_dict(check) | {
+            "name": scale.name, "volume": scale.volume, "charge_volume": scale.charge_volume,
+            "scale_factor": scale.scale_factor, "generated": scale.generated,
+            "diameter": scale.vessel.shape.diameter, "impeller_diameter": scale.vessel.agitator.diameter,
+            "agitator_speed": scale.agitator_speed, "area_per_volume": heat.fill.area_per_volume,
+            "overall_coefficient": heat.overall_coefficient, "controlling": heat.controlling,
+        })
+    return {
+        "rule": result.rule, "coolant_flow_rule": result.coolant_flow_rule, "safety_factor": result.safety_factor,
+        "scales": scales, "largest_adequate_volume": result.largest_adequate_volume,
+        "adequate_beyond_search": result.adequate_beyond_search, "search_upper_volume": result.search_upper_volume,
+        "largest_adequate_volume_note": result.largest_adequate_message,
+        "controlling_switches": [{"volume": s.volume, "below": s.below, "above": s.above}
+                                 for s in result.controlling_switch_volumes],
+        "warnings": warning_dicts(result.warnings), "cautions": list(result.cautions),
     }

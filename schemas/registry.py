@@ -8,7 +8,8 @@ from dataclasses import dataclass
 from .heat_transfer import (AgitationRequestSchema, AgitationResultSchema, CoolantBalanceRequestSchema,
                             CoolantBalanceResultSchema, GeometryRequestSchema, GeometryResultSchema,
                             HeatTransferRequestSchema, HeatTransferResultSchema, ImpellerSchema, MaterialSchema)
-from .cooling import CoolingCheckRequestSchema, CoolingCheckResultSchema
+from .cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
+                      ScaleUpResultSchema)
 from .properties import FluidSchema, PropertiesResultSchema
 from .safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
                      ThermalSafetyRequestSchema, ThermalSafetyResultSchema)
@@ -60,6 +61,15 @@ CALCULATIONS = [
                 "{\"cases\": [...]}. A screening estimate: confirm with reaction calorimetry and plant data; "
                 "local codes and a licensed engineer's review govern.",
                 CoolingCheckRequestSchema, CoolingCheckResultSchema, batch=True),
+    Calculation("/v1/scale-up", "cooling check", "The cooling check at every scale of a scale-up path",
+                "From a reference vessel to explicit target vessels or target volumes (geometrically similar "
+                "vessels at the same fill fraction) under an agitation rule: per scale the generated geometry and "
+                "speed, A/V, films, U, the controlling resistance, capacity, load, margin, verdict and limits; "
+                "overall the largest adequate volume solved on the continuous family of similar vessels and "
+                "where the controlling resistance switches. format=csv gives one row per scale; format=svg or "
+                "png a chart. POST also takes {\"cases\": [...]}.",
+                ScaleUpRequestSchema, ScaleUpResultSchema, media=("text/csv", "text/plain", "image/svg+xml",
+                                                                  "image/png"), batch=True),
     Calculation("/v1/thermal-safety", "thermal safety", "Adiabatic rise, MTSR, T_D24, TMR_ad and criticality class",
                 "Cooling-failure scenario: MTSR = T_p + X_ac dT_ad (Stoessel 1993); T_D24 and the adiabatic time to "
                 "maximum rate at the MTSR from zero-order decomposition kinetics (Townsend & Tou 1980); MTT given or "

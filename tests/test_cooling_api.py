@@ -47,3 +47,51 @@ def test_cli_exit_codes(tmp_path):
     assert inadequate.returncode == 1 and "NOT ADEQUATE" in inadequate.stdout
     invalid = _cli(tmp_path, dict(EXAMPLE, process_temperature="3 kg"))
     assert invalid.returncode == 2 and "process_temperature" in invalid.stderr
+
+
+DEMO = json.loads((ROOT / "examples" / "scale_up_demo.json").read_text())
+PATH = json.loads((ROOT / "examples" / "scale_up_path.json").read_text())
+
+
+def test_scale_up_area_per_volume_follows_similarity(client):
+    # Geometrically similar vessels at the same fill fraction: A/V proportional to V^(-1/3)
+    # (exact for similar shapes; common practice, no source).
+    scales = client.post("/v1/scale-up", json=PATH).json["scales"]
+    generated = [s for s in scales if s["generated"]]
+    first = generated[0]
+    for scale in generated[1:]:
+        expected = first["area_per_volume"] * (scale["charge_volume"] / first["charge_volume"]) ** (-1 / 3)
+        assert scale["area_per_volume"] == pytest.approx(expected, rel=1e-6)
+
+
+def test_scale_up_largest_adequate_volume_is_where_margin_meets_the_factor(client):
+    body = client.post("/v1/scale-up", json=DEMO).json
+    largest = body["largest_adequate_volume"]
+    assert largest is not None and not body["adequate_beyond_search"]
+    probe = dict(DEMO, targets=[{"volume": largest}])
+    margin = client.post("/v1/scale-up", json=probe).json["scales"][1]["margin"]
+    assert margin == pytest.approx(DEMO["safety_factor"], rel=1e-5)  # definition of the solved limit
+
+
+def test_scale_up_csv_one_row_per_scale_and_charts(client):
+    csv = client.post("/v1/scale-up?format=csv", json=DEMO).get_data(as_text=True).splitlines()
+    assert len(csv) == 1 + 3 and "cooling_capacity [W]" in csv[0] and "volume [m^3]" in csv[0]
+    svg = client.post("/v1/scale-up?format=svg", json=DEMO)
+    assert svg.mimetype == "image/svg+xml" and svg.data.lstrip().startswith((b"<?xml", b"<svg"))
+    png = client.post("/v1/scale-up", json=DEMO, headers={"Accept": "image/png"})
+    assert png.mimetype == "image/png" and png.data.startswith(b"\x89PNG")
+
+
+def test_scale_up_batch_isolates_a_bad_case(client):
+    body = {"cases": [DEMO, dict(DEMO, rule="constant_froude")]}
+    cases = client.post("/v1/scale-up", json=body).json["cases"]
+    assert [c["status"] for c in cases] == [200, 422]
+    assert cases[1]["problem"]["errors"][0]["field"] == "cases[1].rule"
+
+
+def test_cli_scale_up_exit_code(tmp_path):
+    path = tmp_path / "demo.json"
+    path.write_text(json.dumps(DEMO))
+    run = subprocess.run([sys.executable, "-m", "api.cli", "scale-up", str(path)], cwd=ROOT,
+                         capture_output=True, text=True, timeout=120)
+    assert run.returncode == 1 and "NOT ADEQUATE" in run.stdout  # the demo's production vessel falls short

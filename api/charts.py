@@ -1,0 +1,38 @@
+"""Charts drawn with matplotlib (Agg, no display): one quiet style shared by every figure."""
+from __future__ import annotations
+
+import io
+
+STYLE = {"font.size": 9, "axes.spines.top": False, "axes.spines.right": False, "axes.grid": True,
+         "grid.color": "#dddddd", "grid.linewidth": 0.6, "axes.edgecolor": "#555555"}
+COLOURS = ("#1f4e79", "#c0504d", "#4f8a3c", "#8064a2", "#d08a2b")
+
+
+def figure(rows: int, sharex: bool = True):
+    """A figure of ``rows`` stacked panels in the house style; returns (figure, axes array)."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    from cycler import cycler
+
+    style = dict(STYLE, **{"axes.prop_cycle": cycler(color=COLOURS)})
+    with plt.rc_context(style):
+        fig, axes = plt.subplots(rows, 1, figsize=(7.5, 2.6 * rows + 0.4), sharex=sharex, squeeze=False)
+    return fig, axes[:, 0]
+
+
+def render(fig, fmt: str) -> bytes:
+    """SVG or PNG bytes of ``fig`` (reproducible: no date in the SVG); closes the figure."""
+    import matplotlib.pyplot as plt
+
+    buffer = io.BytesIO()
+    fig.tight_layout()
+    fig.savefig(buffer, format=fmt, dpi=120, metadata={"Date": None} if fmt == "svg" else None)
+    plt.close(fig)
+    return buffer.getvalue()
+
+
+def footnote(fig) -> None:
+    fig.text(0.01, 0.003, "Screening estimate - confirm with reaction calorimetry and plant data.",
+             fontsize=7, color="#777777")
