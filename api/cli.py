@@ -28,9 +28,13 @@ def _serve(args: argparse.Namespace) -> int:
 def _post(path: str, body: dict, url: str | None) -> tuple[int, dict]:
     """POST to the service at ``url``, or to an in-process app when no URL is given."""
     if url is None:
+        import logging
+
         from . import create_app
 
-        response = create_app().test_client().post(path, json=body)
+        app = create_app()
+        logging.getLogger("coolmargin").setLevel(logging.WARNING)  # a command prints results, not start-up notes
+        response = app.test_client().post(path, json=body)
         return response.status_code, response.get_json()
     import urllib.error
     import urllib.request

@@ -10,6 +10,7 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass
+from functools import lru_cache
 
 import pint
 from marshmallow import ValidationError, fields
@@ -119,27 +120,39 @@ def parse_quantity(kind_name: str, raw) -> float:
         raise ValidationError("must be a finite number")
     if unit == "":
         return to_si(kind_name, number)
-    try:
-        quantity = UREG.Quantity(number, unit)
-    except Exception:  # pint's parser raises assorted errors (even AssertionError) on garbage text
-        raise ValidationError(f"unknown unit {unit!r}") from None
-    if kind.difference:
-        name = str(quantity.units)
-        if name in _OFFSET_UNITS:
-            quantity = UREG.Quantity(number, _OFFSET_UNITS[name])
-    if kind_name == "agitator speed" and quantity.dimensionality == UREG.Quantity(1, "1/s").dimensionality:
-        base = quantity.to_base_units()
-        turns = base.magnitude / (2 * math.pi) if "radian" in str(base.units) else base.magnitude
-        return float(turns)
-    if quantity.dimensionality != kind.dimensionality:
-        raise ValidationError(f"expected a {kind.name}, got {unit!r}")
-    try:
-        value = float(quantity.to(kind.si_unit).magnitude)
-    except pint.PintError as exc:
-        raise ValidationError(f"cannot convert {unit!r} to {kind.api_unit}: {exc}") from None
+    factor, offset = _conversion(kind_name, unit)
+    value = number * factor + offset
     if not math.isfinite(value):
         raise ValidationError("must be a finite number")
     return value
+
+
+@lru_cache(maxsize=1024)
+def _conversion(kind_name: str, unit: str) -> tuple[float, float]:
+    """(factor, offset) taking a number in ``unit`` to the kind's SI unit; pint decides, once per unit.
+
+    Every unit pint knows is affine (scale and offset), so two conversions fix it. Raises
+    ValidationError for an unknown unit or a wrong dimension (errors are not cached).
+    """
+    kind = KINDS[kind_name]
+    try:
+        units = UREG.parse_units(unit)
+    except Exception:  # pint's parser raises assorted errors (even AssertionError) on garbage text
+        raise ValidationError(f"unknown unit {unit!r}") from None
+    if kind.difference and str(units) in _OFFSET_UNITS:
+        units = UREG.parse_units(_OFFSET_UNITS[str(units)])
+    one, zero = UREG.Quantity(1.0, units), UREG.Quantity(0.0, units)
+    if kind_name == "agitator speed" and one.dimensionality == UREG.Quantity(1, "1/s").dimensionality:
+        base = one.to_base_units()
+        factor = base.magnitude / (2 * math.pi) if "radian" in str(base.units) else base.magnitude
+        return float(factor), 0.0
+    if one.dimensionality != kind.dimensionality:
+        raise ValidationError(f"expected a {kind.name}, got {unit!r}")
+    try:
+        at_zero = float(zero.to(kind.si_unit).magnitude)
+        return float(one.to(kind.si_unit).magnitude) - at_zero, at_zero
+    except Exception as exc:  # pint refuses some conversions (e.g. offset units in compound units)
+        raise ValidationError(f"cannot convert {unit!r} to {kind.api_unit}: {exc}") from None
 
 
 def _example(kind: Kind) -> str:

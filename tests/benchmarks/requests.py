@@ -62,7 +62,7 @@ SEMI_BATCH = {
     "horizon": "2 h", "output_points": 25,
 }
 
-# TODO(lead): the routes still to come; replace each None with Example(method, path, {...}).
+_HEAT = _example_file("heat_transfer_request.json")
 EXAMPLES: dict[str, Example | None] = {
     "/health": Example("GET", "/health"),
     "/v1/fluids": Example("GET", "/v1/fluids"),
@@ -75,10 +75,13 @@ EXAMPLES: dict[str, Example | None] = {
         "maximum_technical_temperature": 111,
         "decomposition": {"onset_power": 5, "onset_temperature": 190, "activation_energy": 90e3}}),
     "/v1/simulations": Example("POST", "/v1/simulations", SEMI_BATCH),
-    "/v1/scale-up": None,  # TODO(lead): the cooling-check reaction at 5 scales (0.001 / 0.1 / 1 / 6.3 / 25 m^3)
-    "/v1/geometry": None,  # TODO(lead)
-    "/v1/agitation": None,  # TODO(lead)
-    "/v1/coolant-balance": None,  # TODO(lead)
+    # The reference plus four similar targets: five scales.
+    "/v1/scale-up": Example("POST", "/v1/scale-up", _example_file("scale_up_path.json")),
+    "/v1/geometry": Example("POST", "/v1/geometry", {"vessel": _HEAT["vessel"], "fill": {"volume": "4 m^3"}}),
+    "/v1/agitation": Example("POST", "/v1/agitation",
+                             {k: _HEAT[k] for k in ("vessel", "charge", "process_temperature")}),
+    "/v1/coolant-balance": Example("POST", "/v1/coolant-balance",
+                                   {"process_temperature": 60, "coolant": _HEAT["coolant"], "ua": "4.4 kW/K"}),
 }
 
 # The load mix: routes in proportion to how often users call them (a guess, not a measurement).
