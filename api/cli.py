@@ -32,9 +32,11 @@ def _post(path: str, body: dict, url: str | None) -> tuple[int, dict]:
 
         from . import create_app
 
-        app = create_app()
-        logging.getLogger("coolmargin").setLevel(logging.WARNING)  # a command prints results, not start-up notes
-        response = app.test_client().post(path, json=body)
+        logger = logging.getLogger("coolmargin")  # a command prints results, not the service's start-up notes
+        if not logger.handlers:
+            logger.addHandler(logging.StreamHandler())
+        logger.setLevel(logging.WARNING)
+        response = create_app().test_client().post(path, json=body)
         return response.status_code, response.get_json()
     import urllib.error
     import urllib.request
