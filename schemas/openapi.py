@@ -150,12 +150,13 @@ def paths() -> dict:
                 ok["content"]["application/json"]["schema"], {"$ref": "#/components/schemas/BatchResult"}]}
         out[calc.path] = {
             "get": common | {"operationId": "get" + operation_id, "parameters": params + [_QUERY_OBJECT],
-                             "responses": {"200": _ok(calc.response, calc.media), "422": _PROBLEM}},
+                             "responses": {"200": _ok(calc.response, calc.media), "401": _PROBLEM,
+                                           "422": _PROBLEM}},
             "post": common | {"operationId": "post" + operation_id, "parameters": params,
                               "requestBody": {"required": True,
                                               "content": {"application/json": {"schema": body_schema}}},
-                              "responses": {"200": ok, "400": _PROBLEM, "413": _PROBLEM, "415": _PROBLEM,
-                                            "422": _PROBLEM}},
+                              "responses": {"200": ok, "400": _PROBLEM, "401": _PROBLEM, "413": _PROBLEM,
+                                            "415": _PROBLEM, "422": _PROBLEM}},
         }
     for library in registry.LIBRARIES:
         item = {"$ref": f"#/components/schemas/{_name(library.item)}"}
@@ -167,7 +168,7 @@ def paths() -> dict:
                 "application/json": {"schema": {"type": "object", "required": ["items"], "properties": {
                     "items": {"type": "array", "items": item}, "units": {"$ref": "#/components/schemas/Units"}}}},
                 "text/csv": {"schema": {"type": "string"}}}},
-                "422": _PROBLEM}}}
+                "401": _PROBLEM, "422": _PROBLEM}}}
     return out
 
 
