@@ -16,6 +16,9 @@ $(BIN)/.installed: pyproject.toml
 install: $(BIN)/.installed
 
 run: install
+	@echo "coolmargin: http://$(HOST):$(PORT)  (reference /docs, contract /openapi.yaml, demo examples/README.md)"
+	@echo "  demo: curl -s -X POST 'http://$(HOST):$(PORT)/v1/scale-up?format=csv' -H 'Content-Type: application/json' -d @examples/scale_up_demo.json"
+	@echo "        $(BIN)/coolmargin scale-up examples/scale_up_demo.json"
 	COOLMARGIN_BIND=$(HOST):$(PORT) $(BIN)/gunicorn --config docker/gunicorn.conf.py 'api.wsgi:app'
 
 test: install

@@ -61,13 +61,15 @@ def scale_up_chart(payload: dict, fmt: str) -> bytes:
         bottom.annotate(label, (volume, margin), textcoords="offset points", xytext=(4, 4), fontsize=7)
     bottom.axhline(factor, color="#555555", linestyle="--", linewidth=0.9, label="safety factor")
     bottom.set_xscale("log")
+    bottom.set_yscale("log")
     bottom.set_ylabel("margin (capacity / load)")
     bottom.set_xlabel("vessel volume, m^3")
     largest = payload.get("largest_adequate_volume")
     if largest is not None:
         for axis in (top, bottom):
             axis.axvline(largest, color=charts.COLOURS[3], linewidth=1.0, linestyle=":")
-        text = "adequate beyond" if payload.get("adequate_beyond_search") else "largest adequate"
+        text = ("similar vessels adequate beyond" if payload.get("adequate_beyond_search")
+                else "largest adequate similar vessel")
         top.annotate(f"{text} {largest:.3g} m^3", (largest, min(load)), fontsize=7, ha="right",
                      textcoords="offset points", xytext=(-4, 0))
     top.legend(fontsize=7, frameon=False)

@@ -95,3 +95,12 @@ def test_cli_scale_up_exit_code(tmp_path):
     run = subprocess.run([sys.executable, "-m", "api.cli", "scale-up", str(path)], cwd=ROOT,
                          capture_output=True, text=True, timeout=120)
     assert run.returncode == 1 and "NOT ADEQUATE" in run.stdout  # the demo's production vessel falls short
+
+
+def test_spreadsheet_url_in_the_demo_guide_answers_one_number(client):
+    # The GET form must give the same answer as the JSON body it flattens (one schema serves both).
+    guide = (ROOT / "examples" / "README.md").read_text()
+    url = next(line.strip() for line in guide.splitlines() if line.strip().startswith("http://127.0.0.1:8000/v1/cooling-check?"))
+    text = client.get(url.split("8000", 1)[1]).get_data(as_text=True)
+    posted = client.post("/v1/cooling-check", json=EXAMPLE).json["margin"]
+    assert float(text) == pytest.approx(posted, rel=1e-12)
