@@ -3,8 +3,10 @@ from __future__ import annotations
 
 from flask import Blueprint, Response, current_app, request
 
-from calc import dynamics, safety, steady_states
+from calc import dynamics, heat_transfer, safety, steady_states
+from calc.vessel import Charge
 from schemas.base import clean
+from schemas.heat_transfer import warning_dicts
 from schemas.safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
                             ThermalSafetyRequestSchema, ThermalSafetyResultSchema, series_rows, simulation_dict,
                             simulation_input, steady_states_dict, thermal_safety_dict)
@@ -70,7 +72,14 @@ def simulations():
                              output_points=args["output_points"],
                              maximum_output_points=int(config["MAX_SERIES_POINTS"]),
                              wall_time=float(config["SIMULATION_WALL_TIME"]))
-    result = simulation_dict(dynamics.simulate(simulation_input(args, budget)))
+    duty = None
+    if args["vessel"] is not None:
+        given = args["vessel"]
+        contents = Charge(given["contents"], mass=args["charge"].mass)
+        duty = heat_transfer.jacket_duty(given["vessel"], contents, given["coolant"], args["charge"].temperature)
+    result = simulation_dict(dynamics.simulate(simulation_input(args, budget, duty)))
+    if duty is not None:
+        result["warnings"] = warning_dicts(duty.warnings) + result["warnings"]
     if not request.args.get("field") and requested_format() == "csv":
         rows, units = series_rows(clean(_simulation_result.dump(result)))
         return Response(to_csv(rows, units), mimetype="text/csv")

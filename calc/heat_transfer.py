@@ -281,3 +281,36 @@ def coolant_balance_at_mean(coolant: Coolant, process_temperature: float, ua: fl
             break
         mean = new_mean
     return balance, mass_flow, heat_capacity
+
+
+@dataclass(frozen=True)
+class JacketDuty:
+    """The vessel's jacket and coils reduced to what a dynamic balance needs, at one state."""
+
+    ua: float  # W/K, jacket and coils together
+    coolant_flow: float  # kg/s, the jacket stream (coils follow with their own flows)
+    coolant_heat_capacity: float  # J/(kg K), at the coolant's solved mean temperature
+    inlet_temperature: float  # K
+    shaft_power: float  # W, the agitator's power at this state
+    warnings: Warnings = field(default_factory=Warnings)
+
+
+def jacket_duty(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> JacketDuty:
+    """UA, coolant flow and c_p, and agitator power of the vessel at ``process_temperature``.
+
+    The dynamic balances hold UA constant over a run: films change with the contents' temperature
+    and viscosity, so this is the vessel's UA at the state given (normally the start of the run).
+    """
+    result = heat_transfer(vessel, charge, coolant, process_temperature)
+    warnings = Warnings(result.warnings)
+    warnings.add(CalcWarning("ua_held_constant",
+                             f"UA = {result.ua:.4g} W/K from the heat-transfer network at "
+                             f"{process_temperature - 273.15:.2f} degC is held constant over the simulation"))
+    main = result.stream("jacket") or (result.streams[0] if result.streams else None)
+    if main is None:
+        return JacketDuty(0.0, coolant.mass_flow(), coolant.liquid.at(coolant.inlet_temperature).heat_capacity,
+                          coolant.inlet_temperature, result.agitation.power, warnings)
+    # One equivalent single-pass stream with the whole UA: the coils' flows join the jacket's.
+    flow = sum(stream.mass_flow for stream in result.streams)
+    return JacketDuty(result.ua, flow, main.balance.heat_capacity_rate / main.mass_flow,
+                      coolant.inlet_temperature, result.agitation.power, warnings)

@@ -16,7 +16,7 @@ from calc.properties import FLUIDS, STANDARD_PRESSURE
 from .base import StrictSchema, finite_float
 from .heat_transfer import WarningSchema, warning_dicts
 from .units import Quantity
-from .vessel import ABSOLUTE_ZERO_C
+from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, _LiquidFields
 
 MAX_SPECIES = 20
 MAX_REACTIONS = 20
@@ -257,6 +257,26 @@ class LimitSchema(StrictSchema):
         return dynamics.TemperatureLimit(**data)
 
 
+class ContentsSchema(_LiquidFields):
+    """The contents as a liquid, for the vessel's film coefficients (properties at the charge temperature)."""
+
+    @post_load
+    def _build(self, data, **kwargs):
+        return self.liquid(data, "vessel.contents")
+
+
+class SimulationVesselSchema(StrictSchema):
+    vessel = fields.Nested(VesselSchema, required=True)
+    contents = fields.Nested(ContentsSchema, required=True)
+    coolant = fields.Nested(CoolantSchema, required=True)
+
+    @validates_schema
+    def _agitator(self, data, **kwargs):
+        vessel = data.get("vessel")
+        if vessel is not None and vessel.agitator is None:
+            raise ValidationError({"vessel": {"agitator": ["required for the vessel's films and shaft power"]}})
+
+
 class SimulationRequestSchema(StrictSchema):
     mode = fields.String(required=True, validate=validate.OneOf(["batch", "semi_batch", "continuous"]))
     species = fields.List(fields.Nested(SpeciesSchema), required=True,
@@ -266,11 +286,16 @@ class SimulationRequestSchema(StrictSchema):
     charge = fields.Nested(SimulationChargeSchema, required=True)
     feed = fields.Nested(FeedSchema, load_default=None)
     jacket = fields.Nested(SimulationJacketSchema, load_default=None)
+    vessel = fields.Nested(SimulationVesselSchema, load_default=None,
+                           metadata={"description": "instead of jacket: the vessel, its contents' properties and "
+                                                    "coolant; UA and shaft power come from the heat-transfer core "
+                                                    "at the charge temperature"})
     controller = fields.Nested(ControllerSchema, load_default=None)
     cooling_failure = fields.Nested(CoolingFailureSchema, load_default=None)
     limits = fields.List(fields.Nested(LimitSchema), load_default=list,
                          validate=validate.Length(max=MAX_LIMITS))
-    shaft_power = _non_negative("power", load_default=0.0)
+    shaft_power = _non_negative("power", load_default=None,
+                                description="agitator power; default the vessel's agitator, or 0 without a vessel")
     mixture_heat_capacity = _positive("heat capacity", load_default=None,
                                       description="replaces every species' and the balance's heat capacity")
     enthalpy_reference_temperature = _temperature(load_default=298.15)
@@ -279,6 +304,11 @@ class SimulationRequestSchema(StrictSchema):
     horizon = _positive("time", required=True, description="simulated time")
     output_points = fields.Integer(load_default=201, validate=validate.Range(min=2),
                                    metadata={"description": "points in the returned series"})
+
+    @validates_schema
+    def _one_jacket(self, data, **kwargs):
+        if data.get("jacket") is not None and data.get("vessel") is not None:
+            raise ValidationError("give either jacket (UA given) or vessel (UA computed), not both", "vessel")
 
     @post_load
     def _make(self, data, **kwargs):
@@ -290,9 +320,19 @@ class SimulationRequestSchema(StrictSchema):
         return data
 
 
-def simulation_input(args: dict, budget: dynamics.Budget) -> dynamics.SimulationInput:
+def simulation_input(args: dict, budget: dynamics.Budget, vessel_duty=None) -> dynamics.SimulationInput:
+    """SimulationInput from the loaded request; ``vessel_duty`` (a calc.heat_transfer.JacketDuty) stands
+    in for a given jacket and, unless given, the shaft power."""
     args = dict(args)
     args.pop("output_points")
+    args.pop("vessel")
+    if vessel_duty is not None:
+        args["jacket"] = dynamics.Jacket(vessel_duty.ua, vessel_duty.coolant_flow, vessel_duty.coolant_heat_capacity,
+                                         vessel_duty.inlet_temperature)
+        if args["shaft_power"] is None:
+            args["shaft_power"] = vessel_duty.shaft_power
+    if args["shaft_power"] is None:
+        args["shaft_power"] = 0.0
     return dynamics.SimulationInput(budget=budget, **args)
 
 

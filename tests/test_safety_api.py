@@ -105,3 +105,41 @@ def test_cstr_without_reaction_heat_matches_closed_forms(client):
     assert state["stable"] is True
     png = client.post("/v1/cstr-steady-states?format=png", json=case)
     assert png.mimetype == "image/png" and png.get_data()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_simulation_with_the_vessel_uses_the_heat_transfer_core(client):
+    # Consistency (one network serves both): a run given the vessel must equal a run given the UA,
+    # coolant flow, c_p and agitator power that /v1/heat-transfer reports for the same state.
+    import json
+    from pathlib import Path
+
+    production = json.loads((Path(__file__).resolve().parents[1] / "examples" /
+                             "cooling_check_production.json").read_text())
+    run = {"mode": "semi_batch",
+           "species": [{"name": "A", "molar_mass": 0.1, "heat_capacity": 1800},
+                       {"name": "B", "molar_mass": 0.14, "heat_capacity": 1700},
+                       {"name": "C", "molar_mass": 0.25, "heat_capacity": 1750}],
+           "reactions": [{"stoichiometry": {"A": -1, "B": -1, "C": 1}, "orders": {"A": 1, "B": 1},
+                          "rate_constant": 2e-4, "reference_temperature": 45, "activation_energy": 65e3,
+                          "enthalpy": -165e3}],
+           "charge": {"mass": 3500, "temperature": 45, "composition": {"A": 0.8}, "density": 860,
+                      "balance_heat_capacity": 1750},
+           "feed": {"temperature": 20, "composition": {"B": 6.9}, "mass_flow": "420 kg/h", "start": 0, "end": "1 h"},
+           "horizon": "2 h", "output_points": 11}
+    with_vessel = dict(run, vessel={"vessel": production["vessel"], "contents": {"fluid": "toluene"},
+                                    "coolant": production["coolant"]})
+    first = client.post("/v1/simulations", json=with_vessel).json
+    assert any(w["code"] == "ua_held_constant" for w in first["warnings"])
+    network = client.post("/v1/heat-transfer", json={
+        "vessel": production["vessel"], "process_temperature": 45, "coolant": production["coolant"],
+        "charge": {"fluid": "toluene", "mass": 3500}}).json
+    stream = network["streams"][0]
+    heat_capacity = stream["duty"] / (stream["mass_flow"] * (stream["outlet_temperature"] - stream["inlet_temperature"]))
+    with_jacket = dict(run, shaft_power=network["agitation"]["power"],
+                       jacket={"ua": network["ua"], "coolant_flow": stream["mass_flow"],
+                               "coolant_heat_capacity": heat_capacity, "inlet_temperature": 5})
+    second = client.post("/v1/simulations", json=with_jacket).json
+    assert first["summary"]["maximum_temperature"] == pytest.approx(second["summary"]["maximum_temperature"], rel=1e-6)
+    assert first["summary"]["peak_jacket_duty"] == pytest.approx(second["summary"]["peak_jacket_duty"], rel=1e-5)
+    assert first["summary"]["peak_jacket_duty"] > 0
+
