@@ -213,7 +213,7 @@ def _maximum_inlet_temperature(vessel: Vessel, charge: Charge, coolant: Coolant,
     driving = process_temperature - given
     estimate = process_temperature - driving * target / capacity if capacity > 0.0 else low
     inlet, value = _solve(residual, estimate, 0.01 * driving, low, high, increasing=False,
-                          what="maximum coolant inlet temperature", xtol=1e-9, rtol=1e-13)
+                          what="maximum coolant inlet temperature", xtol=1e-9, rtol=1e-11)
     if inlet is None and value >= 0.0:
         return Limit(high, True, "every inlet temperature up to the process temperature (or the coolant's "
                                  "boiling point) removes the load with the safety factor", (value + 1.0) * target)
@@ -251,16 +251,29 @@ def _required_flow(vessel: Vessel, charge: Charge, coolant: Coolant, process_tem
     given = coolant.mass_flow()
     capacity = result.duty
 
+    results: dict[float, HeatTransferResult] = {}
+
     def residual(log_flow: float) -> float:
         if log_flow == math.log(given):
             return capacity / target - 1.0
-        flowing = coolant.with_mass_flow(math.exp(log_flow))
-        return _capacity(vessel, charge, flowing, process_temperature) / target - 1.0
+        if log_flow not in results:
+            results[log_flow] = heat_transfer(vessel, charge, coolant.with_mass_flow(math.exp(log_flow)),
+                                              process_temperature)
+        return results[log_flow].duty / target - 1.0
 
     estimate = math.log(_flow_estimate(result, target)) if result.streams else math.log(given)
     high = math.log(given * FLOW_SEARCH_CAP)
-    log_flow, value = _solve(residual, estimate, math.log(1.2), math.log(given) - 30.0 * math.log(10.0), high,
-                             increasing=True, what="required coolant flow", xtol=1e-10, rtol=1e-13)
+    # U A rises with the flow, so the fixed-U A estimate is off; one more closed-form estimate from the
+    # network solved at the first one shows how far, and sets the first step of the search.
+    step = math.log(1.2)
+    if result.streams and estimate < high:
+        first = residual(estimate)
+        if first != 0.0 and results.get(estimate) is not None and results[estimate].streams:
+            again = math.log(_flow_estimate(results[estimate], target))
+            step = min(max(1.5 * abs(again - estimate), math.log(1.01)), math.log(4.0))
+    low = math.log(given) - 30.0 * math.log(10.0)
+    log_flow, value = _solve(residual, estimate, step, low, high,
+                             increasing=True, what="required coolant flow", xtol=1e-10, rtol=1e-11)
     if log_flow is None and value < 0.0:
         return Limit(None, False, "not reachable at any flow: the area and process film limit the capacity "
                                   f"(shown at {FLOW_SEARCH_CAP:g} times the given flow)", (value + 1.0) * target)
