@@ -9,7 +9,7 @@ from .base import StrictSchema, finite_float
 from .heat_transfer import (HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema,
                             heat_transfer_dict, warning_dicts)
 from .units import Quantity
-from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema
+from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, require_agitator
 
 DEFAULT_SAFETY_FACTOR = 1.3
 SCALE_RULES = sorted(agitation.SCALE_UP_RULES) + ["as_given"]
@@ -99,9 +99,7 @@ class ScaleUpRequestSchema(StrictSchema):
 
     @validates_schema
     def _agitator(self, data, **kwargs):
-        vessel = data.get("reference")
-        if vessel is not None and vessel.agitator is None:
-            raise ValidationError({"reference": {"agitator": ["required for this calculation"]}})
+        require_agitator(data.get("reference"), "reference")
 
 
 # ---------------------------------------------------------------- results

@@ -5,7 +5,7 @@ from marshmallow import ValidationError, fields, post_load, validates_schema
 
 from .base import StrictSchema, finite_float
 from .units import Quantity
-from .vessel import ABSOLUTE_ZERO_C, ChargeSchema, CoolantSchema, VesselSchema
+from .vessel import ABSOLUTE_ZERO_C, ChargeSchema, CoolantSchema, VesselSchema, require_agitator
 
 CAUTIONS = (
     "Screening estimate from published correlations that scatter by about +-25-30 %.",
@@ -52,9 +52,7 @@ class _AgitatedVesselSchema(StrictSchema):
 
     @validates_schema
     def _agitator(self, data, **kwargs):
-        vessel = data.get("vessel")
-        if vessel is not None and vessel.agitator is None:
-            raise ValidationError({"vessel": {"agitator": ["required for this calculation"]}})
+        require_agitator(data.get("vessel"), "vessel")
 
 
 class AgitationRequestSchema(_AgitatedVesselSchema):

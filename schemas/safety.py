@@ -16,7 +16,7 @@ from calc.properties import FLUIDS, STANDARD_PRESSURE
 from .base import StrictSchema, finite_float
 from .heat_transfer import WarningSchema, warning_dicts
 from .units import Quantity
-from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, _LiquidFields
+from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, _LiquidFields, require_agitator
 
 MAX_SPECIES = 20
 MAX_REACTIONS = 20
@@ -272,9 +272,7 @@ class SimulationVesselSchema(StrictSchema):
 
     @validates_schema
     def _agitator(self, data, **kwargs):
-        vessel = data.get("vessel")
-        if vessel is not None and vessel.agitator is None:
-            raise ValidationError({"vessel": {"agitator": ["required for the vessel's films and shaft power"]}})
+        require_agitator(data.get("vessel"), "vessel", "required for the vessel's films and shaft power")
 
 
 class SimulationRequestSchema(StrictSchema):

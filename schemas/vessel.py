@@ -123,6 +123,12 @@ class VesselSchema(StrictSchema):
         )
 
 
+def require_agitator(vessel: Vessel | None, field: str, why: str = "required for this calculation") -> None:
+    """The agitator is optional for geometry only; calculations with films or power need it."""
+    if vessel is not None and vessel.agitator is None:
+        raise ValidationError({field: {"agitator": [why]}})
+
+
 class _LiquidFields(StrictSchema):
     """A liquid: a library ``fluid`` (+ ``mass_fraction``), or its properties given explicitly."""
 
