@@ -110,9 +110,47 @@ def main(argv: list[str] | None = None) -> int:
             continue
         median, calls = in_process_median(example, args.seconds)
         print(f"{route:<22}{1000 * median:>12.2f}{calls:>10}")
+    print("\nIn-process median of the calculation alone (no HTTP, no schemas)")
+    for label, seconds in calculation_medians():
+        print(f"{label:<48}{1000 * seconds:>10.2f} ms")
     if misses:
         print(f"\n{misses} route(s) below the throughput target")
     return 0
+
+
+def calculation_medians(repeats: int = 21) -> list[tuple[str, float]]:
+    """Median times of the calc functions behind the main routes, with their inputs parsed once."""
+    from api import create_app
+    from calc import cooling, dynamics, scaleup
+    from schemas.cooling import CoolingCheckRequestSchema, ScaleUpRequestSchema
+    from schemas.safety import SimulationRequestSchema, simulation_input
+
+    from benchmarks.requests import EXAMPLES, SIX_HOUR_FAILURE
+
+    with create_app().app_context():
+        check = CoolingCheckRequestSchema().load(EXAMPLES["/v1/cooling-check"].body)
+        path = ScaleUpRequestSchema().load(EXAMPLES["/v1/scale-up"].body)
+        run = SimulationRequestSchema().load(SIX_HOUR_FAILURE)
+    cases = [
+        ("cooling check (network + 3 solved limits)", lambda: cooling.cooling_check(
+            check["vessel"], check["charge"], check["coolant"], check["process_temperature"],
+            check["heat_release"], check["safety_factor"])),
+        (f"scale-up, {1 + len(path['targets'])} scales", lambda: scaleup.scale_up(
+            path["reference"], path["targets"], path["rule"], path["charge"], path["coolant"],
+            path["process_temperature"], path["heat_release"], path["safety_factor"], path["coolant_flow_rule"])),
+        ("6 h semi-batch, cooling fails at 3 h (target < 100)", lambda: dynamics.simulate(
+            simulation_input(run, dynamics.Budget(output_points=run["output_points"])))),
+    ]
+    out = []
+    for label, call in cases:
+        call()
+        times = []
+        for _ in range(repeats):
+            start = time.perf_counter()
+            call()
+            times.append(time.perf_counter() - start)
+        out.append((label, statistics.median(times)))
+    return out
 
 
 if __name__ == "__main__":

@@ -119,3 +119,18 @@ def load_mix() -> list[Example]:
         if example is not None:
             mix.extend([example] * weight)
     return mix
+
+
+# A 6 h semi-batch with the cooling failing at 3 h (invented demo numbers): the dynamics benchmark.
+SIX_HOUR_FAILURE = dict(
+    SEMI_BATCH,
+    charge={"mass": 4000, "temperature": 60, "composition": {"B": 1.2}, "density": 950, "balance_heat_capacity": 1900},
+    feed={"temperature": 25, "composition": {"A": 2.6}, "mass_flow": "300 kg/h", "start": 0, "end": "6 h"},
+    jacket={"ua": 6000, "coolant_flow": 5.0, "coolant_heat_capacity": 4180, "inlet_temperature": 55},
+    cooling_failure={"time": "3 h"}, shaft_power=2500, horizon="8 h", output_points=201,
+    species=[{"name": "A", "molar_mass": 0.12, "heat_capacity": 1900},
+             {"name": "B", "molar_mass": 0.09, "heat_capacity": 2100},
+             {"name": "C", "molar_mass": 0.21, "heat_capacity": 1800}],
+    reactions=[{"stoichiometry": {"A": -1, "B": -1, "C": 1}, "orders": {"A": 1, "B": 1}, "rate_constant": 3e-4,
+                "reference_temperature": 60, "activation_energy": 70e3, "enthalpy": -160e3}],
+)
