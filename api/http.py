@@ -204,7 +204,7 @@ def list_response(items: list[dict], schema: Schema) -> Response:
 
 def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict], result_schema: Schema) -> Response:
     """Answer ``{"cases": [...]}``: each case its result or its own problem; one bad case fails no other."""
-    from .errors import problem_body, problem_for
+    from .errors import log, problem_body, problem_for
 
     limit = current_app.config["MAX_BATCH_CASES"]
     if not isinstance(cases, list) or not cases:
@@ -220,7 +220,7 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
         except Exception as exc:  # each case reports its own problem
             status, detail, errors, title = problem_for(exc)
             if status >= 500:
-                current_app.logger.exception("batch case %d failed", index)
+                log.exception("batch case %d failed", index)  # the request id rides on the log record
             for error in errors:
                 error["field"] = f"cases[{index}].{error['field']}"
             results.append({"status": status, "problem": problem_body(status, detail, errors, title)})

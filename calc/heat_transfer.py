@@ -116,7 +116,21 @@ class _SurfaceModel:
     service_film: Callable[[LiquidProperties, float, float], object]  # props, mu_wall, rho_wall -> FilmResult
 
 
-def _process_viscosity(charge: Charge, temperature: float) -> float:
+def _process_viscosity(charge: Charge, temperature: float, warnings: Warnings) -> float:
+    """Viscosity of the contents at the wall; a wall colder than their freezing point is clamped and flagged.
+
+    A process-side wall below the contents' freezing point means a crust can freeze onto the wall,
+    which insulates it: the film coefficient computed here then overstates the heat transfer.
+    """
+    liquid_range = getattr(charge.liquid, "liquid_range", None)
+    if liquid_range is not None:
+        low, high = liquid_range()
+        if temperature < low:
+            warnings.add(CalcWarning(
+                "wall_below_freezing_point",
+                f"the process-side wall ({temperature - 273.15:.1f} degC) is colder than the contents' freezing "
+                f"point ({low - 273.15:.1f} degC): product may freeze onto the wall and cut the heat transfer"))
+        temperature = min(max(temperature, low + 1e-3), high - 1e-2)
     return charge.liquid.at(temperature, field="process_temperature").viscosity
 
 
@@ -148,7 +162,7 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
         state = _coolant_state(coolant, mean)
         surfaces = []
         for model, (process_wall, service_wall) in zip(models, walls):
-            process_film = model.process_film(_process_viscosity(charge, process_wall))
+            process_film = model.process_film(_process_viscosity(charge, process_wall, warnings))
             service_wall_state = _coolant_state(coolant, service_wall)
             service_film = model.service_film(state, service_wall_state.viscosity, service_wall_state.density)
             overall = wall.overall_coefficient(process_film.h, service_film.h, model.wall, fouling,

@@ -1,5 +1,6 @@
 """The cooling-check resource end to end: verdict, batch, CSV and the command-line client's exit codes."""
 import json
+import logging
 import subprocess
 import sys
 
@@ -104,3 +105,31 @@ def test_spreadsheet_url_in_the_demo_guide_answers_one_number(client):
     text = client.get(url.split("8000", 1)[1]).get_data(as_text=True)
     posted = client.post("/v1/cooling-check", json=EXAMPLE).json["margin"]
     assert float(text) == pytest.approx(posted, rel=1e-12)
+
+
+def test_internal_error_in_one_batch_case_is_that_case_only(client, monkeypatch, caplog):
+    # A fault inside one case (here an injected bug) answers that case with a 500 problem carrying the
+    # request id and is logged; the other cases are computed as usual.
+    from calc import cooling
+
+    real = cooling.cooling_check
+
+    def flaky(vessel, *args, **kwargs):
+        if vessel.name == "broken":
+            raise RuntimeError("injected fault")
+        return real(vessel, *args, **kwargs)
+
+    monkeypatch.setattr(cooling, "cooling_check", flaky)
+    logger = logging.getLogger("coolmargin")  # the service logger does not propagate to caplog's root
+    logger.addHandler(caplog.handler)
+    broken = dict(EXAMPLE, vessel=dict(EXAMPLE["vessel"], name="broken"))
+    response = client.post("/v1/cooling-check", json={"cases": [broken, EXAMPLE]},
+                           headers={"X-Request-ID": "batch-fault-1"})
+    assert response.status_code == 200
+    first, second = response.json["cases"]
+    assert first["status"] == 500 and first["problem"]["instance"] == "urn:request:batch-fault-1"
+    assert "injected fault" not in json.dumps(first)  # no internals leak to the caller
+    assert second["status"] == 200 and second["result"]["adequate"] is True
+    logger.removeHandler(caplog.handler)
+    assert any("batch case 0 failed" in record.getMessage() and record.request_id == "batch-fault-1"
+               for record in caplog.records)
