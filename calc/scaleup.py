@@ -171,6 +171,8 @@ def _speed_for_power_per_volume(vessel: Vessel, props: LiquidProperties, volume:
 def _given(reference: _Reference, vessel: Vessel, index: int, rule: str, coolant_rule: str, warnings: Warnings):
     """An explicit target vessel: its charge, coolant, heat release and agitator speed under ``rule``."""
     field_name = f"targets.{index}"
+    if vessel.agitator is None:
+        raise InputError(f"{field_name}.vessel.agitator", "an explicit target vessel needs its agitator")
     vessel.agitator.validate()
     nominal = geometry.volume_at_level(vessel.shape, geometry.brim_height(vessel.shape))
     ratio = nominal / reference.volume

@@ -75,6 +75,7 @@ class TargetSchema(StrictSchema):
             raise ValidationError("give exactly one of volume and vessel", "volume")
         if data.get("coolant") is not None and data.get("vessel") is None:
             raise ValidationError("a coolant of its own needs an explicit vessel", "coolant")
+        require_agitator(data.get("vessel"), "vessel")
 
     @post_load
     def _build(self, data, **kwargs):

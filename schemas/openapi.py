@@ -4,7 +4,9 @@
 """
 from __future__ import annotations
 
+import json
 import sys
+from pathlib import Path
 
 import yaml
 from marshmallow import Schema, fields, validate
@@ -115,6 +117,7 @@ def roots() -> tuple[list[type], list[type]]:
 
 
 _PROBLEM = {"$ref": "#/components/responses/Problem"}
+EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 _QUERY_OBJECT = {
     "name": "query", "in": "query", "style": "form", "explode": True,
     "description": "The request object's fields as dotted query parameters, e.g. vessel.diameter=2.2",
@@ -148,13 +151,16 @@ def paths() -> dict:
             body_schema = {"anyOf": [body_schema, {"$ref": f"#/components/schemas/{_name(calc.request)}Batch"}]}
             ok["content"]["application/json"]["schema"] = {"anyOf": [
                 ok["content"]["application/json"]["schema"], {"$ref": "#/components/schemas/BatchResult"}]}
+        body_media: dict = {"schema": body_schema}
+        if calc.example is not None:
+            body_media["examples"] = {"demo": {"summary": "the demo scenario (examples/)",
+                                               "value": json.loads((EXAMPLES / calc.example).read_text())}}
         out[calc.path] = {
             "get": common | {"operationId": "get" + operation_id, "parameters": params + [_QUERY_OBJECT],
                              "responses": {"200": _ok(calc.response, calc.media), "401": _PROBLEM,
                                            "422": _PROBLEM}},
             "post": common | {"operationId": "post" + operation_id, "parameters": params,
-                              "requestBody": {"required": True,
-                                              "content": {"application/json": {"schema": body_schema}}},
+                              "requestBody": {"required": True, "content": {"application/json": body_media}},
                               "responses": {"200": ok, "400": _PROBLEM, "401": _PROBLEM, "413": _PROBLEM,
                                             "415": _PROBLEM, "422": _PROBLEM}},
         }

@@ -27,6 +27,7 @@ class Calculation:
     response: type
     media: tuple = ("text/csv", "text/plain")  # besides application/json
     batch: bool = False
+    example: str | None = None  # a request file in examples/, shown in the contract
 
 
 @dataclass(frozen=True)
@@ -49,7 +50,7 @@ CALCULATIONS = [
                 "Process- and coolant-side film coefficients (wall viscosity at the solved wall temperature, "
                 "coolant properties at its solved mean temperature), wall and fouling resistances with the "
                 "controlling one named, U on the inside area and UA of jacket and coils.",
-                HeatTransferRequestSchema, HeatTransferResultSchema),
+                HeatTransferRequestSchema, HeatTransferResultSchema, example="heat_transfer_request.json"),
     Calculation("/v1/coolant-balance", "heat transfer", "Coolant outlet temperature, duty and LMTD for a given UA",
                 "Single-pass coolant against well-mixed contents: T_out = T_r - (T_r - T_in) exp(-UA / m c_p), "
                 "with c_p at the mean coolant temperature.", CoolantBalanceRequestSchema, CoolantBalanceResultSchema),
@@ -60,7 +61,8 @@ CALCULATIONS = [
                 "warmest coolant inlet and the coolant flow that restore the safety factor. POST also takes "
                 "{\"cases\": [...]}. A screening estimate: confirm with reaction calorimetry and plant data; "
                 "local codes and a licensed engineer's review govern.",
-                CoolingCheckRequestSchema, CoolingCheckResultSchema, batch=True),
+                CoolingCheckRequestSchema, CoolingCheckResultSchema, batch=True,
+                example="cooling_check_production.json"),
     Calculation("/v1/scale-up", "cooling check", "The cooling check at every scale of a scale-up path",
                 "From a reference vessel to explicit target vessels or target volumes (geometrically similar "
                 "vessels at the same fill fraction) under an agitation rule: per scale the generated geometry and "
@@ -69,14 +71,15 @@ CALCULATIONS = [
                 "where the controlling resistance switches. format=csv gives one row per scale; format=svg or "
                 "png a chart. POST also takes {\"cases\": [...]}.",
                 ScaleUpRequestSchema, ScaleUpResultSchema, media=("text/csv", "text/plain", "image/svg+xml",
-                                                                  "image/png"), batch=True),
+                                                                  "image/png"), batch=True,
+                example="scale_up_demo.json"),
     Calculation("/v1/thermal-safety", "thermal safety", "Adiabatic rise, MTSR, T_D24, TMR_ad and criticality class",
                 "Cooling-failure scenario: MTSR = T_p + X_ac dT_ad (Stoessel 1993); T_D24 and the adiabatic time to "
                 "maximum rate at the MTSR from zero-order decomposition kinetics (Townsend & Tou 1980); MTT given or "
                 "the boiling point of the contents; criticality class 1-5 from the order of T_p, MTSR, MTT and "
                 "T_D24, with the reasoning. A screening estimate: confirm with reaction and adiabatic calorimetry; "
                 "local codes and a licensed engineer's review govern.",
-                ThermalSafetyRequestSchema, ThermalSafetyResultSchema),
+                ThermalSafetyRequestSchema, ThermalSafetyResultSchema, example="thermal_safety_production.json"),
     Calculation("/v1/simulations", "thermal safety", "Dynamic batch, semi-batch or continuous run with the jacket",
                 "Mole and energy balances of a jacketed stirred tank integrated with a stiff solver: temperatures, "
                 "heat release, jacket duty, conversion and accumulation over time, optional PI control of the "

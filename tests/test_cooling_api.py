@@ -133,3 +133,10 @@ def test_internal_error_in_one_batch_case_is_that_case_only(client, monkeypatch,
     logger.removeHandler(caplog.handler)
     assert any("batch case 0 failed" in record.getMessage() and record.request_id == "batch-fault-1"
                for record in caplog.records)
+
+
+def test_explicit_target_without_agitator_is_422_naming_it(client):
+    # Found by contract fuzzing once the demo became an example in the contract: it was a 500.
+    target = {"vessel": {k: v for k, v in DEMO["targets"][1]["vessel"].items() if k != "agitator"}}
+    body = client.post("/v1/scale-up", json=dict(DEMO, targets=[target])).json
+    assert body["status"] == 422 and body["errors"][0]["field"] == "targets[0].vessel.agitator"
