@@ -96,7 +96,8 @@ def outlet_concentration(feed_concentration: float, tau_k, order: float):
 
     Notes
     -----
-    n = 1: c = c_A0/(1 + tau k); otherwise the unique root in [0, c_A0] by Brent's method.
+    n = 1: c = c_A0/(1 + tau k); n = 0: c = max(c_A0 - tau k, 0); otherwise the unique root in
+    [0, c_A0] by Brent's method.
 
     Examples
     --------
@@ -104,6 +105,8 @@ def outlet_concentration(feed_concentration: float, tau_k, order: float):
     250.0
     >>> round(float(outlet_concentration(1000.0, 0.003, 2.0)), 6)  # (-1 + sqrt(1 + 12)) / 0.006
     434.258546
+    >>> float(outlet_concentration(1000.0, 1500.0, 0.0))  # zero order: complete conversion
+    0.0
 
     References
     ----------
@@ -112,6 +115,8 @@ def outlet_concentration(feed_concentration: float, tau_k, order: float):
     tau_k = np.asarray(tau_k, dtype=float)
     if order == 1.0:
         return feed_concentration / (1.0 + tau_k)
+    if order == 0.0:  # zero order runs to completion once tau k reaches the feed concentration
+        return np.maximum(feed_concentration - tau_k, 0.0)[()]
     c0 = feed_concentration
     flat = [brentq(lambda c, a=a: c0 - c - a * c ** order, 0.0, c0, xtol=1e-12 * c0, rtol=1e-14)
             if a > 0 else c0 for a in tau_k.ravel()]

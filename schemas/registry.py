@@ -41,11 +41,11 @@ class Library:
 CALCULATIONS = [
     Calculation("/v1/geometry", "heat transfer", "Liquid level, wetted, jacketed and coil areas of a filled vessel",
                 "Volume from level or level from volume (coils displace liquid), wetted and jacketed inside "
-                "area, submerged coil area and area per volume.", GeometryRequestSchema, GeometryResultSchema),
+                "area, submerged coil area and area per volume.", GeometryRequestSchema, GeometryResultSchema, example="geometry_request.json"),
     Calculation("/v1/agitation", "heat transfer", "Reynolds number, power number and power of the agitator",
                 "Impeller Reynolds number, power number across laminar, transitional and turbulent flow, "
                 "shaft power, power per volume, tip speed and Froude number.",
-                AgitationRequestSchema, AgitationResultSchema),
+                AgitationRequestSchema, AgitationResultSchema, example="agitation_request.json"),
     Calculation("/v1/heat-transfer", "heat transfer", "Film coefficients, resistances, overall U and UA",
                 "Process- and coolant-side film coefficients (wall viscosity at the solved wall temperature, "
                 "coolant properties at its solved mean temperature), wall and fouling resistances with the "
@@ -53,7 +53,8 @@ CALCULATIONS = [
                 HeatTransferRequestSchema, HeatTransferResultSchema, example="heat_transfer_request.json"),
     Calculation("/v1/coolant-balance", "heat transfer", "Coolant outlet temperature, duty and LMTD for a given UA",
                 "Single-pass coolant against well-mixed contents: T_out = T_r - (T_r - T_in) exp(-UA / m c_p), "
-                "with c_p at the mean coolant temperature.", CoolantBalanceRequestSchema, CoolantBalanceResultSchema),
+                "with c_p at the mean coolant temperature.", CoolantBalanceRequestSchema, CoolantBalanceResultSchema,
+                example="coolant_balance_request.json"),
     Calculation("/v1/cooling-check", "cooling check", "Can this vessel remove this reaction's heat, with margin?",
                 "Heat load (reaction + agitator - sensible heat of cold feed) against the cooling capacity at the "
                 "process temperature; margin = capacity / load; adequate when margin >= safety_factor (default "
@@ -87,13 +88,15 @@ CALCULATIONS = [
                 "point; format=svg or png draws the run. A screening estimate: confirm with reaction calorimetry "
                 "and plant data; local codes and a licensed engineer's review govern.",
                 SimulationRequestSchema, SimulationResultSchema, media=("text/csv", "text/plain", "image/svg+xml",
-                                                                        "image/png")),
+                                                                        "image/png"),
+                example="simulation_production_failure.json"),
     Calculation("/v1/cstr-steady-states", "thermal safety", "Steady states of a cooled CSTR and their stability",
                 "Every intersection of the heat-generation and heat-removal curves (Van Heerden 1953), with "
                 "slope and eigenvalue stability (Aris & Amundson 1958). CSV gives one row per state; format=svg "
                 "or png draws both curves with the states marked. A screening estimate: confirm with reaction "
                 "calorimetry and plant data; local codes and a licensed engineer's review govern.",
-                CSTRRequestSchema, CSTRResultSchema, media=("text/csv", "text/plain", "image/svg+xml", "image/png")),
+                CSTRRequestSchema, CSTRResultSchema, media=("text/csv", "text/plain", "image/svg+xml", "image/png"),
+                example="cstr_steady_states.json"),
 ]
 LIBRARIES = [
     Library("/v1/impellers", "libraries", "The impeller library with power numbers, film constants and sources",

@@ -107,6 +107,18 @@ def test_cstr_without_reaction_heat_matches_closed_forms(client):
     assert png.mimetype == "image/png" and png.get_data()[:8] == b"\x89PNG\r\n\x1a\n"
 
 
+@pytest.mark.parametrize("rate_constant, conversion", [(0.4, 0.4), (1.5, 1.0)])
+def test_zero_order_cstr_conversion_is_k_tau_over_c0_capped_at_one(client, rate_constant, conversion):
+    # Zero-order CSTR mole balance (Fogler 2016, ch. 5, from memory): c0 - c = k tau while c > 0,
+    # so X = min(k tau / c0, 1). Complete conversion used to be a 500 (found by contract fuzzing).
+    case = {"volume": 2, "flow": 0.002, "feed_concentration": 1000, "feed_temperature": 30, "density": 1000,
+            "heat_capacity": 4000, "rate_constant": rate_constant, "reference_temperature": 50,
+            "activation_energy": 0, "reaction_enthalpy": 0, "ua": 8000, "coolant_temperature": 20,
+            "order": 0, "grid_points": 201}
+    (state,) = client.post("/v1/cstr-steady-states", json=case).json["states"]
+    assert state["conversion"] == pytest.approx(conversion, rel=1e-9)
+
+
 def test_simulation_with_the_vessel_uses_the_heat_transfer_core(client):
     # Consistency (one network serves both): a run given the vessel must equal a run given the UA,
     # coolant flow, c_p and agitator power that /v1/heat-transfer reports for the same state.
