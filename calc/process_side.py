@@ -234,14 +234,22 @@ def process_film_jacket(impeller: str, Re: float, props_bulk: LiquidProperties, 
                  {"H_over_T": liquid_height / tank_diameter}, warnings)
 
 
+# Impellers with no published coil constants, and the published impeller whose flow pattern is closest
+# (axial-flow impellers: the propeller; a low-speed radial retreat curve: the flat paddle). The result
+# carries a warning saying so. An anchor sweeps the wall and leaves no room for a coil: it has no stand-in.
+COIL_STAND_INS = {"pitched_blade_turbine": "marine_propeller", "hydrofoil": "marine_propeller",
+                  "retreat_curve": "paddle"}
+
+
 def process_film_coil(impeller: str, Re: float, props_bulk: LiquidProperties, mu_wall: float,
                       tank_diameter: float, liquid_height: float, tube_outer_diameter: float,
                       impeller_diameter: float, baffled: bool = True) -> FilmResult:
     """Film coefficient from the vessel contents to the outside of a helical coil [W/(m2 K)].
 
     Published for the disc turbine and the propeller (Oldshue & Gretton 1954 form) and the paddle
-    (Chilton, Drew & Jebens 1944, Nu on the tank diameter); other impellers raise
-    :class:`InputError` on ``vessel.coils`` rather than borrow another impeller's constants.
+    (Chilton, Drew & Jebens 1944, Nu on the tank diameter). Pitched-blade turbines, hydrofoils and
+    retreat-curve impellers use the constants of the closest published impeller (``COIL_STAND_INS``)
+    with a ``coil_constants_borrowed`` warning; an anchor raises :class:`InputError` on ``vessel.coils``.
 
     >>> from calc.properties import LiquidProperties
     >>> water = LiquidProperties(298.15, 997.0, 4180.0, 0.00089, 0.6)
@@ -254,13 +262,21 @@ def process_film_coil(impeller: str, Re: float, props_bulk: LiquidProperties, mu
     require_positive("charge.volume", liquid_height)
     require_positive("vessel.coils.tube_outer_diameter", tube_outer_diameter)
     require_positive("vessel.agitator.diameter", impeller_diameter)
+    warnings = Warnings()
     if not info.coil:
-        known = ", ".join(sorted(i for i, entry in IMPELLERS.items() if entry.coil))
-        raise InputError("vessel.coils", f"no published coil correlation for impeller {impeller!r}; "
-                                         f"available for: {known}")
+        stand_in = COIL_STAND_INS.get(impeller)
+        if stand_in is None:
+            known = ", ".join(sorted(i for i, entry in IMPELLERS.items() if entry.coil))
+            raise InputError("vessel.coils", f"no coil correlation for impeller {impeller!r} (a close-clearance "
+                                             f"impeller leaves no room for a coil); published for: {known}")
+        warnings.add(CalcWarning(
+            "coil_constants_borrowed",
+            f"no published coil constants for the {info.name}; those of the {IMPELLERS[stand_in].name} "
+            "(closest flow pattern) are used: treat the coil film coefficient as indicative"))
+        info = IMPELLERS[stand_in]
     geometry = {"H_over_T": liquid_height / tank_diameter, "D_over_T": impeller_diameter / tank_diameter,
                 "do_over_T": tube_outer_diameter / tank_diameter}
     return _film(info, info.coil, "helical coil", Re, props_bulk, mu_wall, baffled,
                  {"tank_diameter": tank_diameter, "tube_outer_diameter": tube_outer_diameter},
-                 geometry, Warnings())
+                 geometry, warnings)
 

@@ -115,9 +115,17 @@ def test_warnings_ride_along():
     assert "baffling_basis" in codes(unbaffled)
 
 
+def test_coil_with_an_axial_impeller_borrows_the_propeller_form_and_says_so():
+    # No published coil constants for the pitched-blade turbine: the propeller's (HIM, axial flow) serve,
+    # flagged; the value must equal the propeller's at the same Re (same correlation, same constants).
+    borrowed = process_film_coil("pitched_blade_turbine", 1e5, WATER_30C, 1e-3, 1.8, 1.8, 0.05, 0.6)
+    propeller = process_film_coil("marine_propeller", 1e5, WATER_30C, 1e-3, 1.8, 1.8, 0.05, 0.6)
+    assert borrowed.h == pytest.approx(propeller.h, rel=1e-12)
+    assert "coil_constants_borrowed" in codes(borrowed) and "coil_constants_borrowed" not in codes(propeller)
+
+
 @pytest.mark.parametrize("call, field", [
-    (lambda: process_film_coil("pitched_blade_turbine", 1e5, WATER_30C, 1e-3, 1.8, 1.8, 0.05, 0.6),
-     "vessel.coils"),
+    (lambda: process_film_coil("anchor", 1e5, WATER_30C, 1e-3, 1.8, 1.8, 0.05, 0.6), "vessel.coils"),
     (lambda: process_film_jacket("rushton_turbine", 1e5, WATER_30C, 1e-3, 1.8, 1.8, surface="lid"), "surface"),
     (lambda: process_film_jacket("whisk", 1e5, WATER_30C, 1e-3, 1.8, 1.8), "vessel.agitator.impeller"),
     (lambda: process_film_jacket("rushton_turbine", 1e5, WATER_30C, 0.0, 1.8, 1.8), "charge.viscosity"),
