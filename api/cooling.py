@@ -81,4 +81,5 @@ def scale_up_chart(payload: dict, fmt: str) -> bytes:
 
 @bp.route("/scale-up", methods=["GET", "POST"])
 def scale_up():
-    return calculate(_scale_request, _scale_up, _scale_result, rows="scales", chart=scale_up_chart)
+    return calculate(_scale_request, _scale_up, _scale_result, rows="scales", chart=scale_up_chart,
+                     lead=("name", "volume", "charge_volume", "scale_factor", "generated", "adequate", "margin"))

@@ -128,8 +128,11 @@ def _unit_for(column: str, units: dict[str, str]) -> str | None:
     return None
 
 
-def to_csv(rows: list[dict], units: dict[str, str]) -> str:
-    """CSV with one row per item and the unit of each column in the header: ``density [kg/m^3]``."""
+def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = ()) -> str:
+    """CSV with one row per item and the unit of each column in the header: ``density [kg/m^3]``.
+
+    Columns named in ``lead`` (those that say which row is which) come first.
+    """
     flat_rows = []
     for row in rows:
         flat: dict = {}
@@ -138,6 +141,7 @@ def to_csv(rows: list[dict], units: dict[str, str]) -> str:
     columns: list[str] = []
     for flat in flat_rows:
         columns.extend(c for c in flat if c not in columns)
+    columns = [c for c in lead if c in columns] + [c for c in columns if c not in lead]
     header = []
     for column in columns:
         unit = _unit_for(column, units)
@@ -160,12 +164,12 @@ def _csv_cell(value: Any) -> Any:
     return value
 
 
-def respond(result: Any, schema: Schema, *, rows: str | None = None,
+def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple[str, ...] = (),
             chart: Callable[[dict, str], bytes] | None = None, status: int = 200) -> Response:
     """Dump ``result`` with ``schema`` and answer in the negotiated format.
 
-    ``rows`` names the list that becomes one CSV row per item (e.g. ``"scales"``); ``chart`` draws
-    the dumped payload as SVG or PNG.
+    ``rows`` names the list that becomes one CSV row per item (e.g. ``"scales"``), with the ``lead``
+    columns first; ``chart`` draws the dumped payload as SVG or PNG.
     """
     payload = clean(schema.dump(result))
     units = units_of(schema)
@@ -183,7 +187,7 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None,
     if fmt == "csv":
         items = payload.get(rows, []) if rows else [payload]
         row_units = {k[len(rows) + 1:]: v for k, v in units.items() if rows and k.startswith(rows + ".")} if rows else units
-        return Response(to_csv(items, row_units), status=status, mimetype="text/csv")
+        return Response(to_csv(items, row_units, lead), status=status, mimetype="text/csv")
     if fmt in ("svg", "png"):
         if chart is None:
             raise ProblemError(422, "this resource has no chart; use format json or csv",
