@@ -4,7 +4,6 @@ from __future__ import annotations
 import logging
 import os
 import re
-import time
 import uuid
 from importlib import metadata
 
@@ -80,7 +79,6 @@ def create_app(config: dict | None = None) -> Flask:
     def _start():
         incoming = request.headers.get("X-Request-ID", "")
         g.request_id = incoming if _REQUEST_ID.match(incoming) else uuid.uuid4().hex
-        g.started = time.perf_counter()
 
     @app.after_request
     def _finish(response):
