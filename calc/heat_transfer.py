@@ -187,9 +187,11 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
                                  f"{name}: coolant and wall temperatures did not settle within "
                                  f"{MAX_ITERATIONS} iterations; results are approximate"))
     for surface in surfaces:
+        # The same correlation warns alike on every surface; the wall's verdict is the surface's own.
         warnings.extend_unique(surface.process_film.warnings)
         warnings.extend_unique(surface.service_film.warnings)
-        warnings.extend_unique(surface.overall.warnings)
+        warnings.extend_unique(CalcWarning(w.code, f"{surface.name.replace('_', ' ')}: {w.message}")
+                               for w in surface.overall.warnings)
     warnings.extend_unique(balance.warnings)
     return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations)
 
