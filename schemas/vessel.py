@@ -7,7 +7,7 @@ from __future__ import annotations
 
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
-from calc import agitation, geometry, properties, service_side, wall
+from calc import agitation, geometry, heads, properties, service_side, wall
 from calc.vessel import Charge, Coolant, Vessel
 
 from .base import StrictSchema, finite_float
@@ -102,7 +102,7 @@ class VesselSchema(StrictSchema):
     name = fields.String(load_default="vessel", validate=validate.Length(max=120))
     diameter = _length("inside diameter", required=True)
     straight_side = _length("tangent-to-tangent height of the cylindrical shell", required=True)
-    bottom_head = fields.String(required=True, validate=validate.OneOf(sorted(geometry.HEADS)))
+    bottom_head = fields.String(required=True, validate=validate.OneOf(sorted(heads.HEADS)))
     cone_angle = Quantity("angle", load_default=None, minimum=0, exclusive_minimum=True, maximum=180,
                           description="included apex angle of a conical bottom; 90 = 45 degrees from vertical")
     wall = fields.Nested(WallSchema, load_default=None)
