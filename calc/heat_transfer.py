@@ -19,7 +19,7 @@ import math
 from dataclasses import dataclass, field, replace
 from typing import Callable
 
-from . import agitation, coolant as coolant_balance_module, geometry, process_side, service_side, wall
+from . import agitation, coil_side, coolant as coolant_balance_module, geometry, process_side, service_side, wall
 from .properties import LiquidProperties
 from .validity import CalcWarning, InputError, Warnings
 from .vessel import Charge, Coolant, Vessel
@@ -267,7 +267,7 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
             lambda mu_w, _coil=coil: process_side.process_film_coil(
                 agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
                 _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled),
-            lambda props_c, mu_w, rho_w, _coil=coil: service_side.service_film_coil(
+            lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
                 _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
                 pitch=_coil.pitch))
         streams.append(_solve_stream(f"coil_{index}", [model], charge, coolant, coolant.coil_mass_flow(),

@@ -1,4 +1,4 @@
-"""Coolant-side (service-side) film coefficients: jackets and the inside of helical coils.
+"""Coolant-side (service-side) film coefficients of jackets; the inside of coils is :mod:`calc.coil_side`.
 
 The caller gives the coolant's properties at its mean temperature and its viscosity at the wall
 temperature (and iterates both; see :mod:`calc.wall` for the wall temperatures). Each correlation is one
@@ -394,129 +394,15 @@ def Nu_turbulent_Sieder_Tate_1936(Re: float, Pr: float, De_over_Dc: float) -> fl
     return 0.027 * Re ** 0.8 * Pr ** (1 / 3) * (1 + 3.5 * De_over_Dc)
 
 
-def Nu_coil_laminar_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
-    """Laminar flow inside a helical coil, Schmidt (1967), as given in the VDI Heat Atlas.
-
-    Nu = 3.66 + 0.08 [1 + 0.8 r^0.9] Re^m Pr^(1/3),  m = 0.5 + 0.2903 r^0.194,  r = d/D_c
-
-    Parameters
-    ----------
-    Re : float
-        Reynolds number on the tube inside diameter, [-]
-    Pr : float
-        Prandtl number, [-]
-    r : float
-        Tube inside diameter over curvature diameter of the coil, [-]
-
-    Returns
-    -------
-    Nu : float
-        Nusselt number on the tube inside diameter, [-]
-
-    Notes
-    -----
-    100 < Re < Re_crit = 2300 (1 + 8.6 r^0.45) (VDI Heat Atlas, Gc; ranges from memory).
-
-    Examples
-    --------
-    >>> round(Nu_coil_laminar_Schmidt_1967(1000.0, 5.0, 0.05), 3)
-    17.654
-
-    References
-    ----------
-    Schmidt, E. F. "Wärmeübergang und Druckverlust in Rohrschlangen". Chem. Ing. Tech. 39, 781-789 (1967),
-    doi:10.1002/cite.330391302. VDI Heat Atlas, chapter Gc (helically coiled tubes; Gnielinski).
-    """
-    m = 0.5 + 0.2903 * r ** 0.194
-    return 3.66 + 0.08 * (1 + 0.8 * r ** 0.9) * Re ** m * Pr ** (1 / 3)
-
-
-def Nu_coil_turbulent_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
-    """Turbulent flow inside a helical coil, Schmidt (1967).
-
-    Re_crit < Re < 2.2e4: Nu = 0.023 [1 + 14.8 (1 + r) r^(1/3)] Re^(0.8 - 0.22 r^0.1) Pr^(1/3)
-    2.2e4 < Re < 1.5e5:   Nu = 0.023 [1 + 3.6 (1 - r) r^0.8] Re^0.8 Pr^(1/3)
-
-    Parameters
-    ----------
-    Re : float
-        Reynolds number on the tube inside diameter, [-]
-    Pr : float
-        Prandtl number, [-]
-    r : float
-        Tube inside diameter over curvature diameter of the coil, [-]
-
-    Returns
-    -------
-    Nu : float
-        Nusselt number on the tube inside diameter, [-]
-
-    Notes
-    -----
-    Re_crit = 2300 (1 + 8.6 r^0.45) < Re < 1.5e5.
-
-    Examples
-    --------
-    >>> round(Nu_coil_turbulent_Schmidt_1967(2e5, 0.7, 0.05), 1)
-    466.3
-
-    References
-    ----------
-    Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
-    """
-    if Re <= 2.2e4:
-        return 0.023 * (1 + 14.8 * (1 + r) * r ** (1 / 3)) * Re ** (0.8 - 0.22 * r ** 0.1) * Pr ** (1 / 3)
-    return 0.023 * (1 + 3.6 * (1 - r) * r ** 0.8) * Re ** 0.8 * Pr ** (1 / 3)
-
-
-def Nu_coil_turbulent_Mori_Nakayama_1967(Re: float, Pr: float, r: float) -> float:
-    """Turbulent flow inside a helical coil, Mori & Nakayama (1967).
-
-    Pr >= 1: Nu = Pr^0.4/41 Re^(5/6) r^(1/12) [1 + 0.061/(Re r^2.5)^(1/6)]
-    Pr < 1:  Nu = Pr/[26.2 (Pr^(2/3) - 0.074)] Re^0.8 r^0.1 [1 + 0.098/(Re r^2)^0.2]
-
-    Parameters
-    ----------
-    Re : float
-        Reynolds number on the tube inside diameter, [-]
-    Pr : float
-        Prandtl number, [-]
-    r : float
-        Tube inside diameter over curvature diameter of the coil, [-]
-
-    Returns
-    -------
-    Nu : float
-        Nusselt number on the tube inside diameter, [-]
-
-    Notes
-    -----
-    Re r^2 > 0.1 (El-Genk & Schriener 2016 review, as quoted in ht).
-
-    Examples
-    --------
-    >>> round(Nu_coil_turbulent_Mori_Nakayama_1967(2e5, 0.7, 0.05), 1)
-    496.3
-
-    References
-    ----------
-    Mori, Y.; Nakayama, W. "Study on Forced Convective Heat Transfer in Curved Pipes". Int. J. Heat Mass
-    Transfer 10, 681-695 (1967), doi:10.1016/0017-9310(67)90113-5.
-    """
-    if Pr < 1:
-        return Pr / (26.2 * (Pr ** (2 / 3) - 0.074)) * Re ** 0.8 * r ** 0.1 * (1 + 0.098 * (Re * r * r) ** -0.2)
-    return Pr ** 0.4 / 41 * Re ** (5 / 6) * r ** (1 / 12) * (1 + 0.061 / (Re * r ** 2.5) ** (1 / 6))
-
-
-_VDI = "VDI Heat Atlas, 2nd ed., Springer 2010"
+VDI_HEAT_ATLAS = "VDI Heat Atlas, 2nd ed., Springer 2010"
 CORRELATIONS: dict[str, Correlation] = {
     "lehrer_1970": Correlation(
         "Lehrer (1970)", h_jacket_Lehrer_1970,
-        "Lehrer, Ind. Eng. Chem. Process Des. Dev. 9, 553 (1970), doi:10.1021/i260036a010; " + _VDI,
+        "Lehrer, Ind. Eng. Chem. Process Des. Dev. 9, 553 (1970), doi:10.1021/i260036a010; " + VDI_HEAT_ATLAS,
         {"Re": (1e3, 1e5), "Pr": (1.0, 20.0), "H/D": (0.5, 2.0)}),  # from memory; data: water, H/D = 1
     "stein_schmidt_1993": Correlation(
         "Stein & Schmidt (1993)", h_jacket_Stein_Schmidt_1993,
-        "Stein & Schmidt, Forsch. Ingenieurwes. 59, 73 (1993), doi:10.1007/BF02561203; " + _VDI,
+        "Stein & Schmidt, Forsch. Ingenieurwes. 59, 73 (1993), doi:10.1007/BF02561203; " + VDI_HEAT_ATLAS,
         {"Pr": (0.6, 1000.0)}),  # from memory
     "sieder_tate_1936_laminar": Correlation(
         "Sieder & Tate (1936), laminar", Nu_laminar_Sieder_Tate_1936,
@@ -528,19 +414,9 @@ CORRELATIONS: dict[str, Correlation] = {
         "Sieder & Tate (1936), turbulent, coil factor 1 + 3.5 De/Dc", Nu_turbulent_Sieder_Tate_1936,
         "Sieder & Tate, Ind. Eng. Chem. 28, 1429 (1936); curvature factor after McAdams",
         {"Re": (TURBULENT_LIMIT, None), "Pr": (0.7, 16700.0)}),
-    "schmidt_1967_laminar": Correlation(
-        "Schmidt (1967), laminar", Nu_coil_laminar_Schmidt_1967,
-        "Schmidt, Chem. Ing. Tech. 39, 781 (1967); " + _VDI, {"Re": (100.0, None)}),
-    "schmidt_1967": Correlation(
-        "Schmidt (1967)", Nu_coil_turbulent_Schmidt_1967,
-        "Schmidt, Chem. Ing. Tech. 39, 781 (1967)", {"Re": (None, 1.5e5)}),
-    "mori_nakayama_1967": Correlation(
-        "Mori & Nakayama (1967)", Nu_coil_turbulent_Mori_Nakayama_1967,
-        "Mori & Nakayama, Int. J. Heat Mass Transfer 10, 681 (1967)", {"Re r^2": (0.1, None)}),
 }
-#: Options of ``JacketSpec.correlation`` for plain annular jackets, and of the coil's turbulent correlation.
+#: Options of ``JacketSpec.correlation`` for plain annular jackets.
 ANNULAR_CORRELATIONS = ("lehrer_1970", "stein_schmidt_1993")
-COIL_CORRELATIONS = ("schmidt_1967", "mori_nakayama_1967")
 
 
 # ---------------------------------------------------------------- inputs and results
@@ -589,7 +465,7 @@ def _positive(jacket_field: str, value: float | None, what: str) -> float:
     return require_positive(f"vessel.jacket.{jacket_field}", value)
 
 
-def _common_warnings(warnings: Warnings, Re: float, velocity: float, laminar_below: float, name: str) -> str:
+def flow_warnings(warnings: Warnings, Re: float, velocity: float, laminar_below: float, name: str) -> str:
     if velocity < LOW_VELOCITY:
         warnings.add(CalcWarning("low_velocity",
                                  f"coolant velocity {velocity:.3g} m/s is below {LOW_VELOCITY} m/s: poor film "
@@ -622,7 +498,7 @@ def _annular(jacket, props, m, mu_wall, D_o, H, warnings, rho_wall, beta, dT) ->
                           inlet_location=jacket.inlet_location, rho_w=rho_wall, beta=beta, dT=dT,
                           roughness=jacket.roughness, warnings=warnings)
     entry.check(warnings, Re=flow.reynolds, Pr=props.prandtl, **{"H/D": H / D_o})
-    regime = _common_warnings(warnings, flow.reynolds, flow.velocity, 2300.0, entry.name)
+    regime = flow_warnings(warnings, flow.reynolds, flow.velocity, 2300.0, entry.name)
     return FilmResult(flow.h, flow.reynolds, flow.velocity, entry.name, flow.nusselt, props.prandtl,
                       flow.length_scale, regime, warnings)
 
@@ -646,7 +522,7 @@ def _channel(props, m_channel, area, d_e, length, d_curve, mu_wall, warnings) ->
     entry = CORRELATIONS[key]
     Nu = entry.function(*args) * (props.viscosity / mu_wall) ** 0.14
     entry.check(warnings, Re=Re, Pr=Pr)
-    regime = _common_warnings(warnings, Re, velocity, LAMINAR_LIMIT, entry.name)
+    regime = flow_warnings(warnings, Re, velocity, LAMINAR_LIMIT, entry.name)
     return FilmResult(Nu * props.thermal_conductivity / d_e, Re, velocity, entry.name, Nu, Pr, d_e, regime,
                       warnings)
 
@@ -747,102 +623,3 @@ def service_film_jacket(jacket: JacketSpec, coolant_props: LiquidProperties, mas
     n = jacket.passes
     return handler(jacket, coolant_props, mass_flow / n, mu_wall, vessel_outer_diameter, jacket_height / n,
                    warnings, rho_wall, expansion_coefficient, temperature_rise)
-
-
-# ---------------------------------------------------------------- coil (tube side)
-
-
-def coil_critical_reynolds_Schmidt_1967(r: float) -> float:
-    """Laminar-turbulent transition inside a helical coil, Schmidt (1967): Re_crit = 2300 (1 + 8.6 r^0.45).
-
-    Parameters
-    ----------
-    r : float
-        Tube inside diameter over curvature diameter, [-]
-
-    Returns
-    -------
-    Re_crit : float
-        Critical Reynolds number, [-]
-
-    Examples
-    --------
-    >>> round(coil_critical_reynolds_Schmidt_1967(0.05))
-    7438
-
-    References
-    ----------
-    Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
-    """
-    return 2300.0 * (1 + 8.6 * r ** 0.45)
-
-
-def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant_props: LiquidProperties,
-                      mass_flow: float, mu_wall: float, pitch: float | None = None, parallel_tubes: int = 1,
-                      correlation: str = "schmidt_1967") -> FilmResult:
-    """Coolant film coefficient inside a helical coil, on the tube inside area.
-
-    Laminar below Re_crit (Schmidt 1967, VDI form), turbulent above (``correlation``); both times
-    (mu/mu_w)^0.14 (Sieder & Tate's viscosity correction, common practice). With a pitch, the curvature
-    diameter is D_c [1 + (p/(pi D_c))^2] (VDI Heat Atlas, Gc).
-
-    Parameters
-    ----------
-    tube_inner_diameter : float
-        Inside diameter of the coil tube, [m]
-    helix_diameter : float
-        Centre-line diameter of the helix, [m]
-    coolant_props : LiquidProperties
-        Coolant properties at its mean temperature, [-]
-    mass_flow : float
-        Total coolant flow, split over ``parallel_tubes``, [kg/s]
-    mu_wall : float
-        Coolant viscosity at the wall temperature, [Pa s]
-    pitch : float, optional
-        Axial pitch of the turns, [m]
-    parallel_tubes : int
-        Number of coils fed in parallel, [-]
-    correlation : str
-        Turbulent correlation, one of COIL_CORRELATIONS, [-]
-
-    Returns
-    -------
-    FilmResult
-
-    Examples
-    --------
-    >>> from calc.properties import LiquidProperties
-    >>> water = LiquidProperties(293.15, 998.2, 4184.0, 1.0016e-3, 0.5984)
-    >>> r = service_film_coil(0.05, 1.0, water, 2.0, 1.0016e-3)
-    >>> r.regime, round(r.reynolds)
-    ('turbulent', 50848)
-    """
-    if correlation not in COIL_CORRELATIONS:
-        raise InputError("vessel.coils.correlation", f"unknown option {correlation!r}; known: "
-                                                     f"{', '.join(COIL_CORRELATIONS)}")
-    d = require_positive("vessel.coils.tube_inner_diameter", tube_inner_diameter)
-    D_c = require_positive("vessel.coils.helix_diameter", helix_diameter)
-    if D_c <= d:
-        raise InputError("vessel.coils.helix_diameter", "must exceed the tube diameter")
-    require_positive("coolant.flow", mass_flow)
-    require_positive("coolant.viscosity_at_wall", mu_wall)
-    if not (isinstance(parallel_tubes, int) and parallel_tubes >= 1):
-        raise InputError("vessel.coils.parallel_tubes", f"must be a whole number >= 1, got {parallel_tubes!r}")
-    if pitch is not None:
-        D_c *= 1 + (require_positive("vessel.coils.pitch", pitch) / (math.pi * D_c)) ** 2
-    warnings = Warnings()
-    props = coolant_props
-    m_tube = mass_flow / parallel_tubes
-    velocity = m_tube / (props.density * math.pi / 4 * d * d)
-    Re = props.density * velocity * d / props.viscosity
-    Pr = props.prandtl
-    r = d / D_c
-    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
-    key = "schmidt_1967_laminar" if Re < Re_crit else correlation
-    entry = CORRELATIONS[key]
-    Nu = entry.function(Re, Pr, r) * (props.viscosity / mu_wall) ** 0.14
-    entry.check(warnings, Re=Re, **{"Re r^2": Re * r * r})
-    regime = _common_warnings(warnings, Re, velocity, Re_crit, entry.name)
-    if regime != "laminar":
-        regime = "turbulent" if Re >= 2.2e4 else "transitional"
-    return FilmResult(Nu * props.thermal_conductivity / d, Re, velocity, entry.name, Nu, Pr, d, regime, warnings)

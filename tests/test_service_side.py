@@ -11,8 +11,10 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from calc.properties import LiquidProperties
+from calc import coil_side
+from calc.coil_side import service_film_coil
 from calc.service_side import (CORRELATIONS, JacketSpec, friction_factor_Colebrook_1939, h_jacket_Lehrer_1970,
-                               h_jacket_Stein_Schmidt_1993, service_film_coil, service_film_jacket)
+                               h_jacket_Stein_Schmidt_1993, service_film_jacket)
 from calc.validity import InputError
 
 # VDI Heat Atlas (2010) worked example, as reproduced in ht.conv_jacket's docstrings: water at about 30 degC.
@@ -228,7 +230,7 @@ def test_more_flow_never_lowers_h(m, factor, kind):
 
 def test_schmidt_step_at_22000_is_small():
     # Hand evaluation of both Schmidt (1967) ranges at Re = 2.2e4, r = 0.0333: 85.1 vs 84.2 Pr^(1/3), ~1 % apart.
-    from calc.service_side import Nu_coil_turbulent_Schmidt_1967 as schmidt
+    from calc.coil_side import Nu_coil_turbulent_Schmidt_1967 as schmidt
     below, above = schmidt(2.2e4, 5.0, 0.05 / 1.5), schmidt(2.2e4 * (1 + 1e-12), 5.0, 0.05 / 1.5)
     assert above == pytest.approx(below, rel=0.02) and above != below
 
@@ -276,7 +278,7 @@ def test_bad_coil_input_names_the_field():
 
 def test_registry_names_resolve_to_the_authors_functions():
     # STYLE: every registry entry resolves to the function that carries its authors' name and year.
-    for key, entry in CORRELATIONS.items():
+    for key, entry in {**CORRELATIONS, **coil_side.CORRELATIONS}.items():
         first_author = entry.name.split()[0]
         year = entry.name.split("(")[1][:4]
         assert first_author in entry.function.__name__, key

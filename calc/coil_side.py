@@ -1,0 +1,238 @@
+"""Coolant-side film coefficients inside helical coils (tube side), curvature-corrected.
+
+Laminar below Schmidt's critical Reynolds number, turbulent above it (Schmidt 1967, or Mori &
+Nakayama 1967), each registered with its source and validity range in :data:`CORRELATIONS`. The
+result is the jackets' :class:`calc.service_side.FilmResult`.
+"""
+from __future__ import annotations
+
+import math
+
+from .properties import LiquidProperties
+from .service_side import VDI_HEAT_ATLAS, FilmResult, flow_warnings
+from .validity import Correlation, InputError, Warnings, require_positive
+
+
+def Nu_coil_laminar_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
+    """Laminar flow inside a helical coil, Schmidt (1967), as given in the VDI Heat Atlas.
+
+    Nu = 3.66 + 0.08 [1 + 0.8 r^0.9] Re^m Pr^(1/3),  m = 0.5 + 0.2903 r^0.194,  r = d/D_c
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on the tube inside diameter, [-]
+    Pr : float
+        Prandtl number, [-]
+    r : float
+        Tube inside diameter over curvature diameter of the coil, [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number on the tube inside diameter, [-]
+
+    Notes
+    -----
+    100 < Re < Re_crit = 2300 (1 + 8.6 r^0.45) (VDI Heat Atlas, Gc; ranges from memory).
+
+    Examples
+    --------
+    >>> round(Nu_coil_laminar_Schmidt_1967(1000.0, 5.0, 0.05), 3)
+    17.654
+
+    References
+    ----------
+    Schmidt, E. F. "Wärmeübergang und Druckverlust in Rohrschlangen". Chem. Ing. Tech. 39, 781-789 (1967),
+    doi:10.1002/cite.330391302. VDI Heat Atlas, chapter Gc (helically coiled tubes; Gnielinski).
+    """
+    m = 0.5 + 0.2903 * r ** 0.194
+    return 3.66 + 0.08 * (1 + 0.8 * r ** 0.9) * Re ** m * Pr ** (1 / 3)
+
+
+def Nu_coil_turbulent_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
+    """Turbulent flow inside a helical coil, Schmidt (1967).
+
+    Re_crit < Re < 2.2e4: Nu = 0.023 [1 + 14.8 (1 + r) r^(1/3)] Re^(0.8 - 0.22 r^0.1) Pr^(1/3)
+    2.2e4 < Re < 1.5e5:   Nu = 0.023 [1 + 3.6 (1 - r) r^0.8] Re^0.8 Pr^(1/3)
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on the tube inside diameter, [-]
+    Pr : float
+        Prandtl number, [-]
+    r : float
+        Tube inside diameter over curvature diameter of the coil, [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number on the tube inside diameter, [-]
+
+    Notes
+    -----
+    Re_crit = 2300 (1 + 8.6 r^0.45) < Re < 1.5e5.
+
+    Examples
+    --------
+    >>> round(Nu_coil_turbulent_Schmidt_1967(2e5, 0.7, 0.05), 1)
+    466.3
+
+    References
+    ----------
+    Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
+    """
+    if Re <= 2.2e4:
+        return 0.023 * (1 + 14.8 * (1 + r) * r ** (1 / 3)) * Re ** (0.8 - 0.22 * r ** 0.1) * Pr ** (1 / 3)
+    return 0.023 * (1 + 3.6 * (1 - r) * r ** 0.8) * Re ** 0.8 * Pr ** (1 / 3)
+
+
+def Nu_coil_turbulent_Mori_Nakayama_1967(Re: float, Pr: float, r: float) -> float:
+    """Turbulent flow inside a helical coil, Mori & Nakayama (1967).
+
+    Pr >= 1: Nu = Pr^0.4/41 Re^(5/6) r^(1/12) [1 + 0.061/(Re r^2.5)^(1/6)]
+    Pr < 1:  Nu = Pr/[26.2 (Pr^(2/3) - 0.074)] Re^0.8 r^0.1 [1 + 0.098/(Re r^2)^0.2]
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on the tube inside diameter, [-]
+    Pr : float
+        Prandtl number, [-]
+    r : float
+        Tube inside diameter over curvature diameter of the coil, [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number on the tube inside diameter, [-]
+
+    Notes
+    -----
+    Re r^2 > 0.1 (El-Genk & Schriener 2016 review, as quoted in ht).
+
+    Examples
+    --------
+    >>> round(Nu_coil_turbulent_Mori_Nakayama_1967(2e5, 0.7, 0.05), 1)
+    496.3
+
+    References
+    ----------
+    Mori, Y.; Nakayama, W. "Study on Forced Convective Heat Transfer in Curved Pipes". Int. J. Heat Mass
+    Transfer 10, 681-695 (1967), doi:10.1016/0017-9310(67)90113-5.
+    """
+    if Pr < 1:
+        return Pr / (26.2 * (Pr ** (2 / 3) - 0.074)) * Re ** 0.8 * r ** 0.1 * (1 + 0.098 * (Re * r * r) ** -0.2)
+    return Pr ** 0.4 / 41 * Re ** (5 / 6) * r ** (1 / 12) * (1 + 0.061 / (Re * r ** 2.5) ** (1 / 6))
+
+
+CORRELATIONS: dict[str, Correlation] = {
+    "schmidt_1967_laminar": Correlation(
+        "Schmidt (1967), laminar", Nu_coil_laminar_Schmidt_1967,
+        "Schmidt, Chem. Ing. Tech. 39, 781 (1967); " + VDI_HEAT_ATLAS, {"Re": (100.0, None)}),
+    "schmidt_1967": Correlation(
+        "Schmidt (1967)", Nu_coil_turbulent_Schmidt_1967,
+        "Schmidt, Chem. Ing. Tech. 39, 781 (1967)", {"Re": (None, 1.5e5)}),
+    "mori_nakayama_1967": Correlation(
+        "Mori & Nakayama (1967)", Nu_coil_turbulent_Mori_Nakayama_1967,
+        "Mori & Nakayama, Int. J. Heat Mass Transfer 10, 681 (1967)", {"Re r^2": (0.1, None)}),
+}
+#: Options of the coil's turbulent correlation.
+COIL_CORRELATIONS = ("schmidt_1967", "mori_nakayama_1967")
+
+
+def coil_critical_reynolds_Schmidt_1967(r: float) -> float:
+    """Laminar-turbulent transition inside a helical coil, Schmidt (1967): Re_crit = 2300 (1 + 8.6 r^0.45).
+
+    Parameters
+    ----------
+    r : float
+        Tube inside diameter over curvature diameter, [-]
+
+    Returns
+    -------
+    Re_crit : float
+        Critical Reynolds number, [-]
+
+    Examples
+    --------
+    >>> round(coil_critical_reynolds_Schmidt_1967(0.05))
+    7438
+
+    References
+    ----------
+    Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
+    """
+    return 2300.0 * (1 + 8.6 * r ** 0.45)
+
+
+def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant_props: LiquidProperties,
+                      mass_flow: float, mu_wall: float, pitch: float | None = None, parallel_tubes: int = 1,
+                      correlation: str = "schmidt_1967") -> FilmResult:
+    """Coolant film coefficient inside a helical coil, on the tube inside area.
+
+    Laminar below Re_crit (Schmidt 1967, VDI form), turbulent above (``correlation``); both times
+    (mu/mu_w)^0.14 (Sieder & Tate's viscosity correction, common practice). With a pitch, the curvature
+    diameter is D_c [1 + (p/(pi D_c))^2] (VDI Heat Atlas, Gc).
+
+    Parameters
+    ----------
+    tube_inner_diameter : float
+        Inside diameter of the coil tube, [m]
+    helix_diameter : float
+        Centre-line diameter of the helix, [m]
+    coolant_props : LiquidProperties
+        Coolant properties at its mean temperature, [-]
+    mass_flow : float
+        Total coolant flow, split over ``parallel_tubes``, [kg/s]
+    mu_wall : float
+        Coolant viscosity at the wall temperature, [Pa s]
+    pitch : float, optional
+        Axial pitch of the turns, [m]
+    parallel_tubes : int
+        Number of coils fed in parallel, [-]
+    correlation : str
+        Turbulent correlation, one of COIL_CORRELATIONS, [-]
+
+    Returns
+    -------
+    FilmResult
+
+    Examples
+    --------
+    >>> from calc.properties import LiquidProperties
+    >>> water = LiquidProperties(293.15, 998.2, 4184.0, 1.0016e-3, 0.5984)
+    >>> r = service_film_coil(0.05, 1.0, water, 2.0, 1.0016e-3)
+    >>> r.regime, round(r.reynolds)
+    ('turbulent', 50848)
+    """
+    if correlation not in COIL_CORRELATIONS:
+        raise InputError("vessel.coils.correlation", f"unknown option {correlation!r}; known: "
+                                                     f"{', '.join(COIL_CORRELATIONS)}")
+    d = require_positive("vessel.coils.tube_inner_diameter", tube_inner_diameter)
+    D_c = require_positive("vessel.coils.helix_diameter", helix_diameter)
+    if D_c <= d:
+        raise InputError("vessel.coils.helix_diameter", "must exceed the tube diameter")
+    require_positive("coolant.flow", mass_flow)
+    require_positive("coolant.viscosity_at_wall", mu_wall)
+    if not (isinstance(parallel_tubes, int) and parallel_tubes >= 1):
+        raise InputError("vessel.coils.parallel_tubes", f"must be a whole number >= 1, got {parallel_tubes!r}")
+    if pitch is not None:
+        D_c *= 1 + (require_positive("vessel.coils.pitch", pitch) / (math.pi * D_c)) ** 2
+    warnings = Warnings()
+    props = coolant_props
+    m_tube = mass_flow / parallel_tubes
+    velocity = m_tube / (props.density * math.pi / 4 * d * d)
+    Re = props.density * velocity * d / props.viscosity
+    Pr = props.prandtl
+    r = d / D_c
+    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
+    key = "schmidt_1967_laminar" if Re < Re_crit else correlation
+    entry = CORRELATIONS[key]
+    Nu = entry.function(Re, Pr, r) * (props.viscosity / mu_wall) ** 0.14
+    entry.check(warnings, Re=Re, **{"Re r^2": Re * r * r})
+    regime = flow_warnings(warnings, Re, velocity, Re_crit, entry.name)
+    if regime != "laminar":
+        regime = "turbulent" if Re >= 2.2e4 else "transitional"
+    return FilmResult(Nu * props.thermal_conductivity / d, Re, velocity, entry.name, Nu, Pr, d, regime, warnings)
