@@ -54,11 +54,12 @@ def openapi():
 
 
 def _resolve(node, document: dict):
+    """Follow a local ``$ref``; keywords beside it (``x-unit``, ``description``) override the target's."""
     if isinstance(node, dict) and "$ref" in node:
         target = document
         for part in node["$ref"].lstrip("#/").split("/"):
             target = target[part]
-        return target
+        return {**target, **{key: value for key, value in node.items() if key != "$ref"}}
     return node
 
 
@@ -75,6 +76,8 @@ def _rows(schema, document: dict, prefix: str = "", depth: int = 0) -> list[dict
         sub = _resolve(sub, document)
         path = f"{prefix}.{name}" if prefix else name
         kind = sub.get("type", "object" if "properties" in sub else "")
+        if "x-unit" in sub and not kind:
+            kind = "number, or text with a unit"
         if isinstance(kind, list):
             kind = " | ".join(kind)
         if "enum" in sub:

@@ -29,3 +29,5 @@ def test_docs_page_lists_every_operation(client):
     for path in yaml.safe_load(spec)["paths"]:
         assert path in page
     assert "licensed engineer" in page
+    # Units come from the contract's x-unit beside each $ref: the vessel diameter is in metres.
+    assert '<code>vessel.diameter</code> *</td><td>number, or text with a unit</td><td class="unit">m</td>' in page
