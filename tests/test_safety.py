@@ -1,15 +1,18 @@
 """Thermal safety: adiabatic rise, MTSR, TMR_ad, T_D24, criticality classes and the Semenov criterion."""
 import math
+import re
 
 import pytest
 from hypothesis import given, settings, strategies as st
 from scipy.integrate import quad
 
 from calc.properties import GAS_CONSTANT as R
+from calc import runaway, safety
+from calc.runaway import assess_semenov, semenov_number
 from calc.safety import (
-    Decomposition, ThermalSafetyInput, adiabatic_temperature_rise_from_enthalpy, assess_semenov,
-    assess_thermal_safety, criticality_class_Stoessel_1993, decomposition_power, mtsr_from_profile,
-    mtsr_Stoessel_1993, semenov_number, td24_Townsend_Tou_1980, tmr_ad_Townsend_Tou_1980,
+    Decomposition, ThermalSafetyInput, adiabatic_temperature_rise_from_enthalpy, assess_thermal_safety,
+    criticality_class_Stoessel_1993, decomposition_power, mtsr_from_profile, mtsr_Stoessel_1993,
+    td24_Townsend_Tou_1980, tmr_ad_Townsend_Tou_1980,
 )
 from calc.validity import InputError
 
@@ -142,3 +145,17 @@ def test_bad_input_names_the_field(changes, field):
     with pytest.raises(InputError) as info:
         assess_thermal_safety(ThermalSafetyInput(**base))
     assert info.value.field == field
+
+
+def test_registry_names_resolve_to_the_authors_functions():
+    # STYLE: every registry entry resolves to a function of its module that carries the first author's
+    # name; a year in the function name is the cited year, and the source cites that year.
+    for module in (safety, runaway):
+        for key, entry in module.REGISTRY.items():
+            first_author = entry.name.split()[0].lower()
+            year = entry.name.split("(")[1][:4]
+            name = entry.function.__name__
+            assert first_author in name.lower(), key
+            assert getattr(module, name) is entry.function, key
+            assert re.findall(r"\d{4}", name) in ([], [year]), key
+            assert year in entry.source, key
