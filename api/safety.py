@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from flask import Blueprint, Response, current_app, request
 
-from calc import dynamics, heat_transfer, safety, steady_states
+from calc import dynamics, heat_transfer, safety, steady_states, tank_model
 from calc.vessel import Charge
 from schemas.base import clean
 from schemas.heat_transfer import warning_dicts
@@ -68,7 +68,7 @@ def simulations():
     config = current_app.config
     _limited("horizon", args["horizon"], float(config["MAX_SIMULATION_HORIZON"]), "s")
     _limited("output_points", args["output_points"], int(config["MAX_SERIES_POINTS"]), "points")
-    budget = dynamics.Budget(horizon_limit=float(config["MAX_SIMULATION_HORIZON"]),
+    budget = tank_model.Budget(horizon_limit=float(config["MAX_SIMULATION_HORIZON"]),
                              output_points=args["output_points"],
                              maximum_output_points=int(config["MAX_SERIES_POINTS"]),
                              wall_time=float(config["SIMULATION_WALL_TIME"]))

@@ -10,7 +10,7 @@ import math
 import numpy as np
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
-from calc import dynamics, safety, steady_states
+from calc import safety, steady_states, tank_model
 from calc.properties import FLUIDS, STANDARD_PRESSURE
 
 from .base import StrictSchema, finite_float
@@ -131,7 +131,7 @@ class SpeciesSchema(StrictSchema):
 
     @post_load
     def _make(self, data, **kwargs):
-        return dynamics.Species(**data)
+        return tank_model.Species(**data)
 
 
 class ReactionSchema(StrictSchema):
@@ -146,7 +146,7 @@ class ReactionSchema(StrictSchema):
 
     @post_load
     def _make(self, data, **kwargs):
-        return dynamics.Reaction(**data)
+        return tank_model.Reaction(**data)
 
 
 class SimulationChargeSchema(StrictSchema):
@@ -158,7 +158,7 @@ class SimulationChargeSchema(StrictSchema):
 
     @post_load
     def _make(self, data, **kwargs):
-        return dynamics.Charge(**data)
+        return tank_model.Charge(**data)
 
 
 class FeedStepSchema(StrictSchema):
@@ -173,7 +173,7 @@ class FeedStepSchema(StrictSchema):
 
     @post_load
     def _make(self, data, **kwargs):
-        return dynamics.FeedStep(**data)
+        return tank_model.FeedStep(**data)
 
 
 class FeedSchema(StrictSchema):
@@ -193,9 +193,9 @@ class FeedSchema(StrictSchema):
     @post_load
     def _make(self, data, **kwargs):
         if data.get("steps") is not None:
-            return dynamics.Feed(data["temperature"], data["composition"], tuple(data["steps"]))
+            return tank_model.Feed(data["temperature"], data["composition"], tuple(data["steps"]))
         end = math.inf if data.get("end") is None else data["end"]
-        return dynamics.Feed.constant(data["temperature"], data["composition"], data["mass_flow"],
+        return tank_model.Feed.constant(data["temperature"], data["composition"], data["mass_flow"],
                                       data["start"], end)
 
 
@@ -210,7 +210,7 @@ class SimulationJacketSchema(StrictSchema):
 
     @post_load
     def _make(self, data, **kwargs):
-        return dynamics.Jacket(**data)
+        return tank_model.Jacket(**data)
 
 
 class ControllerSchema(StrictSchema):
@@ -224,7 +224,7 @@ class ControllerSchema(StrictSchema):
 
     @post_load
     def _make(self, data, **kwargs):
-        return dynamics.Controller(**data)
+        return tank_model.Controller(**data)
 
 
 class FailureTime(Quantity):
@@ -243,7 +243,7 @@ class CoolingFailureSchema(StrictSchema):
 
     @post_load
     def _make(self, data, **kwargs):
-        return dynamics.CoolingFailure(**data)
+        return tank_model.CoolingFailure(**data)
 
 
 class LimitSchema(StrictSchema):
@@ -254,7 +254,7 @@ class LimitSchema(StrictSchema):
 
     @post_load
     def _make(self, data, **kwargs):
-        return dynamics.TemperatureLimit(**data)
+        return tank_model.TemperatureLimit(**data)
 
 
 class ContentsSchema(_LiquidFields):
@@ -298,7 +298,7 @@ class SimulationRequestSchema(StrictSchema):
                                       description="replaces every species' and the balance's heat capacity")
     enthalpy_reference_temperature = _temperature(load_default=298.15)
     limiting_reagent = fields.String(load_default=None, validate=validate.Length(min=1, max=40))
-    method = fields.String(load_default="BDF", validate=validate.OneOf(sorted(dynamics.METHODS)))
+    method = fields.String(load_default="BDF", validate=validate.OneOf(sorted(tank_model.METHODS)))
     horizon = _positive("time", required=True, description="simulated time")
     output_points = fields.Integer(load_default=201, validate=validate.Range(min=2),
                                    metadata={"description": "points in the returned series"})
@@ -318,20 +318,20 @@ class SimulationRequestSchema(StrictSchema):
         return data
 
 
-def simulation_input(args: dict, budget: dynamics.Budget, vessel_duty=None) -> dynamics.SimulationInput:
+def simulation_input(args: dict, budget: tank_model.Budget, vessel_duty=None) -> tank_model.SimulationInput:
     """SimulationInput from the loaded request; ``vessel_duty`` (a calc.heat_transfer.JacketDuty) stands
     in for a given jacket and, unless given, the shaft power."""
     args = dict(args)
     args.pop("output_points")
     args.pop("vessel")
     if vessel_duty is not None:
-        args["jacket"] = dynamics.Jacket(vessel_duty.ua, vessel_duty.coolant_flow, vessel_duty.coolant_heat_capacity,
-                                         vessel_duty.inlet_temperature)
+        args["jacket"] = tank_model.Jacket(vessel_duty.ua, vessel_duty.coolant_flow,
+                                           vessel_duty.coolant_heat_capacity, vessel_duty.inlet_temperature)
         if args["shaft_power"] is None:
             args["shaft_power"] = vessel_duty.shaft_power
     if args["shaft_power"] is None:
         args["shaft_power"] = 0.0
-    return dynamics.SimulationInput(budget=budget, **args)
+    return tank_model.SimulationInput(budget=budget, **args)
 
 
 class LimitCrossingSchema(StrictSchema):
@@ -389,7 +389,7 @@ _SERIES_FIELDS = ("time", "temperature", "coolant_inlet_temperature", "coolant_o
                   "conversion", "accumulation", "heat_release_rate", "jacket_duty", "feed_rate")
 
 
-def simulation_dict(result: dynamics.SimulationResult) -> dict:
+def simulation_dict(result: tank_model.SimulationResult) -> dict:
     s, summary = result.series, result.summary
     series = {name: np.asarray(getattr(s, name), dtype=float).tolist() for name in _SERIES_FIELDS}
     series["concentrations"] = {name: np.asarray(row, dtype=float).tolist()

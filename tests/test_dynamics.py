@@ -11,9 +11,10 @@ import pytest
 from hypothesis import given, settings, strategies as st
 from scipy.linalg import expm
 
-from calc.dynamics import (
+from calc.dynamics import simulate
+from calc.tank_model import (
     Budget, Charge, Controller, CoolingFailure, Feed, FeedStep, Jacket, Reaction, SimulationInput, Species,
-    TemperatureLimit, simulate,
+    TemperatureLimit,
 )
 from calc.safety import adiabatic_temperature_rise_from_enthalpy, mtsr_from_profile
 from calc.validity import InputError

@@ -6,7 +6,8 @@ import pytest
 from hypothesis import given, settings, strategies as st
 from scipy.optimize import brentq
 
-from calc.dynamics import Charge, Feed, Jacket, Reaction, SimulationInput, Species, Budget, simulate
+from calc.dynamics import simulate
+from calc.tank_model import Charge, Feed, Jacket, Reaction, SimulationInput, Species, Budget
 from calc.properties import GAS_CONSTANT as R
 from calc.steady_states import CSTRInput, cstr_steady_states, outlet_concentration
 from calc.validity import InputError

@@ -121,7 +121,7 @@ def main(argv: list[str] | None = None) -> int:
 def calculation_medians(repeats: int = 21) -> list[tuple[str, float]]:
     """Median times of the calc functions behind the main routes, with their inputs parsed once."""
     from api import create_app
-    from calc import cooling, dynamics, scaleup
+    from calc import cooling, dynamics, scaleup, tank_model
     from schemas.cooling import CoolingCheckRequestSchema, ScaleUpRequestSchema
     from schemas.safety import SimulationRequestSchema, simulation_input
 
@@ -139,7 +139,7 @@ def calculation_medians(repeats: int = 21) -> list[tuple[str, float]]:
             path["reference"], path["targets"], path["rule"], path["charge"], path["coolant"],
             path["process_temperature"], path["heat_release"], path["safety_factor"], path["coolant_flow_rule"])),
         ("6 h semi-batch, cooling fails at 3 h (target < 100)", lambda: dynamics.simulate(
-            simulation_input(run, dynamics.Budget(output_points=run["output_points"])))),
+            simulation_input(run, tank_model.Budget(output_points=run["output_points"])))),
     ]
     out = []
     for label, call in cases:
