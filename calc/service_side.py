@@ -35,7 +35,7 @@ LOW_VELOCITY = 0.3  # m/s
 #: Spiral baffle: share of the flow that bypasses the baffle by default; design on 50 % effective flow
 #: (bypass "can exceed 1/3 to 1/2", Perry's Chemical Engineers' Handbook, from memory).
 DEFAULT_BYPASS_FRACTION = 0.5
-#: Tube-flow regime limits for jacket channels (Sieder & Tate 1936; Hausen 1943 for the band between).
+#: Tube-flow regime limits for jacket channels (Sieder & Tate 1936; Gnielinski's 2013 interpolation between).
 LAMINAR_LIMIT, TURBULENT_LIMIT = 2100.0, 1.0e4
 #: Laminar limit of the Darcy friction factor used with the Stein & Schmidt tangential-inlet model
 #: (Avila et al., Science 333, 192, 2011: Re_c = 2040; from memory).
@@ -322,10 +322,13 @@ def Nu_laminar_Sieder_Tate_1936(Re: float, Pr: float, De_over_L: float) -> float
     return max(1.86 * (Re * Pr * De_over_L) ** (1 / 3), 3.66)
 
 
-def Nu_transition_Hausen_1943(Re: float, Pr: float, De_over_L: float) -> float:
-    """Transitional flow in a channel, Hausen (1943).
+def Nu_transition_Gnielinski_2013(Re: float, Pr: float, De_over_L: float, De_over_Dc: float) -> float:
+    """Transitional flow in a channel: linear interpolation in Re between the laminar and the turbulent
+    correlation at the regime limits, the rule of Gnielinski (2013) adopted by the VDI Heat Atlas.
 
-    Nu = 0.116 (Re^(2/3) - 125) Pr^(1/3) [1 + (De/L)^(2/3)]   (times (mu/mu_w)^0.14 by the caller)
+    Nu = (1 - g) Nu_lam(Re_lam) + g Nu_turb(Re_turb),  g = (Re - Re_lam)/(Re_turb - Re_lam)
+    with Re_lam = 2100 (Sieder & Tate laminar, here) and Re_turb = 10^4 (Sieder & Tate turbulent with the
+    curvature factor), times (mu/mu_w)^0.14 by the caller.
 
     Parameters
     ----------
@@ -334,7 +337,9 @@ def Nu_transition_Hausen_1943(Re: float, Pr: float, De_over_L: float) -> float:
     Pr : float
         Prandtl number, [-]
     De_over_L : float
-        Equivalent diameter over channel length, [-]
+        Equivalent diameter over channel length (laminar end), [-]
+    De_over_Dc : float
+        Equivalent diameter over curvature diameter (turbulent end), [-]
 
     Returns
     -------
@@ -343,19 +348,29 @@ def Nu_transition_Hausen_1943(Re: float, Pr: float, De_over_L: float) -> float:
 
     Notes
     -----
-    2100 < Re < 10^4 (from memory, as quoted for half-pipe jackets after Garvin, CEP 1999).
+    2100 <= Re <= 10^4. Continuous with both neighbours by construction, so h has no jump where the
+    flow regime changes (Hausen's 1943 transition formula stands about 10-20 % below the turbulent
+    correlation at Re = 10^4, a jump this rule avoids). Gnielinski interpolates between 2300 and 10^4
+    with his own laminar and turbulent equations; here the same rule joins this module's correlations.
 
     Examples
     --------
-    >>> round(Nu_transition_Hausen_1943(5000.0, 5.0, 0.001), 3)
-    33.537
+    >>> lam = Nu_laminar_Sieder_Tate_1936(2100.0, 5.0, 0.001)
+    >>> turb = Nu_turbulent_Sieder_Tate_1936(1e4, 5.0, 0.05)
+    >>> Nu_transition_Gnielinski_2013(2100.0, 5.0, 0.001, 0.05) == lam
+    True
+    >>> round(Nu_transition_Gnielinski_2013(1e4, 5.0, 0.001, 0.05) - turb, 12)
+    0.0
 
     References
     ----------
-    Hausen, H. "Darstellung des Wärmeüberganges in Rohren durch verallgemeinerte Potenzbeziehungen".
-    Z. VDI Beih. Verfahrenstech. 4, 91-98 (1943).
+    Gnielinski, V. "On heat transfer in tubes". Int. J. Heat Mass Transfer 63, 134-140 (2013),
+    doi:10.1016/j.ijheatmasstransfer.2013.04.015 (from memory); VDI Heat Atlas, 2nd ed., Springer 2010, G1.
     """
-    return 0.116 * (Re ** (2 / 3) - 125.0) * Pr ** (1 / 3) * (1 + De_over_L ** (2 / 3))
+    weight = min(max((Re - LAMINAR_LIMIT) / (TURBULENT_LIMIT - LAMINAR_LIMIT), 0.0), 1.0)
+    laminar = Nu_laminar_Sieder_Tate_1936(LAMINAR_LIMIT, Pr, De_over_L)
+    turbulent = Nu_turbulent_Sieder_Tate_1936(TURBULENT_LIMIT, Pr, De_over_Dc)
+    return (1.0 - weight) * laminar + weight * turbulent
 
 
 def Nu_turbulent_Sieder_Tate_1936(Re: float, Pr: float, De_over_Dc: float) -> float:
@@ -407,9 +422,10 @@ CORRELATIONS: dict[str, Correlation] = {
     "sieder_tate_1936_laminar": Correlation(
         "Sieder & Tate (1936), laminar", Nu_laminar_Sieder_Tate_1936,
         "Sieder & Tate, Ind. Eng. Chem. 28, 1429 (1936)", {"Re": (None, LAMINAR_LIMIT), "Pr": (0.48, 16700.0)}),
-    "hausen_1943": Correlation(
-        "Hausen (1943)", Nu_transition_Hausen_1943,
-        "Hausen, Z. VDI Beih. Verfahrenstech. 4, 91 (1943)", {"Re": (LAMINAR_LIMIT, TURBULENT_LIMIT)}),
+    "gnielinski_2013": Correlation(
+        "Gnielinski (2013), transition interpolation", Nu_transition_Gnielinski_2013,
+        "Gnielinski, Int. J. Heat Mass Transfer 63, 134 (2013), doi:10.1016/j.ijheatmasstransfer.2013.04.015; "
+        + VDI_HEAT_ATLAS, {"Re": (LAMINAR_LIMIT, TURBULENT_LIMIT)}),
     "sieder_tate_1936_turbulent": Correlation(
         "Sieder & Tate (1936), turbulent, coil factor 1 + 3.5 De/Dc", Nu_turbulent_Sieder_Tate_1936,
         "Sieder & Tate, Ind. Eng. Chem. 28, 1429 (1936); curvature factor after McAdams",
@@ -511,12 +527,12 @@ def _channel(props, m_channel, area, d_e, length, d_curve, mu_wall, warnings) ->
     if Re < LAMINAR_LIMIT:
         key, args = "sieder_tate_1936_laminar", (Re, Pr, d_e / length)
     elif Re < TURBULENT_LIMIT:
-        key, args = "hausen_1943", (Re, Pr, d_e / length)
-        # Short channels: the laminar entry value can exceed Hausen's just above Re = 2100; transitional
-        # flow never transfers less than laminar flow would (common practice, no source), so h stays
-        # monotonic in the flow across the regime boundary.
-        if Nu_laminar_Sieder_Tate_1936(*args) > Nu_transition_Hausen_1943(*args):
-            key = "sieder_tate_1936_laminar"
+        key, args = "gnielinski_2013", (Re, Pr, d_e / length, d_e / d_curve)
+        # Short channels: the laminar entry value at this Re can exceed the interpolation just above
+        # Re = 2100; transitional flow never transfers less than laminar flow would (common practice,
+        # no source), so h stays monotonic in the flow across the regime boundary.
+        if Nu_laminar_Sieder_Tate_1936(Re, Pr, d_e / length) > Nu_transition_Gnielinski_2013(*args):
+            key, args = "sieder_tate_1936_laminar", (Re, Pr, d_e / length)
     else:
         key, args = "sieder_tate_1936_turbulent", (Re, Pr, d_e / d_curve)
     entry = CORRELATIONS[key]

@@ -134,7 +134,7 @@ def test_half_pipe_120_degree_section():
 
 def test_half_pipe_laminar_and_transitional_by_hand():
     # Laminar: Sieder & Tate 1.86 (Re Pr De/L)^(1/3) Vi^0.14 = ht.laminar_entry_Seider_Tate (oracle).
-    # Transitional: Hausen 0.116 (Re^(2/3) - 125) Pr^(1/3) [1 + (De/L)^(2/3)] Vi^0.14 (METHODS 3.3, hand).
+    # Transitional: interpolation between the two (Gnielinski 2013), see below.
     d, pitch, D_o, H = 0.1, 0.125, 2.0, 2.0
     jacket = JacketSpec("half_pipe", pipe_diameter=d, pipe_pitch=pitch, passes=2)
     L = (H / 2) / pitch * math.hypot(math.pi * D_o, pitch)  # per pass
@@ -148,8 +148,12 @@ def test_half_pipe_laminar_and_transitional_by_hand():
             Nu = laminar_entry_Seider_Tate(Re, glycol.prandtl, L, d_e, glycol.viscosity, 10e-3)
             assert r.regime == "laminar" and any(w.code == "laminar_flow" for w in r.warnings)
         else:
-            Nu = (0.116 * (Re ** (2 / 3) - 125) * glycol.prandtl ** (1 / 3) * (1 + (d_e / L) ** (2 / 3))
-                  * (8 / 10) ** 0.14)
+            # Gnielinski (2013) / VDI Heat Atlas G1 rule (from memory): linear in Re between the laminar
+            # value at Re = 2100 and the turbulent value at Re = 1e4, each from the ht oracle.
+            weight = (Re - 2100) / (1e4 - 2100)
+            lam = laminar_entry_Seider_Tate(2100, glycol.prandtl, L, d_e, glycol.viscosity, 10e-3)
+            turb = turbulent_Sieder_Tate(1e4, glycol.prandtl, glycol.viscosity, 10e-3) * (1 + 3.5 * d_e / D_o)
+            Nu = (1 - weight) * lam + weight * turb
             assert r.regime == "transitional"
         assert r.nusselt == pytest.approx(Nu, rel=1e-12)
 
@@ -284,3 +288,19 @@ def test_registry_names_resolve_to_the_authors_functions():
         assert first_author in entry.function.__name__, key
         assert year in entry.function.__name__, key
         assert entry.source
+
+
+@pytest.mark.parametrize("Re_limit", [2100.0, 1.0e4])
+def test_channel_film_is_continuous_across_the_regime_limits(Re_limit):
+    # The transition rule (Gnielinski 2013, from memory) meets the laminar and turbulent correlations at
+    # their limits: no jump in h where the coolant's Reynolds number crosses them (definition of the rule).
+    d, pitch, D_o, H = 0.1, 0.125, 2.0, 2.0
+    jacket = JacketSpec("half_pipe", pipe_diameter=d, pipe_pitch=pitch)
+    d_e, area = math.pi * d / 2, math.pi * d * d / 8
+
+    def h_at(Re):
+        return service_film_jacket(jacket, WATER_20, Re * area * WATER_20.viscosity / d_e, WATER_20.viscosity,
+                                   D_o, H).h
+
+    below, above = h_at(Re_limit * (1 - 1e-9)), h_at(Re_limit * (1 + 1e-9))
+    assert above == pytest.approx(below, rel=1e-6)
