@@ -26,9 +26,12 @@ def render(fig, fmt: str) -> bytes:
     """SVG or PNG bytes of ``fig`` (reproducible: no date in the SVG); closes the figure."""
     import matplotlib.pyplot as plt
 
+    import matplotlib
+
     buffer = io.BytesIO()
     fig.tight_layout()
-    fig.savefig(buffer, format=fmt, dpi=120, metadata={"Date": None} if fmt == "svg" else None)
+    with matplotlib.rc_context({"svg.hashsalt": "coolmargin"}):  # the same chart gives the same bytes
+        fig.savefig(buffer, format=fmt, dpi=120, metadata={"Date": None} if fmt == "svg" else None)
     plt.close(fig)
     return buffer.getvalue()
 
