@@ -356,8 +356,10 @@ class SimulationSummarySchema(StrictSchema):
 class SeriesSchema(StrictSchema):
     time = fields.List(Quantity("time"))
     temperature = fields.List(Quantity("temperature"))
-    coolant_inlet_temperature = fields.List(Quantity("temperature"))
-    coolant_outlet_temperature = fields.List(Quantity("temperature"))
+    coolant_inlet_temperature = fields.List(Quantity("temperature", allow_none=True),
+                                            metadata={"description": "null once the cooling has failed"})
+    coolant_outlet_temperature = fields.List(Quantity("temperature", allow_none=True),
+                                             metadata={"description": "null once the cooling has failed"})
     mass = fields.List(Quantity("mass"))
     conversion = fields.List(fields.Float())
     accumulation = fields.List(fields.Float())
@@ -394,6 +396,10 @@ def simulation_dict(result: tank_model.SimulationResult) -> dict:
     series = {name: np.asarray(getattr(s, name), dtype=float).tolist() for name in _SERIES_FIELDS}
     series["concentrations"] = {name: np.asarray(row, dtype=float).tolist()
                                 for name, row in zip(result.species, s.concentrations)}
+    failure = summary.failure_time
+    if failure is not None:  # no coolant flows after the failure: its temperatures are not reported
+        for name in ("coolant_inlet_temperature", "coolant_outlet_temperature"):
+            series[name] = [None if t > failure else value for t, value in zip(series["time"], series[name])]
     return {
         "success": bool(result.success), "status": int(result.status), "message": result.message,
         "species": list(result.species),

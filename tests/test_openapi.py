@@ -105,6 +105,7 @@ CALCULATION_SAMPLES = [
     ("/v1/geometry", {"vessel": EXAMPLE["vessel"], "fill": {"level": "1.5 m"}}),
     ("/v1/coolant-balance", {"process_temperature": 60, "coolant": EXAMPLE["coolant"], "ua": "4 kW/K"}),
     ("/v1/heat-transfer", dict(EXAMPLE, process_temperature=10)),  # coolant warmer than contents: 422
+    ("/v1/simulations", json.loads((SPEC_PATH.parent / "examples" / "simulation_production_failure.json").read_text())),
 ]
 
 

@@ -155,3 +155,19 @@ def test_simulation_with_the_vessel_uses_the_heat_transfer_core(client):
     assert first["summary"]["peak_jacket_duty"] == pytest.approx(second["summary"]["peak_jacket_duty"], rel=1e-5)
     assert first["summary"]["peak_jacket_duty"] > 0
 
+
+
+def test_coolant_temperatures_are_not_reported_after_the_cooling_failure(client):
+    # After the failure no coolant flows (jacket duty zero): its temperatures are null, not a stale value.
+    import json
+    from pathlib import Path
+
+    body = json.loads((Path(__file__).resolve().parents[1] / "examples" /
+                       "simulation_production_failure.json").read_text())
+    result = client.post("/v1/simulations", json=body).json
+    failure = result["summary"]["failure_time"]
+    series = result["series"]
+    for time, inlet, duty in zip(series["time"], series["coolant_inlet_temperature"], series["jacket_duty"]):
+        assert (inlet is None) == (time > failure)
+        if time > failure:
+            assert duty == 0.0
