@@ -500,6 +500,17 @@ class CSTRResultSchema(StrictSchema):
     cautions = fields.List(fields.String())
 
 
+CURVE_POINTS = 401  # points of the returned curves; the states are found on the full scan grid
+
+
+def _thinned(values) -> list[float]:
+    """At most CURVE_POINTS evenly spaced points of a scan, first and last kept."""
+    values = np.asarray(values, dtype=float)
+    if values.size <= CURVE_POINTS:
+        return values.tolist()
+    return values[np.linspace(0, values.size - 1, CURVE_POINTS).round().astype(int)].tolist()
+
+
 def steady_states_dict(result: steady_states.SteadyStatesResult) -> dict:
     states = []
     for s in result.states:
@@ -512,8 +523,7 @@ def steady_states_dict(result: steady_states.SteadyStatesResult) -> dict:
         })
     return {
         "states": states,
-        "curves": {"temperature": np.asarray(result.temperature, dtype=float).tolist(),
-                   "heat_generation": np.asarray(result.heat_generation, dtype=float).tolist(),
-                   "heat_removal": np.asarray(result.heat_removal, dtype=float).tolist()},
+        "curves": {name: _thinned(getattr(result, name)) for name in ("temperature", "heat_generation",
+                                                                       "heat_removal")},
         "warnings": warning_dicts(result.warnings), "cautions": list(result.cautions),
     }

@@ -171,3 +171,18 @@ def test_coolant_temperatures_are_not_reported_after_the_cooling_failure(client)
         assert (inlet is None) == (time > failure)
         if time > failure:
             assert duty == 0.0
+
+
+def test_cstr_three_states_and_thinned_curves(client):
+    # The invented example has three steady states, the middle one unstable (Van Heerden 1953 slope
+    # condition: the classic ignition/extinction picture). Curves come back thinned, states exact.
+    import json
+    from pathlib import Path
+
+    body = json.loads((Path(__file__).resolve().parents[1] / "examples" / "cstr_steady_states.json").read_text())
+    result = client.post("/v1/cstr-steady-states", json=body).json
+    assert [state["stable"] for state in result["states"]] == [True, False, True]
+    curves = result["curves"]
+    assert len(curves["temperature"]) == 401
+    assert curves["temperature"][0] <= result["states"][0]["temperature"]
+    assert result["states"][-1]["temperature"] <= curves["temperature"][-1]
