@@ -61,9 +61,9 @@ def request_object() -> dict:
     return data
 
 
-def load(schema: Schema, data: dict | None = None) -> dict:
+def load(schema: Schema) -> dict:
     """Validate and convert the request object with ``schema`` (ValidationError -> 422)."""
-    return schema.load(request_object() if data is None else data)
+    return schema.load(request_object())
 
 
 def units_of(schema: Schema) -> dict[str, str]:
