@@ -1,7 +1,8 @@
 """Agitation: ``/v1/agitation`` and the impeller library ``/v1/impellers``."""
 from flask import Blueprint
 
-from calc import agitation, geometry
+from calc.vessel import agitation
+from calc.vessel import geometry
 from schemas.heat_transfer import AgitationRequestSchema, AgitationResultSchema, ImpellerSchema, agitation_dict
 
 from .http import list_response, load, respond

@@ -1,7 +1,8 @@
 """The main job: ``/v1/cooling-check`` for one vessel and ``/v1/scale-up`` along a scale-up path."""
 from flask import Blueprint, current_app
 
-from calc import cooling, scaleup
+from calc.checks import cooling_check as cooling
+from calc.checks import scaleup
 from schemas.cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
                              ScaleUpResultSchema, cooling_check_dict, scale_up_dict)
 

@@ -1,7 +1,7 @@
 """Vessel geometry: ``/v1/geometry``."""
 from flask import Blueprint
 
-from calc import geometry
+from calc.vessel import geometry
 from schemas.heat_transfer import GeometryRequestSchema, GeometryResultSchema, fill_dict
 
 from .http import load, respond

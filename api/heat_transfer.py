@@ -1,7 +1,8 @@
 """Heat transfer: ``/v1/heat-transfer``, ``/v1/coolant-balance`` and the wall library ``/v1/materials``."""
 from flask import Blueprint
 
-from calc import heat_transfer, wall
+from calc.network import heat_transfer
+from calc.films import wall
 from schemas.heat_transfer import (CoolantBalanceRequestSchema, CoolantBalanceResultSchema,
                                    HeatTransferRequestSchema, HeatTransferResultSchema, MaterialSchema,
                                    coolant_balance_dict, heat_transfer_dict)

@@ -3,8 +3,12 @@ from __future__ import annotations
 
 from flask import Blueprint, Response, current_app, request
 
-from calc import dynamics, heat_transfer, safety, steady_states, tank_model
-from calc.vessel import Charge
+from calc.safety import dynamics
+from calc.network import heat_transfer
+from calc.safety import criticality as safety
+from calc.safety import steady_states
+from calc.safety import tank_model
+from calc.vessel.model import Charge
 from schemas.base import clean
 from schemas.heat_transfer import warning_dicts
 from schemas.safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,

@@ -22,7 +22,7 @@ from functools import lru_cache
 
 import CoolProp.CoolProp as CP
 
-from .validity import InputError
+from calc.validity import InputError
 
 STANDARD_PRESSURE = 101325.0  # Pa
 GAS_CONSTANT = 8.314462618  # J/(mol K), CODATA 2018 exact value

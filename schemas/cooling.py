@@ -3,7 +3,9 @@ from __future__ import annotations
 
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
-from calc import agitation, heat_load, scaleup
+from calc.vessel import agitation
+from calc.checks import heat_load
+from calc.checks import scaleup
 
 from .base import StrictSchema, finite_float
 from .heat_transfer import (HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema,

@@ -10,7 +10,9 @@ import math
 import numpy as np
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
-from calc import safety, steady_states, tank_model
+from calc.safety import criticality as safety
+from calc.safety import steady_states
+from calc.safety import tank_model
 from calc.properties import FLUIDS, STANDARD_PRESSURE
 
 from .base import StrictSchema, finite_float

@@ -7,8 +7,13 @@ from __future__ import annotations
 
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
-from calc import agitation, geometry, heads, properties, service_side, wall
-from calc.vessel import Charge, Coolant, Vessel
+from calc.vessel import agitation
+from calc.vessel import geometry
+from calc.vessel import heads
+from calc import properties
+from calc.films import jacket_side as service_side
+from calc.films import wall
+from calc.vessel.model import Charge, Coolant, Vessel
 
 from .base import StrictSchema, finite_float
 from .units import Quantity, parse_quantity

@@ -6,7 +6,7 @@ from fluids.core import Froude, Reynolds
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from calc.agitation import (GRAVITY, IMPELLERS, Agitator, agitation, power_number, power_number_blend,
+from calc.vessel.agitation import (GRAVITY, IMPELLERS, Agitator, agitation, power_number, power_number_blend,
                             reynolds_impeller, scaled_speed)
 from calc.properties import LibraryLiquid, LiquidProperties
 from calc.validity import InputError

@@ -6,7 +6,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.integrate import quad, solve_ivp
 
-from calc.coolant import (coolant_balance, log_mean_temperature_difference, maximum_inlet_temperature,
+from calc.network.coolant_balance import (coolant_balance, log_mean_temperature_difference, maximum_inlet_temperature,
                           required_flow)
 from calc.validity import InputError
 

@@ -10,13 +10,16 @@ import CoolProp.CoolProp as CP
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from calc import agitation, geometry, service_side, wall
-from calc.cooling import CAUTIONS, DOSING_CAUTION, FLOW_SEARCH_CAP, cooling_check
-from calc.heat_load import Dosing, SpecificPower, TotalPower
-from calc.heat_transfer import heat_transfer
+from calc.vessel import agitation
+from calc.vessel import geometry
+from calc.films import jacket_side as service_side
+from calc.films import wall
+from calc.checks.cooling_check import CAUTIONS, DOSING_CAUTION, FLOW_SEARCH_CAP, cooling_check
+from calc.checks.heat_load import Dosing, SpecificPower, TotalPower
+from calc.network.heat_transfer import heat_transfer
 from calc.properties import LibraryLiquid
 from calc.validity import InputError
-from calc.vessel import Charge, Coolant, Vessel
+from calc.vessel.model import Charge, Coolant, Vessel
 
 K = 273.15
 HOUR = 3600.0

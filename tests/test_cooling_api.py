@@ -111,7 +111,7 @@ def test_spreadsheet_url_in_the_demo_guide_answers_one_number(client):
 def test_internal_error_in_one_batch_case_is_that_case_only(client, monkeypatch, caplog):
     # A fault inside one case (here an injected bug) answers that case with a 500 problem carrying the
     # request id and is logged; the other cases are computed as usual.
-    from calc import cooling
+    from calc.checks import cooling_check as cooling
 
     real = cooling.cooling_check
 

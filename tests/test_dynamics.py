@@ -11,12 +11,12 @@ import pytest
 from hypothesis import given, settings, strategies as st
 from scipy.linalg import expm
 
-from calc.dynamics import simulate
-from calc.tank_model import (
+from calc.safety.dynamics import simulate
+from calc.safety.tank_model import (
     Budget, Charge, Controller, CoolingFailure, Feed, FeedStep, Jacket, Reaction, SimulationInput, Species,
     TemperatureLimit,
 )
-from calc.safety import adiabatic_temperature_rise_from_enthalpy, mtsr_from_profile
+from calc.safety.criticality import adiabatic_temperature_rise_from_enthalpy, mtsr_from_profile
 from calc.validity import InputError
 
 K = 273.15

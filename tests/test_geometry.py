@@ -18,10 +18,10 @@ from hypothesis import strategies as st
 from scipy.integrate import quad
 from scipy.optimize import brentq
 
-from calc.geometry import (HelicalCoil, JacketCoverage, VesselShape, brim_height, coil_height, coil_outer_area,
+from calc.vessel.geometry import (HelicalCoil, JacketCoverage, VesselShape, brim_height, coil_height, coil_outer_area,
                            coil_submerged, coil_tube_length, fill, head_depth, jacketed_area, level_at_volume,
                            scale_coil, scale_jacket, scale_shape, volume_at_level, wetted_area)
-from calc.heads import HEADS
+from calc.vessel.heads import HEADS
 from calc.validity import InputError
 
 TORI = {"torispherical_fd": (1.0, 0.06), "torispherical_klopper": (1.0, 0.10),

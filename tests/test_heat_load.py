@@ -8,7 +8,7 @@ import math
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from calc.heat_load import Dosing, MODELS, SpecificPower, TotalPower, heat_load, heat_release_model
+from calc.checks.heat_load import Dosing, MODELS, SpecificPower, TotalPower, heat_load, heat_release_model
 from calc.validity import InputError
 
 K = 273.15

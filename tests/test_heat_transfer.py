@@ -5,8 +5,8 @@ from dataclasses import replace
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from calc import process_side
-from calc.heat_transfer import heat_transfer
+from calc.films import process_side
+from calc.network.heat_transfer import heat_transfer
 from schemas.heat_transfer import HeatTransferRequestSchema
 from serving import ROOT
 

@@ -11,12 +11,16 @@ from dataclasses import replace
 
 from hypothesis import HealthCheck, assume, given, settings, strategies as st
 
-from calc import agitation, geometry, heat_load, service_side, wall
-from calc.cooling import cooling_check
-from calc.heat_transfer import heat_transfer
+from calc.vessel import agitation
+from calc.vessel import geometry
+from calc.checks import heat_load
+from calc.films import jacket_side as service_side
+from calc.films import wall
+from calc.checks.cooling_check import cooling_check
+from calc.network.heat_transfer import heat_transfer
 from calc.properties import LibraryLiquid
 from calc.validity import InputError
-from calc.vessel import Charge, Coolant, Vessel
+from calc.vessel.model import Charge, Coolant, Vessel
 
 SETTINGS = settings(max_examples=100, deadline=None, derandomize=True,
                     suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much])

@@ -3,9 +3,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from calc import process_side
-from calc.agitation import IMPELLERS, Agitator, agitation, scaled_speed
-from calc.process_side import (CORRELATIONS, nusselt_agitated_Chilton_Drew_Jebens_1944,
+from calc.films import process_side
+from calc.vessel.agitation import IMPELLERS, Agitator, agitation, scaled_speed
+from calc.films.process_side import (CORRELATIONS, nusselt_agitated_Chilton_Drew_Jebens_1944,
                                nusselt_coil_Oldshue_Gretton_1954, process_film_coil, process_film_jacket)
 from calc.properties import LibraryLiquid, LiquidProperties
 from calc.validity import InputError

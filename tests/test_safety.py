@@ -7,9 +7,10 @@ from hypothesis import given, settings, strategies as st
 from scipy.integrate import quad
 
 from calc.properties import GAS_CONSTANT as R
-from calc import runaway, safety
-from calc.runaway import assess_semenov, semenov_number
-from calc.safety import (
+from calc.safety import runaway
+from calc.safety import criticality as safety
+from calc.safety.runaway import assess_semenov, semenov_number
+from calc.safety.criticality import (
     Decomposition, ThermalSafetyInput, adiabatic_temperature_rise_from_enthalpy, assess_thermal_safety,
     criticality_class_Stoessel_1993, decomposition_power, mtsr_from_profile, mtsr_Stoessel_1993,
     td24_Townsend_Tou_1980, tmr_ad_Townsend_Tou_1980,

@@ -8,13 +8,16 @@ import math
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from calc import agitation, geometry, service_side, wall
-from calc.agitation import IMPELLERS
-from calc.heat_load import Dosing, SpecificPower
+from calc.vessel import agitation
+from calc.vessel import geometry
+from calc.films import jacket_side as service_side
+from calc.films import wall
+from calc.vessel.agitation import IMPELLERS
+from calc.checks.heat_load import Dosing, SpecificPower
 from calc.properties import ExplicitLiquid, LibraryLiquid
-from calc.scaleup import scale_up
+from calc.checks.scaleup import scale_up
 from calc.validity import InputError
-from calc.vessel import Charge, Coolant, Vessel
+from calc.vessel.model import Charge, Coolant, Vessel
 
 K = 273.15
 T_R = K + 60

@@ -11,9 +11,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from calc.properties import LiquidProperties
-from calc import coil_side
-from calc.coil_side import service_film_coil
-from calc.service_side import (CORRELATIONS, JacketSpec, friction_factor_Colebrook_1939, h_jacket_Lehrer_1970,
+from calc.films import coil_side
+from calc.films.coil_side import service_film_coil
+from calc.films.jacket_side import (CORRELATIONS, JacketSpec, friction_factor_Colebrook_1939, h_jacket_Lehrer_1970,
                                h_jacket_Stein_Schmidt_1993, service_film_jacket)
 from calc.validity import InputError
 
@@ -234,7 +234,7 @@ def test_more_flow_never_lowers_h(m, factor, kind):
 
 def test_schmidt_step_at_22000_is_small():
     # Hand evaluation of both Schmidt (1967) ranges at Re = 2.2e4, r = 0.0333: 85.1 vs 84.2 Pr^(1/3), ~1 % apart.
-    from calc.coil_side import Nu_coil_turbulent_Schmidt_1967 as schmidt
+    from calc.films.coil_side import Nu_coil_turbulent_Schmidt_1967 as schmidt
     below, above = schmidt(2.2e4, 5.0, 0.05 / 1.5), schmidt(2.2e4 * (1 + 1e-12), 5.0, 0.05 / 1.5)
     assert above == pytest.approx(below, rel=0.02) and above != below
 

@@ -6,10 +6,10 @@ import pytest
 from hypothesis import given, settings, strategies as st
 from scipy.optimize import brentq
 
-from calc.dynamics import simulate
-from calc.tank_model import Charge, Feed, Jacket, Reaction, SimulationInput, Species, Budget
+from calc.safety.dynamics import simulate
+from calc.safety.tank_model import Charge, Feed, Jacket, Reaction, SimulationInput, Species, Budget
 from calc.properties import GAS_CONSTANT as R
-from calc.steady_states import CSTRInput, cstr_steady_states, outlet_concentration
+from calc.safety.steady_states import CSTRInput, cstr_steady_states, outlet_concentration
 from calc.validity import InputError
 
 # Invented cooled CSTR with three steady states (parameters chosen for it, not from a source).

@@ -8,7 +8,7 @@ from hypothesis import strategies as st
 from scipy.integrate import quad
 
 from calc.validity import InputError
-from calc.wall import (LAYERS, MATERIALS, Fouling, WallSpec, interface_temperatures, layer_resistance, material,
+from calc.films.wall import (LAYERS, MATERIALS, Fouling, WallSpec, interface_temperatures, layer_resistance, material,
                        overall_coefficient)
 
 films = st.floats(min_value=10.0, max_value=1e5)

@@ -121,7 +121,10 @@ def main(argv: list[str] | None = None) -> int:
 def calculation_medians(repeats: int = 21) -> list[tuple[str, float]]:
     """Median times of the calc functions behind the main routes, with their inputs parsed once."""
     from api import create_app
-    from calc import cooling, dynamics, scaleup, tank_model
+    from calc.checks import cooling_check as cooling
+    from calc.safety import dynamics
+    from calc.checks import scaleup
+    from calc.safety import tank_model
     from schemas.cooling import CoolingCheckRequestSchema, ScaleUpRequestSchema
     from schemas.safety import SimulationRequestSchema, simulation_input
 

@@ -13,9 +13,9 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-from .agitation import IMPELLERS, LAMINAR_REYNOLDS, TURBULENT_REYNOLDS, FilmConstants, ImpellerInfo, impeller_info
-from .properties import LiquidProperties
-from .validity import CalcWarning, Correlation, InputError, Warnings, require_positive
+from calc.vessel.agitation import IMPELLERS, LAMINAR_REYNOLDS, TURBULENT_REYNOLDS, FilmConstants, ImpellerInfo, impeller_info
+from calc.properties import LiquidProperties
+from calc.validity import CalcWarning, Correlation, InputError, Warnings, require_positive
 
 
 def nusselt_agitated_Chilton_Drew_Jebens_1944(Re: float, Pr: float, viscosity_ratio: float, a: float,

@@ -27,8 +27,8 @@ from typing import NamedTuple
 from scipy.constants import g
 from scipy.special import wrightomega
 
-from .properties import LiquidProperties
-from .validity import CalcWarning, Correlation, InputError, Warnings, require_positive
+from calc.properties import LiquidProperties
+from calc.validity import CalcWarning, Correlation, InputError, Warnings, require_positive
 
 #: Below this coolant velocity a jacket fouls and its film is poor (common practice, no source).
 LOW_VELOCITY = 0.3  # m/s

@@ -8,9 +8,9 @@ from __future__ import annotations
 
 import math
 
-from .properties import LiquidProperties
-from .service_side import VDI_HEAT_ATLAS, FilmResult, flow_warnings
-from .validity import Correlation, InputError, Warnings, require_positive
+from calc.properties import LiquidProperties
+from calc.films.jacket_side import VDI_HEAT_ATLAS, FilmResult, flow_warnings
+from calc.validity import Correlation, InputError, Warnings, require_positive
 
 
 def Nu_coil_laminar_Schmidt_1967(Re: float, Pr: float, r: float) -> float:

@@ -22,8 +22,8 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.optimize import brentq
 
-from .properties import GAS_CONSTANT, STANDARD_PRESSURE, liquid_range
-from .validity import CalcWarning, CalculationError, Correlation, InputError, Warnings, require_positive
+from calc.properties import GAS_CONSTANT, STANDARD_PRESSURE, liquid_range
+from calc.validity import CalcWarning, CalculationError, Correlation, InputError, Warnings, require_positive
 
 SECONDS_PER_HOUR = 3600.0
 #: Adiabatic time to maximum rate that defines T_D24, s (Stoessel 2008: 24 h).

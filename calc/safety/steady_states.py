@@ -24,8 +24,8 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.optimize import brentq
 
-from .properties import GAS_CONSTANT
-from .validity import CalcWarning, Correlation, InputError, Warnings, require_positive
+from calc.properties import GAS_CONSTANT
+from calc.validity import CalcWarning, Correlation, InputError, Warnings, require_positive
 
 CAUTION = ("Screening estimate: confirm with reaction calorimetry and plant data, follow local codes "
            "and have a licensed engineer review the result.")

@@ -30,11 +30,11 @@ from dataclasses import dataclass, field, replace
 
 from scipy.optimize import brentq
 
-from . import coolant as coolant_balance
-from .heat_load import Dosing, HeatLoad, HeatRelease, heat_load
-from .heat_transfer import HeatTransferResult, heat_transfer
-from .validity import CalcWarning, CalculationError, InputError, Warnings
-from .vessel import Charge, Coolant, Vessel
+from calc.network import coolant_balance
+from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
+from calc.network.heat_transfer import HeatTransferResult, heat_transfer
+from calc.validity import CalcWarning, CalculationError, InputError, Warnings
+from calc.vessel.model import Charge, Coolant, Vessel
 
 #: Safety factor on the heat load when none is given (common practice, no source).
 DEFAULT_SAFETY_FACTOR = 1.3

@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-from .validity import CalcWarning, InputError, Warnings, require_positive
+from calc.validity import CalcWarning, InputError, Warnings, require_positive
 
 #: Order of the resistances from the process to the coolant.
 LAYERS = ("process_film", "process_fouling", "lining", "wall", "service_fouling", "service_film")

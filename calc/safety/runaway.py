@@ -17,9 +17,9 @@ from dataclasses import dataclass, field
 
 from scipy.optimize import brentq
 
-from .properties import GAS_CONSTANT
-from .safety import CAUTION, _require_temperature, decomposition_power
-from .validity import CalculationError, Correlation, InputError, Warnings, require_positive
+from calc.properties import GAS_CONSTANT
+from calc.safety.criticality import CAUTION, _require_temperature, decomposition_power
+from calc.validity import CalculationError, Correlation, InputError, Warnings, require_positive
 
 
 def semenov_number(heat_generation: float, activation_energy: float, ua: float,

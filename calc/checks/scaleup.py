@@ -35,14 +35,14 @@ from dataclasses import dataclass, field, replace
 
 from scipy.optimize import brentq
 
-from . import agitation as agitation_module
-from . import geometry
-from .cooling import CAUTIONS, DEFAULT_SAFETY_FACTOR, DOSING_CAUTION, CoolingCheck, _check_safety_factor, \
+from calc.vessel import agitation as agitation_module
+from calc.vessel import geometry
+from calc.checks.cooling_check import CAUTIONS, DEFAULT_SAFETY_FACTOR, DOSING_CAUTION, CoolingCheck, _check_safety_factor, \
     cooling_check, evaluate, margin_of
-from .heat_load import Dosing, HeatRelease
-from .properties import LiquidProperties
-from .validity import CalcWarning, CalculationError, InputError, Warnings
-from .vessel import Charge, Coolant, Vessel
+from calc.checks.heat_load import Dosing, HeatRelease
+from calc.properties import LiquidProperties
+from calc.validity import CalcWarning, CalculationError, InputError, Warnings
+from calc.vessel.model import Charge, Coolant, Vessel
 
 RULES = tuple(sorted(agitation_module.SCALE_UP_RULES)) + ("as_given",)
 COOLANT_FLOW_RULES = ("scale_with_area", "as_given")

@@ -17,7 +17,7 @@ from typing import Callable
 import numpy as np
 from scipy.integrate import BDF, LSODA, Radau
 
-from .validity import CalcWarning, InputError, Warnings, require_positive
+from calc.validity import CalcWarning, InputError, Warnings, require_positive
 
 CAUTION = ("Screening estimate: confirm with reaction calorimetry and plant data, follow local codes "
            "and have a licensed engineer review the result.")

@@ -19,10 +19,16 @@ import math
 from dataclasses import dataclass, field, replace
 from typing import Callable
 
-from . import agitation, coil_side, coolant as coolant_balance_module, geometry, process_side, service_side, wall
-from .properties import LiquidProperties
-from .validity import CalcWarning, InputError, Warnings
-from .vessel import Charge, Coolant, Vessel
+from calc.vessel import agitation
+from calc.films import coil_side
+from calc.network import coolant_balance as coolant_balance_module
+from calc.vessel import geometry
+from calc.films import process_side
+from calc.films import jacket_side as service_side
+from calc.films import wall
+from calc.properties import LiquidProperties
+from calc.validity import CalcWarning, InputError, Warnings
+from calc.vessel.model import Charge, Coolant, Vessel
 
 TOLERANCE = 1e-6  # K
 MAX_ITERATIONS = 60

@@ -21,7 +21,7 @@ from dataclasses import dataclass, field
 
 from scipy.special import lambertw
 
-from .validity import CalcWarning, InputError, Warnings, require_positive
+from calc.validity import CalcWarning, InputError, Warnings, require_positive
 
 #: Coolant inlet within this many kelvin of its freezing point draws a warning (common practice, no source).
 FREEZING_MARGIN = 5.0

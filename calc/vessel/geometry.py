@@ -16,8 +16,8 @@ from functools import lru_cache
 
 from scipy.optimize import brentq
 
-from .heads import HEADS, HeadProfile
-from .validity import CalcWarning, InputError, Warnings, require_positive
+from calc.vessel.heads import HEADS, HeadProfile
+from calc.validity import CalcWarning, InputError, Warnings, require_positive
 
 
 # --------------------------------------------------------------------------------------------------

@@ -18,8 +18,8 @@ from dataclasses import dataclass, field
 
 from scipy.optimize import brentq
 
-from .properties import LiquidProperties
-from .validity import CalcWarning, CalculationError, InputError, Warnings, require_positive
+from calc.properties import LiquidProperties
+from calc.validity import CalcWarning, CalculationError, InputError, Warnings, require_positive
 
 GRAVITY = 9.80665  # m/s2, standard acceleration of gravity (CGPM 1901)
 

@@ -9,11 +9,11 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field, replace
 
-from . import geometry
-from .agitation import Agitator
-from .properties import Liquid
-from .validity import InputError
-from .wall import Fouling, WallSpec
+from calc.vessel import geometry
+from calc.vessel.agitation import Agitator
+from calc.properties import Liquid
+from calc.validity import InputError
+from calc.films.wall import Fouling, WallSpec
 
 
 _JACKET_LENGTHS = ("gap", "baffle_pitch", "pipe_diameter", "pipe_pitch", "inlet_diameter")

@@ -40,12 +40,12 @@ import numpy as np
 from scipy.integrate import OdeSolution
 from scipy.optimize import brentq, minimize_scalar
 
-from .properties import GAS_CONSTANT
-from .tank_model import (
+from calc.properties import GAS_CONSTANT
+from calc.safety.tank_model import (
     METHODS, MODES, CoolingFailure, LimitCrossing, Series, SimulationInput, SimulationResult, Summary,
     TemperatureLimit, default_limiting_reagent, validate,
 )
-from .validity import CalcWarning, InputError, Warnings
+from calc.validity import CalcWarning, InputError, Warnings
 
 MESSAGES = {
     0: "The horizon was reached.",
@@ -474,7 +474,7 @@ def simulate(inp: SimulationInput) -> SimulationResult:
     --------
     First-order A -> B in a batch without heat of reaction: conversion 1 - exp(-k t).
 
-    >>> from calc.tank_model import Charge, Reaction, SimulationInput, Species
+    >>> from calc.safety.tank_model import Charge, Reaction, SimulationInput, Species
     >>> sp = (Species("A", 0.1, 2000.0), Species("B", 0.1, 2000.0))
     >>> rx = (Reaction({"A": -1, "B": 1}, {"A": 1}, 1e-3, 350.0, 60e3, 0.0),)
     >>> ch = Charge(1000.0, 350.0, {"A": 1.0}, 900.0, 2000.0)

@@ -31,7 +31,7 @@ from __future__ import annotations
 import math
 from dataclasses import MISSING, dataclass, field, fields, replace
 
-from .validity import CalcWarning, InputError, Warnings
+from calc.validity import CalcWarning, InputError, Warnings
 
 
 def _finite(field_name: str, value) -> float:

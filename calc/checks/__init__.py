@@ -1,0 +1,1 @@
+"""Heat load, the cooling check with its limits, and scale-up."""

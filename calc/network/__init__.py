@@ -1,0 +1,1 @@
+"""The assembled heat-transfer network and the single-pass coolant balance."""

@@ -1,0 +1,1 @@
+"""Cooling failure: adiabatic rise, MTSR, TMR_ad, criticality, runaway criteria, dynamics, CSTR states."""

@@ -1,0 +1,1 @@
+"""Vessel description: bottom heads, geometry of fill, jacket and coils, agitation."""
