@@ -2,23 +2,22 @@
 from flask import Blueprint
 
 from calc.vessel import agitation
-from calc.vessel import geometry
-from schemas.heat_transfer import AgitationRequestSchema, AgitationResultSchema, ImpellerSchema, agitation_dict
+from calc.vessel.model import stirred
+from schemas.heat_transfer import AgitationRequestSchema, AgitationResultSchema, ImpellerSchema
 
-from .http import list_response, load, respond
+from .http import calculate, list_response
 
 bp = Blueprint("agitation", __name__, url_prefix="/v1")
 _request, _result, _impeller = AgitationRequestSchema(), AgitationResultSchema(), ImpellerSchema()
 
 
+def _stirred(args: dict) -> agitation.AgitationResult:
+    return stirred(args["vessel"], args["charge"], args["process_temperature"])
+
+
 @bp.route("/agitation", methods=["GET", "POST"])
 def agitator_power():
-    args = load(_request)
-    vessel, charge, temperature = args["vessel"], args["charge"], args["process_temperature"]
-    props = charge.liquid.at(temperature, field="process_temperature")
-    filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=charge.liquid_volume(temperature))
-    result = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
-    return respond(agitation_dict(result), _result)
+    return calculate(_request, _stirred, _result)
 
 
 @bp.get("/impellers")

@@ -4,7 +4,7 @@ from flask import Blueprint, current_app
 from calc.checks import cooling_check as cooling
 from calc.checks import scaleup
 from schemas.cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
-                             ScaleUpResultSchema, cooling_check_dict, scale_up_dict)
+                             ScaleUpResultSchema)
 
 from . import charts
 from .errors import ProblemError
@@ -14,29 +14,27 @@ bp = Blueprint("cooling", __name__, url_prefix="/v1")
 _request, _result = CoolingCheckRequestSchema(), CoolingCheckResultSchema()
 
 
-def _check(args: dict) -> dict:
-    check = cooling.cooling_check(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
-                                  args["heat_release"], args["safety_factor"])
-    return cooling_check_dict(check)
+def _check(args: dict) -> cooling.CoolingCheck:
+    return cooling.cooling_check(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
+                                 args["heat_release"], args["safety_factor"])
 
 
 @bp.route("/cooling-check", methods=["GET", "POST"])
 def cooling_check():
-    return calculate(_request, _check, _result)
+    return calculate(_request, _check, _result, batch=True)
 
 
 _scale_request, _scale_result = ScaleUpRequestSchema(), ScaleUpResultSchema()
 
 
-def _scale_up(args: dict) -> dict:
+def _scale_up(args: dict) -> scaleup.ScaleUp:
     limit = current_app.config["MAX_SCALES"]
     if len(args["targets"]) > limit:
         raise ProblemError(413, f"at most {limit} targets per scale-up",
                            [{"field": "targets", "message": f"at most {limit} targets"}])
-    result = scaleup.scale_up(args["reference"], args["targets"], args["rule"], args["charge"], args["coolant"],
-                              args["process_temperature"], args["heat_release"], args["safety_factor"],
-                              args["coolant_flow_rule"])
-    return scale_up_dict(result)
+    return scaleup.scale_up(args["reference"], args["targets"], args["rule"], args["charge"], args["coolant"],
+                            args["process_temperature"], args["heat_release"], args["safety_factor"],
+                            args["coolant_flow_rule"])
 
 
 def scale_up_chart(payload: dict, fmt: str) -> bytes:
@@ -82,5 +80,5 @@ def scale_up_chart(payload: dict, fmt: str) -> bytes:
 
 @bp.route("/scale-up", methods=["GET", "POST"])
 def scale_up():
-    return calculate(_scale_request, _scale_up, _scale_result, rows="scales", chart=scale_up_chart,
+    return calculate(_scale_request, _scale_up, _scale_result, batch=True, rows="scales", chart=scale_up_chart,
                      lead=("name", "volume", "charge_volume", "scale_factor", "generated", "adequate", "margin"))

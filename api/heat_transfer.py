@@ -1,13 +1,13 @@
 """Heat transfer: ``/v1/heat-transfer``, ``/v1/coolant-balance`` and the wall library ``/v1/materials``."""
 from flask import Blueprint
 
-from calc.network import heat_transfer
 from calc.films import wall
+from calc.network import heat_transfer
+from calc.network.coolant_balance import CoolantBalance
 from schemas.heat_transfer import (CoolantBalanceRequestSchema, CoolantBalanceResultSchema,
-                                   HeatTransferRequestSchema, HeatTransferResultSchema, MaterialSchema,
-                                   coolant_balance_dict, heat_transfer_dict)
+                                   HeatTransferRequestSchema, HeatTransferResultSchema, MaterialSchema)
 
-from .http import list_response, load, respond
+from .http import calculate, list_response
 
 bp = Blueprint("heat_transfer", __name__, url_prefix="/v1")
 _request, _result = HeatTransferRequestSchema(), HeatTransferResultSchema()
@@ -15,19 +15,22 @@ _balance_request, _balance_result = CoolantBalanceRequestSchema(), CoolantBalanc
 _material = MaterialSchema()
 
 
+def _network(args: dict) -> heat_transfer.HeatTransferResult:
+    return heat_transfer.heat_transfer(args["vessel"], args["charge"], args["coolant"], args["process_temperature"])
+
+
+def _balance(args: dict) -> CoolantBalance:
+    return heat_transfer.coolant_balance_at_mean(args["coolant"], args["process_temperature"], args["ua"])
+
+
 @bp.route("/heat-transfer", methods=["GET", "POST"])
 def network():
-    args = load(_request)
-    result = heat_transfer.heat_transfer(args["vessel"], args["charge"], args["coolant"], args["process_temperature"])
-    return respond(heat_transfer_dict(result), _result)
+    return calculate(_request, _network, _result)
 
 
 @bp.route("/coolant-balance", methods=["GET", "POST"])
 def coolant_balance():
-    args = load(_balance_request)
-    balance, mass_flow, heat_capacity = heat_transfer.coolant_balance_at_mean(
-        args["coolant"], args["process_temperature"], args["ua"])
-    return respond(coolant_balance_dict(balance, mass_flow, heat_capacity), _balance_result)
+    return calculate(_balance_request, _balance, _balance_result)
 
 
 @bp.get("/materials")

@@ -61,11 +61,6 @@ def request_object() -> dict:
     return data
 
 
-def load(schema: Schema) -> dict:
-    """Validate and convert the request object with ``schema`` (ValidationError -> 422)."""
-    return schema.load(request_object())
-
-
 def units_of(schema: Schema) -> dict[str, str]:
     key = type(schema)
     if key not in _UNIT_CACHE:
@@ -164,12 +159,17 @@ def _csv_cell(value: Any) -> Any:
     return value
 
 
+Table = Callable[[dict], tuple[list[dict], dict[str, str]]]
+
+
 def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple[str, ...] = (),
-            chart: Callable[[dict, str], bytes] | None = None, status: int = 200) -> Response:
-    """Dump ``result`` with ``schema`` and answer in the negotiated format.
+            table: Table | None = None, chart: Callable[[dict, str], bytes] | None = None,
+            status: int = 200) -> Response:
+    """Dump ``result`` (a calc result) with ``schema`` and answer in the negotiated format.
 
     ``rows`` names the list that becomes one CSV row per item (e.g. ``"scales"``), with the ``lead``
-    columns first; ``chart`` draws the dumped payload as SVG or PNG.
+    columns first; ``table`` instead turns the dumped payload into CSV rows and their units;
+    ``chart`` draws the dumped payload as SVG or PNG.
     """
     payload = clean(schema.dump(result))
     units = units_of(schema)
@@ -184,6 +184,9 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple
             text = "" if value is None else str(value)
         return Response(text + "\n", status=status, mimetype="text/plain")
     fmt = requested_format()
+    if fmt == "csv" and table is not None:
+        table_rows, table_units = table(payload)
+        return Response(to_csv(table_rows, table_units), status=status, mimetype="text/csv")
     if fmt == "csv":
         items = payload.get(rows, []) if rows else [payload]
         row_units = {k[len(rows) + 1:]: v for k, v in units.items() if rows and k.startswith(rows + ".")} if rows else units
@@ -206,7 +209,7 @@ def list_response(items: list[dict], schema: Schema) -> Response:
     return Response(json.dumps({"items": dumped, "units": units_of(schema)}), mimetype="application/json")
 
 
-def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict], result_schema: Schema) -> Response:
+def batch_response(cases: list, schema: Schema, compute: Callable[[Any], Any], result_schema: Schema) -> Response:
     """Answer ``{"cases": [...]}``: each case its result or its own problem; one bad case fails no other."""
     from .errors import log, problem_body, problem_for
 
@@ -232,10 +235,16 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
     return Response(json.dumps(body, allow_nan=False), mimetype="application/json")
 
 
-def calculate(schema: Schema, compute: Callable[[dict], dict], result_schema: Schema, **respond_options) -> Response:
-    """The whole life of a calculation request: single object or batch of cases, then the response."""
+def calculate(schema: Schema, compute: Callable[[Any], Any], result_schema: Schema, *, batch: bool = False,
+              **respond_options: Any) -> Response:
+    """The whole life of a calculation request: load, compute (calc), dump and negotiate the format.
+
+    Every calculation resource answers through here. ``compute`` takes what ``schema`` loads and
+    returns a calc result that ``result_schema`` dumps. With ``batch``, a POST of
+    ``{"cases": [...]}`` answers each case on its own.
+    """
     data = request_object()
-    if request.method == "POST" and "cases" in data:
+    if batch and request.method == "POST" and "cases" in data:
         if set(data) != {"cases"}:
             raise ProblemError(422, "a batch body holds only 'cases'",
                                [{"field": sorted(set(data) - {"cases"})[0], "message": "not allowed beside cases"}])

@@ -4,9 +4,9 @@ from __future__ import annotations
 from flask import Blueprint
 
 from calc import properties
-from schemas.properties import FluidSchema, PropertiesQuerySchema, PropertiesResultSchema, report_to_dict
+from schemas.properties import FluidSchema, PropertiesQuerySchema, PropertiesResultSchema
 
-from .http import list_response, load, respond
+from .http import calculate, list_response
 
 bp = Blueprint("properties", __name__, url_prefix="/v1")
 _query = PropertiesQuerySchema()
@@ -14,11 +14,13 @@ _result = PropertiesResultSchema()
 _fluid = FluidSchema()
 
 
+def _report(args: dict) -> properties.PropertyReport:
+    return properties.property_report(args["fluid"], args["temperature"], args["mass_fraction"], args["pressure"])
+
+
 @bp.route("/properties", methods=["GET", "POST"])
 def get_properties():
-    args = load(_query)
-    report = properties.property_report(args["fluid"], args["temperature"], args["mass_fraction"], args["pressure"])
-    return respond(report_to_dict(report), _result)
+    return calculate(_query, _report, _result)
 
 
 @bp.get("/fluids")

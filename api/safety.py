@@ -1,23 +1,18 @@
 """Thermal safety and dynamics: ``/v1/thermal-safety``, ``/v1/simulations``, ``/v1/cstr-steady-states``."""
 from __future__ import annotations
 
-from flask import Blueprint, Response, current_app, request
+from flask import Blueprint, current_app
 
-from calc.safety import dynamics
-from calc.network import heat_transfer
 from calc.safety import criticality as safety
 from calc.safety import steady_states
 from calc.safety import tank_model
-from calc.vessel.model import Charge
-from schemas.base import clean
-from schemas.heat_transfer import warning_dicts
+from calc.safety.in_vessel import simulate_in_vessel
 from schemas.safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
-                            ThermalSafetyRequestSchema, ThermalSafetyResultSchema, series_rows, simulation_dict,
-                            simulation_input, steady_states_dict, thermal_safety_dict)
+                            ThermalSafetyRequestSchema, ThermalSafetyResultSchema, series_rows, simulation_input)
 
 from .errors import ProblemError
 from .charts import figure as _figure, footnote as _footnote, render as _render
-from .http import load, requested_format, respond, to_csv
+from .http import calculate
 
 bp = Blueprint("safety", __name__, url_prefix="/v1")
 _safety_request, _safety_result = ThermalSafetyRequestSchema(), ThermalSafetyResultSchema()
@@ -28,8 +23,7 @@ _cstr_request, _cstr_result = CSTRRequestSchema(), CSTRResultSchema()
 
 @bp.route("/thermal-safety", methods=["GET", "POST"])
 def thermal_safety():
-    inp = load(_safety_request)
-    return respond(thermal_safety_dict(safety.assess_thermal_safety(inp)), _safety_result)
+    return calculate(_safety_request, safety.assess_thermal_safety, _safety_result)
 
 
 # ---------------------------------------------------------------- simulations
@@ -66,28 +60,20 @@ def _limited(field: str, value: float, limit: float, unit: str) -> None:
                            [{"field": field, "message": f"must not exceed {limit:g} {unit} on this server"}])
 
 
-@bp.route("/simulations", methods=["GET", "POST"])
-def simulations():
-    args = load(_simulation_request)
+def _simulate(args: dict) -> tank_model.SimulationResult:
     config = current_app.config
     _limited("horizon", args["horizon"], float(config["MAX_SIMULATION_HORIZON"]), "s")
     _limited("output_points", args["output_points"], int(config["MAX_SERIES_POINTS"]), "points")
     budget = tank_model.Budget(horizon_limit=float(config["MAX_SIMULATION_HORIZON"]),
-                             output_points=args["output_points"],
-                             maximum_output_points=int(config["MAX_SERIES_POINTS"]),
-                             wall_time=float(config["SIMULATION_WALL_TIME"]))
-    duty = None
-    if args["vessel"] is not None:
-        given = args["vessel"]
-        contents = Charge(given["contents"], mass=args["charge"].mass)
-        duty = heat_transfer.jacket_duty(given["vessel"], contents, given["coolant"], args["charge"].temperature)
-    result = simulation_dict(dynamics.simulate(simulation_input(args, budget, duty)))
-    if duty is not None:
-        result["warnings"] = warning_dicts(duty.warnings) + result["warnings"]
-    if not request.args.get("field") and requested_format() == "csv":
-        rows, units = series_rows(clean(_simulation_result.dump(result)))
-        return Response(to_csv(rows, units), mimetype="text/csv")
-    return respond(result, _simulation_result, chart=_simulation_chart)
+                               output_points=args["output_points"],
+                               maximum_output_points=int(config["MAX_SERIES_POINTS"]),
+                               wall_time=float(config["SIMULATION_WALL_TIME"]))
+    return simulate_in_vessel(simulation_input(args, budget), args["vessel"])
+
+
+@bp.route("/simulations", methods=["GET", "POST"])
+def simulations():
+    return calculate(_simulation_request, _simulate, _simulation_result, table=series_rows, chart=_simulation_chart)
 
 
 # ---------------------------------------------------------------- CSTR steady states
@@ -114,6 +100,5 @@ def _cstr_chart(payload: dict, fmt: str) -> bytes:
 
 @bp.route("/cstr-steady-states", methods=["GET", "POST"])
 def cstr_steady_states():
-    inp = load(_cstr_request)
-    result = steady_states_dict(steady_states.cstr_steady_states(inp))
-    return respond(result, _cstr_result, rows="states", chart=_cstr_chart)
+    return calculate(_cstr_request, steady_states.cstr_steady_states, _cstr_result, rows="states",
+                     chart=_cstr_chart)

@@ -8,8 +8,7 @@ from calc.checks import heat_load
 from calc.checks import scaleup
 
 from .base import StrictSchema, finite_float
-from .heat_transfer import (HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema,
-                            heat_transfer_dict, warning_dicts)
+from .heat_transfer import HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema
 from .units import Quantity
 from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, require_agitator
 
@@ -131,13 +130,18 @@ class CoolingCheckResultSchema(StrictSchema):
     heat_load = fields.Nested(HeatLoadSchema)
     cooling_capacity = Quantity("power")
     coolant_outlet_temperature = Quantity("temperature", allow_none=True)
-    limits = fields.Nested(LimitsSchema)
+    limits = fields.Nested(LimitsSchema, attribute="limit_values")
     heat_transfer = fields.Nested(HeatTransferResultSchema)
     warnings = fields.List(fields.Nested(WarningSchema))
     cautions = fields.List(fields.String())
 
 
+_CHECK_ATTRIBUTES = {field.attribute or name for name, field in CoolingCheckResultSchema._declared_fields.items()}
+
+
 class ScaleSchema(CoolingCheckResultSchema):
+    """Dumps a calc.checks.scaleup.ScaleResult: the scale's own fields, then its cooling check's."""
+
     name = fields.String()
     volume = Quantity("volume", metadata={"description": "nominal vessel volume (to the top of the straight side)"})
     charge_volume = Quantity("volume", metadata={"description": "liquid volume at this scale"})
@@ -149,6 +153,11 @@ class ScaleSchema(CoolingCheckResultSchema):
     area_per_volume = Quantity("area per volume")
     overall_coefficient = Quantity("heat-transfer coefficient")
     controlling = fields.String()
+
+    def get_attribute(self, obj, attr, default):
+        if attr in _CHECK_ATTRIBUTES:
+            return super().get_attribute(obj.check, attr, default)
+        return super().get_attribute(obj, attr, default)
 
 
 class ControllingSwitchSchema(StrictSchema):
@@ -167,62 +176,7 @@ class ScaleUpResultSchema(StrictSchema):
                                                                 "adequate, solved on the continuous family"})
     adequate_beyond_search = fields.Boolean()
     search_upper_volume = Quantity("volume")
-    largest_adequate_volume_note = fields.String()
-    controlling_switches = fields.List(fields.Nested(ControllingSwitchSchema))
+    largest_adequate_volume_note = fields.String(attribute="largest_adequate_message")
+    controlling_switches = fields.List(fields.Nested(ControllingSwitchSchema), attribute="controlling_switch_volumes")
     warnings = fields.List(fields.Nested(WarningSchema))
     cautions = fields.List(fields.String())
-
-
-def _limit(limit, key: str) -> tuple:
-    if limit is None:
-        return None, "applies to the dosing model only"
-    value = getattr(limit, key, None)
-    return (value if limit.reachable else None), limit.message
-
-
-def cooling_check_dict(check) -> dict:
-    """Shape a calc.cooling.CoolingCheck for CoolingCheckResultSchema."""
-    load = check.heat_load
-    limits = check.limits
-    if limits is None:
-        skipped = "not solved for this result"
-        dosing, dosing_note, inlet, inlet_note, flow, flow_note = None, skipped, None, skipped, None, skipped
-    else:
-        dosing, dosing_note = _limit(limits.minimum_dosing_time, "value")
-        inlet, inlet_note = _limit(limits.maximum_coolant_inlet_temperature, "value")
-        flow, flow_note = _limit(limits.required_coolant_flow, "value")
-    return {
-        "adequate": check.adequate, "margin": check.margin, "safety_factor": check.safety_factor,
-        "heat_load": {"total": load.total, "reaction": load.reaction, "agitator": load.agitator,
-                      "feed_sensible": load.feed_sensible},
-        "cooling_capacity": check.cooling_capacity, "coolant_outlet_temperature": check.coolant_outlet_temperature,
-        "limits": {"minimum_dosing_time": dosing, "minimum_dosing_time_note": dosing_note,
-                   "maximum_coolant_inlet_temperature": inlet, "maximum_coolant_inlet_temperature_note": inlet_note,
-                   "required_coolant_flow": flow, "required_coolant_flow_note": flow_note},
-        "heat_transfer": heat_transfer_dict(check.heat_transfer),
-        "warnings": warning_dicts(check.warnings), "cautions": list(check.cautions),
-    }
-
-
-def scale_up_dict(result) -> dict:
-    """Shape a calc.scaleup.ScaleUp for ScaleUpResultSchema."""
-    scales = []
-    for scale in result.scales:
-        check = scale.check
-        heat = check.heat_transfer
-        scales.append(cooling_check_dict(check) | {
-            "name": scale.name, "volume": scale.volume, "charge_volume": scale.charge_volume,
-            "scale_factor": scale.scale_factor, "generated": scale.generated,
-            "diameter": scale.vessel.shape.diameter, "impeller_diameter": scale.vessel.agitator.diameter,
-            "agitator_speed": scale.agitator_speed, "area_per_volume": heat.fill.area_per_volume,
-            "overall_coefficient": heat.overall_coefficient, "controlling": heat.controlling,
-        })
-    return {
-        "rule": result.rule, "coolant_flow_rule": result.coolant_flow_rule, "safety_factor": result.safety_factor,
-        "scales": scales, "largest_adequate_volume": result.largest_adequate_volume,
-        "adequate_beyond_search": result.adequate_beyond_search, "search_upper_volume": result.search_upper_volume,
-        "largest_adequate_volume_note": result.largest_adequate_message,
-        "controlling_switches": [{"volume": s.volume, "below": s.below, "above": s.above}
-                                 for s in result.controlling_switch_volumes],
-        "warnings": warning_dicts(result.warnings), "cautions": list(result.cautions),
-    }

@@ -7,13 +7,6 @@ from .base import StrictSchema, finite_float
 from .units import Quantity
 from .vessel import ABSOLUTE_ZERO_C, ChargeSchema, CoolantSchema, VesselSchema, require_agitator
 
-CAUTIONS = (
-    "Screening estimate from published correlations that scatter by about +-25-30 %.",
-    "Confirm heat release with reaction calorimetry and heat transfer with plant data before relying on it.",
-    "Local codes, site process-safety procedures and a licensed engineer's review govern.",
-)
-
-
 def _temperature(**kwargs) -> Quantity:
     return Quantity("temperature", minimum=ABSOLUTE_ZERO_C, exclusive_minimum=True, **kwargs)
 
@@ -101,29 +94,40 @@ class AgitationResultSchema(StrictSchema):
 class FilmCoefficientsSchema(StrictSchema):
     process_jacket = Quantity("heat-transfer coefficient", allow_none=True)
     process_bottom_head = Quantity("heat-transfer coefficient", allow_none=True)
-    process_coil = Quantity("heat-transfer coefficient", allow_none=True)
+    process_coil = Quantity("heat-transfer coefficient", allow_none=True,
+                            description="area-weighted mean over every wetted coil")
     service_jacket = Quantity("heat-transfer coefficient", allow_none=True)
-    service_coil = Quantity("heat-transfer coefficient", allow_none=True)
+    service_coil = Quantity("heat-transfer coefficient", allow_none=True,
+                            description="area-weighted mean over every wetted coil")
+
+
+def _resistance(name: str) -> Quantity:
+    return Quantity("fouling resistance", attribute=f"resistances.{name}")
 
 
 class ResistancesSchema(StrictSchema):
-    process_film = Quantity("fouling resistance")
-    process_fouling = Quantity("fouling resistance")
-    lining = Quantity("fouling resistance")
-    wall = Quantity("fouling resistance")
-    service_fouling = Quantity("fouling resistance")
-    service_film = Quantity("fouling resistance")
+    """Dumps a calc.films.wall.OverallResult: its resistances by layer and the controlling one."""
+
+    process_film = _resistance("process_film")
+    process_fouling = _resistance("process_fouling")
+    lining = _resistance("lining")
+    wall = _resistance("wall")
+    service_fouling = _resistance("service_fouling")
+    service_film = _resistance("service_film")
     controlling = fields.String()
 
 
 class StreamSchema(StrictSchema):
+    """Dumps a calc.network.heat_transfer.Stream."""
+
     name = fields.String()
     mass_flow = Quantity("mass flow")
     ua = Quantity("thermal conductance")
-    inlet_temperature = Quantity("temperature")
-    outlet_temperature = Quantity("temperature")
-    duty = Quantity("power")
-    log_mean_temperature_difference = Quantity("temperature difference")
+    inlet_temperature = Quantity("temperature", attribute="balance.inlet_temperature")
+    outlet_temperature = Quantity("temperature", attribute="balance.outlet_temperature")
+    duty = Quantity("power", attribute="balance.duty")
+    log_mean_temperature_difference = Quantity("temperature difference",
+                                               attribute="balance.log_mean_temperature_difference")
     service_velocity = Quantity("velocity", allow_none=True)
     service_reynolds = fields.Float(allow_none=True)
 
@@ -131,15 +135,16 @@ class StreamSchema(StrictSchema):
 class HeatTransferResultSchema(StrictSchema):
     process_temperature = Quantity("temperature")
     film_coefficients = fields.Nested(FilmCoefficientsSchema)
-    resistances = fields.Nested(ResistancesSchema, allow_none=True)
+    resistances = fields.Nested(ResistancesSchema, allow_none=True, attribute="controlling_overall",
+                                metadata={"description": "of the surface carrying most of the UA"})
     overall_coefficient = Quantity("heat-transfer coefficient")
     ua = Quantity("thermal conductance")
-    heat_transfer_area = Quantity("area")
+    heat_transfer_area = Quantity("area", attribute="area")
     coolant_outlet_temperature = Quantity("temperature", allow_none=True)
     duty = Quantity("power", metadata={"description": "heat the coolant removes at the process temperature"})
     streams = fields.List(fields.Nested(StreamSchema))
     correlations = fields.Dict(keys=fields.String(), values=fields.String())
-    geometry = fields.Nested(GeometryResultSchema)
+    geometry = fields.Nested(GeometryResultSchema, attribute="fill")
     agitation = fields.Nested(AgitationResultSchema)
     warnings = _warnings()
     cautions = fields.List(fields.String())
@@ -192,75 +197,3 @@ class MaterialSchema(StrictSchema):
     lining_thickness = Quantity("length", allow_none=True)
     lining_conductivity = Quantity("thermal conductivity", allow_none=True)
     lining_source = fields.String(allow_none=True)
-
-
-# ---------------------------------------------------------------- calc results -> response shapes
-
-def warning_dicts(warnings) -> list[dict]:
-    return [{"code": w.code, "message": w.message} for w in warnings]
-
-
-def fill_dict(fill) -> dict:
-    return {name: getattr(fill, name) for name in (
-        "volume", "liquid_level", "wetted_area", "jacketed_area", "coil_area", "heat_transfer_area",
-        "area_per_volume", "displaced_volume", "brim_volume")} | {"warnings": warning_dicts(fill.warnings)}
-
-
-def agitation_dict(result) -> dict:
-    keys = ("impeller", "reynolds", "power_number", "power", "power_per_volume", "tip_speed", "froude", "regime")
-    return {k: getattr(result, k) for k in keys} | {"sources": dict(result.sources),
-                                                    "warnings": warning_dicts(result.warnings)}
-
-
-def heat_transfer_dict(result) -> dict:
-    """Shape a calc.heat_transfer.HeatTransferResult for HeatTransferResultSchema."""
-    films: dict = {k: None for k in FilmCoefficientsSchema().fields}
-    correlations: dict = {}
-    for stream in result.streams:
-        for surface in stream.surfaces:
-            if surface.name == "jacket_shell":
-                films["process_jacket"], films["service_jacket"] = surface.process_film.h, surface.service_film.h
-                correlations["process_jacket"] = f"{surface.process_film.correlation}, a = {surface.process_film.constant_a:g} ({surface.process_film.source})"
-                correlations["service_jacket"] = surface.service_film.correlation
-            elif surface.name == "jacket_bottom_head":
-                films["process_bottom_head"] = surface.process_film.h
-                films["service_jacket"] = films["service_jacket"] or surface.service_film.h
-                correlations["process_bottom_head"] = f"{surface.process_film.correlation}, a = {surface.process_film.constant_a:g} ({surface.process_film.source})"
-                correlations.setdefault("service_jacket", surface.service_film.correlation)
-            elif films["process_coil"] is None:
-                films["process_coil"], films["service_coil"] = surface.process_film.h, surface.service_film.h
-                correlations["process_coil"] = f"{surface.process_film.correlation} ({surface.process_film.source})"
-                correlations["service_coil"] = surface.service_film.correlation
-    surfaces = [s for stream in result.streams for s in stream.surfaces]
-    resistances = None
-    if surfaces:
-        main = max(surfaces, key=lambda s: s.ua)
-        resistances = dict(main.overall.resistances) | {"controlling": main.overall.controlling}
-    jacket = result.stream("jacket")
-    streams = []
-    for stream in result.streams:
-        first = stream.surfaces[0].service_film if stream.surfaces else None
-        streams.append({
-            "name": stream.name, "mass_flow": stream.mass_flow, "ua": stream.ua,
-            "inlet_temperature": stream.balance.inlet_temperature,
-            "outlet_temperature": stream.balance.outlet_temperature, "duty": stream.balance.duty,
-            "log_mean_temperature_difference": stream.balance.log_mean_temperature_difference,
-            "service_velocity": None if first is None else first.velocity,
-            "service_reynolds": None if first is None else first.reynolds,
-        })
-    return {
-        "process_temperature": result.process_temperature, "film_coefficients": films,
-        "resistances": resistances, "overall_coefficient": result.overall_coefficient, "ua": result.ua,
-        "heat_transfer_area": result.area,
-        "coolant_outlet_temperature": None if jacket is None else jacket.balance.outlet_temperature,
-        "duty": result.duty, "streams": streams, "correlations": correlations,
-        "geometry": fill_dict(result.fill), "agitation": agitation_dict(result.agitation),
-        "warnings": warning_dicts(result.warnings), "cautions": list(CAUTIONS),
-    }
-
-
-def coolant_balance_dict(balance, mass_flow: float, heat_capacity: float) -> dict:
-    keys = ("process_temperature", "inlet_temperature", "outlet_temperature", "duty",
-            "log_mean_temperature_difference", "ntu", "effectiveness")
-    return {k: getattr(balance, k) for k in keys} | {
-        "mass_flow": mass_flow, "heat_capacity": heat_capacity, "warnings": warning_dicts(balance.warnings)}

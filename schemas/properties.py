@@ -32,14 +32,14 @@ class PropertiesQuerySchema(StrictSchema):
 class PropertiesResultSchema(StrictSchema):
     fluid = fields.String()
     name = fields.String()
-    temperature = Quantity("temperature")
+    temperature = Quantity("temperature", attribute="state.temperature")
     pressure = Quantity("pressure")
     mass_fraction = fields.Float(allow_none=True)
-    density = Quantity("density")
-    heat_capacity = Quantity("heat capacity")
-    viscosity = Quantity("viscosity")
-    thermal_conductivity = Quantity("thermal conductivity")
-    prandtl = fields.Float()
+    density = Quantity("density", attribute="state.density")
+    heat_capacity = Quantity("heat capacity", attribute="state.heat_capacity")
+    viscosity = Quantity("viscosity", attribute="state.viscosity")
+    thermal_conductivity = Quantity("thermal conductivity", attribute="state.thermal_conductivity")
+    prandtl = fields.Float(attribute="state.prandtl")
     freezing_point = Quantity("temperature", metadata={"description": "lower end of the liquid range"})
     boiling_point = Quantity("temperature",
                              metadata={"description": "upper end of the liquid range at the pressure"})
@@ -52,16 +52,3 @@ class FluidSchema(StrictSchema):
     kind = fields.String()
     mass_fraction_range = fields.List(fields.Float(), allow_none=True)
     source = fields.String()
-
-
-def report_to_dict(report: properties.PropertyReport) -> dict:
-    """Flatten a calc report into the shape PropertiesResultSchema dumps."""
-    state = report.state
-    return {
-        "fluid": report.fluid, "name": report.name, "temperature": state.temperature,
-        "pressure": report.pressure, "mass_fraction": report.mass_fraction, "density": state.density,
-        "heat_capacity": state.heat_capacity, "viscosity": state.viscosity,
-        "thermal_conductivity": state.thermal_conductivity, "prandtl": state.prandtl,
-        "freezing_point": report.freezing_point, "boiling_point": report.boiling_point,
-        "source": report.source,
-    }

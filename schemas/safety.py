@@ -1,22 +1,22 @@
 """Schemas of /v1/thermal-safety, /v1/simulations and /v1/cstr-steady-states.
 
-Requests load into the calc dataclasses (SI); results are shaped from the calc results by the
-``*_dict`` functions below and dumped in API units.
+Requests load into the calc dataclasses (SI); the result schemas dump the calc results directly,
+in API units.
 """
 from __future__ import annotations
 
 import math
 
-import numpy as np
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
 from calc.safety import criticality as safety
 from calc.safety import steady_states
 from calc.safety import tank_model
+from calc.safety.in_vessel import RunVessel
 from calc.properties import FLUIDS, STANDARD_PRESSURE
 
 from .base import StrictSchema, finite_float
-from .heat_transfer import WarningSchema, warning_dicts
+from .heat_transfer import WarningSchema
 from .units import Quantity
 from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, _LiquidFields, require_agitator
 
@@ -113,15 +113,6 @@ class ThermalSafetyResultSchema(StrictSchema):
     reasoning = fields.List(fields.String())
     warnings = _warnings()
     cautions = fields.List(fields.String())
-
-
-def thermal_safety_dict(result: safety.ThermalSafetyResult) -> dict:
-    return {
-        "adiabatic_temperature_rise": result.adiabatic_temperature_rise, "mtsr": result.mtsr,
-        "td24": result.td24, "time_to_maximum_rate": result.time_to_maximum_rate, "mtt": result.mtt,
-        "criticality_class": result.criticality_class, "reasoning": list(result.reasoning),
-        "warnings": warning_dicts(result.warnings), "cautions": list(result.cautions),
-    }
 
 
 # ================================================================ simulations
@@ -317,22 +308,18 @@ class SimulationRequestSchema(StrictSchema):
         data["failure"] = data.pop("cooling_failure")
         data["species"], data["reactions"] = tuple(data["species"]), tuple(data["reactions"])
         data["limits"] = tuple(data["limits"])
+        given = data["vessel"]
+        if given is not None:
+            data["vessel"] = RunVessel(given["vessel"], given["contents"], given["coolant"],
+                                       agitator_power=data["shaft_power"] is None)
+        if data["shaft_power"] is None:
+            data["shaft_power"] = 0.0
         return data
 
 
-def simulation_input(args: dict, budget: tank_model.Budget, vessel_duty=None) -> tank_model.SimulationInput:
-    """SimulationInput from the loaded request; ``vessel_duty`` (a calc.heat_transfer.JacketDuty) stands
-    in for a given jacket and, unless given, the shaft power."""
-    args = dict(args)
-    args.pop("output_points")
-    args.pop("vessel")
-    if vessel_duty is not None:
-        args["jacket"] = tank_model.Jacket(vessel_duty.ua, vessel_duty.coolant_flow,
-                                           vessel_duty.coolant_heat_capacity, vessel_duty.inlet_temperature)
-        if args["shaft_power"] is None:
-            args["shaft_power"] = vessel_duty.shaft_power
-    if args["shaft_power"] is None:
-        args["shaft_power"] = 0.0
+def simulation_input(args: dict, budget: tank_model.Budget) -> tank_model.SimulationInput:
+    """SimulationInput from the loaded request (without its ``vessel`` and ``output_points``)."""
+    args = {k: v for k, v in args.items() if k not in ("vessel", "output_points")}
     return tank_model.SimulationInput(budget=budget, **args)
 
 
@@ -369,6 +356,7 @@ class SeriesSchema(StrictSchema):
     jacket_duty = fields.List(Quantity("power"), metadata={"description": "heat removed from the contents"})
     feed_rate = fields.List(Quantity("mass flow"))
     concentrations = fields.Dict(keys=fields.String(), values=fields.List(Quantity("concentration")),
+                                 attribute="concentrations_by_species",
                                  metadata={"description": "species -> concentration series, mol/m^3"})
 
 
@@ -391,34 +379,6 @@ class SimulationResultSchema(StrictSchema):
 
 _SERIES_FIELDS = ("time", "temperature", "coolant_inlet_temperature", "coolant_outlet_temperature", "mass",
                   "conversion", "accumulation", "heat_release_rate", "jacket_duty", "feed_rate")
-
-
-def simulation_dict(result: tank_model.SimulationResult) -> dict:
-    s, summary = result.series, result.summary
-    series = {name: np.asarray(getattr(s, name), dtype=float).tolist() for name in _SERIES_FIELDS}
-    series["concentrations"] = {name: np.asarray(row, dtype=float).tolist()
-                                for name, row in zip(result.species, s.concentrations)}
-    failure = summary.failure_time
-    if failure is not None:  # no coolant flows after the failure: its temperatures are not reported
-        for name in ("coolant_inlet_temperature", "coolant_outlet_temperature"):
-            series[name] = [None if t > failure else value for t, value in zip(series["time"], series[name])]
-    return {
-        "success": bool(result.success), "status": int(result.status), "message": result.message,
-        "species": list(result.species),
-        "summary": {
-            "maximum_temperature": summary.maximum_temperature,
-            "time_of_maximum_temperature": summary.time_of_maximum_temperature,
-            "final_conversion": summary.final_conversion, "maximum_accumulation": summary.maximum_accumulation,
-            "time_of_maximum_accumulation": summary.time_of_maximum_accumulation,
-            "peak_heat_release_rate": summary.peak_heat_release_rate, "peak_jacket_duty": summary.peak_jacket_duty,
-            "limits_crossed": [{"name": c.name, "time": c.time, "temperature": c.temperature}
-                               for c in summary.limits_crossed],
-            "closure_error": summary.closure_error, "failure_time": summary.failure_time,
-        },
-        "series": series,
-        "failure_search": [{"failure_time": t, "maximum_temperature": T} for t, T in result.failure_search],
-        "warnings": warning_dicts(result.warnings), "cautions": list(result.cautions),
-    }
 
 
 def series_rows(payload: dict) -> tuple[list[dict], dict[str, str]]:
@@ -483,7 +443,7 @@ class SteadyStateSchema(StrictSchema):
     generation_slope = Quantity("thermal conductance", description="dQ_g/dT")
     removal_slope = Quantity("thermal conductance", description="dQ_r/dT")
     slope_stable = fields.Boolean()
-    eigenvalues = fields.List(fields.List(fields.Float()),
+    eigenvalues = fields.List(fields.List(fields.Float()), attribute="eigenvalue_pairs",
                               metadata={"description": "[real, imaginary] pairs, 1/s"})
     stable = fields.Boolean()
     classification = fields.String()
@@ -500,32 +460,3 @@ class CSTRResultSchema(StrictSchema):
     curves = fields.Nested(CurvesSchema)
     warnings = _warnings()
     cautions = fields.List(fields.String())
-
-
-CURVE_POINTS = 401  # points of the returned curves; the states are found on the full scan grid
-
-
-def _thinned(values) -> list[float]:
-    """At most CURVE_POINTS evenly spaced points of a scan, first and last kept."""
-    values = np.asarray(values, dtype=float)
-    if values.size <= CURVE_POINTS:
-        return values.tolist()
-    return values[np.linspace(0, values.size - 1, CURVE_POINTS).round().astype(int)].tolist()
-
-
-def steady_states_dict(result: steady_states.SteadyStatesResult) -> dict:
-    states = []
-    for s in result.states:
-        states.append({
-            "temperature": s.temperature, "concentration": s.concentration, "conversion": s.conversion,
-            "heat_generation": s.heat_generation, "generation_slope": s.generation_slope,
-            "removal_slope": s.removal_slope, "slope_stable": bool(s.slope_stable),
-            "eigenvalues": [[float(complex(e).real), float(complex(e).imag)] for e in s.eigenvalues],
-            "stable": bool(s.stable), "classification": s.classification,
-        })
-    return {
-        "states": states,
-        "curves": {name: _thinned(getattr(result, name)) for name in ("temperature", "heat_generation",
-                                                                       "heat_removal")},
-        "warnings": warning_dicts(result.warnings), "cautions": list(result.cautions),
-    }

@@ -234,3 +234,15 @@ def test_property_warmer_coolant_never_lowers_peak_and_balance_closes(Tin, k):
             for T in (Tin, Tin + 5.0)]
     assert runs[1].summary.maximum_temperature >= runs[0].summary.maximum_temperature - 1e-6
     assert max(r.summary.closure_error for r in runs) < 1e-6
+
+
+def test_coolant_temperatures_are_undefined_after_the_cooling_failure():
+    # Common practice, no source: once cooling fails no coolant flows, so the run reports no coolant
+    # temperature after the failure (NaN in calc, null in the API) and no jacket duty.
+    r = simulate(semi_batch(failure=CoolingFailure(2 * HOUR), mixture_heat_capacity=1900.0))
+    s = r.series
+    after = s.time > r.summary.failure_time
+    assert after.any() and (~after).any()
+    for series in (s.coolant_inlet_temperature, s.coolant_outlet_temperature):
+        assert np.isnan(series[after]).all() and np.isfinite(series[~after]).all()
+    assert np.all(s.jacket_duty[after] == 0.0)

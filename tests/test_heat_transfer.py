@@ -79,3 +79,22 @@ def test_coolant_warmer_than_the_contents_is_refused():
     with pytest.raises(InputError) as err:
         heat_transfer(vessel, charge, coolant, coolant.inlet_temperature - 1.0)
     assert err.value.field == "coolant.inlet_temperature"
+
+
+def test_every_coil_counts_in_the_coil_film_coefficients():
+    # Definition of an area-weighted mean film coefficient (common practice, no source): with two
+    # coils of different tube sizes, h_coil = sum(h_i A_i) / sum(A_i) over both, not the first coil's h.
+    vessel = dict(REQUEST["vessel"], coils=[
+        {"tube_outer_diameter": "40 mm", "tube_wall": "3 mm", "helix_diameter": "1.4 m", "turns": 6,
+         "pitch": "90 mm", "elevation": "0.5 m"},
+        {"tube_outer_diameter": "70 mm", "tube_wall": "4 mm", "helix_diameter": "1.3 m", "turns": 4,
+         "pitch": "140 mm", "elevation": "1.2 m"}])
+    result = heat_transfer(*_case(vessel=vessel))
+    coils = [s for stream in result.streams if stream.name.startswith("coil_") for s in stream.surfaces]
+    assert len(coils) == 2
+    for side in ("process", "service"):
+        films = [getattr(c, f"{side}_film").h for c in coils]
+        assert films[0] != pytest.approx(films[1], rel=1e-3)  # the two coils really differ
+        expected = sum(h * c.area for h, c in zip(films, coils)) / sum(c.area for c in coils)
+        assert getattr(result.film_coefficients, f"{side}_coil") == pytest.approx(expected, rel=1e-12)
+    assert "coil_1" in [s.name for s in result.streams]

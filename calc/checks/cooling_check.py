@@ -89,6 +89,39 @@ class Limits:
 
 
 @dataclass(frozen=True)
+class LimitValues:
+    """The limits as reported: a value where one was found (else None) and, beside each, why.
+
+    Units as ``Limits``. A limit that does not apply or was not solved has None and a note saying so.
+    """
+
+    minimum_dosing_time: float | None
+    minimum_dosing_time_note: str
+    maximum_coolant_inlet_temperature: float | None
+    maximum_coolant_inlet_temperature_note: str
+    required_coolant_flow: float | None
+    required_coolant_flow_note: str
+
+
+NOT_SOLVED = "not solved for this result"
+DOSING_ONLY = "applies to the dosing model only"
+
+
+def _reported(limit: Limit | None) -> tuple[float | None, str]:
+    if limit is None:
+        return None, DOSING_ONLY
+    return (limit.value if limit.reachable else None), limit.message
+
+
+def limit_values(limits: Limits | None) -> LimitValues:
+    """The solved ``limits`` (or None: not solved) as values and notes."""
+    if limits is None:
+        return LimitValues(None, NOT_SOLVED, None, NOT_SOLVED, None, NOT_SOLVED)
+    return LimitValues(*_reported(limits.minimum_dosing_time), *_reported(limits.maximum_coolant_inlet_temperature),
+                       *_reported(limits.required_coolant_flow))
+
+
+@dataclass(frozen=True)
 class CoolingCheck:
     """The verdict, the numbers behind it and the cautions that go with it."""
 
@@ -102,6 +135,10 @@ class CoolingCheck:
     limits: Limits | None
     warnings: Warnings = field(default_factory=Warnings)
     cautions: tuple[str, ...] = CAUTIONS
+
+    @property
+    def limit_values(self) -> LimitValues:
+        return limit_values(self.limits)
 
 
 def charge_mass(result: HeatTransferResult) -> float:

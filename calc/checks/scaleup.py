@@ -71,6 +71,28 @@ class ScaleResult:
     coolant: Coolant
     check: CoolingCheck
 
+    @property
+    def diameter(self) -> float:
+        """Inside diameter of this scale's vessel, m."""
+        return self.vessel.shape.diameter
+
+    @property
+    def impeller_diameter(self) -> float:
+        return self.vessel.agitator.diameter
+
+    @property
+    def area_per_volume(self) -> float:
+        """Heat-transfer area per liquid volume at this scale, 1/m."""
+        return self.check.heat_transfer.fill.area_per_volume
+
+    @property
+    def overall_coefficient(self) -> float:
+        return self.check.heat_transfer.overall_coefficient
+
+    @property
+    def controlling(self) -> str:
+        return self.check.heat_transfer.controlling
+
 
 @dataclass(frozen=True)
 class ControllingSwitch:

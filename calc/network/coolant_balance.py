@@ -98,8 +98,14 @@ class CoolantBalance:
     log_mean_temperature_difference: float  # K
     ntu: float  # -
     effectiveness: float  # -, (T_out - T_in) / (T_r - T_in)
-    heat_capacity_rate: float  # W/K, m_dot c_p
+    mass_flow: float  # kg/s
+    heat_capacity: float  # J/(kg K), of the coolant at its mean temperature
     warnings: Warnings = field(default_factory=Warnings)
+
+    @property
+    def heat_capacity_rate(self) -> float:
+        """m_dot c_p, W/K."""
+        return self.mass_flow * self.heat_capacity
 
 
 @dataclass(frozen=True)
@@ -213,7 +219,7 @@ def coolant_balance(process_temperature: float, inlet_temperature: float, ua: fl
             f"coolant leaves within {100 * (1 - effectiveness):.3g} % of the inlet driving force of the process "
             f"temperature (NTU = {ntu:.3g}): the duty is limited by coolant flow, not by U A"))
     return CoolantBalance(process_temperature, inlet_temperature, outlet, duty, lmtd, ntu,
-                          effectiveness, capacity_rate, warnings)
+                          effectiveness, mass_flow, heat_capacity, warnings)
 
 
 def _ntu_for_fraction(q: float) -> float:

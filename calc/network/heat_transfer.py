@@ -26,6 +26,7 @@ from calc.vessel import geometry
 from calc.films import process_side
 from calc.films import jacket_side as service_side
 from calc.films import wall
+from calc import cautions as caution_texts
 from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, InputError, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
@@ -66,6 +67,44 @@ class Stream:
     def ua(self) -> float:
         return sum(s.ua for s in self.surfaces)
 
+    @property
+    def service_velocity(self) -> float | None:
+        """Coolant velocity on the stream's first surface, m/s; None without a surface."""
+        return self.surfaces[0].service_film.velocity if self.surfaces else None
+
+    @property
+    def service_reynolds(self) -> float | None:
+        """Coolant Reynolds number on the stream's first surface; None without a surface."""
+        return self.surfaces[0].service_film.reynolds if self.surfaces else None
+
+
+@dataclass(frozen=True)
+class FilmCoefficients:
+    """Film coefficients by kind of surface, W/(m2 K); None where the vessel has no such wetted surface.
+
+    With several coils, ``process_coil`` and ``service_coil`` are area-weighted means over every
+    wetted coil (sum h A / sum A); each coil's own stream is reported beside them.
+    """
+
+    process_jacket: float | None = None
+    process_bottom_head: float | None = None
+    process_coil: float | None = None
+    service_jacket: float | None = None
+    service_coil: float | None = None
+
+
+def _area_weighted_film(surfaces: list[Surface], side: str) -> float | None:
+    """Sum of h A over sum of A for the ``side`` ("process" or "service") film of ``surfaces``."""
+    area = sum(s.area for s in surfaces)
+    if not surfaces or area <= 0:
+        return None
+    return sum(getattr(s, f"{side}_film").h * s.area for s in surfaces) / area
+
+
+def _process_film_label(film, with_constant: bool) -> str:
+    constant = f", a = {film.constant_a:g}" if with_constant else ""
+    return f"{film.correlation}{constant} ({film.source})"
+
 
 @dataclass(frozen=True)
 class HeatTransferResult:
@@ -77,10 +116,68 @@ class HeatTransferResult:
     agitation: agitation.AgitationResult
     streams: tuple[Stream, ...]
     warnings: Warnings = field(default_factory=Warnings)
+    cautions: tuple[str, ...] = caution_texts.HEAT_TRANSFER
 
     @property
     def ua(self) -> float:
         return sum(s.ua for s in self.streams)
+
+    @property
+    def surfaces(self) -> list[Surface]:
+        """Every wetted surface of every stream, jacket first."""
+        return [surface for stream in self.streams for surface in stream.surfaces]
+
+    def _named(self, name: str) -> Surface | None:
+        return next((s for s in self.surfaces if s.name == name), None)
+
+    def _coils(self) -> list[Surface]:
+        return [s for s in self.surfaces if s.name.startswith("coil_")]
+
+    @property
+    def film_coefficients(self) -> FilmCoefficients:
+        shell, head, coils = self._named("jacket_shell"), self._named("jacket_bottom_head"), self._coils()
+        jacket_service = shell or head
+        return FilmCoefficients(
+            process_jacket=None if shell is None else shell.process_film.h,
+            process_bottom_head=None if head is None else head.process_film.h,
+            process_coil=_area_weighted_film(coils, "process"),
+            service_jacket=None if jacket_service is None else jacket_service.service_film.h,
+            service_coil=_area_weighted_film(coils, "service"))
+
+    @property
+    def correlations(self) -> dict[str, str]:
+        """Which correlation (and constants) gave each kind of film."""
+        shell, head, coils = self._named("jacket_shell"), self._named("jacket_bottom_head"), self._coils()
+        named: dict[str, str] = {}
+        if shell is not None:
+            named["process_jacket"] = _process_film_label(shell.process_film, True)
+            named["service_jacket"] = shell.service_film.correlation
+        if head is not None:
+            named["process_bottom_head"] = _process_film_label(head.process_film, True)
+            named.setdefault("service_jacket", head.service_film.correlation)
+        if coils:
+            named["process_coil"] = "; ".join(dict.fromkeys(_process_film_label(c.process_film, False)
+                                                            for c in coils))
+            named["service_coil"] = "; ".join(dict.fromkeys(c.service_film.correlation for c in coils))
+        return named
+
+    @property
+    def controlling_surface(self) -> Surface | None:
+        """The surface carrying most of the UA; None when nothing is wetted."""
+        surfaces = self.surfaces
+        return max(surfaces, key=lambda s: s.ua) if surfaces else None
+
+    @property
+    def controlling_overall(self) -> wall.OverallResult | None:
+        """Resistances of the surface carrying most of the UA; None when nothing is wetted."""
+        surface = self.controlling_surface
+        return None if surface is None else surface.overall
+
+    @property
+    def coolant_outlet_temperature(self) -> float | None:
+        """Outlet temperature of the jacket stream, K; None without a wetted jacket."""
+        jacket = self.stream("jacket")
+        return None if jacket is None else jacket.balance.outlet_temperature
 
     @property
     def area(self) -> float:
@@ -103,10 +200,8 @@ class HeatTransferResult:
     @property
     def controlling(self) -> str:
         """The resistance that is largest on the surface carrying most of the UA."""
-        surfaces = [surface for stream in self.streams for surface in stream.surfaces]
-        if not surfaces:
-            return "none"
-        return max(surfaces, key=lambda s: s.ua).overall.controlling
+        overall = self.controlling_overall
+        return "none" if overall is None else overall.controlling
 
 
 @dataclass(frozen=True)
@@ -284,10 +379,10 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
 
 
 def coolant_balance_at_mean(coolant: Coolant, process_temperature: float, ua: float
-                            ) -> tuple[coolant_balance_module.CoolantBalance, float, float]:
+                            ) -> coolant_balance_module.CoolantBalance:
     """Single-pass coolant balance with c_p at the mean coolant temperature it produces.
 
-    Returns (balance, mass flow kg/s, heat capacity J/(kg K)). Fixed-point iteration on the mean
+    The balance carries the mass flow and that c_p. Fixed-point iteration on the mean
     temperature; c_p varies slowly, so a few passes reach 1e-6 K.
     """
     mass_flow = coolant.mass_flow()
@@ -302,7 +397,7 @@ def coolant_balance_at_mean(coolant: Coolant, process_temperature: float, ua: fl
         if abs(new_mean - mean) < TOLERANCE:
             break
         mean = new_mean
-    return balance, mass_flow, heat_capacity
+    return balance
 
 
 @dataclass(frozen=True)

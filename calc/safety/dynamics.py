@@ -42,7 +42,7 @@ from scipy.optimize import brentq, minimize_scalar
 
 from calc.properties import GAS_CONSTANT
 from calc.safety.tank_model import (
-    METHODS, MODES, CoolingFailure, LimitCrossing, Series, SimulationInput, SimulationResult, Summary,
+    METHODS, MODES, CoolingFailure, FailureTrial, LimitCrossing, Series, SimulationInput, SimulationResult, Summary,
     TemperatureLimit, default_limiting_reagent, validate,
 )
 from calc.validity import CalcWarning, InputError, Warnings
@@ -376,7 +376,7 @@ def _worst_failure(model: _Model, failure: CoolingFailure, limits: tuple):
     track = _concat(runs[worst][1], runs[worst][2])
     if exhausted:
         track.status, track.message = 2, MESSAGES[2]
-    return track, worst, tuple(sorted((t, runs[t][0]) for t in runs))
+    return track, worst, tuple(FailureTrial(t, runs[t][0]) for t in sorted(runs))
 
 
 # ----------------------------------------------------------------------------- results
@@ -433,12 +433,17 @@ def _result(model: _Model, track: _Track, t_fail, search, warnings: Warnings) ->
         peak_jacket_duty=float(max((-steps["Q"]).max(), (-out["Q"]).max())),
         limits_crossed=tuple(track.crossings), closure_error=float(closure), failure_time=t_fail)
     n_out = Y_out[:model.ns]
+    coolant_in = np.broadcast_to(out["Tin"], t_out.shape).astype(float)
+    coolant_out = np.broadcast_to(out["T_out"], t_out.shape).astype(float)
+    if t_fail is not None:  # no coolant flows after the failure: its temperatures are undefined
+        coolant_in[t_out > t_fail] = np.nan
+        coolant_out[t_out > t_fail] = np.nan
     series = Series(
-        time=t_out, temperature=Y_out[model.iT], coolant_inlet_temperature=np.broadcast_to(out["Tin"], t_out.shape).copy(),
-        coolant_outlet_temperature=np.broadcast_to(out["T_out"], t_out.shape).copy(), moles=n_out,
+        time=t_out, temperature=Y_out[model.iT], coolant_inlet_temperature=coolant_in,
+        coolant_outlet_temperature=coolant_out, moles=n_out,
         concentrations=n_out / out["V"], mass=out["mass"], conversion=out["conversion"],
         accumulation=out["accumulation"], heat_release_rate=out["q"], jacket_duty=-out["Q"],
-        feed_rate=p_out[:, 0].copy())
+        feed_rate=p_out[:, 0].copy(), species=tuple(model.names))
     return SimulationResult(
         success=track.status in (0, 1), status=track.status, message=track.message, species=model.names,
         series=series, summary=summary, failure_search=search, rhs_evaluations=model.evaluations,

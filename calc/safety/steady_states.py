@@ -64,6 +64,36 @@ class SteadyState:
     stable: bool  # every eigenvalue has a negative real part
     classification: str
 
+    @property
+    def eigenvalue_pairs(self) -> tuple[tuple[float, float], ...]:
+        """The eigenvalues as (real, imaginary) pairs, 1/s."""
+        return tuple((float(complex(e).real), float(complex(e).imag)) for e in self.eigenvalues)
+
+
+#: Points of the returned curves; the states are found on the full scan grid.
+CURVE_POINTS = 401
+
+
+def thinned(values: np.ndarray, points: int = CURVE_POINTS) -> np.ndarray:
+    """At most ``points`` evenly spaced samples of a scan, first and last kept.
+
+    >>> thinned(np.arange(10.0), 4).tolist()
+    [0.0, 3.0, 6.0, 9.0]
+    """
+    values = np.asarray(values, dtype=float)
+    if values.size <= points:
+        return values
+    return values[np.linspace(0, values.size - 1, points).round().astype(int)]
+
+
+@dataclass(frozen=True)
+class HeatCurves:
+    """Heat generation and removal against temperature (K, W), thinned for returning."""
+
+    temperature: np.ndarray
+    heat_generation: np.ndarray
+    heat_removal: np.ndarray
+
 
 @dataclass(frozen=True)
 class SteadyStatesResult:
@@ -73,6 +103,10 @@ class SteadyStatesResult:
     heat_removal: np.ndarray  # W
     warnings: Warnings = field(default_factory=Warnings)
     cautions: tuple = (CAUTION,)
+
+    @property
+    def curves(self) -> HeatCurves:
+        return HeatCurves(thinned(self.temperature), thinned(self.heat_generation), thinned(self.heat_removal))
 
 
 def outlet_concentration(feed_concentration: float, tau_k, order: float):

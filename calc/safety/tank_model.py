@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 import numbers
 from dataclasses import dataclass, field
-from typing import Callable
+from typing import Callable, NamedTuple
 
 import numpy as np
 from scipy.integrate import BDF, LSODA, Radau
@@ -157,8 +157,8 @@ class SimulationInput:
 class Series:
     time: np.ndarray  # s
     temperature: np.ndarray  # K
-    coolant_inlet_temperature: np.ndarray  # K
-    coolant_outlet_temperature: np.ndarray  # K (the jacket temperature for a holdup jacket)
+    coolant_inlet_temperature: np.ndarray  # K; NaN after a cooling failure (no coolant flows)
+    coolant_outlet_temperature: np.ndarray  # K (the jacket temperature for a holdup jacket); NaN after a failure
     moles: np.ndarray  # mol, shape (species, points)
     concentrations: np.ndarray  # mol/m3, shape (species, points)
     mass: np.ndarray  # kg
@@ -167,6 +167,12 @@ class Series:
     heat_release_rate: np.ndarray  # W
     jacket_duty: np.ndarray  # W, heat removed from the contents (positive when cooling)
     feed_rate: np.ndarray  # kg/s
+    species: tuple[str, ...] = ()  # names, the row order of moles and concentrations
+
+    @property
+    def concentrations_by_species(self) -> dict[str, np.ndarray]:
+        """Species name -> its concentration series, mol/m3."""
+        return dict(zip(self.species, self.concentrations))
 
 
 @dataclass(frozen=True)
@@ -190,6 +196,13 @@ class Summary:
     failure_time: float | None  # s
 
 
+class FailureTrial(NamedTuple):
+    """One failure time tried by the worst-failure search and the peak temperature it led to."""
+
+    failure_time: float  # s
+    maximum_temperature: float  # K
+
+
 @dataclass(frozen=True)
 class SimulationResult:
     success: bool
@@ -198,7 +211,7 @@ class SimulationResult:
     species: tuple  # names, the row order of moles and concentrations
     series: Series
     summary: Summary
-    failure_search: tuple = ()  # (failure time s, maximum temperature K) pairs evaluated
+    failure_search: tuple[FailureTrial, ...] = ()  # every failure time evaluated, by time
     rhs_evaluations: int = 0  # point evaluations of the right-hand side, Jacobian included
     steps: int = 0
     warnings: Warnings = field(default_factory=Warnings)

@@ -1,8 +1,8 @@
 """The three things every thermal check is about: the vessel, its charge and the coolant.
 
 These are plain descriptions in SI units, assembled by ``schemas`` from a request and consumed by
-``calc.heat_transfer`` and the modules built on it. They hold no behaviour beyond resolving the
-coolant's mass flow and the charge's volume.
+``calc.network.heat_transfer`` and the modules built on it. They hold no behaviour beyond resolving the
+coolant's mass flow and the charge's volume; ``stirred`` gives the agitator's hydraulics with a charge.
 """
 from __future__ import annotations
 
@@ -10,7 +10,7 @@ import math
 from dataclasses import dataclass, field, replace
 
 from calc.vessel import geometry
-from calc.vessel.agitation import Agitator
+from calc.vessel.agitation import Agitator, AgitationResult, agitation
 from calc.properties import Liquid
 from calc.validity import InputError
 from calc.films.wall import Fouling, WallSpec
@@ -111,3 +111,15 @@ class Coolant:
         ratio = mass_flow / self.mass_flow()
         coil = None if self.coil_flow is None else self.coil_mass_flow() * ratio
         return replace(self, flow=mass_flow, flow_kind="mass", coil_flow=coil)
+
+
+def stirred(vessel: Vessel, charge: Charge, process_temperature: float) -> AgitationResult:
+    """The agitator's Reynolds number, power and tip speed with ``charge`` at ``process_temperature`` (K).
+
+    The charge's volume at that temperature sets the liquid level (coils displace liquid) and so
+    the liquid volume behind the power per volume.
+    """
+    props = charge.liquid.at(process_temperature, field="process_temperature")
+    filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils,
+                           volume=charge.liquid_volume(process_temperature))
+    return agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
