@@ -5,7 +5,7 @@ import logging
 import os
 import re
 import uuid
-from importlib import metadata
+from importlib import metadata, resources
 
 from flask import Flask, g, request
 
@@ -29,7 +29,8 @@ DEFAULTS = {
     "AUTH_TOKENS": "",  # comma-separated bearer tokens; empty means open
     "AUTH_TOKENS_FILE": "",
     "CORS_ORIGINS": "",  # comma-separated allow-list
-    "OPENAPI_PATH": os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "openapi.yaml"),
+    # The contract ships inside the package (api/openapi.yaml links to the top-level file in a checkout).
+    "OPENAPI_PATH": str(resources.files("api").joinpath("openapi.yaml")),
 }
 _ENV_PREFIX = "COOLMARGIN_"
 _REQUEST_ID = re.compile(r"^[A-Za-z0-9._-]{1,64}$")
