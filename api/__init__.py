@@ -9,6 +9,8 @@ from importlib import metadata, resources
 
 from flask import Flask, g, request
 
+from calc.checks import scaleup
+
 from . import errors, runtime, security
 
 try:
@@ -20,7 +22,7 @@ DEFAULTS = {
     "MAX_CONTENT_LENGTH": 1024 * 1024,  # bytes; a larger body is a 413
     "MAX_NESTING_DEPTH": 32,  # levels of JSON objects/arrays
     "MAX_BATCH_CASES": 50,  # cases in one {"cases": [...]} call
-    "MAX_SCALES": 20,  # targets in one scale-up
+    "MAX_SCALES": scaleup.MAX_TARGETS,  # targets in one scale-up
     "MAX_SERIES_POINTS": 2000,  # points in a returned time series
     "MAX_SIMULATION_HORIZON": 7 * 24 * 3600.0,  # s of simulated time
     "SIMULATION_WALL_TIME": 10.0,  # s of computing per simulation request

@@ -3,6 +3,8 @@ from __future__ import annotations
 
 import io
 
+from calc.cautions import CHART
+
 STYLE = {"font.size": 9, "axes.spines.top": False, "axes.spines.right": False, "axes.grid": True,
          "grid.color": "#dddddd", "grid.linewidth": 0.6, "axes.edgecolor": "#555555"}
 COLOURS = ("#1f4e79", "#c0504d", "#4f8a3c", "#8064a2", "#d08a2b")
@@ -37,5 +39,5 @@ def render(fig, fmt: str) -> bytes:
 
 
 def footnote(fig) -> None:
-    fig.text(0.01, 0.003, "Screening estimate - confirm with reaction calorimetry and plant data.",
+    fig.text(0.01, 0.003, CHART,
              fontsize=7, color="#777777")

@@ -7,7 +7,6 @@ from schemas.cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema
                              ScaleUpResultSchema)
 
 from . import charts
-from .errors import ProblemError
 from .http import calculate
 from .runtime import deadline
 
@@ -29,13 +28,10 @@ _scale_request, _scale_result = ScaleUpRequestSchema(), ScaleUpResultSchema()
 
 
 def _scale_up(args: dict) -> scaleup.ScaleUp:
-    limit = current_app.config["MAX_SCALES"]
-    if len(args["targets"]) > limit:
-        raise ProblemError(413, f"at most {limit} targets per scale-up",
-                           [{"field": "targets", "message": f"at most {limit} targets"}])
     return scaleup.scale_up(args["reference"], args["targets"], args["rule"], args["charge"], args["coolant"],
                             args["process_temperature"], args["heat_release"], args["safety_factor"],
-                            args["coolant_flow_rule"], deadline=deadline())
+                            args["coolant_flow_rule"], deadline=deadline(),
+                            max_targets=int(current_app.config["MAX_SCALES"]))
 
 
 def scale_up_chart(payload: dict, fmt: str) -> bytes:

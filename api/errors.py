@@ -8,7 +8,7 @@ from marshmallow import ValidationError
 from werkzeug.exceptions import HTTPException
 
 from calc.deadline import OutOfTime
-from calc.validity import CalculationError, InputError
+from calc.validity import CalculationError, InputError, TooLarge
 from schemas.base import error_list
 
 log = logging.getLogger("coolmargin")
@@ -61,6 +61,8 @@ def problem_for(exc: Exception) -> tuple[int, str, list[dict], str | None]:
     if isinstance(exc, ValidationError):
         errors = error_list(exc.messages)
         return 422, "; ".join(f"{e['field']}: {e['message']}" for e in errors[:5]), errors, None
+    if isinstance(exc, TooLarge):
+        return 413, f"{exc.field}: {exc.message}", [{"field": exc.field, "message": exc.message}], None
     if isinstance(exc, InputError):
         return 422, f"{exc.field}: {exc.message}", [{"field": exc.field, "message": exc.message}], None
     if isinstance(exc, CalculationError):

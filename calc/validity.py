@@ -7,6 +7,7 @@ range. Physically impossible input raises :class:`InputError`, naming the reques
 from __future__ import annotations
 
 import math
+import numbers
 from dataclasses import dataclass
 
 
@@ -29,6 +30,10 @@ class InputError(ValueError):
         super().__init__(f"{field}: {message}")
         self.field = field
         self.message = message
+
+
+class TooLarge(InputError):
+    """More items than the configured limit allows (targets of a scale-up, ...); the API answers 413."""
 
 
 class CalculationError(RuntimeError):
@@ -79,11 +84,39 @@ class Warnings(list):
             self.add(w)
 
 
+# ---------------------------------------------------------------- input guards
+# The one set of guards every calc module uses on the numbers it is given; each names the API field.
+
+def require_finite(field: str, value: float) -> float:
+    """Raise :class:`InputError` unless ``value`` is a finite real number (a bool is not one).
+
+    >>> require_finite("ua", 3)
+    3.0
+    """
+    if isinstance(value, bool) or not isinstance(value, numbers.Real) or not math.isfinite(value):
+        raise InputError(field, f"must be a finite number, got {value!r}")
+    return float(value)
+
+
 def require_positive(field: str, value: float) -> float:
     """Raise :class:`InputError` unless ``value`` is a finite number > 0."""
-    if not (math.isfinite(value) and value > 0):
+    if not require_finite(field, value) > 0:
         raise InputError(field, f"must be a positive number, got {value!r}")
-    return value
+    return float(value)
+
+
+def require_non_negative(field: str, value: float) -> float:
+    """Raise :class:`InputError` unless ``value`` is a finite number >= 0."""
+    if not require_finite(field, value) >= 0:
+        raise InputError(field, f"must not be negative, got {value!r}")
+    return float(value)
+
+
+def require_temperature(field: str, value: float) -> float:
+    """Raise :class:`InputError` unless ``value`` is an absolute temperature above 0 K."""
+    if not require_finite(field, value) > 0:
+        raise InputError(field, f"must be an absolute temperature above 0 K, got {value!r}")
+    return float(value)
 
 
 @dataclass(frozen=True)

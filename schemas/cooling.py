@@ -3,17 +3,14 @@ from __future__ import annotations
 
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
-from calc.vessel import agitation
-from calc.checks import heat_load
+from calc.checks import cooling_check, heat_load
 from calc.checks import scaleup
 
 from .base import StrictSchema, finite_float
 from .heat_transfer import HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema
-from .units import Quantity
-from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, require_agitator
+from .units import Quantity, absolute_temperature
+from .vessel import CoolantSchema, VesselSchema, require_agitator
 
-DEFAULT_SAFETY_FACTOR = 1.3
-SCALE_RULES = sorted(agitation.SCALE_UP_RULES) + ["as_given"]
 
 
 class HeatReleaseSchema(StrictSchema):
@@ -30,7 +27,7 @@ class HeatReleaseSchema(StrictSchema):
     dosed_amount = Quantity("amount of substance", load_default=None, minimum=0, exclusive_minimum=True)
     dosing_time = Quantity("time", load_default=None, minimum=0, exclusive_minimum=True)
     feed_mass = Quantity("mass", load_default=None, minimum=0)
-    feed_temperature = Quantity("temperature", load_default=None, minimum=ABSOLUTE_ZERO_C, exclusive_minimum=True)
+    feed_temperature = absolute_temperature(load_default=None)
     feed_heat_capacity = Quantity("heat capacity", load_default=None, minimum=0, exclusive_minimum=True)
 
     _FIELDS = {"specific_power": ("power_per_mass",), "total_power": ("power",),
@@ -59,7 +56,7 @@ class HeatReleaseSchema(StrictSchema):
 
 class CoolingCheckRequestSchema(HeatTransferRequestSchema):
     heat_release = fields.Nested(HeatReleaseSchema, required=True)
-    safety_factor = finite_float(load_default=DEFAULT_SAFETY_FACTOR, validate=validate.Range(1.0, 10.0),
+    safety_factor = finite_float(load_default=cooling_check.DEFAULT_SAFETY_FACTOR, validate=validate.Range(1.0, 10.0),
                                  metadata={"description": "required capacity / load; default 1.3 "
                                                           "(a conservative engineering choice)"})
 
@@ -91,15 +88,16 @@ class TargetSchema(StrictSchema):
 
 class ScaleUpRequestSchema(StrictSchema):
     reference = fields.Nested(VesselSchema, required=True)
-    targets = fields.List(fields.Nested(TargetSchema), required=True, validate=validate.Length(min=1, max=20))
-    rule = fields.String(load_default="constant_power_per_volume", validate=validate.OneOf(SCALE_RULES))
+    targets = fields.List(fields.Nested(TargetSchema), required=True, validate=validate.Length(min=1),
+                          metadata={"description": "at most the server's COOLMARGIN_MAX_SCALES (413 above)"})
+    rule = fields.String(load_default="constant_power_per_volume", validate=validate.OneOf(scaleup.RULES))
     charge = HeatTransferRequestSchema._declared_fields["charge"]
     coolant = HeatTransferRequestSchema._declared_fields["coolant"]
     process_temperature = HeatTransferRequestSchema._declared_fields["process_temperature"]
     heat_release = fields.Nested(HeatReleaseSchema, required=True)
     safety_factor = CoolingCheckRequestSchema._declared_fields["safety_factor"]
     coolant_flow_rule = fields.String(load_default="scale_with_area",
-                                      validate=validate.OneOf(["scale_with_area", "as_given"]),
+                                      validate=validate.OneOf(scaleup.COOLANT_FLOW_RULES),
                                       metadata={"description": "coolant flow at each scale: in proportion to the "
                                                                "heat-transfer area, or as given"})
 

@@ -4,11 +4,8 @@ from __future__ import annotations
 from marshmallow import ValidationError, fields, post_load, validates_schema
 
 from .base import StrictSchema, finite_float
-from .units import Quantity
-from .vessel import ABSOLUTE_ZERO_C, ChargeSchema, CoolantSchema, VesselSchema, require_agitator
-
-def _temperature(**kwargs) -> Quantity:
-    return Quantity("temperature", minimum=ABSOLUTE_ZERO_C, exclusive_minimum=True, **kwargs)
+from .units import Quantity, absolute_temperature
+from .vessel import ChargeSchema, CoolantSchema, VesselSchema, require_agitator
 
 
 class WarningSchema(StrictSchema):
@@ -16,7 +13,8 @@ class WarningSchema(StrictSchema):
     message = fields.String()
 
 
-def _warnings():
+def warning_list() -> fields.List:
+    """The ``warnings`` field of every result: [{code, message}]."""
     return fields.List(fields.Nested(WarningSchema))
 
 
@@ -41,7 +39,7 @@ class GeometryRequestSchema(StrictSchema):
 class _AgitatedVesselSchema(StrictSchema):
     vessel = fields.Nested(VesselSchema, required=True)
     charge = fields.Nested(ChargeSchema, required=True)
-    process_temperature = _temperature(required=True)
+    process_temperature = absolute_temperature(required=True)
 
     @validates_schema
     def _agitator(self, data, **kwargs):
@@ -57,7 +55,7 @@ class HeatTransferRequestSchema(_AgitatedVesselSchema):
 
 
 class CoolantBalanceRequestSchema(StrictSchema):
-    process_temperature = _temperature(required=True)
+    process_temperature = absolute_temperature(required=True)
     coolant = fields.Nested(CoolantSchema, required=True)
     ua = Quantity("thermal conductance", required=True, minimum=0,
                   description="overall coefficient times area of the exchanging surface")
@@ -75,7 +73,7 @@ class GeometryResultSchema(StrictSchema):
     area_per_volume = Quantity("area per volume")
     displaced_volume = Quantity("volume", metadata={"description": "liquid displaced by the coils"})
     brim_volume = Quantity("volume", metadata={"description": "volume up to the top of the straight side"})
-    warnings = _warnings()
+    warnings = warning_list()
 
 
 class AgitationResultSchema(StrictSchema):
@@ -88,7 +86,7 @@ class AgitationResultSchema(StrictSchema):
     froude = fields.Float()
     regime = fields.String()
     sources = fields.Dict(keys=fields.String(), values=fields.String())
-    warnings = _warnings()
+    warnings = warning_list()
 
 
 class FilmCoefficientsSchema(StrictSchema):
@@ -146,7 +144,7 @@ class HeatTransferResultSchema(StrictSchema):
     correlations = fields.Dict(keys=fields.String(), values=fields.String())
     geometry = fields.Nested(GeometryResultSchema, attribute="fill")
     agitation = fields.Nested(AgitationResultSchema)
-    warnings = _warnings()
+    warnings = warning_list()
     cautions = fields.List(fields.String())
 
 
@@ -160,7 +158,7 @@ class CoolantBalanceResultSchema(StrictSchema):
     effectiveness = fields.Float()
     mass_flow = Quantity("mass flow")
     heat_capacity = Quantity("heat capacity")
-    warnings = _warnings()
+    warnings = warning_list()
 
 
 class FilmConstantsSchema(StrictSchema):

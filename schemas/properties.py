@@ -6,16 +6,15 @@ from marshmallow import fields, validate, validates_schema, ValidationError
 from calc import properties
 
 from .base import StrictSchema, finite_float
-from .units import Quantity
+from .units import Quantity, absolute_temperature
 
 FLUID_IDS = sorted(properties.FLUIDS)
-ABSOLUTE_ZERO_C = -273.15
 
 
 class PropertiesQuerySchema(StrictSchema):
     fluid = fields.String(required=True, validate=validate.OneOf(FLUID_IDS),
                           metadata={"description": "fluid id from /v1/fluids"})
-    temperature = Quantity("temperature", required=True, minimum=ABSOLUTE_ZERO_C, exclusive_minimum=True)
+    temperature = absolute_temperature(required=True)
     mass_fraction = finite_float(validate=validate.Range(0, 1), load_default=None,
                                  metadata={"unit": "", "description": "glycol mass fraction, 0-1"})
     pressure = Quantity("pressure", load_default=properties.STANDARD_PRESSURE, minimum=0,

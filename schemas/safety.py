@@ -16,9 +16,9 @@ from calc.safety.in_vessel import RunVessel
 from calc.properties import FLUIDS, STANDARD_PRESSURE
 
 from .base import StrictSchema, finite_float
-from .heat_transfer import WarningSchema
-from .units import Quantity
-from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, _LiquidFields, require_agitator
+from .heat_transfer import warning_list
+from .units import Quantity, absolute_temperature, non_negative, positive
+from .vessel import CoolantSchema, VesselSchema, _LiquidFields, require_agitator
 
 MAX_SPECIES = 20
 MAX_REACTIONS = 20
@@ -26,21 +26,6 @@ MAX_FEED_STEPS = 50
 MAX_LIMITS = 10
 _PURE_FLUIDS = sorted(k for k, v in FLUIDS.items() if v.kind == "pure")
 
-
-def _temperature(**kwargs) -> Quantity:
-    return Quantity("temperature", minimum=ABSOLUTE_ZERO_C, exclusive_minimum=True, **kwargs)
-
-
-def _positive(kind: str, **kwargs) -> Quantity:
-    return Quantity(kind, minimum=0, exclusive_minimum=True, **kwargs)
-
-
-def _non_negative(kind: str, **kwargs) -> Quantity:
-    return Quantity(kind, minimum=0, **kwargs)
-
-
-def _warnings():
-    return fields.List(fields.Nested(WarningSchema))
 
 
 def _amounts(description: str, **kwargs) -> fields.Dict:
@@ -53,10 +38,10 @@ def _amounts(description: str, **kwargs) -> fields.Dict:
 # ================================================================ thermal safety
 
 class DecompositionSchema(StrictSchema):
-    onset_power = _positive("specific power", required=True,
+    onset_power = positive("specific power", required=True,
                             description="measured decomposition heat-release rate at onset_temperature")
-    onset_temperature = _temperature(required=True)
-    activation_energy = _positive("activation energy", required=True)
+    onset_temperature = absolute_temperature(required=True)
+    activation_energy = positive("activation energy", required=True)
 
     @post_load
     def _make(self, data, **kwargs):
@@ -64,25 +49,25 @@ class DecompositionSchema(StrictSchema):
 
 
 class ThermalSafetyRequestSchema(StrictSchema):
-    process_temperature = _temperature(required=True, description="temperature when cooling fails")
-    heat_capacity = _positive("heat capacity", required=True, description="of the reaction mass")
-    reaction_energy = _positive("specific energy", load_default=None,
+    process_temperature = absolute_temperature(required=True, description="temperature when cooling fails")
+    heat_capacity = positive("heat capacity", required=True, description="of the reaction mass")
+    reaction_energy = positive("specific energy", load_default=None,
                                 description="heat released per kg of reaction mass (> 0)")
     reaction_enthalpy = Quantity("molar enthalpy", load_default=None,
                                  description="negative when exothermic; with concentration and density")
-    concentration = _non_negative("concentration", load_default=None,
+    concentration = non_negative("concentration", load_default=None,
                                   description="of the limiting reactant in the reaction mass")
-    density = _positive("density", load_default=None)
+    density = positive("density", load_default=None)
     accumulation = finite_float(load_default=1.0, validate=validate.Range(0.0, 1.0),
                                 metadata={"description": "fraction of reactant unconverted when cooling fails "
                                                          "(1 = batch)"})
-    maximum_technical_temperature = _temperature(load_default=None,
+    maximum_technical_temperature = absolute_temperature(load_default=None,
                                                  description="MTT; or give fluid (+ pressure) for its boiling point")
     fluid = fields.String(load_default=None, validate=validate.OneOf(_PURE_FLUIDS),
                           metadata={"description": "contents fluid whose boiling point at pressure is the MTT"})
-    pressure = _positive("pressure", load_default=STANDARD_PRESSURE, description="absolute")
+    pressure = positive("pressure", load_default=STANDARD_PRESSURE, description="absolute")
     decomposition = fields.Nested(DecompositionSchema, load_default=None)
-    td24 = _temperature(load_default=None, description="temperature at which TMR_ad is 24 h, if known")
+    td24 = absolute_temperature(load_default=None, description="temperature at which TMR_ad is 24 h, if known")
 
     @validates_schema
     def _choices(self, data, **kwargs):
@@ -111,7 +96,7 @@ class ThermalSafetyResultSchema(StrictSchema):
     mtt = Quantity("temperature", description="maximum temperature for technical reasons")
     criticality_class = fields.Integer()
     reasoning = fields.List(fields.String())
-    warnings = _warnings()
+    warnings = warning_list()
     cautions = fields.List(fields.String())
 
 
@@ -119,8 +104,8 @@ class ThermalSafetyResultSchema(StrictSchema):
 
 class SpeciesSchema(StrictSchema):
     name = fields.String(required=True, validate=validate.Length(min=1, max=40))
-    molar_mass = _positive("molar mass", required=True)
-    heat_capacity = _positive("heat capacity", required=True)
+    molar_mass = positive("molar mass", required=True)
+    heat_capacity = positive("heat capacity", required=True)
 
     @post_load
     def _make(self, data, **kwargs):
@@ -133,8 +118,8 @@ class ReactionSchema(StrictSchema):
     rate_constant = finite_float(required=True, validate=validate.Range(min=0),
                                  metadata={"description": "k at reference_temperature, SI: "
                                                           "(mol/m^3)^(1 - sum of orders)/s"})
-    reference_temperature = _temperature(required=True)
-    activation_energy = _non_negative("activation energy", required=True)
+    reference_temperature = absolute_temperature(required=True)
+    activation_energy = non_negative("activation energy", required=True)
     enthalpy = Quantity("molar enthalpy", required=True,
                         description="per mol of extent, negative = exothermic; positive only with endothermic")
     endothermic = fields.Boolean(load_default=False,
@@ -147,11 +132,11 @@ class ReactionSchema(StrictSchema):
 
 
 class SimulationChargeSchema(StrictSchema):
-    mass = _positive("mass", required=True)
-    temperature = _temperature(required=True)
+    mass = positive("mass", required=True)
+    temperature = absolute_temperature(required=True)
     composition = _amounts("species -> mol per kg of charge; the rest is inert balance", required=True)
-    density = _positive("density", required=True)
-    balance_heat_capacity = _positive("heat capacity", required=True, description="of the inert balance")
+    density = positive("density", required=True)
+    balance_heat_capacity = positive("heat capacity", required=True, description="of the inert balance")
 
     @post_load
     def _make(self, data, **kwargs):
@@ -159,9 +144,9 @@ class SimulationChargeSchema(StrictSchema):
 
 
 class FeedStepSchema(StrictSchema):
-    start = _non_negative("time", required=True)
-    end = _positive("time", required=True)
-    mass_flow = _non_negative("mass flow", required=True)
+    start = non_negative("time", required=True)
+    end = positive("time", required=True)
+    mass_flow = non_negative("mass flow", required=True)
 
     @validates_schema
     def _order(self, data, **kwargs):
@@ -174,11 +159,11 @@ class FeedStepSchema(StrictSchema):
 
 
 class FeedSchema(StrictSchema):
-    temperature = _temperature(required=True)
+    temperature = absolute_temperature(required=True)
     composition = _amounts("species -> mol per kg of feed; the rest is inert balance", required=True)
-    mass_flow = _non_negative("mass flow", load_default=None, description="constant feed; or give steps")
-    start = _non_negative("time", load_default=0.0, description="start of the constant feed")
-    end = _positive("time", load_default=None, description="end of the constant feed; default: never")
+    mass_flow = non_negative("mass flow", load_default=None, description="constant feed; or give steps")
+    start = non_negative("time", load_default=0.0, description="start of the constant feed")
+    end = positive("time", load_default=None, description="end of the constant feed; default: never")
     steps = fields.List(fields.Nested(FeedStepSchema), load_default=None,
                         validate=validate.Length(min=1, max=MAX_FEED_STEPS))
 
@@ -197,13 +182,13 @@ class FeedSchema(StrictSchema):
 
 
 class SimulationJacketSchema(StrictSchema):
-    ua = _non_negative("thermal conductance", required=True)
-    coolant_flow = _positive("mass flow", required=True)
-    coolant_heat_capacity = _positive("heat capacity", required=True)
-    inlet_temperature = _temperature(required=True)
+    ua = non_negative("thermal conductance", required=True)
+    coolant_flow = positive("mass flow", required=True)
+    coolant_heat_capacity = positive("heat capacity", required=True)
+    inlet_temperature = absolute_temperature(required=True)
     model = fields.String(load_default="single_pass", validate=validate.OneOf(["single_pass", "holdup"]))
-    holdup_mass = _positive("mass", load_default=None, description="coolant in the jacket, for model holdup")
-    initial_temperature = _temperature(load_default=None, description="of the jacket holdup")
+    holdup_mass = positive("mass", load_default=None, description="coolant in the jacket, for model holdup")
+    initial_temperature = absolute_temperature(load_default=None, description="of the jacket holdup")
 
     @post_load
     def _make(self, data, **kwargs):
@@ -211,13 +196,13 @@ class SimulationJacketSchema(StrictSchema):
 
 
 class ControllerSchema(StrictSchema):
-    setpoint = _temperature(required=True)
+    setpoint = absolute_temperature(required=True)
     gain = finite_float(required=True, validate=validate.Range(min=0),
                         metadata={"description": "K of coolant inlet per K of error"})
-    integral_time = _positive("time", required=True)
-    minimum_inlet_temperature = _temperature(required=True)
-    maximum_inlet_temperature = _temperature(required=True)
-    bias = _temperature(load_default=None, description="coolant inlet at zero error")
+    integral_time = positive("time", required=True)
+    minimum_inlet_temperature = absolute_temperature(required=True)
+    maximum_inlet_temperature = absolute_temperature(required=True)
+    bias = absolute_temperature(load_default=None, description="coolant inlet at zero error")
 
     @post_load
     def _make(self, data, **kwargs):
@@ -245,7 +230,7 @@ class CoolingFailureSchema(StrictSchema):
 
 class LimitSchema(StrictSchema):
     name = fields.String(required=True, validate=validate.Length(min=1, max=40))
-    temperature = _temperature(required=True)
+    temperature = absolute_temperature(required=True)
     terminal = fields.Boolean(load_default=True)
     direction = fields.Integer(load_default=1, validate=validate.OneOf([-1, 0, 1]))
 
@@ -289,14 +274,14 @@ class SimulationRequestSchema(StrictSchema):
     cooling_failure = fields.Nested(CoolingFailureSchema, load_default=None)
     limits = fields.List(fields.Nested(LimitSchema), load_default=list,
                          validate=validate.Length(max=MAX_LIMITS))
-    shaft_power = _non_negative("power", load_default=None,
+    shaft_power = non_negative("power", load_default=None,
                                 description="agitator power; default the vessel's agitator, or 0 without a vessel")
-    mixture_heat_capacity = _positive("heat capacity", load_default=None,
+    mixture_heat_capacity = positive("heat capacity", load_default=None,
                                       description="replaces every species' and the balance's heat capacity")
-    enthalpy_reference_temperature = _temperature(load_default=298.15)
+    enthalpy_reference_temperature = absolute_temperature(load_default=298.15)
     limiting_reagent = fields.String(load_default=None, validate=validate.Length(min=1, max=40))
     method = fields.String(load_default="BDF", validate=validate.OneOf(sorted(tank_model.METHODS)))
-    horizon = _positive("time", required=True, description="simulated time")
+    horizon = positive("time", required=True, description="simulated time")
     output_points = fields.Integer(load_default=201, validate=validate.Range(min=2),
                                    metadata={"description": "points in the returned series"})
 
@@ -377,7 +362,7 @@ class SimulationResultSchema(StrictSchema):
     summary = fields.Nested(SimulationSummarySchema)
     series = fields.Nested(SeriesSchema)
     failure_search = fields.List(fields.Nested(FailureTrialSchema))
-    warnings = _warnings()
+    warnings = warning_list()
     cautions = fields.List(fields.String())
 
 
@@ -404,27 +389,27 @@ def series_rows(payload: dict) -> tuple[list[dict], dict[str, str]]:
 # ================================================================ CSTR steady states
 
 class CSTRRequestSchema(StrictSchema):
-    volume = _positive("volume", required=True)
-    flow = _positive("volume flow", required=True, description="feed = outflow")
-    feed_concentration = _non_negative("concentration", required=True)
-    feed_temperature = _temperature(required=True)
-    density = _positive("density", required=True)
-    heat_capacity = _positive("heat capacity", required=True)
+    volume = positive("volume", required=True)
+    flow = positive("volume flow", required=True, description="feed = outflow")
+    feed_concentration = non_negative("concentration", required=True)
+    feed_temperature = absolute_temperature(required=True)
+    density = positive("density", required=True)
+    heat_capacity = positive("heat capacity", required=True)
     rate_constant = finite_float(required=True, validate=validate.Range(min=0),
                                  metadata={"description": "k at reference_temperature, (mol/m^3)^(1-n)/s"})
-    reference_temperature = _temperature(required=True)
-    activation_energy = _non_negative("activation energy", required=True)
+    reference_temperature = absolute_temperature(required=True)
+    activation_energy = non_negative("activation energy", required=True)
     reaction_enthalpy = Quantity("molar enthalpy", required=True,
                                  description="negative = exothermic; positive only with endothermic")
     endothermic = fields.Boolean(load_default=False,
                                  metadata={"description": "true declares a reaction that absorbs heat "
                                                           "(positive reaction_enthalpy)"})
-    ua = _non_negative("thermal conductance", required=True)
-    coolant_temperature = _temperature(required=True)
+    ua = non_negative("thermal conductance", required=True)
+    coolant_temperature = absolute_temperature(required=True)
     order = finite_float(load_default=1.0, validate=validate.Range(0.0, 5.0))
-    shaft_power = _non_negative("power", load_default=0.0)
-    minimum_temperature = _temperature(load_default=None, description="lower end of the scan; with maximum")
-    maximum_temperature = _temperature(load_default=None, description="upper end of the scan; with minimum")
+    shaft_power = non_negative("power", load_default=0.0)
+    minimum_temperature = absolute_temperature(load_default=None, description="lower end of the scan; with maximum")
+    maximum_temperature = absolute_temperature(load_default=None, description="upper end of the scan; with minimum")
     grid_points = fields.Integer(load_default=4001, validate=validate.Range(11, 20001))
 
     @validates_schema
@@ -466,5 +451,5 @@ class CurvesSchema(StrictSchema):
 class CSTRResultSchema(StrictSchema):
     states = fields.List(fields.Nested(SteadyStateSchema))
     curves = fields.Nested(CurvesSchema)
-    warnings = _warnings()
+    warnings = warning_list()
     cautions = fields.List(fields.String())

@@ -193,3 +193,22 @@ class Quantity(fields.Field):
             return None
         result = from_si(self.kind, float(value))
         return result if math.isfinite(result) else None
+
+
+#: 0 K in the API's temperature unit (degC): the floor of every temperature field.
+ABSOLUTE_ZERO_C = from_si("temperature", 0.0)
+
+
+def absolute_temperature(**kwargs) -> Quantity:
+    """A temperature field that refuses anything at or below absolute zero."""
+    return Quantity("temperature", minimum=ABSOLUTE_ZERO_C, exclusive_minimum=True, **kwargs)
+
+
+def positive(kind: str, **kwargs) -> Quantity:
+    """A quantity field that must be > 0."""
+    return Quantity(kind, minimum=0, exclusive_minimum=True, **kwargs)
+
+
+def non_negative(kind: str, **kwargs) -> Quantity:
+    """A quantity field that must be >= 0."""
+    return Quantity(kind, minimum=0, **kwargs)

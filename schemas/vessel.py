@@ -16,9 +16,8 @@ from calc.films import wall
 from calc.vessel.model import Charge, Coolant, Vessel
 
 from .base import StrictSchema, finite_float
-from .units import Quantity, parse_quantity
+from .units import Quantity, absolute_temperature, parse_quantity
 
-ABSOLUTE_ZERO_C = -273.15
 JACKET_TYPES = ["annular", "annular_spiral_baffle", "half_pipe", "none"]
 
 
@@ -145,7 +144,7 @@ class _LiquidFields(StrictSchema):
     heat_capacity = Quantity("heat capacity", minimum=0, exclusive_minimum=True, load_default=None)
     viscosity = Quantity("viscosity", minimum=0, exclusive_minimum=True, load_default=None)
     thermal_conductivity = Quantity("thermal conductivity", minimum=0, exclusive_minimum=True, load_default=None)
-    viscosity_reference_temperature = Quantity("temperature", minimum=ABSOLUTE_ZERO_C, exclusive_minimum=True,
+    viscosity_reference_temperature = absolute_temperature(
                                                load_default=None,
                                                description="temperature at which `viscosity` applies")
     viscosity_temperature_coefficient = Quantity("temperature difference", load_default=None,
@@ -221,7 +220,7 @@ class Flow(fields.Field):
 
 
 class CoolantSchema(_LiquidFields):
-    inlet_temperature = Quantity("temperature", required=True, minimum=ABSOLUTE_ZERO_C, exclusive_minimum=True)
+    inlet_temperature = absolute_temperature(required=True)
     flow = Flow(required=True)
     coil_flow = Flow(load_default=None, metadata={"description": "flow through each coil; default the jacket flow"})
 

@@ -14,7 +14,8 @@ from calc.vessel import agitation
 from calc.vessel import geometry
 from calc.films import jacket_side as service_side
 from calc.films import wall
-from calc.checks.cooling_check import CAUTIONS, DOSING_CAUTION, FLOW_SEARCH_CAP, cooling_check
+from calc.cautions import COOLING_CHECK, DOSING
+from calc.checks.cooling_check import FLOW_SEARCH_CAP, cooling_check
 from calc.checks.heat_load import Dosing, SpecificPower, TotalPower
 from calc.network.heat_transfer import heat_transfer
 from calc.properties import LibraryLiquid
@@ -148,10 +149,10 @@ def test_cautions_ride_along():
     # project rule: every verdict carries the screening cautions
     r = check(SpecificPower(10.0))
     text = " ".join(r.cautions)
-    assert r.cautions[:len(CAUTIONS)] == CAUTIONS
+    assert r.cautions[:len(COOLING_CHECK)] == COOLING_CHECK
     for phrase in ("25-30 %", "calorimetry", "plant data", "licensed engineer", "cooling failure"):
         assert phrase in text
-    assert DOSING_CAUTION in check(DOSE).cautions and DOSING_CAUTION not in r.cautions
+    assert DOSING in check(DOSE).cautions and DOSING not in r.cautions
 
 
 @pytest.mark.parametrize("kw, field", [

@@ -141,3 +141,17 @@ def test_explicit_target_without_agitator_is_422_naming_it(client):
     target = {"vessel": {k: v for k, v in DEMO["targets"][1]["vessel"].items() if k != "agitator"}}
     body = client.post("/v1/scale-up", json=dict(DEMO, targets=[target])).json
     assert body["status"] == 422 and body["errors"][0]["field"] == "targets[0].vessel.agitator"
+
+
+def test_scale_up_target_cap_is_the_setting_and_answers_413():
+    # The contract in README.md (COOLMARGIN_MAX_SCALES, default 20, "413 above"): 21 targets are a 413
+    # naming the field, and raising the setting lets the same request through.
+    from api import create_app
+
+    body = json.loads((ROOT / "examples" / "scale_up_demo.json").read_text())
+    body["targets"] = [{"volume": 0.01 * (i + 1)} for i in range(21)]
+    refused = create_app({"TESTING": True}).test_client().post("/v1/scale-up", json=body)
+    assert refused.status_code == 413 and refused.mimetype == "application/problem+json"
+    assert refused.json["errors"] == [{"field": "targets", "message": "at most 20 targets per scale-up, got 21"}]
+    raised = create_app({"TESTING": True, "MAX_SCALES": 21}).test_client().post("/v1/scale-up", json=body)
+    assert raised.status_code == 200 and len(raised.json["scales"]) == 22  # the reference and 21 targets

@@ -30,6 +30,7 @@ from dataclasses import dataclass, field, replace
 
 from scipy.optimize import brentq
 
+from calc.cautions import COOLING_CHECK, DOSING, ENDOTHERMIC
 from calc.deadline import NEVER, Deadline
 from calc.network import coolant_balance
 from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
@@ -50,24 +51,6 @@ FREEZING_OFFSET = 0.1
 EXPLICIT_COOLANT_SPAN = 150.0
 #: Closest approach of the coolant inlet to the process temperature in the search, K.
 APPROACH = 1e-3
-
-CAUTIONS = (
-    "Screening estimate: the film coefficients come from published correlations that scatter by "
-    "+-25-30 % against measurements; the safety factor is meant to cover that, not more.",
-    "Confirm the heat release with reaction calorimetry and the heat transfer with plant data "
-    "(a measured U A or a cooling curve of the real vessel) before relying on this verdict.",
-    "Local codes and standards and the review of a licensed engineer govern the design and operation "
-    "of the plant; this result does not replace them.",
-    "The verdict covers normal operation only, not a cooling failure: assess the loss of cooling "
-    "(adiabatic temperature rise, MTSR, time to maximum rate) with the thermal-safety calculation.",
-)
-DOSING_CAUTION = ("The dosing model assumes the feed reacts as it is added. Any unreacted feed that "
-                  "accumulates releases more heat later and is not in this load: check accumulation "
-                  "by calorimetry.")
-ENDOTHERMIC_CAUTION = ("This step was declared heat-absorbing (endothermic): 'adequate' here means only that "
-                       "the cooling does not limit it. Make sure the sign is right: an exothermic step entered "
-                       "with a positive enthalpy would be checked as if it needed no cooling.")
-
 
 @dataclass(frozen=True)
 class Limit:
@@ -138,11 +121,19 @@ class CoolingCheck:
     heat_transfer: HeatTransferResult
     limits: Limits | None
     warnings: Warnings = field(default_factory=Warnings)
-    cautions: tuple[str, ...] = CAUTIONS
+    cautions: tuple[str, ...] = COOLING_CHECK
 
     @property
     def limit_values(self) -> LimitValues:
         return limit_values(self.limits)
+
+
+def check_cautions(heat_release: HeatRelease) -> tuple[str, ...]:
+    """The cautions of a check of ``heat_release``: the general ones, then those of a dosing or heat-absorbing step."""
+    extra = (DOSING,) if isinstance(heat_release, Dosing) else ()
+    if getattr(heat_release, "endothermic", False):
+        extra += (ENDOTHERMIC,)
+    return COOLING_CHECK + extra
 
 
 def charge_mass(result: HeatTransferResult) -> float:
@@ -360,7 +351,5 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                         _maximum_inlet_temperature(vessel, charge, coolant, process_temperature, target, capacity,
                                                    deadline),
                         _required_flow(vessel, charge, coolant, process_temperature, target, result, deadline))
-    cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ())
-    if getattr(heat_release, "endothermic", False):
-        cautions += (ENDOTHERMIC_CAUTION,)
-    return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings, cautions)
+    return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings,
+                        check_cautions(heat_release))

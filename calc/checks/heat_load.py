@@ -31,27 +31,11 @@ from __future__ import annotations
 import math
 from dataclasses import MISSING, dataclass, field, fields, replace
 
-from calc.validity import CalcWarning, InputError, Warnings, require_sign
+from calc.validity import (CalcWarning, InputError, Warnings, require_finite, require_non_negative,
+                           require_positive, require_sign)
 
 
-def _finite(field_name: str, value) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
-        raise InputError(field_name, f"must be a finite number, got {value!r}")
-    return float(value)
 
-
-def _positive(field_name: str, value) -> float:
-    value = _finite(field_name, value)
-    if value <= 0.0:
-        raise InputError(field_name, f"must be a positive number, got {value!r}")
-    return value
-
-
-def _nonnegative(field_name: str, value) -> float:
-    value = _finite(field_name, value)
-    if value < 0.0:
-        raise InputError(field_name, f"must not be negative, got {value!r}")
-    return value
 
 
 @dataclass(frozen=True)
@@ -62,7 +46,7 @@ class SpecificPower:
     model = "specific_power"
 
     def validate(self) -> None:
-        _finite("heat_release.power_per_mass", self.power_per_mass)
+        require_finite("heat_release.power_per_mass", self.power_per_mass)
 
     def reaction_power(self, charge_mass: float) -> float:
         """Q_r = q m_charge, W."""
@@ -84,7 +68,7 @@ class TotalPower:
     model = "total_power"
 
     def validate(self) -> None:
-        _finite("heat_release.power", self.power)
+        require_finite("heat_release.power", self.power)
 
     def reaction_power(self, charge_mass: float) -> float:
         return self.power
@@ -119,15 +103,15 @@ class Dosing:
     def validate(self) -> None:
         require_sign("heat_release.reaction_enthalpy", self.reaction_enthalpy, self.endothermic,
                      "heat_release.endothermic")
-        _positive("heat_release.dosed_amount", self.dosed_amount)
-        _positive("heat_release.dosing_time", self.dosing_time)
-        if _nonnegative("heat_release.feed_mass", self.feed_mass) > 0.0:
+        require_positive("heat_release.dosed_amount", self.dosed_amount)
+        require_positive("heat_release.dosing_time", self.dosing_time)
+        if require_non_negative("heat_release.feed_mass", self.feed_mass) > 0.0:
             if self.feed_temperature is None:
                 raise InputError("heat_release.feed_temperature", "is needed when a feed mass is given")
             if self.feed_heat_capacity is None:
                 raise InputError("heat_release.feed_heat_capacity", "is needed when a feed mass is given")
-            _positive("heat_release.feed_temperature", self.feed_temperature)
-            _positive("heat_release.feed_heat_capacity", self.feed_heat_capacity)
+            require_positive("heat_release.feed_temperature", self.feed_temperature)
+            require_positive("heat_release.feed_heat_capacity", self.feed_heat_capacity)
 
     @property
     def reaction_energy(self) -> float:
@@ -217,9 +201,9 @@ def heat_load(model: HeatRelease, charge_mass: float, process_temperature: float
     if not isinstance(model, tuple(MODELS.values())):
         raise InputError("heat_release", f"not a heat-release model: {model!r}")
     model.validate()
-    _nonnegative("charge.mass", charge_mass)
-    _positive("process_temperature", process_temperature)
-    _nonnegative("agitator_power", agitator_power)
+    require_non_negative("charge.mass", charge_mass)
+    require_positive("process_temperature", process_temperature)
+    require_non_negative("agitator_power", agitator_power)
     warnings = Warnings()
     reaction = model.reaction_power(charge_mass)
     feed = model.feed_sensible(process_temperature)

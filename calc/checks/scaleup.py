@@ -38,17 +38,19 @@ from scipy.optimize import brentq
 from calc.deadline import NEVER, Deadline
 from calc.vessel import agitation as agitation_module
 from calc.vessel import geometry
-from calc.checks.cooling_check import CAUTIONS, DEFAULT_SAFETY_FACTOR, DOSING_CAUTION, CoolingCheck, _check_safety_factor, \
-    cooling_check, evaluate, margin_of
-from calc.checks.heat_load import Dosing, HeatRelease
+from calc.cautions import COOLING_CHECK
+from calc.checks.cooling_check import (DEFAULT_SAFETY_FACTOR, CoolingCheck, _check_safety_factor, check_cautions,
+                                       cooling_check, evaluate, margin_of)
+from calc.checks.heat_load import HeatRelease
 from calc.properties import LiquidProperties
-from calc.validity import CalcWarning, CalculationError, InputError, Warnings
+from calc.validity import CalcWarning, CalculationError, InputError, TooLarge, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
 
 RULES = tuple(sorted(agitation_module.SCALE_UP_RULES)) + ("as_given",)
 COOLANT_FLOW_RULES = ("scale_with_area", "as_given")
-#: At most this many target vessels per request (keeps a request's work bounded).
-MAX_TARGETS = 50
+#: Default largest number of target vessels in one scale-up (keeps a request's work bounded); the
+#: service's COOLMARGIN_MAX_SCALES setting replaces it.
+MAX_TARGETS = 20
 #: The continuous family is searched from the reference volume up to this multiple of it (or 10x the
 #: largest target volume, whichever is larger).
 SEARCH_RATIO = 1000.0
@@ -124,7 +126,7 @@ class ScaleUp:
     coolant_flow_rule: str
     safety_factor: float
     warnings: Warnings = field(default_factory=Warnings)
-    cautions: tuple[str, ...] = CAUTIONS
+    cautions: tuple[str, ...] = COOLING_CHECK
 
 
 @dataclass(frozen=True)
@@ -218,12 +220,12 @@ def _given(reference: _Reference, vessel: Vessel, index: int, rule: str, coolant
             ratio ** (1.0 / 3.0), nominal)
 
 
-def _check_targets(targets) -> list:
+def _check_targets(targets, max_targets: int) -> list:
     if isinstance(targets, (str, bytes)) or not hasattr(targets, "__iter__"):
         raise InputError("targets", "must be a list of vessels, (vessel, coolant) pairs or volumes")
     targets = list(targets)
-    if len(targets) > MAX_TARGETS:
-        raise InputError("targets", f"at most {MAX_TARGETS} targets per request, got {len(targets)}")
+    if len(targets) > max_targets:
+        raise TooLarge("targets", f"at most {max_targets} targets per scale-up, got {len(targets)}")
     for i, target in enumerate(targets):
         if isinstance(target, Vessel) or (isinstance(target, tuple) and len(target) == 2
                                           and isinstance(target[0], Vessel) and isinstance(target[1], Coolant)):
@@ -293,13 +295,14 @@ def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_f
 def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coolant, process_temperature: float,
              heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
              coolant_flow_rule: str = "scale_with_area", limits: bool = True,
-             deadline: Deadline = NEVER) -> ScaleUp:
+             deadline: Deadline = NEVER, max_targets: int = MAX_TARGETS) -> ScaleUp:
     """Cooling checks of the reference and each target, and the largest adequate similar vessel.
 
     ``charge``, ``coolant`` and ``heat_release`` describe the reference scale; see the module notes
     for how each is carried to the targets. ``limits`` is passed to each scale's cooling check.
     Every scale and every step of the family search first checks ``deadline``
-    (:class:`calc.deadline.OutOfTime` once it has passed).
+    (:class:`calc.deadline.OutOfTime` once it has passed). More than ``max_targets`` targets raise
+    :class:`calc.validity.TooLarge`.
     """
     if rule not in RULES:
         raise InputError("rule", f"unknown scale-up rule {rule!r}; known rules: {', '.join(RULES)}")
@@ -307,7 +310,7 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
         raise InputError("coolant_flow_rule", f"unknown rule {coolant_flow_rule!r}; known rules: "
                                               f"{', '.join(COOLANT_FLOW_RULES)}")
     safety_factor = _check_safety_factor(safety_factor)
-    targets = _check_targets(targets)
+    targets = _check_targets(targets, max_targets)
     warnings = Warnings()
 
     first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits,
@@ -347,6 +350,5 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
     family_rule = "constant_speed" if rule == "as_given" else rule
     largest, beyond, message, switches = _family_search(ref, family_rule, coolant_flow_rule, safety_factor, upper,
                                                         first, warnings, deadline)
-    cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ())
     return ScaleUp(tuple(scales), largest, beyond, upper, message, switches, rule, coolant_flow_rule, safety_factor,
-                   warnings, cautions)
+                   warnings, check_cautions(heat_release))

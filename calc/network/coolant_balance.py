@@ -21,7 +21,8 @@ from dataclasses import dataclass, field
 
 from scipy.special import lambertw
 
-from calc.validity import CalcWarning, InputError, Warnings, require_positive
+from calc.validity import (CalcWarning, InputError, Warnings, require_non_negative, require_positive,
+                           require_temperature)
 
 #: Coolant inlet within this many kelvin of its freezing point draws a warning (common practice, no source).
 FREEZING_MARGIN = 5.0
@@ -129,14 +130,6 @@ class InletTemperatureLimit:
     warnings: Warnings = field(default_factory=Warnings)
 
 
-def _check_temperature(field_name: str, value: float) -> None:
-    if not (math.isfinite(value) and value > 0):
-        raise InputError(field_name, f"must be an absolute temperature above 0 K, got {value!r}")
-
-
-def _check_nonnegative(field_name: str, value: float) -> None:
-    if not (math.isfinite(value) and value >= 0):
-        raise InputError(field_name, f"must be a number >= 0, got {value!r}")
 
 
 def _freezing_warnings(warnings: Warnings, inlet_temperature: float, freezing_temperature: float | None) -> None:
@@ -191,9 +184,9 @@ def coolant_balance(process_temperature: float, inlet_temperature: float, ua: fl
     Incropera, F. P.; DeWitt, D. P. *Fundamentals of Heat and Mass Transfer*, 6th ed. Wiley, 2007,
     section 11.4 (effectiveness of an exchanger with one stream at constant temperature).
     """
-    _check_temperature("process_temperature", process_temperature)
-    _check_temperature("coolant.inlet_temperature", inlet_temperature)
-    _check_nonnegative("ua", ua)
+    require_temperature("process_temperature", process_temperature)
+    require_temperature("coolant.inlet_temperature", inlet_temperature)
+    require_non_negative("ua", ua)
     require_positive("coolant.flow", mass_flow)
     require_positive("coolant.heat_capacity", heat_capacity)
     warnings = Warnings()
@@ -276,11 +269,11 @@ def required_flow(process_temperature: float, inlet_temperature: float, ua: floa
     >>> required_flow(323.15, 293.15, 5000.0, 4180.0, 2e5).reachable
     False
     """
-    _check_temperature("process_temperature", process_temperature)
-    _check_temperature("coolant.inlet_temperature", inlet_temperature)
-    _check_nonnegative("ua", ua)
+    require_temperature("process_temperature", process_temperature)
+    require_temperature("coolant.inlet_temperature", inlet_temperature)
+    require_non_negative("ua", ua)
     require_positive("coolant.heat_capacity", heat_capacity)
-    _check_nonnegative("duty", duty)
+    require_non_negative("duty", duty)
     warnings = Warnings()
     _freezing_warnings(warnings, inlet_temperature, freezing_temperature)
     maximum = ua * (process_temperature - inlet_temperature)
@@ -330,11 +323,11 @@ def maximum_inlet_temperature(process_temperature: float, ua: float, mass_flow: 
     >>> round(t.inlet_temperature - 273.15, 3)
     20.0
     """
-    _check_temperature("process_temperature", process_temperature)
-    _check_nonnegative("ua", ua)
+    require_temperature("process_temperature", process_temperature)
+    require_non_negative("ua", ua)
     require_positive("coolant.flow", mass_flow)
     require_positive("coolant.heat_capacity", heat_capacity)
-    _check_nonnegative("duty", duty)
+    require_non_negative("duty", duty)
     warnings = Warnings()
     capacity_rate = mass_flow * heat_capacity
     if duty == 0.0:

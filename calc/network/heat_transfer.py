@@ -26,7 +26,7 @@ from calc.vessel import geometry
 from calc.films import process_side
 from calc.films import jacket_side as service_side
 from calc.films import wall
-from calc import cautions as caution_texts
+from calc.cautions import HEAT_TRANSFER
 from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, InputError, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
@@ -116,7 +116,7 @@ class HeatTransferResult:
     agitation: agitation.AgitationResult
     streams: tuple[Stream, ...]
     warnings: Warnings = field(default_factory=Warnings)
-    cautions: tuple[str, ...] = caution_texts.HEAT_TRANSFER
+    cautions: tuple[str, ...] = HEAT_TRANSFER
 
     @property
     def ua(self) -> float:

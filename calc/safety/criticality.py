@@ -22,9 +22,10 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.optimize import brentq
 
+from calc.cautions import THERMAL_SAFETY
 from calc.properties import GAS_CONSTANT, STANDARD_PRESSURE, liquid_range
 from calc.validity import (SIGN_CONVENTION, CalcWarning, CalculationError, Correlation, InputError, Warnings,
-                           require_positive)
+                           require_finite, require_positive, require_temperature)
 
 SECONDS_PER_HOUR = 3600.0
 #: Adiabatic time to maximum rate that defines T_D24, s (Stoessel 2008: 24 h).
@@ -36,18 +37,8 @@ BOUNDARY_MARGIN = 5.0
 #: (common practice, no source).
 EXTRAPOLATION_LIMIT = 50.0
 
-CAUTION = ("Screening estimate: confirm with reaction calorimetry and adiabatic calorimetry of the "
-           "decomposition, follow local codes and have a licensed engineer review the assessment.")
 
 
-def _require_finite(field_name: str, value: float) -> float:
-    if not math.isfinite(value):
-        raise InputError(field_name, f"must be a finite number, got {value!r}")
-    return value
-
-
-def _require_temperature(field_name: str, value: float) -> float:
-    return require_positive(field_name, value)
 
 
 def adiabatic_temperature_rise_from_energy(reaction_energy: float, heat_capacity: float) -> float:
@@ -80,7 +71,7 @@ def adiabatic_temperature_rise_from_energy(reaction_energy: float, heat_capacity
     ----------
     Stoessel, F. *Thermal Safety of Chemical Processes*, Wiley-VCH, 2008, ch. 2.
     """
-    _require_finite("reaction_energy", reaction_energy)
+    require_finite("reaction_energy", reaction_energy)
     require_positive("heat_capacity", heat_capacity)
     return reaction_energy / heat_capacity
 
@@ -122,7 +113,7 @@ def adiabatic_temperature_rise_from_enthalpy(reaction_enthalpy: float, concentra
     ----------
     Stoessel, F. *Thermal Safety of Chemical Processes*, Wiley-VCH, 2008, ch. 2.
     """
-    _require_finite("reaction_enthalpy", reaction_enthalpy)
+    require_finite("reaction_enthalpy", reaction_enthalpy)
     if not (math.isfinite(concentration) and concentration >= 0):
         raise InputError("concentration", f"must be a finite number >= 0, got {concentration!r}")
     require_positive("density", density)
@@ -164,10 +155,10 @@ def mtsr_Stoessel_1993(process_temperature: float, accumulation: float,
     ----------
     Stoessel, F. "What is your thermal risk?" *Chem. Eng. Prog.* 89(10), 68-75, 1993.
     """
-    _require_temperature("process_temperature", process_temperature)
+    require_temperature("process_temperature", process_temperature)
     if not (math.isfinite(accumulation) and 0.0 <= accumulation <= 1.0):
         raise InputError("accumulation", f"must lie between 0 and 1, got {accumulation!r}")
-    _require_finite("adiabatic_temperature_rise", adiabatic_temperature_rise)
+    require_finite("adiabatic_temperature_rise", adiabatic_temperature_rise)
     return process_temperature + accumulation * max(adiabatic_temperature_rise, 0.0)
 
 
@@ -510,7 +501,7 @@ class ThermalSafetyResult:
     criticality_class: int
     reasoning: list = field(default_factory=list)
     warnings: Warnings = field(default_factory=Warnings)
-    cautions: tuple = (CAUTION,)
+    cautions: tuple[str, ...] = (THERMAL_SAFETY,)
 
 
 def _adiabatic_rise(inp: ThermalSafetyInput) -> float:
@@ -536,7 +527,7 @@ def _adiabatic_rise(inp: ThermalSafetyInput) -> float:
 
 def _mtt(inp: ThermalSafetyInput, reasons: list) -> float:
     if inp.maximum_technical_temperature is not None:
-        return _require_temperature("maximum_technical_temperature", inp.maximum_technical_temperature)
+        return require_temperature("maximum_technical_temperature", inp.maximum_technical_temperature)
     if inp.contents_fluid is None:
         raise InputError("maximum_technical_temperature",
                          "give the maximum technical temperature, or the contents fluid for its boiling point")
@@ -552,7 +543,7 @@ def assess_thermal_safety(inp: ThermalSafetyInput) -> ThermalSafetyResult:
     """Adiabatic rise, MTSR, T_D24, TMR_ad at the MTSR, MTT and the criticality class of one step."""
     warnings = Warnings()
     reasons: list[str] = []
-    Tp = _require_temperature("process_temperature", inp.process_temperature)
+    Tp = require_temperature("process_temperature", inp.process_temperature)
     require_positive("heat_capacity", inp.heat_capacity)
     dT_ad = _adiabatic_rise(inp)
     mtsr = mtsr_Stoessel_1993(Tp, inp.accumulation, dT_ad)
@@ -568,7 +559,7 @@ def assess_thermal_safety(inp: ThermalSafetyInput) -> ThermalSafetyResult:
             raise InputError("td24", "give either decomposition data or td24, not both")
         d = inp.decomposition
         require_positive("decomposition.onset_power", d.onset_power)
-        _require_temperature("decomposition.onset_temperature", d.onset_temperature)
+        require_temperature("decomposition.onset_temperature", d.onset_temperature)
         require_positive("decomposition.activation_energy", d.activation_energy)
         try:
             td24 = td24_Townsend_Tou_1980(inp.heat_capacity, d.onset_power, d.onset_temperature, d.activation_energy)
@@ -586,7 +577,7 @@ def assess_thermal_safety(inp: ThermalSafetyInput) -> ThermalSafetyResult:
         reasons.append(f"T_D24 = {td24 - 273.15:.1f} degC (TMR_ad = 24 h, Townsend & Tou zero-order estimate); "
                        f"TMR_ad at the MTSR = {tmr / SECONDS_PER_HOUR:.3g} h.")
     elif inp.td24 is not None:
-        td24 = _require_temperature("td24", inp.td24)
+        td24 = require_temperature("td24", inp.td24)
         reasons.append(f"T_D24 = {td24 - 273.15:.1f} degC as given; without decomposition kinetics "
                        "the TMR_ad at the MTSR is not computed.")
     else:

@@ -18,8 +18,9 @@ from dataclasses import dataclass, field
 from scipy.optimize import brentq
 
 from calc.properties import GAS_CONSTANT
-from calc.safety.criticality import CAUTION, _require_temperature, decomposition_power
-from calc.validity import CalculationError, Correlation, InputError, Warnings, require_positive
+from calc.cautions import THERMAL_SAFETY
+from calc.safety.criticality import decomposition_power
+from calc.validity import CalculationError, Correlation, InputError, Warnings, require_positive, require_temperature
 
 
 def semenov_number(heat_generation: float, activation_energy: float, ua: float,
@@ -161,7 +162,7 @@ class SemenovResult:
     temperature_of_no_return: float  # K
     critical_coolant_temperature: float  # K, T_NR - R T_NR^2/E
     warnings: Warnings = field(default_factory=Warnings)
-    cautions: tuple = (CAUTION,)
+    cautions: tuple[str, ...] = (THERMAL_SAFETY,)
 
 
 def assess_semenov(heat_generation: float, reference_temperature: float, activation_energy: float,
@@ -173,10 +174,10 @@ def assess_semenov(heat_generation: float, reference_temperature: float, activat
     `coolant_temperature` (K).
     """
     require_positive("heat_generation", heat_generation)
-    _require_temperature("reference_temperature", reference_temperature)
+    require_temperature("reference_temperature", reference_temperature)
     require_positive("activation_energy", activation_energy)
     require_positive("ua", ua)
-    Tc = _require_temperature("coolant_temperature", coolant_temperature)
+    Tc = require_temperature("coolant_temperature", coolant_temperature)
     warnings = Warnings()
     REGISTRY["Semenov (1928)"].check(warnings, **{"E/(R T)": activation_energy / (GAS_CONSTANT * Tc)})
     q_c = decomposition_power(heat_generation, reference_temperature, activation_energy, Tc)

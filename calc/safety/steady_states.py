@@ -24,11 +24,11 @@ from dataclasses import dataclass, field
 import numpy as np
 from scipy.optimize import brentq
 
+from calc.cautions import DYNAMICS
 from calc.properties import GAS_CONSTANT
-from calc.validity import CalcWarning, Correlation, InputError, Warnings, require_positive, require_sign
+from calc.validity import (CalcWarning, Correlation, InputError, Warnings, require_finite, require_non_negative,
+                           require_positive, require_sign, require_temperature)
 
-CAUTION = ("Screening estimate: confirm with reaction calorimetry and plant data, follow local codes "
-           "and have a licensed engineer review the result.")
 
 
 @dataclass(frozen=True)
@@ -103,7 +103,7 @@ class SteadyStatesResult:
     heat_generation: np.ndarray  # W
     heat_removal: np.ndarray  # W
     warnings: Warnings = field(default_factory=Warnings)
-    cautions: tuple = (CAUTION,)
+    cautions: tuple[str, ...] = (DYNAMICS,)
 
     @property
     def curves(self) -> HeatCurves:
@@ -181,13 +181,10 @@ def _validate(inp: CSTRInput) -> None:
     for name in ("volume", "flow", "feed_temperature", "density", "heat_capacity", "reference_temperature"):
         require_positive(name, getattr(inp, name))
     for name in ("feed_concentration", "rate_constant", "activation_energy", "ua", "order"):
-        value = getattr(inp, name)
-        if not (math.isfinite(value) and value >= 0):
-            raise InputError(name, f"must be a finite number >= 0, got {value!r}")
+        require_non_negative(name, getattr(inp, name))
     require_sign("reaction_enthalpy", inp.reaction_enthalpy, inp.endothermic, "endothermic")
-    if not math.isfinite(inp.shaft_power):
-        raise InputError("shaft_power", "must be a finite number")
-    require_positive("coolant_temperature", inp.coolant_temperature)
+    require_finite("shaft_power", inp.shaft_power)
+    require_temperature("coolant_temperature", inp.coolant_temperature)
     if not (isinstance(inp.grid_points, int) and 11 <= inp.grid_points <= 200001):
         raise InputError("grid_points", "must be an integer from 11 to 200001")
     if inp.temperature_range is not None:

@@ -17,11 +17,11 @@ from typing import Callable, NamedTuple
 import numpy as np
 from scipy.integrate import BDF, LSODA, Radau
 
+from calc.cautions import DYNAMICS
 from calc.deadline import NEVER, Deadline
-from calc.validity import CalcWarning, InputError, Warnings, require_positive, require_sign
+from calc.validity import (CalcWarning, InputError, Warnings, require_finite, require_non_negative,
+                           require_positive, require_sign)
 
-CAUTION = ("Screening estimate: confirm with reaction calorimetry and plant data, follow local codes "
-           "and have a licensed engineer review the result.")
 
 #: Stiff-capable solvers offered; explicit methods are deliberately absent (runaway kinetics are stiff).
 METHODS = {"BDF": BDF, "LSODA": LSODA, "Radau": Radau}
@@ -218,7 +218,7 @@ class SimulationResult:
     rhs_evaluations: int = 0  # point evaluations of the right-hand side, Jacobian included
     steps: int = 0
     warnings: Warnings = field(default_factory=Warnings)
-    cautions: tuple = (CAUTION,)
+    cautions: tuple[str, ...] = (DYNAMICS,)
 
 
 # ----------------------------------------------------------------------------- modes
@@ -296,23 +296,13 @@ def default_limiting_reagent(inp: SimulationInput, names) -> str:
     raise InputError("limiting_reagent", "no reactant of the first reaction is present; name the limiting reagent")
 
 
-def _finite(field_name: str, value: float) -> float:
-    if not (isinstance(value, numbers.Real) and math.isfinite(value)):
-        raise InputError(field_name, f"must be a finite number, got {value!r}")
-    return value
-
-
-def _non_negative(field_name: str, value: float) -> float:
-    if not (_finite(field_name, value) >= 0):
-        raise InputError(field_name, f"must be >= 0, got {value!r}")
-    return value
 
 
 def _composition(field_name: str, composition: dict, names: set, molar_mass: dict) -> None:
     for name, value in composition.items():
         if name not in names:
             raise InputError(f"{field_name}.{name}", f"unknown species {name!r}")
-        _non_negative(f"{field_name}.{name}", value)
+        require_non_negative(f"{field_name}.{name}", value)
     if sum(v * molar_mass[k] for k, v in composition.items()) > 1.0 + 1e-12:
         raise InputError(field_name, "the listed species weigh more than the mass they are in (mol/kg x kg/mol > 1)")
 
@@ -338,17 +328,17 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
         for name, value in r.stoichiometry.items():
             if name not in molar_mass:
                 raise InputError(f"{f}.stoichiometry.{name}", f"unknown species {name!r}")
-            _finite(f"{f}.stoichiometry.{name}", value)
+            require_finite(f"{f}.stoichiometry.{name}", value)
         for name, value in r.orders.items():
             if name not in molar_mass:
                 raise InputError(f"{f}.orders.{name}", f"unknown species {name!r}")
-            _non_negative(f"{f}.orders.{name}", value)
+            require_non_negative(f"{f}.orders.{name}", value)
             if value == 0 and r.stoichiometry.get(name, 0) < 0:
                 warnings.add(CalcWarning("zero_order_reactant", f"{f}: zero order in {name}, which it consumes; "
                                          "its amount can fall below zero"))
-        _non_negative(f"{f}.rate_constant", r.rate_constant)
+        require_non_negative(f"{f}.rate_constant", r.rate_constant)
         require_positive(f"{f}.reference_temperature", r.reference_temperature)
-        _non_negative(f"{f}.activation_energy", r.activation_energy)
+        require_non_negative(f"{f}.activation_energy", r.activation_energy)
         require_sign(f"{f}.enthalpy", r.enthalpy, r.endothermic, f"{f}.endothermic")
         imbalance = sum(v * molar_mass[k] for k, v in r.stoichiometry.items())
         scale = sum(abs(v) * molar_mass[k] for k, v in r.stoichiometry.items()) or 1.0
@@ -364,7 +354,7 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
     if inp.mixture_heat_capacity is not None:
         require_positive("mixture_heat_capacity", inp.mixture_heat_capacity)
     require_positive("enthalpy_reference_temperature", inp.enthalpy_reference_temperature)
-    _finite("shaft_power", inp.shaft_power)
+    require_finite("shaft_power", inp.shaft_power)
     require_positive("horizon", inp.horizon)
     b = inp.budget
     if inp.horizon > b.horizon_limit:
@@ -384,18 +374,18 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
             raise InputError("feed.steps", "at least one feed step is needed")
         previous_end = 0.0
         for i, s in enumerate(inp.feed.steps):
-            _non_negative(f"feed.steps[{i}].start", s.start)
+            require_non_negative(f"feed.steps[{i}].start", s.start)
             if not s.end > s.start:
                 raise InputError(f"feed.steps[{i}].end", "must be later than the step's start")
             if s.start < previous_end:
                 raise InputError(f"feed.steps[{i}].start", "steps must be in order and must not overlap")
-            _non_negative(f"feed.steps[{i}].mass_flow", s.mass_flow)
+            require_non_negative(f"feed.steps[{i}].mass_flow", s.mass_flow)
             previous_end = s.end
         if inp.mode == "semi_batch" and not math.isfinite(previous_end):
             raise InputError(f"feed.steps[{len(inp.feed.steps) - 1}].end", "semi-batch dosing must end")
     j = inp.jacket
     if j is not None:
-        _non_negative("jacket.ua", j.ua)
+        require_non_negative("jacket.ua", j.ua)
         require_positive("jacket.coolant_flow", j.coolant_flow)
         require_positive("jacket.coolant_heat_capacity", j.coolant_heat_capacity)
         require_positive("jacket.inlet_temperature", j.inlet_temperature)
@@ -414,7 +404,7 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
         if not c.maximum_inlet_temperature > c.minimum_inlet_temperature:
             raise InputError("controller.maximum_inlet_temperature", "must exceed the minimum inlet temperature")
     if inp.failure is not None and inp.failure.time is not None:
-        if not (_non_negative("failure.time", inp.failure.time) <= inp.horizon):
+        if not (require_non_negative("failure.time", inp.failure.time) <= inp.horizon):
             raise InputError("failure.time", "must lie within the horizon")
     for i, lim in enumerate(inp.limits):
         require_positive(f"limits[{i}].temperature", lim.temperature)
