@@ -1,7 +1,7 @@
 """The main job: ``/v1/cooling-check`` for one vessel and ``/v1/scale-up`` along a scale-up path."""
 from flask import Blueprint, current_app
 
-from calc.checks import cooling_check as cooling
+from calc.checks import cooling_check
 from calc.checks import scaleup
 from schemas.cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
                              ScaleUpResultSchema)
@@ -14,13 +14,13 @@ bp = Blueprint("cooling", __name__, url_prefix="/v1")
 _request, _result = CoolingCheckRequestSchema(), CoolingCheckResultSchema()
 
 
-def _check(args: dict) -> cooling.CoolingCheck:
-    return cooling.cooling_check(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
+def _check(args: dict) -> cooling_check.CoolingCheck:
+    return cooling_check.cooling_check(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
                                  args["heat_release"], args["safety_factor"], deadline=deadline())
 
 
 @bp.route("/cooling-check", methods=["GET", "POST"])
-def cooling_check():
+def check_cooling():
     return calculate(_request, _check, _result, batch=True)
 
 

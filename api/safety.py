@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from flask import Blueprint, current_app
 
-from calc.safety import criticality as safety
+from calc.safety import criticality
 from calc.safety import steady_states
 from calc.safety import tank_model
 from calc.safety.in_vessel import simulate_in_vessel
@@ -24,7 +24,7 @@ _cstr_request, _cstr_result = CSTRRequestSchema(), CSTRResultSchema()
 
 @bp.route("/thermal-safety", methods=["GET", "POST"])
 def thermal_safety():
-    return calculate(_safety_request, safety.assess_thermal_safety, _safety_result)
+    return calculate(_safety_request, criticality.assess_thermal_safety, _safety_result)
 
 
 # ---------------------------------------------------------------- simulations

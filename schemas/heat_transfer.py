@@ -1,9 +1,9 @@
 """Schemas of /v1/geometry, /v1/agitation, /v1/heat-transfer, /v1/coolant-balance and the libraries."""
 from __future__ import annotations
 
-from marshmallow import ValidationError, fields, post_load, validates_schema
+from marshmallow import ValidationError, fields, validates_schema
 
-from .base import StrictSchema, finite_float
+from .base import StrictSchema
 from .units import Quantity, absolute_temperature
 from .vessel import ChargeSchema, CoolantSchema, VesselSchema, require_agitator
 

@@ -9,7 +9,7 @@ import math
 
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
-from calc.safety import criticality as safety
+from calc.safety import criticality
 from calc.safety import steady_states
 from calc.safety import tank_model
 from calc.safety.in_vessel import RunVessel
@@ -45,7 +45,7 @@ class DecompositionSchema(StrictSchema):
 
     @post_load
     def _make(self, data, **kwargs):
-        return safety.Decomposition(**data)
+        return criticality.Decomposition(**data)
 
 
 class ThermalSafetyRequestSchema(StrictSchema):
@@ -84,7 +84,7 @@ class ThermalSafetyRequestSchema(StrictSchema):
     def _make(self, data, **kwargs):
         data = dict(data)
         data["contents_fluid"] = data.pop("fluid")
-        return safety.ThermalSafetyInput(**data)
+        return criticality.ThermalSafetyInput(**data)
 
 
 class ThermalSafetyResultSchema(StrictSchema):
@@ -140,7 +140,7 @@ class SimulationChargeSchema(StrictSchema):
 
     @post_load
     def _make(self, data, **kwargs):
-        return tank_model.Charge(**data)
+        return tank_model.InitialCharge(**data)
 
 
 class FeedStepSchema(StrictSchema):

@@ -11,7 +11,7 @@ from calc.vessel import agitation
 from calc.vessel import geometry
 from calc.vessel import heads
 from calc import properties
-from calc.films import jacket_side as service_side
+from calc.films import jacket_side
 from calc.films import wall
 from calc.vessel.model import Charge, Coolant, Vessel
 
@@ -60,7 +60,7 @@ class JacketSchema(StrictSchema):
         coverage = geometry.JacketCoverage(covers_bottom_head=data.pop("covers_bottom_head"), top=data.pop("top"))
         if data["type"] == "none":
             return coverage, None
-        return coverage, service_side.JacketSpec(**data)
+        return coverage, jacket_side.JacketSpec(**data)
 
 
 class CoilSchema(StrictSchema):

@@ -12,7 +12,7 @@ from hypothesis import given, settings, strategies as st
 
 from calc.vessel import agitation
 from calc.vessel import geometry
-from calc.films import jacket_side as service_side
+from calc.films import jacket_side
 from calc.films import wall
 from calc.cautions import COOLING_CHECK, DOSING
 from calc.checks.cooling_check import FLOW_SEARCH_CAP, cooling_check
@@ -29,7 +29,7 @@ SF = 1.3
 
 VESSEL = Vessel(shape=geometry.VesselShape(1.8, 2.0, "torispherical_fd"), wall=wall.WallSpec(0.012, "stainless_316l"),
                 agitator=agitation.Agitator("pitched_blade_turbine", 0.6, 1.5),
-                jacket=service_side.JacketSpec("half_pipe", pipe_diameter=0.1, pipe_pitch=0.14),
+                jacket=jacket_side.JacketSpec("half_pipe", pipe_diameter=0.1, pipe_pitch=0.14),
                 fouling=wall.Fouling(0.00018, 0.00018), name="K-12")
 CHARGE = Charge(LibraryLiquid("toluene"), volume=5.0)
 WATER = Coolant(LibraryLiquid("water"), K + 15, 4.0)

@@ -111,16 +111,16 @@ def test_spreadsheet_url_in_the_demo_guide_answers_one_number(client):
 def test_internal_error_in_one_batch_case_is_that_case_only(client, monkeypatch, caplog):
     # A fault inside one case (here an injected bug) answers that case with a 500 problem carrying the
     # request id and is logged; the other cases are computed as usual.
-    from calc.checks import cooling_check as cooling
+    from calc.checks import cooling_check
 
-    real = cooling.cooling_check
+    real = cooling_check.cooling_check
 
     def flaky(vessel, *args, **kwargs):
         if vessel.name == "broken":
             raise RuntimeError("injected fault")
         return real(vessel, *args, **kwargs)
 
-    monkeypatch.setattr(cooling, "cooling_check", flaky)
+    monkeypatch.setattr(cooling_check, "cooling_check", flaky)
     logger = logging.getLogger("coolmargin")  # the service logger does not propagate to caplog's root
     logger.addHandler(caplog.handler)
     broken = dict(EXAMPLE, vessel=dict(EXAMPLE["vessel"], name="broken"))

@@ -12,7 +12,6 @@ import shlex
 import subprocess
 import sys
 import urllib.request
-from pathlib import Path
 
 import pytest
 

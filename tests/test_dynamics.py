@@ -13,7 +13,7 @@ from scipy.linalg import expm
 
 from calc.safety.dynamics import simulate
 from calc.safety.tank_model import (
-    Budget, Charge, Controller, CoolingFailure, Feed, FeedStep, Jacket, Reaction, SimulationInput, Species,
+    Budget, InitialCharge, Controller, CoolingFailure, Feed, FeedStep, Jacket, Reaction, SimulationInput, Species,
     TemperatureLimit,
 )
 from calc.safety.criticality import adiabatic_temperature_rise_from_enthalpy, mtsr_from_profile
@@ -31,7 +31,7 @@ def a_plus_b(k=2e-5, dH=-160e3, E=70e3):
 def semi_batch(**changes):
     """6 h dosing of A onto B at 60 degC under PI control; 2 h after-reaction (invented demo)."""
     args = dict(mode="semi_batch", species=SPECIES, reactions=a_plus_b(),
-                charge=Charge(4000.0, K + 60, {"B": 1.2}, 950.0, 1900.0), horizon=8 * HOUR,
+                charge=InitialCharge(4000.0, K + 60, {"B": 1.2}, 950.0, 1900.0), horizon=8 * HOUR,
                 feed=Feed.constant(K + 25, {"A": 2.6}, 1800.0 / (6 * HOUR), 0.0, 6 * HOUR),
                 jacket=Jacket(6000.0, 5.0, 4180.0, K + 55),
                 controller=Controller(K + 60, 5.0, 600.0, K + 10, K + 90), shaft_power=2500.0)
@@ -45,7 +45,7 @@ def test_isothermal_first_order_batch_matches_closed_form():
     k = 4e-4
     sp = (Species("A", 0.1, 2000.0), Species("P", 0.1, 2000.0))  # dcp = 0: no enthalpy change at all
     inp = SimulationInput("batch", sp, (Reaction({"A": -1, "P": 1}, {"A": 1}, k, K + 50, 80e3, 0.0),),
-                          Charge(1000.0, K + 50, {"A": 2.0}, 900.0, 2000.0), horizon=3 * HOUR,
+                          InitialCharge(1000.0, K + 50, {"A": 2.0}, 900.0, 2000.0), horizon=3 * HOUR,
                           rtol=1e-9, budget=Budget(output_points=50))
     r = simulate(inp)
     assert r.success and r.status == 0
@@ -59,7 +59,7 @@ def test_adiabatic_batch_rise_is_dT_ad_times_conversion():
     # at every time, with dT_ad = (-dH) c_A0/(rho cp) (Stoessel 2008, ch. 2).
     sp = (Species("A", 0.1, 2000.0), Species("P", 0.1, 2000.0))
     inp = SimulationInput("batch", sp, (Reaction({"A": -1, "P": 1}, {"A": 1}, 2e-4, K + 40, 90e3, -120e3),),
-                          Charge(1000.0, K + 40, {"A": 1.5}, 1000.0, 2000.0), horizon=4 * HOUR)
+                          InitialCharge(1000.0, K + 40, {"A": 1.5}, 1000.0, 2000.0), horizon=4 * HOUR)
     r = simulate(inp)
     dT_ad = adiabatic_temperature_rise_from_enthalpy(-120e3, 1.5 * 1000.0, 1000.0, 2000.0)
     assert dT_ad == pytest.approx(90.0)
@@ -86,14 +86,14 @@ def test_dosing_controlled_semi_batch_releases_enthalpy_times_feed_rate():
 
 def _closure_cases():
     yield "batch", SimulationInput(
-        "batch", SPECIES, a_plus_b(), Charge(3000.0, K + 30, {"A": 1.0, "B": 1.2}, 950.0, 1900.0),
+        "batch", SPECIES, a_plus_b(), InitialCharge(3000.0, K + 30, {"A": 1.0, "B": 1.2}, 950.0, 1900.0),
         horizon=6 * HOUR, jacket=Jacket(4000.0, 3.0, 4180.0, K + 20), shaft_power=1500.0)
     yield "semi_batch_failure_holdup", semi_batch(
         jacket=Jacket(6000.0, 5.0, 4180.0, K + 55, "holdup", 400.0), failure=CoolingFailure(3 * HOUR))
     yield "semi_batch_steps", semi_batch(feed=Feed(K + 25, {"A": 2.6}, (
         FeedStep(0.0, 2 * HOUR, 0.05), FeedStep(2.5 * HOUR, 6 * HOUR, 0.1))))
     yield "continuous", SimulationInput(
-        "continuous", SPECIES, a_plus_b(), Charge(4000.0, K + 60, {"B": 0.5}, 950.0, 1900.0),
+        "continuous", SPECIES, a_plus_b(), InitialCharge(4000.0, K + 60, {"B": 0.5}, 950.0, 1900.0),
         horizon=10 * HOUR, feed=Feed.constant(K + 20, {"A": 1.0, "B": 1.2}, 0.4),
         jacket=Jacket(6000.0, 5.0, 4180.0, K + 40), shaft_power=3000.0)
 
@@ -124,7 +124,7 @@ def test_single_pass_jacket_cooling_matches_closed_form():
     # (Incropera & DeWitt 2007, eq. 11.35a, effectiveness of an exchanger with one side isothermal).
     C, UA, mc = 2000.0 * 2000.0, 3000.0, 2.0 * 4180.0
     inp = SimulationInput("batch", SPECIES[:1], (Reaction({"A": -1}, {"A": 1}, 0.0, 300.0, 0.0, 0.0),),
-                          Charge(2000.0, K + 80, {"A": 0.1}, 1000.0, 2000.0), horizon=4 * HOUR,
+                          InitialCharge(2000.0, K + 80, {"A": 0.1}, 1000.0, 2000.0), horizon=4 * HOUR,
                           mixture_heat_capacity=2000.0, jacket=Jacket(UA, 2.0, 4180.0, K + 20), rtol=1e-9)
     r = simulate(inp)
     rate = mc * -math.expm1(-UA / mc) / C
@@ -138,7 +138,7 @@ def test_holdup_jacket_matches_matrix_exponential():
     # Linear two-tank system (contents and well-mixed jacket), solved independently with scipy.linalg.expm.
     C, UA, mc, Cj, Tin = 2000.0 * 2000.0, 3000.0, 2.0 * 4180.0, 300.0 * 4180.0, K + 20
     inp = SimulationInput("batch", SPECIES[:1], (Reaction({"A": -1}, {"A": 1}, 0.0, 300.0, 0.0, 0.0),),
-                          Charge(2000.0, K + 80, {"A": 0.1}, 1000.0, 2000.0), horizon=2 * HOUR,
+                          InitialCharge(2000.0, K + 80, {"A": 0.1}, 1000.0, 2000.0), horizon=2 * HOUR,
                           mixture_heat_capacity=2000.0, jacket=Jacket(UA, 2.0, 4180.0, Tin, "holdup", 300.0),
                           rtol=1e-9, budget=Budget(output_points=7))
     r = simulate(inp)
@@ -215,7 +215,7 @@ def test_tiny_wall_time_budget_returns_partial_result():
     ({"failure": CoolingFailure(9 * HOUR)}, "failure.time"),
     ({"horizon": -1.0}, "horizon"),
     ({"budget": Budget(output_points=1)}, "budget.output_points"),
-    ({"charge": Charge(-5.0, K + 60, {"B": 1.2}, 950.0, 1900.0)}, "charge.mass"),
+    ({"charge": InitialCharge(-5.0, K + 60, {"B": 1.2}, 950.0, 1900.0)}, "charge.mass"),
     ({"reactions": (Reaction({"A": -1}, {"A": 1}, 1.0, 300.0, -5.0, 0.0),)}, "reactions[0].activation_energy"),
     ({"feed": None}, "feed"),
 ])

@@ -14,7 +14,7 @@ from hypothesis import HealthCheck, assume, given, settings, strategies as st
 from calc.vessel import agitation
 from calc.vessel import geometry
 from calc.checks import heat_load
-from calc.films import jacket_side as service_side
+from calc.films import jacket_side
 from calc.films import wall
 from calc.checks.cooling_check import cooling_check
 from calc.network.heat_transfer import heat_transfer
@@ -36,7 +36,7 @@ def cases(draw):
     shape = geometry.VesselShape(diameter, diameter * draw(st.floats(0.8, 1.5)), head)
     jacket_type = draw(st.sampled_from(["annular", "half_pipe", "annular_spiral_baffle"]))
     size = max(0.01, min(0.1, diameter / 20))
-    jacket = service_side.JacketSpec(jacket_type, gap=size, baffle_pitch=4 * size, pipe_diameter=2 * size,
+    jacket = jacket_side.JacketSpec(jacket_type, gap=size, baffle_pitch=4 * size, pipe_diameter=2 * size,
                                      pipe_pitch=3 * size, inlet_diameter=size)
     impeller = draw(st.sampled_from(IMPELLERS))
     speed = draw(st.floats(0.5, 6.0)) / max(diameter, 0.3) ** (2 / 3)

@@ -8,7 +8,7 @@ from scipy.integrate import quad
 
 from calc.properties import GAS_CONSTANT as R
 from calc.safety import runaway
-from calc.safety import criticality as safety
+from calc.safety import criticality
 from calc.safety.runaway import assess_semenov, semenov_number
 from calc.safety.criticality import (
     Decomposition, ThermalSafetyInput, adiabatic_temperature_rise_from_enthalpy, assess_thermal_safety,
@@ -151,7 +151,7 @@ def test_bad_input_names_the_field(changes, field):
 def test_registry_names_resolve_to_the_authors_functions():
     # STYLE: every registry entry resolves to a function of its module that carries the first author's
     # name; a year in the function name is the cited year, and the source cites that year.
-    for module in (safety, runaway):
+    for module in (criticality, runaway):
         for key, entry in module.REGISTRY.items():
             first_author = entry.name.split()[0].lower()
             year = entry.name.split("(")[1][:4]

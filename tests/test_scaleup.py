@@ -10,7 +10,7 @@ from hypothesis import given, settings, strategies as st
 
 from calc.vessel import agitation
 from calc.vessel import geometry
-from calc.films import jacket_side as service_side
+from calc.films import jacket_side
 from calc.films import wall
 from calc.vessel.agitation import IMPELLERS
 from calc.checks.heat_load import Dosing, SpecificPower
@@ -25,7 +25,7 @@ SF = 1.3
 REFERENCE = Vessel(shape=geometry.VesselShape(1.8, 2.0, "torispherical_fd"),
                    wall=wall.WallSpec(0.012, "stainless_316l"),
                    agitator=agitation.Agitator("pitched_blade_turbine", 0.6, 1.5),
-                   jacket=service_side.JacketSpec("half_pipe", pipe_diameter=0.1, pipe_pitch=0.14),
+                   jacket=jacket_side.JacketSpec("half_pipe", pipe_diameter=0.1, pipe_pitch=0.14),
                    fouling=wall.Fouling(0.00018, 0.00018), name="K-12")
 CHARGE = Charge(LibraryLiquid("toluene"), volume=5.0)
 WATER = Coolant(LibraryLiquid("water"), K + 15, 4.0)
@@ -132,7 +132,7 @@ def test_explicit_target_vessels_follow_the_rule():
     # definitions: tip speed pi N D kept; P/V kept (solved on the target's own power curve); as_given keeps N
     target = Vessel(shape=geometry.VesselShape(3.2, 3.0, "ellipsoidal_2_1"), wall=wall.WallSpec(0.014, "carbon_steel"),
                     agitator=agitation.Agitator("pitched_blade_turbine", 1.1, 0.9),
-                    jacket=service_side.JacketSpec("half_pipe", pipe_diameter=0.1, pipe_pitch=0.14), name="K-40")
+                    jacket=jacket_side.JacketSpec("half_pipe", pipe_diameter=0.1, pipe_pitch=0.14), name="K-40")
     ref_agitation = run([]).scales[0].check.heat_transfer.agitation
     tip = run([target], rule="constant_tip_speed").scales[1]
     assert tip.check.heat_transfer.agitation.tip_speed == pytest.approx(ref_agitation.tip_speed, rel=1e-12)

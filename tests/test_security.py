@@ -231,7 +231,7 @@ def test_logs_of_refused_and_failing_requests_hold_no_token(captured):
 def test_redaction_of_header_shapes():
     security._SECRETS.add(TOKEN)
     for line in (f"Authorization: Bearer {TOKEN}", f"{{'Authorization': 'Bearer {TOKEN}'}}",
-                 f"authorization={TOKEN}", f"token {TOKEN} seen", f"Bearer abc.def-ghi"):
+                 f"authorization={TOKEN}", f"token {TOKEN} seen", "Bearer abc.def-ghi"):
         cleaned = security.redact(line)
         assert TOKEN not in cleaned and "abc.def-ghi" not in cleaned and "[redacted]" in cleaned, line
 

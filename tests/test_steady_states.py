@@ -7,7 +7,7 @@ from hypothesis import given, settings, strategies as st
 from scipy.optimize import brentq
 
 from calc.safety.dynamics import simulate
-from calc.safety.tank_model import Charge, Feed, Jacket, Reaction, SimulationInput, Species, Budget
+from calc.safety.tank_model import InitialCharge, Feed, Jacket, Reaction, SimulationInput, Species, Budget
 from calc.properties import GAS_CONSTANT as R
 from calc.safety.steady_states import CSTRInput, cstr_steady_states, outlet_concentration
 from calc.validity import InputError
@@ -81,7 +81,7 @@ def _dynamic_run(p, T_start, c_start, hours):
     rx = (Reaction({"A": -1, "P": 1}, {"A": 1}, p["rate_constant"], p["reference_temperature"],
                    p["activation_energy"], p["reaction_enthalpy"]),)
     rho = p["density"]
-    charge = Charge(rho * p["volume"], T_start, {"A": c_start / rho}, rho, p["heat_capacity"])
+    charge = InitialCharge(rho * p["volume"], T_start, {"A": c_start / rho}, rho, p["heat_capacity"])
     feed = Feed.constant(p["feed_temperature"], {"A": p["feed_concentration"] / rho}, rho * p["flow"])
     jacket = Jacket(p["ua"], 1e9, 4180.0, p["coolant_temperature"])
     return simulate(SimulationInput("continuous", sp, rx, charge, hours * 3600.0, feed=feed, jacket=jacket,

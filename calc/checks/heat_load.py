@@ -28,7 +28,6 @@ accumulates unreacted is NOT covered; that belongs to the thermal-safety assessm
 """
 from __future__ import annotations
 
-import math
 from dataclasses import MISSING, dataclass, field, fields, replace
 
 from calc.validity import (CalcWarning, InputError, Warnings, require_finite, require_non_negative,

@@ -36,7 +36,7 @@ from dataclasses import dataclass, field, replace
 from scipy.optimize import brentq
 
 from calc.deadline import NEVER, Deadline
-from calc.vessel import agitation as agitation_module
+from calc.vessel import agitation
 from calc.vessel import geometry
 from calc.cautions import COOLING_CHECK
 from calc.checks.cooling_check import (DEFAULT_SAFETY_FACTOR, CoolingCheck, _check_safety_factor, check_cautions,
@@ -46,7 +46,7 @@ from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, CalculationError, InputError, TooLarge, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
 
-RULES = tuple(sorted(agitation_module.SCALE_UP_RULES)) + ("as_given",)
+RULES = tuple(sorted(agitation.SCALE_UP_RULES)) + ("as_given",)
 COOLANT_FLOW_RULES = ("scale_with_area", "as_given")
 #: Default largest number of target vessels in one scale-up (keeps a request's work bounded); the
 #: service's COOLMARGIN_MAX_SCALES setting replaces it.
@@ -168,7 +168,7 @@ def _similar(reference: _Reference, volume: float, rule: str, coolant_rule: str,
     factor = ratio ** (1.0 / 3.0)
     agitator = reference.vessel.agitator
     speed = agitator.speed if rule == "as_given" else \
-        agitation_module.scaled_speed(rule, agitator, factor, reference.props)
+        agitation.scaled_speed(rule, agitator, factor, reference.props)
     vessel = reference.vessel.scaled(factor, speed, name or f"{reference.vessel.name} at {volume:.4g} m3")
     charge_volume = reference.charge_volume * ratio
     return (vessel, _scaled_charge(reference.charge, ratio), charge_volume,
@@ -183,7 +183,7 @@ def _speed_for_power_per_volume(vessel: Vessel, props: LiquidProperties, volume:
     """
     def residual(log_speed: float) -> float:
         stirred = replace(vessel.agitator, speed=math.exp(log_speed))
-        return math.log(agitation_module.agitation(stirred, props, volume, vessel.shape.diameter).power_per_volume
+        return math.log(agitation.agitation(stirred, props, volume, vessel.shape.diameter).power_per_volume
                         / target)
 
     guess = math.log(vessel.agitator.speed)
@@ -211,7 +211,7 @@ def _given(reference: _Reference, vessel: Vessel, index: int, rule: str, coolant
         if rule == "constant_power_per_volume":
             speed = _speed_for_power_per_volume(vessel, reference.props, charge_volume, reference.power_per_volume)
         else:
-            speed = agitation_module.scaled_speed(rule, reference.vessel.agitator,
+            speed = agitation.scaled_speed(rule, reference.vessel.agitator,
                                                   vessel.agitator.diameter / reference.vessel.agitator.diameter,
                                                   reference.props)
         vessel = replace(vessel, agitator=replace(vessel.agitator, speed=speed))

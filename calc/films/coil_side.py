@@ -2,14 +2,14 @@
 
 Laminar below Schmidt's critical Reynolds number, turbulent above it (Schmidt 1967, or Mori &
 Nakayama 1967), each registered with its source and validity range in :data:`CORRELATIONS`. The
-result is the jackets' :class:`calc.service_side.FilmResult`.
+result is the jackets' :class:`calc.films.jacket_side.CoolantFilm`.
 """
 from __future__ import annotations
 
 import math
 
 from calc.properties import LiquidProperties
-from calc.films.jacket_side import VDI_HEAT_ATLAS, FilmResult, flow_warnings
+from calc.films.jacket_side import VDI_HEAT_ATLAS, CoolantFilm, flow_warnings
 from calc.validity import Correlation, InputError, Warnings, require_positive
 
 
@@ -169,7 +169,7 @@ def coil_critical_reynolds_Schmidt_1967(r: float) -> float:
 
 def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant_props: LiquidProperties,
                       mass_flow: float, mu_wall: float, pitch: float | None = None, parallel_tubes: int = 1,
-                      correlation: str = "schmidt_1967") -> FilmResult:
+                      correlation: str = "schmidt_1967") -> CoolantFilm:
     """Coolant film coefficient inside a helical coil, on the tube inside area.
 
     Laminar below Re_crit (Schmidt 1967, VDI form), turbulent above (``correlation``); both times
@@ -197,7 +197,7 @@ def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant
 
     Returns
     -------
-    FilmResult
+    CoolantFilm
 
     Examples
     --------
@@ -235,4 +235,4 @@ def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant
     regime = flow_warnings(warnings, Re, velocity, Re_crit, entry.name)
     if regime != "laminar":
         regime = "turbulent" if Re >= 2.2e4 else "transitional"
-    return FilmResult(Nu * props.thermal_conductivity / d, Re, velocity, entry.name, Nu, Pr, d, regime, warnings)
+    return CoolantFilm(Nu * props.thermal_conductivity / d, Re, velocity, entry.name, Nu, Pr, d, regime, warnings)

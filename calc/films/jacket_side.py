@@ -458,7 +458,7 @@ class JacketSpec:
 
 
 @dataclass(frozen=True)
-class FilmResult:
+class CoolantFilm:
     """A coolant-side film coefficient with the numbers behind it."""
 
     h: float  # W/(m2 K)
@@ -493,7 +493,7 @@ def flow_warnings(warnings: Warnings, Re: float, velocity: float, laminar_below:
     return "turbulent" if Re >= TURBULENT_LIMIT else "transitional"
 
 
-def _annular(jacket, props, m, mu_wall, D_o, H, warnings, rho_wall, beta, dT) -> FilmResult:
+def _annular(jacket, props, m, mu_wall, D_o, H, warnings, rho_wall, beta, dT) -> CoolantFilm:
     if jacket.correlation not in ANNULAR_CORRELATIONS:
         raise InputError("vessel.jacket.correlation", f"unknown option {jacket.correlation!r}; known: "
                                                       f"{', '.join(ANNULAR_CORRELATIONS)}")
@@ -515,11 +515,11 @@ def _annular(jacket, props, m, mu_wall, D_o, H, warnings, rho_wall, beta, dT) ->
                           roughness=jacket.roughness, warnings=warnings)
     entry.check(warnings, Re=flow.reynolds, Pr=props.prandtl, **{"H/D": H / D_o})
     regime = flow_warnings(warnings, flow.reynolds, flow.velocity, 2300.0, entry.name)
-    return FilmResult(flow.h, flow.reynolds, flow.velocity, entry.name, flow.nusselt, props.prandtl,
+    return CoolantFilm(flow.h, flow.reynolds, flow.velocity, entry.name, flow.nusselt, props.prandtl,
                       flow.length_scale, regime, warnings)
 
 
-def _channel(props, m_channel, area, d_e, length, d_curve, mu_wall, warnings) -> FilmResult:
+def _channel(props, m_channel, area, d_e, length, d_curve, mu_wall, warnings) -> CoolantFilm:
     """Film in a coiled channel (spiral baffle, half pipe): laminar, transitional or turbulent."""
     velocity = m_channel / (props.density * area)
     Re = props.density * velocity * d_e / props.viscosity
@@ -539,11 +539,11 @@ def _channel(props, m_channel, area, d_e, length, d_curve, mu_wall, warnings) ->
     Nu = entry.function(*args) * (props.viscosity / mu_wall) ** 0.14
     entry.check(warnings, Re=Re, Pr=Pr)
     regime = flow_warnings(warnings, Re, velocity, LAMINAR_LIMIT, entry.name)
-    return FilmResult(Nu * props.thermal_conductivity / d_e, Re, velocity, entry.name, Nu, Pr, d_e, regime,
+    return CoolantFilm(Nu * props.thermal_conductivity / d_e, Re, velocity, entry.name, Nu, Pr, d_e, regime,
                       warnings)
 
 
-def _spiral_baffle(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> FilmResult:
+def _spiral_baffle(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> CoolantFilm:
     gap = _positive("gap", jacket.gap, "a spiral-baffle jacket")
     pitch = _positive("baffle_pitch", jacket.baffle_pitch, "a spiral-baffle jacket")
     bypass = DEFAULT_BYPASS_FRACTION if jacket.bypass_fraction is None else jacket.bypass_fraction
@@ -558,7 +558,7 @@ def _spiral_baffle(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> FilmResul
     return _channel(props, m * (1.0 - bypass), pitch * gap, 4.0 * gap, length, d_curve, mu_wall, warnings)
 
 
-def _half_pipe(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> FilmResult:
+def _half_pipe(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> CoolantFilm:
     d = _positive("pipe_diameter", jacket.pipe_diameter, "a half-pipe jacket")
     pitch = _positive("pipe_pitch", jacket.pipe_pitch, "a half-pipe jacket")
     theta = jacket.pipe_section_angle
@@ -574,7 +574,7 @@ def _half_pipe(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> FilmResult:
     return _channel(props, m, area, d_e, length, D_o, mu_wall, warnings)
 
 
-def _no_jacket(*_args) -> FilmResult:
+def _no_jacket(*_args) -> CoolantFilm:
     raise InputError("vessel.jacket.type", "the vessel has no jacket (type 'none'): there is no jacket film")
 
 
@@ -585,7 +585,7 @@ _JACKET_TYPES = {"annular": _annular, "annular_spiral_baffle": _spiral_baffle, "
 def service_film_jacket(jacket: JacketSpec, coolant_props: LiquidProperties, mass_flow: float, mu_wall: float,
                         vessel_outer_diameter: float, jacket_height: float, rho_wall: float | None = None,
                         expansion_coefficient: float | None = None,
-                        temperature_rise: float | None = None) -> FilmResult:
+                        temperature_rise: float | None = None) -> CoolantFilm:
     """Coolant film coefficient in a jacket, referred to the jacket's heated wall.
 
     Parameters
@@ -611,7 +611,7 @@ def service_film_jacket(jacket: JacketSpec, coolant_props: LiquidProperties, mas
 
     Returns
     -------
-    FilmResult
+    CoolantFilm
 
     Examples
     --------

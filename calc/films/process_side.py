@@ -10,7 +10,6 @@ speed), otherwise at the published boundary.
 """
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 
 from calc.vessel.agitation import IMPELLERS, LAMINAR_REYNOLDS, TURBULENT_REYNOLDS, FilmConstants, ImpellerInfo, impeller_info
@@ -145,7 +144,7 @@ CORRELATIONS: dict[str, FilmCorrelation] = {
 
 
 @dataclass(frozen=True)
-class FilmResult:
+class ProcessFilm:
     """A process-side film coefficient and how it was obtained."""
 
     h: float  # W/(m2 K)
@@ -171,7 +170,7 @@ def _band(bands: tuple[FilmConstants, ...], Re: float) -> FilmConstants:
 
 def _film(info: ImpellerInfo, bands: tuple[FilmConstants, ...], surface: str, Re: float,
           props: LiquidProperties, mu_wall: float, baffled: bool, lengths: dict, geometry: dict,
-          warnings: Warnings) -> FilmResult:
+          warnings: Warnings) -> ProcessFilm:
     require_positive("vessel.agitator.speed", Re)
     require_positive("charge.viscosity", mu_wall)
     constants = _band(bands, Re)
@@ -197,7 +196,7 @@ def _film(info: ImpellerInfo, bands: tuple[FilmConstants, ...], surface: str, Re
     arguments.update({name: geometry[name] for name in correlation.geometry})
     nusselt = correlation.function(**arguments)
     h = nusselt * props.thermal_conductivity / lengths[correlation.length_scale]
-    return FilmResult(h, nusselt, correlation.name, constants.a, constants.source, constants, warnings)
+    return ProcessFilm(h, nusselt, correlation.name, constants.a, constants.source, constants, warnings)
 
 
 SURFACES = ("wall", "bottom_head")
@@ -205,7 +204,7 @@ SURFACES = ("wall", "bottom_head")
 
 def process_film_jacket(impeller: str, Re: float, props_bulk: LiquidProperties, mu_wall: float,
                         tank_diameter: float, liquid_height: float, baffled: bool = True,
-                        surface: str = "wall") -> FilmResult:
+                        surface: str = "wall") -> ProcessFilm:
     """Film coefficient from the vessel contents to the jacketed wall (or bottom head) [W/(m2 K)].
 
     ``surface`` is ``"wall"`` (cylindrical shell) or ``"bottom_head"``; for impellers without
@@ -243,7 +242,7 @@ COIL_STAND_INS = {"pitched_blade_turbine": "marine_propeller", "hydrofoil": "mar
 
 def process_film_coil(impeller: str, Re: float, props_bulk: LiquidProperties, mu_wall: float,
                       tank_diameter: float, liquid_height: float, tube_outer_diameter: float,
-                      impeller_diameter: float, baffled: bool = True) -> FilmResult:
+                      impeller_diameter: float, baffled: bool = True) -> ProcessFilm:
     """Film coefficient from the vessel contents to the outside of a helical coil [W/(m2 K)].
 
     Published for the disc turbine and the propeller (Oldshue & Gretton 1954 form) and the paddle

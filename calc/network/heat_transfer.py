@@ -21,10 +21,10 @@ from typing import Callable
 
 from calc.vessel import agitation
 from calc.films import coil_side
-from calc.network import coolant_balance as coolant_balance_module
+from calc.network import coolant_balance
 from calc.vessel import geometry
 from calc.films import process_side
-from calc.films import jacket_side as service_side
+from calc.films import jacket_side
 from calc.films import wall
 from calc.cautions import HEAT_TRANSFER
 from calc.properties import LiquidProperties
@@ -41,8 +41,8 @@ class Surface:
 
     name: str  # "jacket_shell", "jacket_bottom_head", "coil_0", ...
     area: float  # m2, process side
-    process_film: object  # process_side.FilmResult
-    service_film: object  # service_side.FilmResult
+    process_film: process_side.ProcessFilm
+    service_film: jacket_side.CoolantFilm  # coolant side
     overall: wall.OverallResult
     process_wall_temperature: float  # K
     service_wall_temperature: float  # K
@@ -59,7 +59,7 @@ class Stream:
     name: str  # "jacket" or "coil_0", ...
     mass_flow: float  # kg/s
     surfaces: tuple[Surface, ...]
-    balance: coolant_balance_module.CoolantBalance
+    balance: coolant_balance.CoolantBalance
     mean_temperature: float  # K
     iterations: int
 
@@ -213,8 +213,8 @@ class _SurfaceModel:
     wall: wall.WallSpec
     process_radius: float
     process_side: str
-    process_film: Callable[[float], object]  # mu_wall -> process FilmResult
-    service_film: Callable[[LiquidProperties, float, float], object]  # props, mu_wall, rho_wall -> FilmResult
+    process_film: Callable[[float], process_side.ProcessFilm]  # mu_wall -> process film
+    service_film: Callable[[LiquidProperties, float, float], jacket_side.CoolantFilm]  # props, mu_wall, rho_wall
 
 
 def _process_viscosity(charge: Charge, temperature: float, warnings: Warnings) -> float:
@@ -271,7 +271,7 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
             surfaces.append(Surface(model.name, model.area, process_film, service_film, overall,
                                     process_wall, service_wall))
         ua = sum(s.ua for s in surfaces)
-        balance = coolant_balance_module.coolant_balance(process_temperature, inlet, ua, mass_flow,
+        balance = coolant_balance.coolant_balance(process_temperature, inlet, ua, mass_flow,
                                                          state.heat_capacity, freezing)
         new_mean = 0.5 * (inlet + balance.outlet_temperature)
         new_walls = []
@@ -335,7 +335,7 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         outer = _outer_diameter(vessel)
 
         def service(props_c, mu_w, rho_w, _jacket=vessel.jacket):
-            return service_side.service_film_jacket(_jacket, props_c, coolant.mass_flow(), mu_w, outer,
+            return jacket_side.service_film_jacket(_jacket, props_c, coolant.mass_flow(), mu_w, outer,
                                                     max(jacket_height, 1e-3), rho_wall=rho_w)
 
         models = []
@@ -379,7 +379,7 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
 
 
 def coolant_balance_at_mean(coolant: Coolant, process_temperature: float, ua: float
-                            ) -> coolant_balance_module.CoolantBalance:
+                            ) -> coolant_balance.CoolantBalance:
     """Single-pass coolant balance with c_p at the mean coolant temperature it produces.
 
     The balance carries the mass flow and that c_p. Fixed-point iteration on the mean
@@ -391,7 +391,7 @@ def coolant_balance_at_mean(coolant: Coolant, process_temperature: float, ua: fl
     mean = coolant.inlet_temperature
     for _ in range(MAX_ITERATIONS):
         heat_capacity = _coolant_state(coolant, mean).heat_capacity
-        balance = coolant_balance_module.coolant_balance(process_temperature, coolant.inlet_temperature, ua,
+        balance = coolant_balance.coolant_balance(process_temperature, coolant.inlet_temperature, ua,
                                                          mass_flow, heat_capacity, freezing)
         new_mean = 0.5 * (coolant.inlet_temperature + balance.outlet_temperature)
         if abs(new_mean - mean) < TOLERANCE:
@@ -401,7 +401,7 @@ def coolant_balance_at_mean(coolant: Coolant, process_temperature: float, ua: fl
 
 
 @dataclass(frozen=True)
-class JacketDuty:
+class LumpedExchange:
     """The vessel's jacket and coils reduced to what a dynamic balance needs, at one state."""
 
     ua: float  # W/K, jacket and coils together
@@ -412,7 +412,7 @@ class JacketDuty:
     warnings: Warnings = field(default_factory=Warnings)
 
 
-def jacket_duty(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> JacketDuty:
+def lumped_exchange(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> LumpedExchange:
     """UA, coolant flow and c_p, and agitator power of the vessel at ``process_temperature``.
 
     The dynamic balances hold UA constant over a run: films change with the contents' temperature
@@ -425,9 +425,9 @@ def jacket_duty(vessel: Vessel, charge: Charge, coolant: Coolant, process_temper
                              f"{process_temperature - 273.15:.2f} degC is held constant over the simulation"))
     main = result.stream("jacket") or (result.streams[0] if result.streams else None)
     if main is None:
-        return JacketDuty(0.0, coolant.mass_flow(), coolant.liquid.at(coolant.inlet_temperature).heat_capacity,
+        return LumpedExchange(0.0, coolant.mass_flow(), coolant.liquid.at(coolant.inlet_temperature).heat_capacity,
                           coolant.inlet_temperature, result.agitation.power, warnings)
     # One equivalent single-pass stream with the whole UA: the coils' flows join the jacket's.
     flow = sum(stream.mass_flow for stream in result.streams)
-    return JacketDuty(result.ua, flow, main.balance.heat_capacity_rate / main.mass_flow,
+    return LumpedExchange(result.ua, flow, main.balance.heat_capacity_rate / main.mass_flow,
                       coolant.inlet_temperature, result.agitation.power, warnings)

@@ -475,10 +475,10 @@ def simulate(inp: SimulationInput) -> SimulationResult:
     --------
     First-order A -> B in a batch without heat of reaction: conversion 1 - exp(-k t).
 
-    >>> from calc.safety.tank_model import Charge, Reaction, SimulationInput, Species
+    >>> from calc.safety.tank_model import InitialCharge, Reaction, SimulationInput, Species
     >>> sp = (Species("A", 0.1, 2000.0), Species("B", 0.1, 2000.0))
     >>> rx = (Reaction({"A": -1, "B": 1}, {"A": 1}, 1e-3, 350.0, 60e3, 0.0),)
-    >>> ch = Charge(1000.0, 350.0, {"A": 1.0}, 900.0, 2000.0)
+    >>> ch = InitialCharge(1000.0, 350.0, {"A": 1.0}, 900.0, 2000.0)
     >>> r = simulate(SimulationInput("batch", sp, rx, ch, horizon=1000.0))
     >>> r.status, round(r.summary.final_conversion, 6), round(1 - math.exp(-1.0), 6)
     (0, 0.632121, 0.632121)

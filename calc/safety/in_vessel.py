@@ -1,13 +1,13 @@
 """A dynamic run in a described vessel: UA, coolant flow and c_p, and shaft power from the network.
 
 The dynamic balances hold UA constant over a run; here it is the vessel's UA from
-``calc.network.heat_transfer`` at the charge's starting temperature (see ``vessel_exchange``).
+``calc.network.heat_transfer`` at the charge's starting temperature (see ``calc.network.heat_transfer.lumped_exchange``).
 """
 from __future__ import annotations
 
 from dataclasses import dataclass, replace
 
-from calc.network.heat_transfer import jacket_duty
+from calc.network.heat_transfer import lumped_exchange
 from calc.properties import Liquid
 from calc.safety.dynamics import simulate
 from calc.safety.tank_model import Jacket, SimulationInput, SimulationResult
@@ -37,8 +37,8 @@ def simulate_in_vessel(inp: SimulationInput, given: RunVessel | None) -> Simulat
     if given is None:
         return simulate(inp)
     contents = Charge(given.contents, mass=inp.charge.mass)
-    duty = jacket_duty(given.vessel, contents, given.coolant, inp.charge.temperature)
-    jacket = Jacket(duty.ua, duty.coolant_flow, duty.coolant_heat_capacity, duty.inlet_temperature)
-    shaft_power = duty.shaft_power if given.agitator_power else inp.shaft_power
+    exchange = lumped_exchange(given.vessel, contents, given.coolant, inp.charge.temperature)
+    jacket = Jacket(exchange.ua, exchange.coolant_flow, exchange.coolant_heat_capacity, exchange.inlet_temperature)
+    shaft_power = exchange.shaft_power if given.agitator_power else inp.shaft_power
     result = simulate(replace(inp, jacket=jacket, shaft_power=shaft_power))
-    return replace(result, warnings=Warnings([*duty.warnings, *result.warnings]))
+    return replace(result, warnings=Warnings([*exchange.warnings, *result.warnings]))

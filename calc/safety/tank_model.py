@@ -50,7 +50,7 @@ class Reaction:
 
 
 @dataclass(frozen=True)
-class Charge:
+class InitialCharge:
     """The initial contents. Mass not carried by the listed species is inert balance (solvent)."""
 
     mass: float  # kg
@@ -138,7 +138,7 @@ class SimulationInput:
     mode: str  # "batch", "semi_batch", "continuous"
     species: tuple
     reactions: tuple
-    charge: Charge
+    charge: InitialCharge
     horizon: float  # s
     feed: Feed | None = None
     jacket: Jacket | None = None

@@ -121,7 +121,7 @@ def main(argv: list[str] | None = None) -> int:
 def calculation_medians(repeats: int = 21) -> list[tuple[str, float]]:
     """Median times of the calc functions behind the main routes, with their inputs parsed once."""
     from api import create_app
-    from calc.checks import cooling_check as cooling
+    from calc.checks import cooling_check
     from calc.safety import dynamics
     from calc.checks import scaleup
     from calc.safety import tank_model
@@ -135,7 +135,7 @@ def calculation_medians(repeats: int = 21) -> list[tuple[str, float]]:
         path = ScaleUpRequestSchema().load(EXAMPLES["/v1/scale-up"].body)
         run = SimulationRequestSchema().load(SIX_HOUR_FAILURE)
     cases = [
-        ("cooling check (network + 3 solved limits)", lambda: cooling.cooling_check(
+        ("cooling check (network + 3 solved limits)", lambda: cooling_check.cooling_check(
             check["vessel"], check["charge"], check["coolant"], check["process_temperature"],
             check["heat_release"], check["safety_factor"])),
         (f"scale-up, {1 + len(path['targets'])} scales", lambda: scaleup.scale_up(

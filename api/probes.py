@@ -1,4 +1,4 @@
-"""Service endpoints: liveness, readiness, the OpenAPI contract and its HTML reference."""
+"""Probes and the contract: liveness, readiness, the OpenAPI contract and its HTML reference."""
 from __future__ import annotations
 
 from functools import lru_cache
@@ -13,7 +13,7 @@ from calc import properties
 from . import VERSION
 from .errors import problem
 
-bp = Blueprint("service", __name__)
+bp = Blueprint("probes", __name__)
 
 
 @lru_cache(maxsize=4)
