@@ -15,7 +15,8 @@ from typing import Any, Callable
 from flask import Response, current_app, request
 from marshmallow import Schema, ValidationError
 
-from schemas.base import clean, unflatten, unit_map
+from calc.validity import finite_or_input_error
+from schemas.base import clean, numeric_leaves, unflatten, unit_map
 
 from .errors import ProblemError
 
@@ -220,7 +221,7 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
         try:
             if not isinstance(case, dict):
                 raise ValidationError(["must be an object"])
-            results.append({"status": 200, "result": clean(result_schema.dump(compute(schema.load(case))))})
+            results.append({"status": 200, "result": clean(result_schema.dump(_run(compute, schema.load(case), case)))})
         except Exception as exc:  # each case reports its own problem
             status, detail, errors, title = problem_for(exc)
             if status >= 500:
@@ -240,4 +241,9 @@ def calculate(schema: Schema, compute: Callable[[dict], dict], result_schema: Sc
             raise ProblemError(422, "a batch body holds only 'cases'",
                                [{"field": sorted(set(data) - {"cases"})[0], "message": "not allowed beside cases"}])
         return batch_response(data["cases"], schema, compute, result_schema)
-    return respond(compute(schema.load(data)), result_schema, **respond_options)
+    return respond(_run(compute, schema.load(data), data), result_schema, **respond_options)
+
+
+def _run(compute: Callable[[dict], Any], args: dict, raw: dict) -> Any:
+    """Compute under calc's numerical guard, which names the request field most likely at fault."""
+    return finite_or_input_error(compute, args, numeric_leaves(raw))
