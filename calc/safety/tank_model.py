@@ -17,6 +17,7 @@ from typing import Callable
 import numpy as np
 from scipy.integrate import BDF, LSODA, Radau
 
+from calc.deadline import NEVER, Deadline
 from calc.validity import CalcWarning, InputError, Warnings, require_positive, require_sign
 
 CAUTION = ("Screening estimate: confirm with reaction calorimetry and plant data, follow local codes "
@@ -128,7 +129,8 @@ class Budget:
     horizon_limit: float = 30 * 86400.0  # s
     output_points: int = 201
     maximum_output_points: int = 20001
-    wall_time: float = 10.0  # s
+    wall_time: float = 10.0  # s of computing for this run
+    deadline: Deadline = NEVER  # the caller's clock (a request's budget); the run stops at the sooner of the two
 
 
 @dataclass(frozen=True)
