@@ -5,7 +5,7 @@ BIN := $(VENV)/bin
 HOST ?= 127.0.0.1
 PORT ?= 8000
 
-.PHONY: install run test bench lint load clean
+.PHONY: install nginx run test bench lint load clean
 
 $(BIN)/.installed: pyproject.toml
 	$(PYTHON) -m venv $(VENV)
@@ -15,13 +15,20 @@ $(BIN)/.installed: pyproject.toml
 
 install: $(BIN)/.installed
 
+# Debian's nginx, for the tests that run docker/nginx.conf natively (tests/test_proxy.py); needs root or sudo.
+nginx:
+	@command -v nginx >/dev/null 2>&1 || test -x /usr/sbin/nginx || { \
+	    SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); \
+	    apt-cache policy nginx nginx-light | grep -q 'Candidate: [0-9]' || $$SUDO apt-get update -q; \
+	    DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -q --no-install-recommends nginx; }
+
 run: install
 	@echo "coolmargin: http://$(HOST):$(PORT)  (reference /docs, contract /openapi.yaml, demo examples/README.md)"
 	@echo "  demo: curl -s -X POST 'http://$(HOST):$(PORT)/v1/scale-up?format=csv' -H 'Content-Type: application/json' -d @examples/scale_up_demo.json"
 	@echo "        $(BIN)/coolmargin scale-up examples/scale_up_demo.json"
 	COOLMARGIN_BIND=$(HOST):$(PORT) $(BIN)/gunicorn --config docker/gunicorn.conf.py 'api.wsgi:app'
 
-test: install
+test: install nginx
 	$(BIN)/python -m pytest
 
 bench: install
