@@ -13,6 +13,8 @@ import urllib.request
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
+#: A rate limit that load tests and benchmarks (all from one address) never reach; the limiter still runs.
+UNLIMITED = "1000000 per minute"
 
 
 def free_port() -> int:
@@ -54,6 +56,7 @@ def gunicorn(command: list[str] | None = None, env: dict | None = None, workers:
     port = free_port()
     environment = dict(os.environ)
     environment.setdefault("COOLMARGIN_DRAIN_SECONDS", "0")
+    environment.setdefault("COOLMARGIN_RATE_LIMIT", UNLIMITED)  # load tests come from one address
     environment.update(env or {})
     environment.update(COOLMARGIN_BIND=f"127.0.0.1:{port}", COOLMARGIN_WORKERS=str(workers),
                        COOLMARGIN_ACCESS_LOG=environment.get("COOLMARGIN_ACCESS_LOG", "/dev/null"))
