@@ -15,7 +15,7 @@ from calc.safety import tank_model
 from calc.safety.in_vessel import RunVessel
 from calc.properties import FLUIDS, STANDARD_PRESSURE
 
-from .base import StrictSchema, finite_float
+from .base import StrictSchema, finite_float, whole_number
 from .heat_transfer import warning_list
 from .units import Quantity, absolute_temperature, non_negative, positive
 from .vessel import CoolantSchema, VesselSchema, _LiquidFields, require_agitator
@@ -31,7 +31,8 @@ _PURE_FLUIDS = sorted(k for k, v in FLUIDS.items() if v.kind == "pure")
 def _amounts(description: str, **kwargs) -> fields.Dict:
     """Species name -> a plain number (mol/kg, coefficient or order)."""
     return fields.Dict(keys=fields.String(validate=validate.Length(min=1, max=40)),
-                       values=finite_float(), validate=validate.Length(max=MAX_SPECIES),
+                       values=finite_float(validate=validate.Range(-1e6, 1e6)),
+                       validate=validate.Length(max=MAX_SPECIES),
                        metadata={"description": description}, **kwargs)
 
 
@@ -115,9 +116,10 @@ class SpeciesSchema(StrictSchema):
 class ReactionSchema(StrictSchema):
     stoichiometry = _amounts("species -> coefficient, negative when consumed", required=True)
     orders = _amounts("species -> reaction order (>= 0)", required=True)
-    rate_constant = finite_float(required=True, validate=validate.Range(min=0),
+    rate_constant = finite_float(required=True, validate=validate.Range(0, 1e30),
                                  metadata={"description": "k at reference_temperature, SI: "
-                                                          "(mol/m^3)^(1 - sum of orders)/s"})
+                                                          "(mol/m^3)^(1 - sum of orders)/s; at most 1e30 (beyond "
+                                                          "any collision-limited rate)"})
     reference_temperature = absolute_temperature(required=True)
     activation_energy = non_negative("activation energy", required=True)
     enthalpy = Quantity("molar enthalpy", required=True,
@@ -197,8 +199,9 @@ class SimulationJacketSchema(StrictSchema):
 
 class ControllerSchema(StrictSchema):
     setpoint = absolute_temperature(required=True)
-    gain = finite_float(required=True, validate=validate.Range(min=0),
-                        metadata={"description": "K of coolant inlet per K of error"})
+    gain = finite_float(required=True, validate=validate.Range(0, 1e6),
+                        metadata={"description": "K of coolant inlet per K of error; at most 1e6 (beyond any "
+                                                 "controller tuning)"})
     integral_time = positive("time", required=True)
     minimum_inlet_temperature = absolute_temperature(required=True)
     maximum_inlet_temperature = absolute_temperature(required=True)
@@ -232,7 +235,7 @@ class LimitSchema(StrictSchema):
     name = fields.String(required=True, validate=validate.Length(min=1, max=40))
     temperature = absolute_temperature(required=True)
     terminal = fields.Boolean(load_default=True)
-    direction = fields.Integer(load_default=1, validate=validate.OneOf([-1, 0, 1]))
+    direction = whole_number(load_default=1, validate=validate.OneOf([-1, 0, 1]))
 
     @post_load
     def _make(self, data, **kwargs):
@@ -282,8 +285,9 @@ class SimulationRequestSchema(StrictSchema):
     limiting_reagent = fields.String(load_default=None, validate=validate.Length(min=1, max=40))
     method = fields.String(load_default="BDF", validate=validate.OneOf(sorted(tank_model.METHODS)))
     horizon = positive("time", required=True, description="simulated time")
-    output_points = fields.Integer(load_default=201, validate=validate.Range(min=2),
-                                   metadata={"description": "points in the returned series"})
+    output_points = whole_number(load_default=201, validate=validate.Range(min=2, max=100_000),
+                                 metadata={"description": "points in the returned series (the service's own cap, "
+                                                          "COOLMARGIN_MAX_SERIES_POINTS, may be lower)"})
 
     @validates_schema
     def _one_jacket(self, data, **kwargs):
@@ -395,8 +399,9 @@ class CSTRRequestSchema(StrictSchema):
     feed_temperature = absolute_temperature(required=True)
     density = positive("density", required=True)
     heat_capacity = positive("heat capacity", required=True)
-    rate_constant = finite_float(required=True, validate=validate.Range(min=0),
-                                 metadata={"description": "k at reference_temperature, (mol/m^3)^(1-n)/s"})
+    rate_constant = finite_float(required=True, validate=validate.Range(0, 1e30),
+                                 metadata={"description": "k at reference_temperature, (mol/m^3)^(1-n)/s; at most "
+                                                          "1e30 (beyond any collision-limited rate)"})
     reference_temperature = absolute_temperature(required=True)
     activation_energy = non_negative("activation energy", required=True)
     reaction_enthalpy = Quantity("molar enthalpy", required=True,
@@ -410,7 +415,7 @@ class CSTRRequestSchema(StrictSchema):
     shaft_power = non_negative("power", load_default=0.0)
     minimum_temperature = absolute_temperature(load_default=None, description="lower end of the scan; with maximum")
     maximum_temperature = absolute_temperature(load_default=None, description="upper end of the scan; with minimum")
-    grid_points = fields.Integer(load_default=4001, validate=validate.Range(11, 20001))
+    grid_points = whole_number(load_default=4001, validate=validate.Range(11, 20001))
 
     @validates_schema
     def _range(self, data, **kwargs):

@@ -21,7 +21,7 @@ _JACKET_LENGTHS = ("gap", "baffle_pitch", "pipe_diameter", "pipe_pitch", "inlet_
 
 @dataclass(frozen=True)
 class Vessel:
-    """A jacketed, agitated vertical vessel. ``jacket`` is a ``calc.service_side.JacketSpec`` or None."""
+    """A jacketed, agitated vertical vessel. ``jacket`` is a ``calc.films.jacket_side.JacketSpec`` or None."""
 
     shape: geometry.VesselShape
     wall: WallSpec
