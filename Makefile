@@ -48,7 +48,8 @@ load: install-test
 	$(BIN)/python tests/benchmarks/load.py
 
 lint: install-test
-	$(BIN)/python -m compileall -q api calc schemas tests
+	$(BIN)/python -m ruff check api calc schemas tests
+	$(BIN)/python -m mypy
 	$(BIN)/python -m pytest -q tests/test_openapi.py
 
 # Re-pin after changing dependencies in pyproject.toml: a fresh virtualenv, the project with its tests, frozen.

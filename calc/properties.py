@@ -231,7 +231,8 @@ class PropertyTable:
         Outside the span the end values are held (callers clamp or check first).
         """
         T = np.asarray(temperature, dtype=float)
-        return LiquidProperties(T, np.interp(T, self.temperature, self.density),
+        # LiquidProperties of arrays, one element per state (its fields are annotated as the scalar case)
+        return LiquidProperties(T, np.interp(T, self.temperature, self.density),  # type: ignore[arg-type]
                                 np.interp(T, self.temperature, self.heat_capacity),
                                 np.exp(np.interp(-1.0 / T, self.inverse_temperature, self.log_viscosity)),
                                 np.interp(T, self.temperature, self.conductivity))
@@ -244,6 +245,7 @@ class PropertyTable:
             object.__setattr__(self, "_lists", tuple(a.tolist() for a in (
                 self.temperature, self.density, self.heat_capacity, self.conductivity, self.inverse_temperature,
                 self.log_viscosity)))
+        assert self._lists is not None
         grid, density, heat_capacity, conductivity, inverse, log_viscosity = self._lists
         return LiquidProperties(T, _interp(T, grid, density), _interp(T, grid, heat_capacity),
                                 math.exp(_interp(-1.0 / T, inverse, log_viscosity)), _interp(T, grid, conductivity))
@@ -361,7 +363,9 @@ class Liquid:
     already known to be valid (the vectorised network clamps them first), with the same numbers.
     """
 
-    name: str = "liquid"
+    @property
+    def name(self) -> str:
+        return "liquid"
 
     def at(self, temperature: float, field: str = "temperature") -> LiquidProperties:  # pragma: no cover
         raise NotImplementedError
@@ -438,8 +442,8 @@ class ExplicitLiquid(Liquid):
     def states(self, temperature) -> LiquidProperties:
         T = np.asarray(temperature, dtype=float)
         constant = np.ones_like(T)
-        return LiquidProperties(T, self.density * constant, self.heat_capacity * constant, self.viscosity_at(T),
-                                self.thermal_conductivity * constant)
+        return LiquidProperties(T, self.density * constant, self.heat_capacity * constant,  # type: ignore[arg-type]
+                                self.viscosity_at(T), self.thermal_conductivity * constant)  # type: ignore[arg-type]
 
     def at(self, temperature: float, field: str = "temperature") -> LiquidProperties:
         if not (math.isfinite(temperature) and temperature > 0):

@@ -9,6 +9,7 @@ from __future__ import annotations
 import math
 import numbers
 from dataclasses import dataclass
+from typing import Any, Callable
 
 
 @dataclass(frozen=True)
@@ -128,7 +129,7 @@ class Correlation:
     """
 
     name: str  # the authors and year, as cited: "Lehrer (1970)"
-    function: object
+    function: Callable[..., Any]
     source: str
     validity: dict = None  # type: ignore[assignment]
 

@@ -104,4 +104,4 @@ LIBRARIES = [
     Library("/v1/materials", "libraries", "The wall-material library with conductivities and sources", MaterialSchema),
 ]
 REQUEST_SCHEMAS = [PropertiesQuerySchema] + [c.request for c in CALCULATIONS]
-RESPONSE_SCHEMAS = [PropertiesResultSchema, FluidSchema] + [c.response for c in CALCULATIONS] + [l.item for l in LIBRARIES]
+RESPONSE_SCHEMAS = [PropertiesResultSchema, FluidSchema] + [c.response for c in CALCULATIONS] + [library.item for library in LIBRARIES]

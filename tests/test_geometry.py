@@ -165,9 +165,9 @@ def quad_volume_area(head, D, level):
     for x, z, dx, dz, t0, t1 in profile(head, D):
         if z(t0) >= level:
             break
-        t_end = t1 if z(t1) <= level else brentq(lambda t: z(t) - level, t0, t1, xtol=1e-15)
-        volume += quad(lambda t: math.pi * x(t) ** 2 * dz(t), t0, t_end, epsabs=0, epsrel=1e-12)[0]
-        area += quad(lambda t: 2 * math.pi * x(t) * math.hypot(dx(t), dz(t)), t0, t_end,
+        t_end = t1 if z(t1) <= level else brentq(lambda t, z=z: z(t) - level, t0, t1, xtol=1e-15)
+        volume += quad(lambda t, x=x, dz=dz: math.pi * x(t) ** 2 * dz(t), t0, t_end, epsabs=0, epsrel=1e-12)[0]
+        area += quad(lambda t, x=x, dx=dx, dz=dz: 2 * math.pi * x(t) * math.hypot(dx(t), dz(t)), t0, t_end,
                      epsabs=0, epsrel=1e-12)[0]
     return volume, area
 
@@ -263,7 +263,7 @@ def test_coil_submerged_volume_and_area_against_quadrature():
         def centre(s):
             return e + rise * s / L
 
-        def depth(s):
+        def depth(s, level=level):
             return min(max(level - centre(s) + d / 2, 0.0), d)
         brk = sorted({min(max((level - e + c) * L / rise, 0.0), L) for c in (-d / 2, d / 2)})
         V = quad(lambda s: fg.A_partial_circle(d, depth(s)), 0, L, points=brk, limit=200, epsrel=1e-10)[0]

@@ -34,7 +34,10 @@ OIL = Charge(ExplicitLiquid(870.0, 1700.0, 5.5e-4, 0.13), volume=5.0)
 TARGETS = [8.0, 16.0, 32.0, 64.0]
 
 
-def run(targets=TARGETS, rule="constant_power_per_volume", heat_release=SpecificPower(10.0), charge=CHARGE,
+TEN_W_PER_KG = SpecificPower(10.0)
+
+
+def run(targets=TARGETS, rule="constant_power_per_volume", heat_release=TEN_W_PER_KG, charge=CHARGE,
         limits=False, **kw):
     return scale_up(REFERENCE, targets, rule, charge, WATER, T_R, heat_release, SF, limits=limits, **kw)
 

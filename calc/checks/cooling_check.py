@@ -130,7 +130,7 @@ class CoolingCheck:
 
 def check_cautions(heat_release: HeatRelease) -> tuple[str, ...]:
     """The cautions of a check of ``heat_release``: the general ones, then those of a dosing or heat-absorbing step."""
-    extra = (DOSING,) if isinstance(heat_release, Dosing) else ()
+    extra: tuple[str, ...] = (DOSING,) if isinstance(heat_release, Dosing) else ()
     if getattr(heat_release, "endothermic", False):
         extra += (ENDOTHERMIC,)
     return COOLING_CHECK + extra
@@ -273,7 +273,7 @@ def _flow_estimate(result: HeatTransferResult, target: float) -> float:
     heat_capacity = rate / flow
     inlet = result.streams[0].balance.inlet_temperature
     need = coolant_balance.required_flow(result.process_temperature, inlet, ua, heat_capacity, target)
-    if not need.reachable or need.mass_flow == 0.0:
+    if not need.reachable or need.mass_flow is None or need.mass_flow == 0.0:
         return jacket * FLOW_SEARCH_CAP
     return need.mass_flow * jacket / flow
 

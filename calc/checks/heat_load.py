@@ -119,8 +119,8 @@ class Dosing:
 
     def feed_energy(self, process_temperature: float) -> float:
         """Heat taken up by the whole feed warming to T_r, m_feed c_p (T_r - T_feed), J."""
-        if self.feed_mass == 0.0:
-            return 0.0
+        if self.feed_mass == 0.0 or self.feed_heat_capacity is None or self.feed_temperature is None:
+            return 0.0  # (both are required with a feed mass, see __post_init__)
         return self.feed_mass * self.feed_heat_capacity * (process_temperature - self.feed_temperature)
 
     def net_energy(self, process_temperature: float) -> float:

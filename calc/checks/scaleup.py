@@ -143,9 +143,31 @@ class _Reference:
     power_per_volume: float  # W/m3
 
 
+@dataclass(frozen=True)
+class _ScaledCase:
+    """What one scale is checked with: its vessel, charge, coolant and heat release, and its size."""
+
+    vessel: Vessel
+    charge: Charge
+    charge_volume: float  # m3 of liquid at the process temperature
+    coolant: Coolant
+    heat_release: HeatRelease
+    scale_factor: float  # length ratio to the reference
+    volume: float  # m3, nominal
+
+
+def _scaled_case(reference: _Reference, vessel: Vessel, ratio: float, coolant_rule: str) -> _ScaledCase:
+    """``vessel`` holding the reference charge scaled by the volume ``ratio``, with its coolant and load."""
+    charge_volume = reference.charge_volume * ratio
+    return _ScaledCase(vessel, _scaled_charge(reference.charge, ratio), charge_volume,
+                       _scaled_coolant(reference, vessel, charge_volume, coolant_rule),
+                       reference.heat_release.scaled(ratio), ratio ** (1.0 / 3.0), reference.volume * ratio)
+
+
 def _scaled_charge(charge: Charge, ratio: float) -> Charge:
     if charge.volume is not None:
         return replace(charge, volume=charge.volume * ratio)
+    assert charge.mass is not None  # a charge is given by its volume or its mass
     return replace(charge, mass=charge.mass * ratio)
 
 
@@ -162,7 +184,8 @@ def _scaled_coolant(reference: _Reference, vessel: Vessel, charge_volume: float,
                    coil_flow=None if coolant.coil_flow is None else coolant.coil_flow * ratio)
 
 
-def _similar(reference: _Reference, volume: float, rule: str, coolant_rule: str, name: str | None = None):
+def _similar(reference: _Reference, volume: float, rule: str, coolant_rule: str,
+             name: str | None = None) -> _ScaledCase:
     """The geometrically similar vessel of nominal ``volume`` with its charge, coolant and heat release."""
     ratio = volume / reference.volume
     factor = ratio ** (1.0 / 3.0)
@@ -170,10 +193,7 @@ def _similar(reference: _Reference, volume: float, rule: str, coolant_rule: str,
     speed = agitator.speed if rule == "as_given" else \
         agitation.scaled_speed(rule, agitator, factor, reference.props)
     vessel = reference.vessel.scaled(factor, speed, name or f"{reference.vessel.name} at {volume:.4g} m3")
-    charge_volume = reference.charge_volume * ratio
-    return (vessel, _scaled_charge(reference.charge, ratio), charge_volume,
-            _scaled_coolant(reference, vessel, charge_volume, coolant_rule), reference.heat_release.scaled(ratio),
-            factor)
+    return replace(_scaled_case(reference, vessel, ratio, coolant_rule), scale_factor=factor, volume=volume)
 
 
 def _speed_for_power_per_volume(vessel: Vessel, props: LiquidProperties, volume: float, target: float) -> float:
@@ -193,7 +213,8 @@ def _speed_for_power_per_volume(vessel: Vessel, props: LiquidProperties, volume:
         raise CalculationError(f"no agitator speed gives the reference power per volume: {exc}") from None
 
 
-def _given(reference: _Reference, vessel: Vessel, index: int, rule: str, coolant_rule: str, warnings: Warnings):
+def _given(reference: _Reference, vessel: Vessel, index: int, rule: str, coolant_rule: str,
+           warnings: Warnings) -> _ScaledCase:
     """An explicit target vessel: its charge, coolant, heat release and agitator speed under ``rule``."""
     field_name = f"targets.{index}"
     if vessel.agitator is None:
@@ -215,9 +236,7 @@ def _given(reference: _Reference, vessel: Vessel, index: int, rule: str, coolant
                                                   vessel.agitator.diameter / reference.vessel.agitator.diameter,
                                                   reference.props)
         vessel = replace(vessel, agitator=replace(vessel.agitator, speed=speed))
-    return (vessel, _scaled_charge(reference.charge, ratio), charge_volume,
-            _scaled_coolant(reference, vessel, charge_volume, coolant_rule), reference.heat_release.scaled(ratio),
-            ratio ** (1.0 / 3.0), nominal)
+    return replace(_scaled_case(reference, vessel, ratio, coolant_rule), volume=nominal)
 
 
 def _check_targets(targets, max_targets: int) -> list:
@@ -245,8 +264,9 @@ def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_f
         """(log(margin / SF), controlling resistance) of the similar vessel of volume exp(log_volume)."""
         if log_volume not in memo:
             deadline.check()
-            vessel, charge, _, coolant, heat_release, _ = _similar(reference, math.exp(log_volume), rule, coolant_rule)
-            result, load = evaluate(vessel, charge, coolant, reference.process_temperature, heat_release)
+            case = _similar(reference, math.exp(log_volume), rule, coolant_rule)
+            result, load = evaluate(case.vessel, case.charge, case.coolant, reference.process_temperature,
+                                    case.heat_release)
             margin = margin_of(result.duty, load.total)
             # no net load: unbounded margin; a finite positive stand-in keeps the sign for the search
             value = 10.0 if margin is None else (math.log(margin / safety_factor) if margin > 0 else -50.0)
@@ -329,21 +349,17 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
         own_coolant = None
         if isinstance(target, tuple):  # (vessel, its own utility)
             target, own_coolant = target
-        if isinstance(target, Vessel):
-            vessel, scaled_charge, charge_volume, scaled_coolant, release, factor, volume = \
-                _given(ref, target, i, rule, coolant_flow_rule, warnings)
-            if own_coolant is not None:
-                scaled_coolant = own_coolant
-            generated = False
+        generated = not isinstance(target, Vessel)
+        if generated:
+            case = _similar(ref, float(target), rule, coolant_flow_rule)
         else:
-            volume = float(target)
-            vessel, scaled_charge, charge_volume, scaled_coolant, release, factor = \
-                _similar(ref, volume, rule, coolant_flow_rule)
-            generated = True
-        check = cooling_check(vessel, scaled_charge, scaled_coolant, process_temperature, release,
+            case = _given(ref, target, i, rule, coolant_flow_rule, warnings)
+            if own_coolant is not None:
+                case = replace(case, coolant=own_coolant)
+        check = cooling_check(case.vessel, case.charge, case.coolant, process_temperature, case.heat_release,
                               safety_factor, limits, deadline)
-        scales.append(ScaleResult(vessel.name, volume, charge_volume, factor, generated, vessel.agitator.speed,
-                                  vessel, scaled_coolant, check))
+        scales.append(ScaleResult(case.vessel.name, case.volume, case.charge_volume, case.scale_factor, generated,
+                                  case.vessel.agitator.speed, case.vessel, case.coolant, check))
 
     largest_target = max((s.volume for s in scales), default=ref.volume)
     upper = max(ref.volume * SEARCH_RATIO, 10.0 * largest_target)

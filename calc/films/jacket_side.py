@@ -22,7 +22,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
-from typing import NamedTuple
+from typing import Any, Callable, NamedTuple
 
 import numpy as np
 from scipy.constants import g
@@ -303,10 +303,11 @@ def _Stein_Schmidt_elementwise(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w,
     values = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in
                                    (m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, rho if rho_w is None else rho_w,
                                     roughness)))
-    rows = [h_jacket_Stein_Schmidt_1993(*(float(a.flat[i]) for a in values[:10]), inlet_type=inlet_type,
-                                        inlet_location=inlet_location, rho_w=float(values[10].flat[i]),
-                                        roughness=float(values[11].flat[i])) for i in range(values[0].size)]
-    return _Flow(*(np.array(column).reshape(values[0].shape) for column in zip(*rows)))
+    one_state: Callable[..., _Flow] = h_jacket_Stein_Schmidt_1993
+    rows = [one_state(*(float(a.flat[i]) for a in values[:10]), inlet_type=inlet_type,
+                      inlet_location=inlet_location, rho_w=float(values[10].flat[i]),
+                      roughness=float(values[11].flat[i])) for i in range(values[0].size)]
+    return _Flow._make(np.array(column).reshape(values[0].shape) for column in zip(*rows))
 
 
 def Nu_laminar_Sieder_Tate_1936(Re: float, Pr: float, De_over_L: float) -> float:
@@ -528,10 +529,10 @@ class FilmFormula:
     warnings)`` turns one state's flow tuple into a :class:`CoolantFilm` with its validity checks.
     """
 
-    function: object
+    function: Callable[..., Any]
     fixed: dict
     flow_share: float
-    describe: object
+    describe: Callable[..., CoolantFilm]
 
     def h(self, props: LiquidProperties, stream_mass_flow, mu_wall, rho_wall):
         """Film coefficient for a stream mass flow (floats or arrays), [W/(m2 K)]."""

@@ -10,7 +10,6 @@ speed), otherwise at the published boundary.
 """
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 
 from calc.vessel.agitation import IMPELLERS, LAMINAR_REYNOLDS, TURBULENT_REYNOLDS, FilmConstants, ImpellerInfo, impeller_info

@@ -292,7 +292,7 @@ def overall_from_layers(h_process, h_service, layers: WallLayers, warnings: Warn
     total = sum(resistances.values())
     controlling = ""
     if not arrays.is_array(total):
-        controlling = max(resistances, key=resistances.get)
+        controlling = max(resistances, key=lambda layer: resistances[layer])
         if controlling in ("lining", "wall"):
             warnings.add(CalcWarning("wall_controlling",
                                      f"the {controlling} is the largest resistance: better films or colder coolant "

@@ -26,6 +26,8 @@ from calc.vessel import geometry
 from calc.films import process_side
 from calc.films import jacket_side
 from calc.films import wall
+from calc.films.jacket_side import CoolantFilm
+from calc.films.process_side import ProcessFilm
 from calc.cautions import HEAT_TRANSFER
 from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, InputError, Warnings
@@ -41,8 +43,8 @@ class Surface:
 
     name: str  # "jacket_shell", "jacket_bottom_head", "coil_0", ...
     area: float  # m2, process side
-    process_film: process_side.ProcessFilm
-    service_film: jacket_side.CoolantFilm  # coolant side
+    process_film: ProcessFilm
+    service_film: CoolantFilm  # coolant side
     overall: wall.OverallResult
     process_wall_temperature: float  # K
     service_wall_temperature: float  # K
@@ -213,8 +215,8 @@ class _SurfaceModel:
     wall: wall.WallSpec
     process_radius: float
     process_side: str
-    process_film: Callable[[float], process_side.ProcessFilm]  # mu_wall -> process film
-    service_film: Callable[[LiquidProperties, float, float], jacket_side.CoolantFilm]  # props, mu_wall, rho_wall
+    process_film: Callable[..., ProcessFilm]  # mu_wall -> process film
+    service_film: Callable[..., CoolantFilm]  # props, mu_wall, rho_wall -> coolant film
     service_formula: jacket_side.FilmFormula  # the same coolant film, for arrays of states (vectorised network)
 
 
@@ -289,7 +291,7 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
     surfaces: list[Surface] = []
     balance = None
     iterations = 0
-    for iterations in range(1, MAX_ITERATIONS + 1):
+    for iterations in range(1, MAX_ITERATIONS + 1):  # noqa: B007 - the count after the loop is reported
         state = _coolant_state(coolant, mean)
         surfaces = []
         for model, (process_wall, service_wall) in zip(models, walls):
@@ -323,6 +325,7 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
         warnings.extend_unique(surface.service_film.warnings)
         warnings.extend_unique(CalcWarning(w.code, f"{surface.name.replace('_', ' ')}: {w.message}")
                                for w in surface.overall.warnings)
+    assert balance is not None  # MAX_ITERATIONS >= 1: the loop ran
     warnings.extend_unique(balance.warnings)
     return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations)
 
@@ -350,9 +353,10 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
     stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
     warnings.extend_unique(stirred.warnings)
     shape, agitator, level = vessel.shape, vessel.agitator, filled.liquid_level
-    streams: list[Stream] = []
+    streams: list[StreamModel] = []
 
-    if vessel.jacket is not None and filled.jacketed_area > 0:
+    jacket = vessel.jacket
+    if jacket is not None and filled.jacketed_area > 0:
         head_area = 0.0
         if vessel.coverage.covers_bottom_head and shape.bottom_head != "flat":
             head_area = geometry.wetted_area(shape, min(level, geometry.head_depth(shape)))
@@ -367,7 +371,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         def service(props_c, mu_w, rho_w, _jacket=vessel.jacket):
             return jacket_side.service_film_jacket(_jacket, props_c, coolant.mass_flow(), mu_w, outer,
                                                     max(jacket_height, 1e-3), rho_wall=rho_w)
-        jacket_formula, _ = jacket_side.jacket_film_formula(vessel.jacket, outer, max(jacket_height, 1e-3))
+        jacket_formula, _ = jacket_side.jacket_film_formula(jacket, outer, max(jacket_height, 1e-3))
 
         models = []
         for name, area, surface, radius in (("jacket_shell", shell_area, "wall", shape.diameter / 2.0),

@@ -521,6 +521,7 @@ def _adiabatic_rise(inp: ThermalSafetyInput) -> float:
         raise InputError("reaction_enthalpy", f"must be negative (exothermic), got {inp.reaction_enthalpy!r} J/mol: "
                                               f"{SIGN_CONVENTION}. A thermal-safety assessment is for a step that "
                                               "releases heat; give the enthalpy as a negative number")
+    assert inp.concentration is not None and inp.density is not None  # required above
     return adiabatic_temperature_rise_from_enthalpy(inp.reaction_enthalpy, inp.concentration,
                                                     inp.density, inp.heat_capacity)
 

@@ -42,7 +42,7 @@ from scipy.optimize import brentq, minimize_scalar
 from calc.deadline import NEVER, OutOfTime
 from calc.properties import GAS_CONSTANT
 from calc.safety.tank_model import (
-    METHODS, MODES, CoolingFailure, FailureTrial, LimitCrossing, Series, SimulationInput, SimulationResult, Summary,
+    METHODS, MODES, Controller, CoolingFailure, FailureTrial, LimitCrossing, Series, SimulationInput, SimulationResult, Summary,
     TemperatureLimit, default_limiting_reagent, validate,
 )
 from calc.validity import CalcWarning, InputError, Warnings
@@ -60,157 +60,250 @@ N_SUMS = 6  # feed enthalpy, reaction heat, jacket heat, shaft work, outflow ent
 
 # ----------------------------------------------------------------------------- the model
 
+@dataclass(frozen=True)
+class _Species:
+    """The species as arrays in their listed order (mol basis), and the inert balance."""
+
+    names: tuple[str, ...]
+    molar_mass: np.ndarray  # M, kg/mol
+    molar_heat_capacity: np.ndarray  # M c_p, J/(mol K)
+    balance_heat_capacity: float  # c_p of the inert balance, J/(kg K)
+    density: float  # kg/m3, of the mixture (constant)
+
+
+@dataclass(frozen=True)
+class _Kinetics:
+    """The reactions as arrays (rows: reactions; columns: species)."""
+
+    stoichiometry: np.ndarray  # nu
+    orders: np.ndarray
+    rate_constant: np.ndarray  # k at the reference temperature, column
+    activation_temperature: np.ndarray  # E/R, K, column
+    inverse_reference_temperature: np.ndarray  # 1/T_ref, 1/K, column
+    enthalpy: np.ndarray  # dH per mol of extent, J/mol
+    heat_capacity_change: np.ndarray  # sum over species of nu M c_p, J/(mol K)
+
+
+@dataclass(frozen=True)
+class _FeedTerms:
+    """What one kilogram of feed brings (zero without a feed)."""
+
+    moles_per_kg: np.ndarray  # mol/kg of each species
+    balance_fraction: float  # kg of inert balance per kg
+    temperature: float  # K
+    heat_capacity: float  # J/(kg K)
+
+
+@dataclass(frozen=True)
+class _CoolingTerms:
+    """The jacket (single pass or holdup) and its controller; no jacket is UA = 0."""
+
+    ua: float  # W/K
+    capacity_rate: float  # m_dot c_p of the coolant, W/K (1 without a jacket)
+    effectiveness: float  # 1 - exp(-UA / m_dot c_p) of a single pass
+    inlet_temperature: float  # K
+    holdup: bool  # a well-mixed jacket holdup is a state of its own
+    inverse_holdup_capacity: float  # 1 / (m_holdup c_p), 1/(J/K); 0 without a holdup
+    controller: Controller | None
+    controller_bias: float | None  # K, coolant inlet at zero error
+
+
+@dataclass(frozen=True)
+class _StateLayout:
+    """Where each quantity sits in the state vector: moles of each species, the inert balance's mass,
+    the temperature, the jacket temperature and controller integral when present, then the running sums
+    (feed enthalpy, reaction heat, jacket heat, shaft work, outflow enthalpy, fed mass)."""
+
+    n_species: int
+    temperature: int
+    jacket_temperature: int | None
+    integral: int | None
+    sums: int
+    size: int
+
+
+def _species(inp: SimulationInput) -> _Species:
+    molar_mass = np.array([s.molar_mass for s in inp.species])
+    heat_capacity = np.array([s.heat_capacity for s in inp.species])
+    balance = inp.charge.balance_heat_capacity
+    if inp.mixture_heat_capacity is not None:
+        heat_capacity[:] = inp.mixture_heat_capacity
+        balance = inp.mixture_heat_capacity
+    return _Species(tuple(s.name for s in inp.species), molar_mass, molar_mass * heat_capacity, balance,
+                    inp.charge.density)
+
+
+def _kinetics(inp: SimulationInput, index: dict[str, int], molar_heat_capacity: np.ndarray) -> _Kinetics:
+    shape = (len(inp.reactions), len(inp.species))
+    stoichiometry, orders = np.zeros(shape), np.zeros(shape)
+    for row, reaction in enumerate(inp.reactions):
+        for name, value in reaction.stoichiometry.items():
+            stoichiometry[row, index[name]] = value
+        for name, value in reaction.orders.items():
+            orders[row, index[name]] = value
+    column = lambda values: np.array(values)[:, None]  # noqa: E731
+    return _Kinetics(
+        stoichiometry, orders, column([r.rate_constant for r in inp.reactions]),
+        column([r.activation_energy / GAS_CONSTANT for r in inp.reactions]),
+        column([1.0 / r.reference_temperature for r in inp.reactions]),
+        np.array([r.enthalpy for r in inp.reactions]), stoichiometry @ molar_heat_capacity)
+
+
+def _feed_terms(inp: SimulationInput, index: dict[str, int], species: _Species) -> _FeedTerms:
+    moles_per_kg = np.zeros(len(species.names))
+    temperature = 0.0
+    if inp.feed is not None:
+        for name, value in inp.feed.composition.items():
+            moles_per_kg[index[name]] = value
+        temperature = inp.feed.temperature
+    balance_fraction = 1.0 - float(species.molar_mass @ moles_per_kg)
+    heat_capacity = float(species.molar_heat_capacity @ moles_per_kg) + balance_fraction * species.balance_heat_capacity
+    return _FeedTerms(moles_per_kg, balance_fraction, temperature, heat_capacity)
+
+
+def _cooling_terms(inp: SimulationInput) -> _CoolingTerms:
+    jacket, controller = inp.jacket, inp.controller
+    if jacket is None:
+        return _CoolingTerms(0.0, 1.0, 0.0, 0.0, False, 0.0, controller, None)
+    capacity_rate = jacket.coolant_flow * jacket.coolant_heat_capacity
+    holdup = jacket.model == "holdup"
+    inverse_holdup = 0.0
+    if holdup:
+        assert jacket.holdup_mass is not None  # validate() requires it for a holdup jacket
+        inverse_holdup = 1.0 / (jacket.holdup_mass * jacket.coolant_heat_capacity)
+    bias = None
+    if controller is not None:
+        bias = jacket.inlet_temperature if controller.bias is None else controller.bias
+    return _CoolingTerms(jacket.ua, capacity_rate, -math.expm1(-jacket.ua / capacity_rate), jacket.inlet_temperature,
+                         holdup, inverse_holdup, controller, bias)
+
+
+def _layout(n_species: int, cooling: _CoolingTerms) -> _StateLayout:
+    k = n_species + 2  # the moles, the balance's mass, the temperature
+    jacket_temperature = k if cooling.holdup else None
+    k += cooling.holdup
+    integral = k if cooling.controller is not None else None
+    k += cooling.controller is not None
+    return _StateLayout(n_species, n_species + 1, jacket_temperature, integral, k, k + N_SUMS)
+
+
 class _Model:
-    """Validated input turned into arrays, and the right-hand side."""
+    """A validated run as arrays (species, kinetics, feed, cooling, state layout) and its right-hand side."""
 
     def __init__(self, inp: SimulationInput, warnings: Warnings):
         validate(inp, warnings)
         self.inp = inp
         self.mode = MODES[inp.mode]
-        sp = inp.species
-        self.names = tuple(s.name for s in sp)
-        index = {name: i for i, name in enumerate(self.names)}
-        ns, nr = len(sp), len(inp.reactions)
-        self.ns = ns
-        self.M = np.array([s.molar_mass for s in sp])
-        cp = np.array([s.heat_capacity for s in sp])
-        self.cp_b = inp.charge.balance_heat_capacity
-        if inp.mixture_heat_capacity is not None:
-            cp[:] = inp.mixture_heat_capacity
-            self.cp_b = inp.mixture_heat_capacity
-        self.Mcp = self.M * cp
-        self.nu = np.zeros((nr, ns))
-        self.orders = np.zeros((nr, ns))
-        for j, r in enumerate(inp.reactions):
-            for name, value in r.stoichiometry.items():
-                self.nu[j, index[name]] = value
-            for name, value in r.orders.items():
-                self.orders[j, index[name]] = value
-        self.k_ref = np.array([r.rate_constant for r in inp.reactions])[:, None]
-        self.E_R = np.array([r.activation_energy / GAS_CONSTANT for r in inp.reactions])[:, None]
-        self.inv_Tref = np.array([1.0 / r.reference_temperature for r in inp.reactions])[:, None]
-        self.dH = np.array([r.enthalpy for r in inp.reactions])
-        self.dcp = self.nu @ self.Mcp
-        self.Th = inp.enthalpy_reference_temperature
-        self.rho = inp.charge.density
-        self.W = inp.shaft_power
+        self.species = _species(inp)
+        index = {name: i for i, name in enumerate(self.species.names)}
+        self.kinetics = _kinetics(inp, index, self.species.molar_heat_capacity)
+        self.feed = _feed_terms(inp, index, self.species)
+        self.cooling = _cooling_terms(inp)
+        self.layout = _layout(len(inp.species), self.cooling)
+        self.enthalpy_reference_temperature = inp.enthalpy_reference_temperature
+        self.shaft_power = inp.shaft_power
         self.has_outflow = self.mode.has_outflow
-        # Feed: species mol/kg, balance fraction, heat capacity per kg.
-        self.x = np.zeros(ns)
-        self.Tf = 0.0
-        if inp.feed is not None:
-            for name, value in inp.feed.composition.items():
-                self.x[index[name]] = value
-            self.Tf = inp.feed.temperature
-        self.xb = 1.0 - self.M @ self.x
-        self.cp_feed = self.Mcp @ self.x + self.xb * self.cp_b
-        # Jacket and controller.
-        j = inp.jacket
-        self.ua = 0.0 if j is None else j.ua
-        self.mc = 1.0 if j is None else j.coolant_flow * j.coolant_heat_capacity
-        self.ntu_factor = -math.expm1(-self.ua / self.mc)
-        self.Tin = 0.0 if j is None else j.inlet_temperature
-        self.holdup = j is not None and j.model == "holdup"
-        if self.holdup:
-            self.inverse_jacket_capacity = 1.0 / (j.holdup_mass * j.coolant_heat_capacity)
-        self.c = inp.controller
-        self.bias = None
-        if self.c is not None:
-            self.bias = j.inlet_temperature if self.c.bias is None else self.c.bias
-        # State layout.
-        self.iT = ns + 1
-        k = ns + 2
-        self.iTj = k if self.holdup else None
-        k += self.holdup
-        self.iI = k if self.c is not None else None
-        k += self.c is not None
-        self.iS = k
-        self.n_states = k + N_SUMS
         self.evaluations = 0
         self.deadline = NEVER
-        # Initial state.
-        y0 = np.zeros(self.n_states)
-        ch = inp.charge
-        for name, value in ch.composition.items():
-            y0[index[name]] = value * ch.mass
-        y0[ns] = ch.mass - self.M @ y0[:ns]
-        y0[self.iT] = ch.temperature
-        if self.holdup:
-            y0[self.iTj] = j.inlet_temperature if j.initial_temperature is None else j.initial_temperature
-        self.y0 = y0
-        self.C0 = self.Mcp @ y0[:ns] + y0[ns] * self.cp_b
-        # Limiting reagent.
-        name = inp.limiting_reagent or default_limiting_reagent(inp, self.names)
-        self.iL = index[name]
-        self.limiting = name
-        self.nL0 = y0[self.iL]
-        self.xL = self.x[self.iL]
-        self.supply = self.mode.supply(self)
-        if not self.supply > 0:
-            raise InputError("limiting_reagent", f"no {name} is charged or fed")
-        n_scale = max(float(np.sum(y0[:ns])), self.supply, 1e-9)
-        rtol = inp.rtol
-        atol = np.full(self.n_states, rtol * n_scale * 1e-3)
-        atol[ns] = rtol * ch.mass
-        atol[self.iT] = rtol
-        if self.holdup:
-            atol[self.iTj] = rtol
-        if self.c is not None:
-            atol[self.iI] = rtol
-        atol[self.iS:self.iS + 5] = rtol * self.C0
-        atol[self.iS + 5] = rtol * ch.mass
-        self.atol = atol
+        self.initial_state = self._initial_state(index)
+        self.initial_heat_capacity = self.heat_capacity(self.initial_state)
+        self.limiting_reagent = inp.limiting_reagent or default_limiting_reagent(inp, self.species.names)
+        self.limiting_index = index[self.limiting_reagent]
+        self.limiting_initial_moles = float(self.initial_state[self.limiting_index])
+        self.limiting_feed_moles_per_kg = float(self.feed.moles_per_kg[self.limiting_index])
+        self.limiting_supply = self.mode.supply(self)
+        if not self.limiting_supply > 0:
+            raise InputError("limiting_reagent", f"no {self.limiting_reagent} is charged or fed")
+        self.atol = self._absolute_tolerances()
+
+    @property
+    def names(self) -> tuple[str, ...]:
+        return self.species.names
+
+    def _initial_state(self, index: dict[str, int]) -> np.ndarray:
+        layout, charge, jacket = self.layout, self.inp.charge, self.inp.jacket
+        y0 = np.zeros(layout.size)
+        for name, value in charge.composition.items():
+            y0[index[name]] = value * charge.mass
+        y0[layout.n_species] = charge.mass - self.species.molar_mass @ y0[:layout.n_species]
+        y0[layout.temperature] = charge.temperature
+        if layout.jacket_temperature is not None and jacket is not None:
+            y0[layout.jacket_temperature] = (jacket.inlet_temperature if jacket.initial_temperature is None
+                                             else jacket.initial_temperature)
+        return y0
+
+    def heat_capacity(self, y: np.ndarray) -> float:
+        """Heat capacity of the contents in state ``y``, J/K."""
+        n = self.layout.n_species
+        return float(self.species.molar_heat_capacity @ y[:n] + y[n] * self.species.balance_heat_capacity)
+
+    def _absolute_tolerances(self) -> np.ndarray:
+        """Absolute tolerances per state: moles on the scale of what is charged or fed, the rest by rtol."""
+        layout, rtol, mass = self.layout, self.inp.rtol, self.inp.charge.mass
+        n_scale = max(float(np.sum(self.initial_state[:layout.n_species])), self.limiting_supply, 1e-9)
+        atol = np.full(layout.size, rtol * n_scale * 1e-3)
+        atol[layout.n_species] = rtol * mass
+        for state in (layout.temperature, layout.jacket_temperature, layout.integral):
+            if state is not None:
+                atol[state] = rtol
+        atol[layout.sums:layout.sums + 5] = rtol * self.initial_heat_capacity
+        atol[layout.sums + 5] = rtol * mass
+        return atol
 
     def terms(self, y, F, cooling, outputs: bool = False):
         """Rates of every state (and, if asked, the algebraic outputs) for y of shape (n,) or (n, k);
-        F and cooling are scalars or arrays of length k."""
-        y = y.reshape(self.n_states, -1)
-        ns = self.ns
-        n, mb, T = y[:ns], y[ns], y[self.iT]
-        mass = self.M @ n + mb
-        V = mass / self.rho
+        F (feed, kg/s) and cooling (1 on, 0 failed) are scalars or arrays of length k."""
+        sp, kin, feed, jac, at = self.species, self.kinetics, self.feed, self.cooling, self.layout
+        Th = self.enthalpy_reference_temperature
+        y = y.reshape(at.size, -1)
+        ns = at.n_species
+        n, mb, T = y[:ns], y[ns], y[at.temperature]
+        mass = sp.molar_mass @ n + mb
+        V = mass / sp.density
         logc = np.log(np.maximum(n / V, 1e-300))
-        rV = self.k_ref * np.exp(np.minimum(self.orders @ logc - self.E_R * (1.0 / T - self.inv_Tref), 300.0)) * V
-        C = self.Mcp @ n + mb * self.cp_b
-        q_ref = -(self.dH @ rV)
-        q_T = q_ref - (T - self.Th) * (self.dcp @ rV)
-        c = self.c
+        exponent = kin.orders @ logc - kin.activation_temperature * (1.0 / T - kin.inverse_reference_temperature)
+        rV = kin.rate_constant * np.exp(np.minimum(exponent, 300.0)) * V  # reaction rates times volume, mol/s
+        C = sp.molar_heat_capacity @ n + mb * sp.balance_heat_capacity
+        q_ref = -(kin.enthalpy @ rV)
+        q_T = q_ref - (T - Th) * (kin.heat_capacity_change @ rV)
+        c = jac.controller
         if c is not None:
             error = T - c.setpoint
-            raw = self.bias - c.gain * (error + y[self.iI] / c.integral_time)
+            raw = jac.controller_bias - c.gain * (error + y[at.integral] / c.integral_time)
             Tin = np.minimum(np.maximum(raw, c.minimum_inlet_temperature), c.maximum_inlet_temperature)
         else:
-            Tin = self.Tin
-        if self.holdup:
-            Tj = y[self.iTj]
-            Q = cooling * self.ua * (Tj - T)
+            Tin = jac.inlet_temperature
+        if jac.holdup:
+            Tj = y[at.jacket_temperature]
+            Q = cooling * jac.ua * (Tj - T)
         else:
-            Q = cooling * self.mc * self.ntu_factor * (Tin - T)
+            Q = cooling * jac.capacity_rate * jac.effectiveness * (Tin - T)
         dy = np.empty_like(y)
-        feed_heat = F * self.cp_feed
+        feed_heat = F * feed.heat_capacity
         if self.has_outflow:
             washout = F / mass
-            dy[:ns] = self.x[:, None] * F + self.nu.T @ rV - n * washout
-            dy[ns] = F * self.xb - mb * washout
-            dy[self.iS + 4] = washout * C * (T - self.Th)
+            dy[:ns] = feed.moles_per_kg[:, None] * F + kin.stoichiometry.T @ rV - n * washout
+            dy[ns] = F * feed.balance_fraction - mb * washout
+            dy[at.sums + 4] = washout * C * (T - Th)
         else:
-            dy[:ns] = self.x[:, None] * F + self.nu.T @ rV
-            dy[ns] = F * self.xb
-            dy[self.iS + 4] = 0.0
-        dy[self.iT] = (feed_heat * (self.Tf - T) + q_T + Q + self.W) / C
-        if self.holdup:
-            dy[self.iTj] = cooling * (self.mc * (Tin - Tj) + self.ua * (T - Tj)) * self.inverse_jacket_capacity
+            dy[:ns] = feed.moles_per_kg[:, None] * F + kin.stoichiometry.T @ rV
+            dy[ns] = F * feed.balance_fraction
+            dy[at.sums + 4] = 0.0
+        dy[at.temperature] = (feed_heat * (feed.temperature - T) + q_T + Q + self.shaft_power) / C
+        if jac.holdup:
+            dy[at.jacket_temperature] = (cooling * (jac.capacity_rate * (Tin - Tj) + jac.ua * (T - Tj))
+                                         * jac.inverse_holdup_capacity)
         if c is not None:
-            dy[self.iI] = cooling * (error + (raw - Tin) / c.gain)
-        s = self.iS
-        dy[s] = feed_heat * (self.Tf - self.Th)
+            dy[at.integral] = cooling * (error + (raw - Tin) / c.gain)
+        s = at.sums
+        dy[s] = feed_heat * (feed.temperature - Th)
         dy[s + 1] = q_ref
         dy[s + 2] = Q
-        dy[s + 3] = self.W
+        dy[s + 3] = self.shaft_power
         dy[s + 5] = F
         if not outputs:
             return dy, None
-        T_out = Tj if self.holdup else T - (T - Tin) * (1.0 - self.ntu_factor)
+        T_out = Tj if jac.holdup else T - (T - Tin) * (1.0 - jac.effectiveness)
         return dy, dict(mass=mass, V=V, q=q_T, Q=Q, Tin=Tin + 0.0 * T, T_out=T_out, C=C)
 
     def rhs(self, F: float, cooling: float):
@@ -222,19 +315,21 @@ class _Model:
         return fun
 
     def feed_rate(self, t: float) -> float:
-        if not self.mode.has_feed:
+        feed = self.inp.feed
+        if not self.mode.has_feed or feed is None:
             return 0.0
-        return sum(s.mass_flow for s in self.inp.feed.steps if s.start <= t < s.end)
+        return sum(s.mass_flow for s in feed.steps if s.start <= t < s.end)
 
     def breakpoints(self, t0: float, t1: float) -> list:
         points = {t0, t1}
-        if self.mode.has_feed:
+        if self.mode.has_feed and self.inp.feed is not None:
             for s in self.inp.feed.steps:
                 points.update(p for p in (s.start, s.end) if t0 < p < t1)
         return sorted(points)
 
     def enthalpy(self, y) -> float:
-        return (self.Mcp @ y[:self.ns] + y[self.ns] * self.cp_b) * (y[self.iT] - self.Th)
+        """Sensible enthalpy of the contents in state ``y`` above the reference temperature, J."""
+        return self.heat_capacity(y) * (y[self.layout.temperature] - self.enthalpy_reference_temperature)
 
 
 # ----------------------------------------------------------------------------- integration
@@ -293,7 +388,7 @@ def _integrate(model: _Model, track: _Track, points: list, failed: bool, stop_fe
                     return
                 stop = None
                 for lim in limits:
-                    tc = _crossing(lim, model.iT, sol, t_old, y_old, t_new, y_new)
+                    tc = _crossing(lim, model.layout.temperature, sol, t_old, y_old, t_new, y_new)
                     if tc is not None:
                         track.crossings.append(LimitCrossing(lim.name, tc, lim.temperature))
                         if lim.terminal and (stop is None or tc < stop):
@@ -337,7 +432,7 @@ def _concat(first: _Track, second: _Track) -> _Track:
 
 def _worst_failure(model: _Model, failure: CoolingFailure, limits: tuple):
     """Failure time in the mode's window that gives the highest temperature after failure."""
-    nominal = _run(model, 0.0, model.y0, model.inp.horizon, False, False, limits)
+    nominal = _run(model, 0.0, model.initial_state, model.inp.horizon, False, False, limits)
     if nominal.status == 2 or len(nominal.ts) < 2:
         return nominal, None, ()
     low, high = model.mode.failure_window(model)
@@ -351,7 +446,7 @@ def _worst_failure(model: _Model, failure: CoolingFailure, limits: tuple):
             post = _run(model, t_fail, pre.ys[-1], model.inp.horizon, True, failure.stop_feed, ())
             if post.status == 2:
                 raise OutOfTime
-            runs[t_fail] = (max(y[model.iT] for y in post.ys), pre, post)
+            runs[t_fail] = (max(y[model.layout.temperature] for y in post.ys), pre, post)
         return runs[t_fail][0]
 
     exhausted = False
@@ -379,7 +474,7 @@ def _worst_failure(model: _Model, failure: CoolingFailure, limits: tuple):
 
 def _outputs(model: _Model, Y: np.ndarray, F: np.ndarray, cooling: np.ndarray, fed: np.ndarray) -> dict:
     dy, a = model.terms(Y, F, cooling, outputs=True)
-    nL = Y[model.iL]
+    nL = Y[model.limiting_index]
     a["conversion"] = model.mode.conversion(model, nL, a["mass"], fed)
     a["accumulation"] = model.mode.accumulation(model, nL, a["mass"])
     return a
@@ -402,12 +497,12 @@ def _result(model: _Model, track: _Track, t_fail, search, warnings: Warnings) ->
         p_out[-1] = params[-1]
     else:
         t_out, Y_out, p_out = ts, Y, params
-    s = model.iS
+    s = model.layout.sums
     steps = _outputs(model, Y, params[:, 0], params[:, 1], Y[s + 5])
     out = _outputs(model, Y_out, p_out[:, 0], p_out[:, 1], Y_out[s + 5])
 
     all_t = np.concatenate([ts, t_out])
-    all_T = np.concatenate([Y[model.iT], Y_out[model.iT]])
+    all_T = np.concatenate([Y[model.layout.temperature], Y_out[model.layout.temperature]])
     all_acc = np.concatenate([steps["accumulation"], out["accumulation"]])
     i_T, i_acc = int(np.argmax(all_T)), int(np.argmax(all_acc))
 
@@ -415,7 +510,7 @@ def _result(model: _Model, track: _Track, t_fail, search, warnings: Warnings) ->
     dH = model.enthalpy(y1) - model.enthalpy(y0)
     sums = y1[s:s + 5] - y0[s:s + 5]  # feed, reaction, jacket, shaft, outflow
     balance = sums[0] + sums[1] + sums[2] + sums[3] - sums[4]
-    scale = max(abs(dH), float(np.max(np.abs(sums))), model.C0 * 1.0)
+    scale = max(abs(dH), float(np.max(np.abs(sums))), model.initial_heat_capacity * 1.0)
     closure = abs(dH - balance) / scale
     if closure > 1e-4:
         warnings.add(CalcWarning("energy_balance_not_closed",
@@ -428,14 +523,14 @@ def _result(model: _Model, track: _Track, t_fail, search, warnings: Warnings) ->
         peak_heat_release_rate=float(max(steps["q"].max(), out["q"].max())),
         peak_jacket_duty=float(max((-steps["Q"]).max(), (-out["Q"]).max())),
         limits_crossed=tuple(track.crossings), closure_error=float(closure), failure_time=t_fail)
-    n_out = Y_out[:model.ns]
+    n_out = Y_out[:model.layout.n_species]
     coolant_in = np.broadcast_to(out["Tin"], t_out.shape).astype(float)
     coolant_out = np.broadcast_to(out["T_out"], t_out.shape).astype(float)
     if t_fail is not None:  # no coolant flows after the failure: its temperatures are undefined
         coolant_in[t_out > t_fail] = np.nan
         coolant_out[t_out > t_fail] = np.nan
     series = Series(
-        time=t_out, temperature=Y_out[model.iT], coolant_inlet_temperature=coolant_in,
+        time=t_out, temperature=Y_out[model.layout.temperature], coolant_inlet_temperature=coolant_in,
         coolant_outlet_temperature=coolant_out, moles=n_out,
         concentrations=n_out / out["V"], mass=out["mass"], conversion=out["conversion"],
         accumulation=out["accumulation"], heat_release_rate=out["q"], jacket_duty=-out["Q"],
@@ -494,9 +589,9 @@ def simulate(inp: SimulationInput) -> SimulationResult:
     model.deadline = inp.budget.deadline.within(inp.budget.wall_time)
     failure, search, t_fail = inp.failure, (), None
     if failure is None:
-        track = _run(model, 0.0, model.y0, inp.horizon, False, False, inp.limits)
+        track = _run(model, 0.0, model.initial_state, inp.horizon, False, False, inp.limits)
     elif failure.time is not None:
-        track = _run(model, 0.0, model.y0, failure.time, False, False, inp.limits)
+        track = _run(model, 0.0, model.initial_state, failure.time, False, False, inp.limits)
         if track.status == 0:
             t_fail = failure.time
             track = _concat(track, _run(model, failure.time, track.ys[-1], inp.horizon, True,

@@ -224,31 +224,31 @@ class SimulationResult:
 # ----------------------------------------------------------------------------- modes
 
 def _supply_batch(m) -> float:
-    return m.nL0
+    return m.limiting_initial_moles
 
 
 def _supply_semi_batch(m) -> float:
-    return m.nL0 + m.xL * sum(s.mass_flow * (s.end - s.start) for s in m.inp.feed.steps)
+    return m.limiting_initial_moles + m.limiting_feed_moles_per_kg * sum(s.mass_flow * (s.end - s.start) for s in m.inp.feed.steps)
 
 
 def _supply_continuous(m) -> float:
-    return m.xL * m.inp.charge.mass  # a vessel-full of feed
+    return m.limiting_feed_moles_per_kg * m.inp.charge.mass  # a vessel-full of feed
 
 
 def _conversion_closed(m, nL, mass, fed):
-    return (m.nL0 + m.xL * fed - nL) / m.supply
+    return (m.limiting_initial_moles + m.limiting_feed_moles_per_kg * fed - nL) / m.limiting_supply
 
 
 def _conversion_continuous(m, nL, mass, fed):
-    return 1.0 - nL / (mass * m.xL)
+    return 1.0 - nL / (mass * m.limiting_feed_moles_per_kg)
 
 
 def _accumulation_closed(m, nL, mass):
-    return nL / m.supply
+    return nL / m.limiting_supply
 
 
 def _accumulation_continuous(m, nL, mass):
-    return nL / (mass * m.xL)
+    return nL / (mass * m.limiting_feed_moles_per_kg)
 
 
 def _window_dosing(m) -> tuple:
@@ -289,7 +289,7 @@ JACKET_MODELS = ("single_pass", "holdup")
 
 def default_limiting_reagent(inp: SimulationInput, names) -> str:
     """The first reactant of the first reaction that is fed (semi-batch), else that is charged."""
-    source = inp.feed.composition if inp.mode == "semi_batch" else inp.charge.composition
+    source = inp.feed.composition if inp.mode == "semi_batch" and inp.feed is not None else inp.charge.composition
     for name, value in inp.reactions[0].stoichiometry.items():
         if value < 0 and source.get(name, 0.0) > 0:
             return name
@@ -308,43 +308,82 @@ def _composition(field_name: str, composition: dict, names: set, molar_mass: dic
 
 
 def validate(inp: SimulationInput, warnings: Warnings) -> None:
+    """Check a run before it is integrated; raise :class:`InputError` naming the first field at fault.
+
+    The checks run in this order: mode and method, species, reactions (unknown species, orders, rate
+    parameters, the sign of each enthalpy, mass balance), the charge and run settings, the feed, the
+    jacket and controller, the failure time, the limits and the limiting reagent. Conditions that do
+    not stop the run (a consumed reactant at zero order, unbalanced stoichiometry) are added to
+    ``warnings``.
+    """
     if inp.mode not in MODES:
         raise InputError("mode", f"unknown mode {inp.mode!r}; one of {', '.join(MODES)}")
     if inp.method not in METHODS:
         raise InputError("method", f"unknown method {inp.method!r}; one of {', '.join(METHODS)}")
-    if not inp.species:
+    molar_mass = _validate_species(inp.species)
+    if not inp.reactions:
+        raise InputError("reactions", "at least one reaction is needed")
+    for j, reaction in enumerate(inp.reactions):
+        _validate_reaction(f"reactions[{j}]", reaction, molar_mass, warnings)
+    _validate_charge_and_settings(inp, molar_mass)
+    mode = MODES[inp.mode]
+    if mode.has_feed != (inp.feed is not None):
+        raise InputError("feed", f"{'is required' if mode.has_feed else 'does not apply'} in mode {inp.mode}")
+    if inp.feed is not None:
+        _validate_feed(inp.feed, inp.mode, molar_mass)
+    _validate_cooling(inp.jacket, inp.controller)
+    if inp.failure is not None and inp.failure.time is not None:
+        if not (require_non_negative("failure.time", inp.failure.time) <= inp.horizon):
+            raise InputError("failure.time", "must lie within the horizon")
+    for i, lim in enumerate(inp.limits):
+        require_positive(f"limits[{i}].temperature", lim.temperature)
+        if lim.direction not in (-1, 0, 1):
+            raise InputError(f"limits[{i}].direction", "must be -1, 0 or 1")
+    if inp.limiting_reagent is not None and inp.limiting_reagent not in molar_mass:
+        raise InputError("limiting_reagent", f"unknown species {inp.limiting_reagent!r}")
+
+
+def _validate_species(species: tuple) -> dict[str, float]:
+    """Names unique, molar masses and heat capacities positive; returns name -> molar mass, kg/mol."""
+    if not species:
         raise InputError("species", "at least one species is needed")
-    names = [s.name for s in inp.species]
+    names = [s.name for s in species]
     if len(set(names)) != len(names):
         raise InputError("species", "species names must be unique")
     molar_mass = {}
-    for i, s in enumerate(inp.species):
+    for i, s in enumerate(species):
         molar_mass[s.name] = require_positive(f"species[{i}].molar_mass", s.molar_mass)
         require_positive(f"species[{i}].heat_capacity", s.heat_capacity)
-    if not inp.reactions:
-        raise InputError("reactions", "at least one reaction is needed")
-    for j, r in enumerate(inp.reactions):
-        f = f"reactions[{j}]"
-        for name, value in r.stoichiometry.items():
-            if name not in molar_mass:
-                raise InputError(f"{f}.stoichiometry.{name}", f"unknown species {name!r}")
-            require_finite(f"{f}.stoichiometry.{name}", value)
-        for name, value in r.orders.items():
-            if name not in molar_mass:
-                raise InputError(f"{f}.orders.{name}", f"unknown species {name!r}")
-            require_non_negative(f"{f}.orders.{name}", value)
-            if value == 0 and r.stoichiometry.get(name, 0) < 0:
-                warnings.add(CalcWarning("zero_order_reactant", f"{f}: zero order in {name}, which it consumes; "
-                                         "its amount can fall below zero"))
-        require_non_negative(f"{f}.rate_constant", r.rate_constant)
-        require_positive(f"{f}.reference_temperature", r.reference_temperature)
-        require_non_negative(f"{f}.activation_energy", r.activation_energy)
-        require_sign(f"{f}.enthalpy", r.enthalpy, r.endothermic, f"{f}.endothermic")
-        imbalance = sum(v * molar_mass[k] for k, v in r.stoichiometry.items())
-        scale = sum(abs(v) * molar_mass[k] for k, v in r.stoichiometry.items()) or 1.0
-        if abs(imbalance) > 1e-6 * scale:
-            warnings.add(CalcWarning("unbalanced_stoichiometry",
-                                     f"{f}: the stoichiometry changes mass by {imbalance * 1e3:.4g} g/mol of extent"))
+    return molar_mass
+
+
+def _validate_reaction(f: str, r: Reaction, molar_mass: dict[str, float], warnings: Warnings) -> None:
+    """One reaction (``f`` is its field path): known species, orders >= 0, rate parameters, the
+    enthalpy's sign, and a warning when the stoichiometry does not conserve mass."""
+    for name, value in r.stoichiometry.items():
+        if name not in molar_mass:
+            raise InputError(f"{f}.stoichiometry.{name}", f"unknown species {name!r}")
+        require_finite(f"{f}.stoichiometry.{name}", value)
+    for name, value in r.orders.items():
+        if name not in molar_mass:
+            raise InputError(f"{f}.orders.{name}", f"unknown species {name!r}")
+        require_non_negative(f"{f}.orders.{name}", value)
+        if value == 0 and r.stoichiometry.get(name, 0) < 0:
+            warnings.add(CalcWarning("zero_order_reactant", f"{f}: zero order in {name}, which it consumes; "
+                                     "its amount can fall below zero"))
+    require_non_negative(f"{f}.rate_constant", r.rate_constant)
+    require_positive(f"{f}.reference_temperature", r.reference_temperature)
+    require_non_negative(f"{f}.activation_energy", r.activation_energy)
+    require_sign(f"{f}.enthalpy", r.enthalpy, r.endothermic, f"{f}.endothermic")
+    imbalance = sum(v * molar_mass[k] for k, v in r.stoichiometry.items())
+    scale = sum(abs(v) * molar_mass[k] for k, v in r.stoichiometry.items()) or 1.0
+    if abs(imbalance) > 1e-6 * scale:
+        warnings.add(CalcWarning("unbalanced_stoichiometry",
+                                 f"{f}: the stoichiometry changes mass by {imbalance * 1e3:.4g} g/mol of extent"))
+
+
+def _validate_charge_and_settings(inp: SimulationInput, molar_mass: dict[str, float]) -> None:
+    """The charge, the heat-capacity and enthalpy settings, the horizon, the budget and the tolerance."""
     ch = inp.charge
     require_positive("charge.mass", ch.mass)
     require_positive("charge.temperature", ch.temperature)
@@ -364,26 +403,29 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
     require_positive("budget.wall_time", b.wall_time)
     if not (isinstance(inp.rtol, numbers.Real) and 1e-12 <= inp.rtol <= 1e-3):
         raise InputError("rtol", "must lie between 1e-12 and 1e-3")
-    mode = MODES[inp.mode]
-    if mode.has_feed != (inp.feed is not None):
-        raise InputError("feed", f"{'is required' if mode.has_feed else 'does not apply'} in mode {inp.mode}")
-    if inp.feed is not None:
-        require_positive("feed.temperature", inp.feed.temperature)
-        _composition("feed.composition", inp.feed.composition, set(molar_mass), molar_mass)
-        if not inp.feed.steps:
-            raise InputError("feed.steps", "at least one feed step is needed")
-        previous_end = 0.0
-        for i, s in enumerate(inp.feed.steps):
-            require_non_negative(f"feed.steps[{i}].start", s.start)
-            if not s.end > s.start:
-                raise InputError(f"feed.steps[{i}].end", "must be later than the step's start")
-            if s.start < previous_end:
-                raise InputError(f"feed.steps[{i}].start", "steps must be in order and must not overlap")
-            require_non_negative(f"feed.steps[{i}].mass_flow", s.mass_flow)
-            previous_end = s.end
-        if inp.mode == "semi_batch" and not math.isfinite(previous_end):
-            raise InputError(f"feed.steps[{len(inp.feed.steps) - 1}].end", "semi-batch dosing must end")
-    j = inp.jacket
+
+
+def _validate_feed(feed: Feed, mode: str, molar_mass: dict[str, float]) -> None:
+    """Feed temperature and composition; steps in order, not overlapping, and ending for a semi-batch."""
+    require_positive("feed.temperature", feed.temperature)
+    _composition("feed.composition", feed.composition, set(molar_mass), molar_mass)
+    if not feed.steps:
+        raise InputError("feed.steps", "at least one feed step is needed")
+    previous_end = 0.0
+    for i, s in enumerate(feed.steps):
+        require_non_negative(f"feed.steps[{i}].start", s.start)
+        if not s.end > s.start:
+            raise InputError(f"feed.steps[{i}].end", "must be later than the step's start")
+        if s.start < previous_end:
+            raise InputError(f"feed.steps[{i}].start", "steps must be in order and must not overlap")
+        require_non_negative(f"feed.steps[{i}].mass_flow", s.mass_flow)
+        previous_end = s.end
+    if mode == "semi_batch" and not math.isfinite(previous_end):
+        raise InputError(f"feed.steps[{len(feed.steps) - 1}].end", "semi-batch dosing must end")
+
+
+def _validate_cooling(j: Jacket | None, c: Controller | None) -> None:
+    """The jacket (flows, temperatures, model, holdup) and the controller that needs it."""
     if j is not None:
         require_non_negative("jacket.ua", j.ua)
         require_positive("jacket.coolant_flow", j.coolant_flow)
@@ -393,7 +435,6 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
             raise InputError("jacket.model", f"unknown jacket model {j.model!r}; one of {', '.join(JACKET_MODELS)}")
         if j.model == "holdup":
             require_positive("jacket.holdup_mass", j.holdup_mass if j.holdup_mass is not None else math.nan)
-    c = inp.controller
     if c is not None:
         if j is None:
             raise InputError("controller", "needs a jacket whose coolant inlet it manipulates")
@@ -403,12 +444,3 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
         require_positive("controller.minimum_inlet_temperature", c.minimum_inlet_temperature)
         if not c.maximum_inlet_temperature > c.minimum_inlet_temperature:
             raise InputError("controller.maximum_inlet_temperature", "must exceed the minimum inlet temperature")
-    if inp.failure is not None and inp.failure.time is not None:
-        if not (require_non_negative("failure.time", inp.failure.time) <= inp.horizon):
-            raise InputError("failure.time", "must lie within the horizon")
-    for i, lim in enumerate(inp.limits):
-        require_positive(f"limits[{i}].temperature", lim.temperature)
-        if lim.direction not in (-1, 0, 1):
-            raise InputError(f"limits[{i}].direction", "must be -1, 0 or 1")
-    if inp.limiting_reagent is not None and inp.limiting_reagent not in molar_mass:
-        raise InputError("limiting_reagent", f"unknown species {inp.limiting_reagent!r}")

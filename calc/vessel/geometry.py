@@ -308,6 +308,7 @@ def fill(shape: VesselShape, jacket: JacketCoverage | None = None, coils: tuple[
         if volume <= 0.0:
             raise InputError(field, f"the coils take up the whole vessel below {level:.4g} m")
     else:
+        assert volume is not None  # exactly one of volume and level, checked above
         capacity = volume_at_level(shape, brim) - _coils_submerged(shape, coils, brim)[0]
         if not (math.isfinite(volume) and 0.0 < volume <= capacity * (1.0 + 1e-12)):
             raise InputError(field, f"must be above 0 and at most what the vessel holds up to the top "

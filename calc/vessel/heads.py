@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from functools import partial
-from typing import Callable
+from typing import Callable, NamedTuple
 
 _HANDBOOK = ("Bronshtein, I.N., Semendyayev, K.A., Musiol, G., Muehlig, H., Handbook of Mathematics, "
              "5th ed., Springer, Berlin, 2007 (solids of revolution)")
@@ -134,14 +134,26 @@ def depth_torispherical_head(D: float, f: float, k: float) -> float:
     return R - (R - r) * cos_a
 
 
-def _torispherical_parts(D: float, f: float, k: float):
+class _TorisphericalParts(NamedTuple):
+    """A torispherical head of crown radius R = f D and knuckle radius r = k D, [m] and [rad]."""
+
+    R: float  # crown radius
+    r: float  # knuckle radius
+    rho: float  # distance of the knuckle's centre from the axis, D/2 - r
+    alpha: float  # half-angle of the crown's spherical cap
+    cos_a: float
+    crown: float  # depth of the spherical cap
+    depth: float  # depth of the whole head
+
+
+def _torispherical_parts(D: float, f: float, k: float) -> _TorisphericalParts:
     R, r = f * D, k * D
     rho = 0.5 * D - r
     sin_a = rho / (R - r)
     alpha = math.asin(sin_a)
     cos_a = math.cos(alpha)
     crown = R * (1.0 - cos_a)
-    return R, r, rho, alpha, cos_a, crown, crown + r * cos_a
+    return _TorisphericalParts(R, r, rho, alpha, cos_a, crown, crown + r * cos_a)
 
 
 def volume_torispherical_head(D: float, f: float, k: float, z: float) -> float:
@@ -476,6 +488,7 @@ def _hemispherical(D: float, cone_angle: float | None) -> HeadProfile:
 
 
 def _conical(D: float, cone_angle: float | None) -> HeadProfile:
+    assert cone_angle is not None  # calc.vessel.geometry refuses a conical head without one
     beta = math.radians(cone_angle) / 2.0
     depth = 0.5 * D / math.tan(beta)
     return HeadProfile(depth, partial(volume_conical_head, D, beta), partial(area_conical_head, D, beta),

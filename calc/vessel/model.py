@@ -13,6 +13,7 @@ from calc.vessel import geometry
 from calc.vessel.agitation import Agitator, AgitationResult, agitation
 from calc.properties import Liquid
 from calc.validity import InputError
+from calc.films.jacket_side import JacketSpec
 from calc.films.wall import Fouling, WallSpec
 
 
@@ -27,7 +28,7 @@ class Vessel:
     wall: WallSpec
     agitator: Agitator
     coverage: geometry.JacketCoverage = field(default_factory=geometry.JacketCoverage)
-    jacket: object | None = None
+    jacket: JacketSpec | None = None
     coils: tuple[geometry.HelicalCoil, ...] = ()
     fouling: Fouling = field(default_factory=Fouling)
     name: str = "vessel"
