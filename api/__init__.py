@@ -23,6 +23,7 @@ DEFAULTS = {
     "MAX_NESTING_DEPTH": 32,  # levels of JSON objects/arrays
     "MAX_BATCH_CASES": 50,  # cases in one {"cases": [...]} call
     "MAX_SCALES": scaleup.MAX_TARGETS,  # targets in one scale-up
+    "LOG_LEVEL": "INFO",  # of the service logger "coolmargin"
     "MAX_SERIES_POINTS": 2000,  # points in a returned time series
     "MAX_SIMULATION_HORIZON": 7 * 24 * 3600.0,  # s of simulated time
     "SIMULATION_WALL_TIME": 10.0,  # s of computing per simulation request
@@ -63,15 +64,16 @@ class _RequestIdFilter(logging.Filter):
         return True
 
 
-def _configure_logging() -> None:
+def _configure_logging(level: str) -> None:
+    """The service logger: one handler (added once per process) and the level the app is configured with."""
     logger = logging.getLogger("coolmargin")
     if not logger.handlers:
         handler = logging.StreamHandler()
         handler.setFormatter(logging.Formatter("%(asctime)s %(levelname)s [%(request_id)s] %(name)s: %(message)s"))
         handler.addFilter(_RequestIdFilter())
         logger.addHandler(handler)
-        logger.setLevel(logging.INFO)
         logger.propagate = False
+    logger.setLevel(level.upper())
 
 
 def create_app(config: dict | None = None) -> Flask:
@@ -81,7 +83,7 @@ def create_app(config: dict | None = None) -> Flask:
     app.config.update(_from_environment())
     app.config.update(config or {})
     app.json.sort_keys = False
-    _configure_logging()
+    _configure_logging(app.config["LOG_LEVEL"])
     errors.register(app)
 
     @app.before_request

@@ -27,15 +27,10 @@ def _serve(args: argparse.Namespace) -> int:
 def _post(path: str, body: dict, url: str | None) -> tuple[int, dict]:
     """POST to the service at ``url``, or to an in-process app when no URL is given."""
     if url is None:
-        import logging
-
         from . import create_app
 
-        logger = logging.getLogger("coolmargin")  # a command prints results, not the service's start-up notes
-        if not logger.handlers:
-            logger.addHandler(logging.StreamHandler())
-        logger.setLevel(logging.WARNING)
-        response = create_app().test_client().post(path, json=body)
+        # A command prints results, not the service's start-up notes: its app logs warnings and above.
+        response = create_app({"LOG_LEVEL": "WARNING"}).test_client().post(path, json=body)
         return response.status_code, response.get_json()
     import urllib.error
     import urllib.request

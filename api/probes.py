@@ -1,8 +1,6 @@
 """Probes and the contract: liveness, readiness, the OpenAPI contract and its HTML reference."""
 from __future__ import annotations
 
-from functools import lru_cache
-
 import yaml
 import json
 
@@ -17,23 +15,21 @@ from .runtime import SERVING
 bp = Blueprint("probes", __name__)
 
 
-@lru_cache(maxsize=4)
-def _spec_text(path: str) -> str:
-    with open(path, encoding="utf-8") as handle:
-        return handle.read()
-
-
 def spec_text() -> str:
-    return _spec_text(current_app.config["OPENAPI_PATH"])
-
-
-@lru_cache(maxsize=4)
-def _spec(path: str) -> dict:
-    return yaml.safe_load(_spec_text(path))
+    """The contract's text, read once per app (from its OPENAPI_PATH) and kept with the app."""
+    state = current_app.extensions.setdefault("coolmargin.contract", {})
+    if "text" not in state:
+        with open(current_app.config["OPENAPI_PATH"], encoding="utf-8") as handle:
+            state["text"] = handle.read()
+    return state["text"]
 
 
 def spec() -> dict:
-    return _spec(current_app.config["OPENAPI_PATH"])
+    """The contract parsed, once per app."""
+    state = current_app.extensions.setdefault("coolmargin.contract", {})
+    if "document" not in state:
+        state["document"] = yaml.safe_load(spec_text())
+    return state["document"]
 
 
 @bp.get("/health")

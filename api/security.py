@@ -11,6 +11,7 @@ import hashlib
 import hmac
 import logging
 import re
+import weakref
 
 from flask import Flask, current_app, g, request
 
@@ -71,15 +72,21 @@ def token_matches(supplied: str, digests: list[bytes]) -> bool:
 
 
 # ---- log redaction ------------------------------------------------------------------------------
-_SECRETS: set[str] = set()  # every token configured in this process, for redaction
+# The tokens of every live app, for redaction; an app's entry goes with the app (nothing accumulates).
+_APP_SECRETS: "weakref.WeakKeyDictionary[Flask, frozenset[str]]" = weakref.WeakKeyDictionary()
 _BEARER = re.compile(r"(?i)\b(bearer\s+)[^\s\"',;]+")
 _AUTH_HEADER = re.compile(r"(?i)(authorization[\"']?\s*[:=]\s*[\"']?)[^\"'\r\n]+")
 
 
+def _secrets() -> set[str]:
+    return set().union(*_APP_SECRETS.values())
+
+
 def redact(text: str) -> str:
+    """``text`` without bearer tokens, Authorization values or any token a live app is configured with."""
     text = _AUTH_HEADER.sub(r"\1[redacted]", text)
     text = _BEARER.sub(r"\1[redacted]", text)
-    for secret in sorted(_SECRETS, key=len, reverse=True):
+    for secret in sorted(_secrets(), key=len, reverse=True):
         text = text.replace(secret, "[redacted]")
     return text
 
@@ -169,7 +176,7 @@ def register(app: Flask) -> None:
     Call after the request-id hook is registered, so refusals carry the request id.
     """
     tokens = load_tokens(app.config.get("AUTH_TOKENS", ""), app.config.get("AUTH_TOKENS_FILE", ""))
-    _SECRETS.update(tokens)
+    _APP_SECRETS[app] = frozenset(tokens)
     _install_redaction()
     app.extensions["coolmargin.security"] = {
         "digests": [_digest(token) for token in tokens],

@@ -46,3 +46,27 @@ def test_docs_page_shows_optional_units_examples_authentication_and_limits(clien
 def test_root_points_to_docs(client):
     response = client.get("/")
     assert response.status_code == 302 and response.headers["Location"] == "/docs"
+
+
+def test_no_state_outlives_its_app():
+    # Common practice, no source: a process that builds many apps (tests, the CLI) must not accumulate
+    # their secrets, and an app's logging level and contract belong to that app.
+    import gc
+    import logging
+
+    from api import security
+
+    before = len(security._APP_SECRETS)
+    app = create_app({"AUTH_TOKENS": "temporary-secret-token-1234"})
+    assert security.redact("seen temporary-secret-token-1234") == "seen [redacted]"
+    del app
+    gc.collect()
+    assert len(security._APP_SECRETS) <= before
+    assert "temporary-secret-token-1234" in security.redact("seen temporary-secret-token-1234")
+    create_app({"LOG_LEVEL": "WARNING"})
+    assert logging.getLogger("coolmargin").level == logging.WARNING
+    quiet_then_default = create_app()
+    assert logging.getLogger("coolmargin").level == logging.INFO
+    with quiet_then_default.test_client() as client:
+        assert client.get("/openapi.yaml").status_code == 200
+        assert "coolmargin.contract" in quiet_then_default.extensions

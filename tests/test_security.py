@@ -229,7 +229,7 @@ def test_logs_of_refused_and_failing_requests_hold_no_token(captured):
 
 
 def test_redaction_of_header_shapes():
-    security._SECRETS.add(TOKEN)
+    app = create_app({"AUTH_TOKENS": TOKEN})  # noqa: F841 - its tokens are redacted while it lives
     for line in (f"Authorization: Bearer {TOKEN}", f"{{'Authorization': 'Bearer {TOKEN}'}}",
                  f"authorization={TOKEN}", f"token {TOKEN} seen", "Bearer abc.def-ghi"):
         cleaned = security.redact(line)
