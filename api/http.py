@@ -169,8 +169,8 @@ FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
 def _csv_cell(value: Any) -> Any:
     """One CSV cell; text that a spreadsheet would run as a formula is neutralised with a leading quote.
 
-    >>> print(_csv_cell("=1+2"), _csv_cell("@SUM(A1)"), _csv_cell(-5.0), _csv_cell("R-630"))
-    '=1+2 '@SUM(A1) -5.0 R-630
+    >>> print(_csv_cell("=1+2"), _csv_cell("@SUM(A1)"), _csv_cell(-5.0), _csv_cell("Puffin"))
+    '=1+2 '@SUM(A1) -5.0 Puffin
     """
     if value is None:
         return ""

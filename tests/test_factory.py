@@ -38,7 +38,7 @@ def test_docs_page_shows_optional_units_examples_authentication_and_limits(clien
     # An optional quantity is oneOf [quantity, null] in the contract; its unit used to be lost.
     assert ('<code>heat_release.power_per_mass</code></td><td>number, or text with a unit (or null)</td>'
             '<td class="unit">W/kg</td>') in page
-    assert "Example request: the demo scenario" in page and "R-630" in page  # the contract's examples
+    assert "Example request: the demo scenario" in page and "Puffin" in page  # the contract's examples
     assert "Authorization: Bearer" in page and "not configured: the service is open" in page
     assert "1,048,576 bytes (413 above)" in page  # MAX_CONTENT_LENGTH of this server
 
