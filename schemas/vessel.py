@@ -26,8 +26,10 @@ def _length(description: str, **kwargs) -> Quantity:
 
 
 class WallSchema(StrictSchema):
-    material = fields.String(load_default="stainless_316l", validate=validate.OneOf(sorted(wall.MATERIALS)),
-                             metadata={"description": "material id from /v1/materials"})
+    material = fields.String(load_default="stainless_316l",
+                             validate=validate.OneOf(sorted(wall.MATERIALS) + sorted(wall.DEPRECATED_MATERIAL_IDS)),
+                             metadata={"description": "material id from /v1/materials (hastelloy_c276, the former "
+                                                      "id of alloy_c276, is accepted with a warning)"})
     thickness = _length("metal wall thickness", required=True)
     conductivity = Quantity("thermal conductivity", minimum=0, exclusive_minimum=True, load_default=None,
                             description="overrides the library value")

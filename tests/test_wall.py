@@ -64,7 +64,8 @@ def test_fouling_and_service_film_are_referred_by_the_radius_ratio():
 @settings(max_examples=50, deadline=None)
 @given(films, films, st.floats(min_value=0.2, max_value=3.0), st.floats(min_value=0.004, max_value=0.03))
 def test_glass_lined_U_never_above_the_lining_limit(h_p, h_s, radius, thickness):
-    # METHODS 6 (derived): 1.5 mm enamel at k = 1.0 W/(m K) is 0.0015 m2K/W alone, so U <= about 667 W/(m2 K).
+    # Series resistances (definition): the library's 1.5 mm enamel at k = 1.0 W/(m K) is 0.0015 m2K/W alone,
+    # so U <= about 667 W/(m2 K).
     r = overall_coefficient(h_p, h_s, WallSpec(thickness, "glass_lined_steel"), process_radius=radius)
     assert r.U < 1.0 / 0.0015 * (1 + 1e-9)
     # cylinder closed form for the enamel itself: r ln(1 + t/r)/k, within t/(2r) of the flat value 0.0015
@@ -113,7 +114,7 @@ def test_glass_lined_vessel_wall_temperatures_by_hand():
 
 
 def test_registry_has_sources_and_rejects_unknown_ids():
-    assert set(MATERIALS) == {"stainless_316l", "stainless_304", "carbon_steel", "hastelloy_c276",
+    assert set(MATERIALS) == {"stainless_316l", "stainless_304", "carbon_steel", "alloy_c276",
                               "nickel_200", "glass_lined_steel"}
     for key, m in MATERIALS.items():
         assert m.id == key and m.source and m.conductivity > 0
@@ -144,3 +145,21 @@ def test_lining_can_be_removed_and_overrides_apply():
     warned = overall_coefficient(500.0, 500.0, WallSpec(0.01, "stainless_316l", conductivity=130.0))
     assert warned.resistances["wall"] == pytest.approx(0.01 / 130.0)
     assert any(w.code == "conductivity_unusual" for w in warned.warnings)
+
+
+def test_former_material_id_is_an_alias_with_a_warning(client):
+    # The generic designation (alloy C-276, UNS N10276) is the id; the former id is accepted for one
+    # release with a warning and gives the same numbers (same library entry).
+    import json
+
+    from serving import ROOT
+
+    body = json.loads((ROOT / "examples" / "heat_transfer_request.json").read_text())
+    body["vessel"]["wall"]["material"] = "alloy_c276"
+    current = client.post("/v1/heat-transfer", json=body).json
+    body["vessel"]["wall"]["material"] = "hastelloy_c276"
+    former = client.post("/v1/heat-transfer", json=body).json
+    assert former["ua"] == current["ua"]
+    assert "deprecated_material_id" in {w["code"] for w in former["warnings"]}
+    assert "deprecated_material_id" not in {w["code"] for w in current["warnings"]}
+    assert "hastelloy_c276" not in {m["id"] for m in client.get("/v1/materials").json["items"]}

@@ -44,7 +44,7 @@ MATERIALS: dict[str, Material] = {m.id: m for m in [
     Material("carbon_steel", "Carbon steel (pressure-vessel grade)", 50.0,
              "DIN EN 12524 (2000), steel, as tabulated in the VDI Heat Atlas, 2nd ed., 2010; pressure-vessel "
              "grades 45-52 W/(m K) (from memory)"),
-    Material("hastelloy_c276", "Nickel alloy C-276", 10.0,
+    Material("alloy_c276", "Nickel alloy C-276 (UNS N10276)", 10.0,
              "producer data sheet for alloy C-276, about 10 W/(m K) at room temperature, 9.8-11 over "
              "20-200 degC (from memory)"),
     Material("nickel_200", "Nickel 200", 70.0,
@@ -59,10 +59,14 @@ MATERIALS: dict[str, Material] = {m.id: m for m in [
 ]}
 
 
+#: Former ids still accepted for one release, each with a warning: old id -> current id.
+DEPRECATED_MATERIAL_IDS = {"hastelloy_c276": "alloy_c276"}
+
+
 def material(material_id: str, field_name: str = "vessel.wall.material") -> Material:
-    """Look up a wall material by id; unknown ids are an :class:`InputError` listing the known ones."""
+    """Look up a wall material by id (or a deprecated id); unknown ids are an :class:`InputError`."""
     try:
-        return MATERIALS[material_id]
+        return MATERIALS[DEPRECATED_MATERIAL_IDS.get(material_id, material_id)]
     except KeyError:
         raise InputError(field_name, f"unknown material {material_id!r}; known materials: "
                                      f"{', '.join(sorted(MATERIALS))}") from None
@@ -158,6 +162,10 @@ def _resolve(wall: WallSpec, field_name: str) -> tuple[float, float, float, floa
     """Metal thickness and conductivity, lining thickness and conductivity, with library defaults."""
     mat = material(wall.material, f"{field_name}.material")
     warnings = Warnings()
+    if wall.material in DEPRECATED_MATERIAL_IDS:
+        warnings.add(CalcWarning("deprecated_material_id",
+                                 f"{field_name}.material: {wall.material!r} is the former id of {mat.id!r} and will "
+                                 f"be refused in a later release; use {mat.id!r}"))
     require_positive(f"{field_name}.thickness", wall.thickness)
     k = mat.conductivity if wall.conductivity is None else require_positive(f"{field_name}.conductivity",
                                                                             wall.conductivity)
