@@ -7,7 +7,10 @@ from calc.cautions import CHART
 
 STYLE = {"font.size": 9, "axes.spines.top": False, "axes.spines.right": False, "axes.grid": True,
          "grid.color": "#dddddd", "grid.linewidth": 0.6, "axes.edgecolor": "#555555"}
-COLOURS = ("#1f4e79", "#c0504d", "#4f8a3c", "#8064a2", "#d08a2b")
+#: coolmargin's own palette: ink blue, amber, teal, plum, slate. Blue against amber stays apart for
+#: red-green colour blindness; charts never tell two states apart by colour alone (markers and labels).
+COLOURS = ("#2b4c7e", "#d98b2b", "#3a9a8f", "#8a5a9c", "#6b6b6b")
+INK, AMBER, TEAL, PLUM, SLATE = COLOURS
 
 
 def figure(rows: int, sharex: bool = True):

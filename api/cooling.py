@@ -50,10 +50,17 @@ def scale_up_chart(payload: dict, fmt: str) -> bytes:
     top.set_yscale("log")
     top.set_ylabel("kW")
     margins = [s["margin"] if s["margin"] is not None else float("nan") for s in scales]
-    colours = [charts.COLOURS[2] if s["adequate"] else charts.COLOURS[1] for s in scales]
-    bottom.scatter(volumes, margins, c=colours, zorder=3)
+    # adequate: filled teal circles; not adequate: open amber triangles, and the label says so
+    for adequate, marker, colour, face, legend in ((True, "o", charts.TEAL, charts.TEAL, "adequate"),
+                                                   (False, "v", charts.AMBER, "white", "NOT adequate")):
+        chosen = [(v, m) for v, m, s in zip(volumes, margins, scales) if bool(s["adequate"]) == adequate]
+        if chosen:
+            bottom.scatter([v for v, _ in chosen], [m for _, m in chosen], marker=marker, s=42, zorder=3,
+                           edgecolors=colour, facecolors=face, linewidths=1.4, label=legend)
     for volume, margin, scale in zip(volumes, margins, scales):
         label = f"{volume:.3g} m^3" if scale["generated"] else scale["name"].split(",")[0][:24]
+        if not scale["adequate"]:
+            label += " (NOT adequate)"
         bottom.annotate(label, (volume, margin), textcoords="offset points", xytext=(4, 4), fontsize=7)
     bottom.axhline(factor, color="#555555", linestyle="--", linewidth=0.9, label="safety factor")
     bottom.set_xscale("log")
@@ -63,7 +70,7 @@ def scale_up_chart(payload: dict, fmt: str) -> bytes:
     largest = payload.get("largest_adequate_volume")
     if largest is not None:
         for axis in (top, bottom):
-            axis.axvline(largest, color=charts.COLOURS[3], linewidth=1.0, linestyle=":")
+            axis.axvline(largest, color=charts.PLUM, linewidth=1.0, linestyle=":")
         text = ("similar vessels adequate beyond" if payload.get("adequate_beyond_search")
                 else "largest adequate similar vessel")
         top.annotate(f"{text} {largest:.3g} m^3", (largest, min(load)), fontsize=7, ha="right",
