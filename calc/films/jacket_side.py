@@ -34,8 +34,9 @@ from calc.validity import CalcWarning, Correlation, InputError, Warnings, requir
 
 #: Below this coolant velocity a jacket fouls and its film is poor (common practice, no source).
 LOW_VELOCITY = 0.3  # m/s
-#: Spiral baffle: share of the flow that bypasses the baffle by default; design on 50 % effective flow
-#: (bypass "can exceed 1/3 to 1/2", Perry's Chemical Engineers' Handbook, from memory).
+#: Spiral baffle: share of the flow that bypasses the baffle by default; design on 50 % effective flow.
+#: Paraphrased, from memory: Perry's Chemical Engineers' Handbook puts the leakage past a loosely fitted
+#: spiral baffle at a third to a half of the flow or more.
 DEFAULT_BYPASS_FRACTION = 0.5
 #: Tube-flow regime limits for jacket channels (Sieder & Tate 1936; Gnielinski's 2013 interpolation between).
 LAMINAR_LIMIT, TURBULENT_LIMIT = 2100.0, 1.0e4
