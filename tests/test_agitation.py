@@ -138,7 +138,7 @@ def test_library_ids_are_the_contract():
 # --- scale-up ---------------------------------------------------------------------------------------
 
 def test_constant_power_per_volume_turbulent_exponent():
-    # Turbulent, N_p constant: P/V ~ N^3 D^2 constant gives N ~ D^(-2/3) (METHODS section 5, derived).
+    # Turbulent, N_p constant: P = N_p rho N^3 D^5 and V ~ D^3, so P/V ~ N^3 D^2 constant gives N ~ D^(-2/3) (derived).
     a = Agitator("pitched_blade_turbine", 0.2, 6.0)
     N2 = scaled_speed("constant_power_per_volume", a, 8.0, WATER_25C)
     assert N2 == pytest.approx(6.0 * 8.0 ** (-2 / 3), rel=2e-4)

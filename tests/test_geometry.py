@@ -34,10 +34,10 @@ def shape_of(head: str, D: float = 1.0, straight_side: float | None = None, cone
                        cone_angle if head == "conical" else None)
 
 
-# ---------------------------------------------------------------- full heads: METHODS.md section 8 table
+# ---------------------------------------------------------------- full heads against fluids.geometry
 
-# (h/D, V/D^3, A/D^2), coolmargin METHODS.md section 8 (values derived from the closed forms there and
-# checked against fluids; printed to 4 decimals).
+# (h/D, V/D^3, A/D^2) from fluids.geometry (a_torispherical, V_vertical_torispherical, SA_torispheroidal,
+# SA_ellipsoidal_head; test-only oracle), printed to 4 decimals; hemisphere and 2:1 ellipsoid volumes exact.
 TABLE = {
     "torispherical_fd": (0.1693, 0.0810, 0.9306),
     "torispherical_klopper": (0.1938, 0.0990, 0.9900),
@@ -49,19 +49,19 @@ TABLE = {
 
 
 @pytest.mark.parametrize("head", sorted(TABLE))
-def test_full_head_against_methods_table(head):
+def test_full_head_against_fluids_values(head):
     shape = shape_of(head)
     depth = head_depth(shape)
     h, V, A = TABLE[head]
-    assert depth == pytest.approx(h, abs=6e-5), "METHODS.md section 8 table, h/D"
-    assert volume_at_level(shape, depth) == pytest.approx(V, abs=6e-5), "METHODS.md section 8 table, V/D^3"
+    assert depth == pytest.approx(h, abs=6e-5), "fluids.geometry, h/D"
+    assert volume_at_level(shape, depth) == pytest.approx(V, abs=6e-5), "fluids.geometry, V/D^3"
     # just above the head, so that a flat bottom is wetted
-    assert wetted_area(shape, depth + 1e-9) == pytest.approx(A, abs=6e-5), "METHODS.md section 8 table, A/D^2"
+    assert wetted_area(shape, depth + 1e-9) == pytest.approx(A, abs=6e-5), "fluids.geometry, A/D^2"
 
 
 @pytest.mark.parametrize("angle", [60.0, 90.0, 120.0])
-def test_full_cone_against_methods_table(angle):
-    # METHODS.md section 8, cone of half-angle a: h/D = 1/(2 tan a), V/D^3 = pi/(24 tan a), A/D^2 = pi/(4 sin a)
+def test_full_cone_against_closed_forms(angle):
+    # Right circular cone of half-angle a (elementary geometry): h/D = 1/(2 tan a), V/D^3 = pi/(24 tan a), A/D^2 = pi/(4 sin a)
     a = math.radians(angle / 2)
     shape = shape_of("conical", cone_angle=angle)
     assert head_depth(shape) == pytest.approx(1 / (2 * math.tan(a)), rel=1e-12)
@@ -70,14 +70,14 @@ def test_full_cone_against_methods_table(angle):
 
 
 def test_din_inner_heights_at_zero_wall():
-    # DIN 28011: h2 = 0.1935 D_a - 0.455 s; DIN 28013: h2 = 0.255 D_a - 0.635 s (METHODS.md [M], from memory).
+    # DIN 28011: h2 = 0.1935 D_a - 0.455 s; DIN 28013: h2 = 0.255 D_a - 0.635 s (the standards, from memory).
     # With s = 0 the standards' rounded coefficients agree with the geometry to their printed precision.
     assert head_depth(shape_of("torispherical_klopper")) == pytest.approx(0.1935, abs=5e-4)
     assert head_depth(shape_of("torispherical_korbbogen")) == pytest.approx(0.255, abs=6e-4)
 
 
 def test_fd_volume_within_quoted_range():
-    # Quoted F&D head volume coefficients 0.078-0.085 D^3 (METHODS.md [M], from memory); METHODS quotes 0.0809.
+    # Handbooks quote F&D head volume coefficients of 0.078-0.085 D^3, commonly 0.0809 (from memory).
     shape = shape_of("torispherical_fd")
     assert volume_at_level(shape, head_depth(shape)) == pytest.approx(0.0809, abs=2e-4)
 
@@ -146,7 +146,7 @@ def profile(head, D, cone_angle=75.0):
         f, k = TORI[head]
         Rc, r = f * D, k * D
         rho = R - r
-        alpha = math.asin(rho / (Rc - r))  # METHODS.md section 8: sin a = rho / (R - r)
+        alpha = math.asin(rho / (Rc - r))  # where crown and knuckle meet: sin a = rho / (R - r)
         h = Rc - (Rc - r) * math.cos(alpha)
         return [(lambda t: Rc * math.sin(t), lambda t: Rc * (1 - math.cos(t)),
                  lambda t: Rc * math.cos(t), lambda t: Rc * math.sin(t), 0.0, alpha),

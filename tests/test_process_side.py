@@ -59,7 +59,8 @@ def test_viscosity_correction_exponent():
 
 def test_coil_form_agrees_with_original_oldshue_gretton():
     # Original (from memory): Nu_o = 0.17 Re^0.67 Pr^0.37 (D/T)^0.1 (d_o/T)^0.5; the HIM restatement
-    # uses 0.03 about D/T = 1/3, d_o/T = 0.04 (0.17 (1/3)^0.1 0.2 = 0.0305, METHODS section 2).
+    # uses 0.03 about D/T = 1/3, d_o/T = 0.04 (Penney & Atiemo-Obeng, Handbook of Industrial Mixing, 2004,
+    # ch. 14; 0.17 (1/3)^0.1 0.04^0.5 = 0.0305, arithmetic).
     for Re in (1e4, 1e5):
         for D_T, do_T in ((1 / 3, 0.04), (0.4, 0.03)):
             original = 0.17 * Re ** 0.67 * D_T ** 0.1 * do_T ** 0.5
@@ -151,7 +152,7 @@ def test_registry_names_resolve_to_the_authors_functions():
 
 
 def test_constant_power_per_volume_film_falls_as_minus_one_ninth():
-    # METHODS section 5 (derived): with N ~ D^-2/3 and Nu ~ Re^(2/3), h ~ D^(2b-1-bx) = D^(-1/9).
+    # Derived from Nu = h T/k ~ Re^b, Re = rho N D^2/mu: with N ~ D^-2/3 and b = 2/3, h ~ D^(2b-1-bx) = D^(-1/9).
     # PBT wall (HIM, b = 2/3) in turbulent water; speed solved on the power curve.
     small = Agitator("pitched_blade_turbine", 0.2, 5.0)
     factor = 10.0

@@ -62,7 +62,7 @@ def test_adiabatic_rise_and_mtsr_definitions():
     assert (mtsr, i) == (pytest.approx(380.0), 0)
 
 
-# Constructed orderings of (MTSR, MTT, T_D24) for each class, Stoessel (1993) table (METHODS.md section 7).
+# Constructed orderings of (MTSR, MTT, T_D24) for each class, Stoessel, Chem. Eng. Prog. 89(10), 68 (1993), table.
 @pytest.mark.parametrize("mtsr, mtt, td24, expected", [
     (360.0, 380.0, 400.0, 1),  # MTSR < MTT < T_D24
     (360.0, 400.0, 380.0, 2),  # MTSR < T_D24 < MTT

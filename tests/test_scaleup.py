@@ -63,7 +63,7 @@ def test_area_per_volume_falls_as_the_cube_root_of_volume(family):
 
 
 def test_process_film_at_constant_power_per_volume_follows_the_similarity_exponent():
-    # METHODS.md sec. 5 (derived): h ~ D^(2b - 1 - b x) with N ~ D^-x; constant P/V in turbulent flow: x = 2/3,
+    # Derived from Nu = h T/k ~ Re^b, Re = rho N D^2/mu: h ~ D^(2b - 1 - b x) with N ~ D^-x; constant P/V in turbulent flow: x = 2/3,
     # so D^-1/9 for b = 2/3. b is read from the constants the code uses.
     constants = IMPELLERS["pitched_blade_turbine"].wall[0]
     b = constants.b
@@ -115,7 +115,7 @@ def test_controlling_resistance_switch_is_located():
 @settings(max_examples=15, deadline=None)
 @given(v1=st.floats(6.0, 200.0), v2=st.floats(6.0, 200.0))
 def test_margin_falls_with_scale_at_constant_power_per_volume(v1, v2):
-    # common practice, no source: h A / V ~ D^-10/9 at constant P/V (METHODS.md sec. 5), so the margin falls
+    # common practice, no source: h A / V ~ D^-10/9 at constant P/V (h ~ D^-1/9, A/V ~ 1/D), so the margin falls
     small, large = sorted((v1, v2))
     if large / small < 1.001:
         return

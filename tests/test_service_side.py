@@ -29,7 +29,7 @@ WATER_20 = LiquidProperties(293.15, 998.2, 4184.0, 1.0016e-3, 0.5984)
 
 
 def test_vdi_worked_example_lehrer_and_stein_schmidt():
-    # VDI Heat Atlas (2010) worked example (via ht docstrings [L], METHODS 3.1): 2.5 kg/s water,
+    # VDI Heat Atlas, 2nd ed., Springer 2010, worked example (as reproduced in the ht docstrings): 2.5 kg/s water,
     # D_t = 0.6, D_j = 0.65, H = 0.6, d_in = 0.025 m -> Lehrer 2922 W/m2K, Stein & Schmidt 5695 W/m2K.
     lehrer = service_film_jacket(VDI_JACKET, VDI_WATER, 2.5, VDI_MU_WALL, 0.6, 0.6)
     assert round(lehrer.h) == 2922
@@ -41,7 +41,7 @@ def test_vdi_worked_example_lehrer_and_stein_schmidt():
 
 
 def test_lehrer_cross_velocity_choice_reproduces_the_vdi_value():
-    # The documented discrepancy (METHODS 3.1): ht's docstring prints v_s = Q/(pi/4 (D_j^2 - D_t^2)), its code
+    # A discrepancy inside ht (read in its source): its docstring prints v_s = Q/(pi/4 (D_j^2 - D_t^2)), its code
     # uses Q/(H gap). Hand computation of Lehrer's equation with each choice: only H x gap gives 2922.
     Q, gap = 2.5 / 995.7, 0.025
     v_in = Q / (math.pi / 4 * 0.025 ** 2)
@@ -110,7 +110,8 @@ def test_colebrook_matches_fluids_oracle(Re, roughness):
 
 
 def test_half_pipe_turbulent_against_sieder_tate_and_curvature_by_hand():
-    # METHODS 3.3 (half-pipe, 180 degree): A = pi d^2/8, De = pi d/2; Re > 1e4:
+    # Half-pipe, 180 degree section (circle geometry): A = pi d^2/8, De = 4A/chord = pi d/2; Re > 1e4, Sieder & Tate
+    # (Ind. Eng. Chem. 28, 1429, 1936) with the coil factor 1 + 3.5 De/D_c (McAdams, Heat Transmission, from memory):
     # Nu = 0.027 Re^0.8 Pr^(1/3) Vi^0.14 (1 + 3.5 De/D_c). The 0.027 form is ht.turbulent_Sieder_Tate (oracle).
     d, D_o, H, m, mu_w = 0.1, 2.0, 2.0, 8.0, 0.8e-3
     jacket = JacketSpec("half_pipe", pipe_diameter=d, pipe_pitch=0.125)
@@ -124,7 +125,7 @@ def test_half_pipe_turbulent_against_sieder_tate_and_curvature_by_hand():
 
 
 def test_half_pipe_120_degree_section():
-    # METHODS 3.3 [T, ChE guide]: 120 degree section A = 0.154 d^2, De = 0.708 d. The exact circular segment
+    # 120 degree section: trade tables print A = 0.154 d^2, De = 0.708 d (from memory). The exact circular segment
     # gives A = 0.15355 d^2 and De = 4A/chord = 0.70920 d, 0.17 % above the printed 0.708.
     jacket = JacketSpec("half_pipe", pipe_diameter=0.1, pipe_pitch=0.125, pipe_section_angle=2 * math.pi / 3)
     r = service_film_jacket(jacket, WATER_20, 8.0, 1e-3, 2.0, 2.0)
@@ -159,7 +160,8 @@ def test_half_pipe_laminar_and_transitional_by_hand():
 
 
 def test_spiral_baffle_by_hand():
-    # METHODS 3.2: flow area = pitch x gap, De = 4 gap (Perry's, from memory), 50 % effective flow by default,
+    # Spiral baffle: flow area = pitch x gap, De = 4 gap (Perry's Chemical Engineers' Handbook, from memory),
+    # 50 % effective flow by default,
     # turbulent 0.027 Re^0.8 Pr^(1/3) Vi^0.14 (1 + 3.5 De/D_j). Hand computation.
     gap, pitch, D_o, H, m = 0.05, 0.3, 2.5, 2.5, 20.0
     r = service_film_jacket(JacketSpec("annular_spiral_baffle", gap=gap, baffle_pitch=pitch), WATER_20, m, 1e-3,
@@ -181,7 +183,8 @@ def test_spiral_baffle_by_hand():
                                                  ("mori_nakayama_1967", helical_turbulent_Nu_Mori_Nakayama)])
 def test_coil_turbulent_matches_ht_oracles(Re_target, correlation, oracle):
     # ht.conv_internal helical_turbulent_Nu_Schmidt / _Mori_Nakayama (test-only oracles; code read: the
-    # same equations as METHODS 3.5), with mu_wall = mu so the Sieder-Tate correction is 1.
+    # same equations as Schmidt, Chem. Ing. Tech. 39, 781 (1967) and Mori & Nakayama, Int. J. Heat Mass
+    # Transfer 10, 681 (1967)), with mu_wall = mu so the Sieder-Tate correction is 1.
     d, D_c = 0.04, 0.8
     m = Re_target * math.pi * d * WATER_20.viscosity / 4
     r = service_film_coil(d, D_c, WATER_20, m, WATER_20.viscosity, correlation=correlation)

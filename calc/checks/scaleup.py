@@ -3,8 +3,9 @@
 Under geometric similarity every length grows by the factor f = (V_target / V_reference)^(1/3), so
 the heat-transfer area grows as f^2 while the volume and the heat release grow as f^3: area per
 volume falls as V^(-1/3) (common practice). The process film coefficient changes with the
-agitation rule, h ~ D^(2b - 1 - b x) for N ~ D^(-x) and Nu ~ Re^b (derived, see ``METHODS``
-section 5 in the design notes); at constant power per volume (x = 2/3) and b = 2/3 this is D^(-1/9).
+agitation rule: with Nu = h T/k ~ Re^b, Re = rho N D^2/mu and N ~ D^(-x), h ~ N^b D^(2b - 1) =
+D^(2b - 1 - b x) (derived here from those definitions); at constant power per volume (x = 2/3) and
+b = 2/3 this is D^(-1/9).
 
 Conventions (the caller's choices are named in brackets):
 

@@ -408,7 +408,7 @@ def criticality_class_Stoessel_1993(process_temperature: float, mtsr: float, mtt
     Ties: a level *reaches* another when it is greater than or equal to it, so an exact tie always
     falls into the more critical class (MTSR = MTT counts as reaching the boiling point; MTSR = T_D24
     counts as triggering the decomposition; MTT = T_D24 counts as T_D24 below the MTT). The order
-    T_D24 < MTSR < MTT, not in the five-row table of METHODS.md, is class 5 as in Stoessel (2008):
+    T_D24 < MTSR < MTT, not in the five-row table of Stoessel (1993), is class 5 as in Stoessel (2008):
     the decomposition is triggered before the boiling barrier can act.
 
     Examples

@@ -185,11 +185,14 @@ def volume_torispherical_head(D: float, f: float, k: float, z: float) -> float:
     Notes
     -----
     Exact for the ideal profile (integral of pi x(z)^2 over the crown and knuckle profile).
-    The full head, :math:`F(r\cos\alpha)`, reduces to the closed form of METHODS.md section 8.
+    The full head, :math:`F(r\cos\alpha)`, reduces to the closed form of a spherical cap of radius R
+    plus a toroidal knuckle of radius r (elementary solid geometry; the tests check it against
+    ``fluids.geometry.V_vertical_torispherical``).
 
     Examples
     --------
-    Full ASME F&D head (f = 1, k = 0.06), V/D^3 = 0.0810 (METHODS table; quoted 0.0809):
+    Full ASME F&D head (f = 1, k = 0.06), V/D^3 = 0.0810 (``fluids.geometry`` gives the same to 4 decimals;
+    handbooks quote 0.0809, from memory):
 
     >>> volume_torispherical_head(1.0, 1.0, 0.06, 1.0)
     0.0810
@@ -238,11 +241,12 @@ def area_torispherical_head(D: float, f: float, k: float, z: float) -> float:
     Notes
     -----
     Exact for the ideal profile. At z = h it reduces to
-    :math:`2\pi R h_c + 2\pi r[\rho(\pi/2 - \alpha) + r\cos\alpha]` (METHODS.md section 8).
+    :math:`2\pi R h_c + 2\pi r[\rho(\pi/2 - \alpha) + r\cos\alpha]` (spherical cap plus the toroidal
+    knuckle by Pappus's centroid theorem).
 
     Examples
     --------
-    Full DIN 28013 (Korbbogen) head, A/D^2 = 1.0879 (METHODS table):
+    Full DIN 28013 (Korbbogen) head, A/D^2 = 1.0879 (``fluids.geometry.SA_torispheroidal`` gives the same):
 
     >>> area_torispherical_head(1.0, 0.8, 0.154, 1.0)
     1.0879
