@@ -82,6 +82,10 @@ class Coolant:
     ``flow_kind`` is ``"mass"`` (kg/s) or ``"volume"`` (m3/s, converted with the density at the inlet).
     ``coil_flow`` is the flow through each internal coil, of the same kind; None means the same as
     the jacket flow (a separate supply of equal size).
+
+    What limits the utility (each optional): ``available_pressure_drop`` [Pa] between supply and return
+    headers, which every circuit (jacket, each coil) sees in parallel; ``maximum_velocity`` [m/s] in any
+    circuit's channel; ``maximum_flow`` [kg/s] the header delivers to all circuits together.
     """
 
     liquid: Liquid
@@ -89,6 +93,14 @@ class Coolant:
     flow: float
     flow_kind: str = "mass"
     coil_flow: float | None = None
+    available_pressure_drop: float | None = None  # Pa
+    maximum_velocity: float | None = None  # m/s
+    maximum_flow: float | None = None  # kg/s, all circuits together
+
+    @property
+    def limited(self) -> bool:
+        """Whether any hydraulic limit of the utility is given."""
+        return any(v is not None for v in (self.available_pressure_drop, self.maximum_velocity, self.maximum_flow))
 
     def _mass(self, value: float, field_name: str) -> float:
         if not (math.isfinite(value) and value > 0):
