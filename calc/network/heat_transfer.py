@@ -63,6 +63,7 @@ class Stream:
     mean_temperature: float  # K
     iterations: int
     hydraulics: paths.Hydraulics | None = None  # pressure drop at the solved mean temperature
+    path: paths.FlowPath | None = None  # the coolant's route, for hydraulic limits
 
     @property
     def ua(self) -> float:
@@ -223,7 +224,7 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
         warnings.extend_unique(CalcWarning(w.code, f"{name} pressure drop: {w.message}") for w in hydraulics.warnings)
         warnings.extend_unique(paths.limit_warnings(hydraulics, name, coolant.available_pressure_drop,
                                                     coolant.maximum_velocity))
-    return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations, hydraulics)
+    return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations, hydraulics, path)
 
 
 def _outer_diameter(vessel: Vessel) -> float:

@@ -95,7 +95,8 @@ class Coolant:
     coil_flow: float | None = None
     available_pressure_drop: float | None = None  # Pa
     maximum_velocity: float | None = None  # m/s
-    maximum_flow: float | None = None  # kg/s, all circuits together
+    maximum_flow: float | None = None  # all circuits together, of ``maximum_flow_kind``
+    maximum_flow_kind: str = "mass"
 
     @property
     def limited(self) -> bool:
@@ -113,6 +114,12 @@ class Coolant:
     def mass_flow(self) -> float:
         """Jacket coolant mass flow, kg/s."""
         return self._mass(self.flow, "coolant.flow")
+
+    def maximum_mass_flow(self) -> float | None:
+        """The utility's largest total flow, kg/s, or None when it sets none."""
+        if self.maximum_flow is None:
+            return None
+        return replace(self, flow_kind=self.maximum_flow_kind)._mass(self.maximum_flow, "coolant.maximum_flow")
 
     def coil_mass_flow(self) -> float:
         """Coolant mass flow through each coil, kg/s."""
