@@ -53,6 +53,8 @@ COIL_PITCH_RATIO = 2.0  # coil pitch over tube OD, common practice, no source
 COIL_CLEARANCE_RATIO = 1.0  # free space on each side of a coil tube, in tube ODs, common practice
 TURN_FRACTIONS = (0.25, 0.5, 0.75, 1.0)
 HALF_PIPE_SCHEDULE, COIL_SCHEDULE = "40", "10S"
+#: Most candidates one sizing evaluates (a request whose lists multiply beyond this is refused).
+MAX_CANDIDATES = 600
 
 SIZING_CAUTION = ("A sized design is a thermal and hydraulic screening: the jacket's pressure rating, the "
                   "shell's stiffening, weld access, coil supports and vibration, venting and draining are the "
@@ -103,6 +105,16 @@ class Candidate:
     feasible: bool
     reason: str
     warning_codes: tuple[str, ...] = ()
+    coverage: geometry.JacketCoverage = field(default_factory=geometry.JacketCoverage)
+
+    @property
+    def jacket_geometry(self) -> dict | None:
+        """The jacket as a request's ``vessel.jacket`` gives it (so the design can be checked again)."""
+        if self.jacket is None:
+            return None
+        keys = ("type", "gap", "baffle_pitch", "pipe_diameter", "pipe_pitch", "passes", "inlet_diameter")
+        return {k: getattr(self.jacket, k) for k in keys} | {
+            "covers_bottom_head": self.coverage.covers_bottom_head, "top": self.coverage.top}
 
 
 @dataclass(frozen=True)
@@ -255,7 +267,8 @@ def evaluate_candidate(index: int, kind: str, vessel: Vessel, charge: Charge, co
             result = heat_transfer(design, charge, coolant.with_mass_flow(limit.mass_flow), process_temperature)
     except InputError as exc:
         return Candidate(index, kind, description, jacket, coil, nps or coil_nps, 0.0, 0.0, 0.0, None, 0.0, 0.0,
-                         0.0, 0.0, 0.0, 0.0, 0.0, None, None, False, False, f"does not fit: {exc.message}"), None, None
+                         0.0, 0.0, 0.0, 0.0, 0.0, None, None, False, False, f"does not fit: {exc.message}", (),
+                         vessel.coverage), None, None
     load = heat_load(heat_release, charge_mass(result), process_temperature, result.agitation.power)
     capacity = result.duty
     margin = margin_of(capacity, load.total)
@@ -285,7 +298,7 @@ def evaluate_candidate(index: int, kind: str, vessel: Vessel, charge: Charge, co
         max((s.velocity for s in streams), default=0.0), 0.0 if worst is None else worst.pressure_drop,
         0.0 if worst is None else worst.path_length, result.fill.displaced_volume,
         sum(s.path.area * s.path.length * s.path.branches for s in streams), films["jacket"], films["coil"],
-        limited, feasible, reason, codes)
+        limited, feasible, reason, codes, vessel.coverage)
     return candidate, result, load
 
 
@@ -293,7 +306,7 @@ def evaluate_candidate(index: int, kind: str, vessel: Vessel, charge: Charge, co
 
 
 def _rank_key(candidate: Candidate) -> tuple:
-    return (round(candidate.heat_transfer_area, 6), PREFERENCE.index(candidate.type), candidate.holdup_volume,
+    return (round(candidate.heat_transfer_area, 6), PREFERENCE.index(candidate.type), round(candidate.holdup_volume, 6),
             candidate.pressure_drop, candidate.index)
 
 
@@ -317,10 +330,15 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         candidates.append(candidate)
         return candidate
 
-    for kind, nps, jacket in _jackets(shell, coolant, options):
-        add(kind, jacket, None, nps)
+    jackets = _jackets(shell, coolant, options)
     coils = _coils(shell, charge, process_temperature, options, warnings) \
         if any(t in options.types for t in ("coil", "jacket_and_coil")) else []
+    most = len(jackets) + len(coils) * (1 + len(JACKET_TYPES) * ("jacket_and_coil" in options.types))
+    if most > MAX_CANDIDATES:
+        raise InputError("options", f"up to {most} candidates: at most {MAX_CANDIDATES} per sizing; "
+                                    "give shorter lists")
+    for kind, nps, jacket in jackets:
+        add(kind, jacket, None, nps)
     if "coil" in options.types:
         for coil_nps, coil in coils:
             add("coil", None, coil, None, coil_nps)
