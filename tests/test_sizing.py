@@ -2,6 +2,7 @@
 import copy
 import json
 from dataclasses import replace
+from fractions import Fraction
 
 import pytest
 from hypothesis import given, settings
@@ -166,3 +167,34 @@ def test_recommendation_is_feasible_whenever_a_candidate_is(power, available):
             assert result.candidates[chosen].type in sizing.JACKET_TYPES
     else:
         assert chosen is None and "no candidate meets the duty" in result.recommendation.reasoning
+
+
+def test_pipe_table_matches_the_fluids_pipe_tables():
+    # ASME B36.10M schedule 40 and B36.19M schedule 10S as tabulated in fluids.piping (test-only oracle).
+    from fluids.piping import nearest_pipe
+
+    from calc.sizing.pipes import PIPE_SIZES
+
+    for size in PIPE_SIZES.values():
+        nps = float(sum(Fraction(part) for part in size.nps.split("-")))  # "2-1/2" -> 2.5
+        for schedule in ("40", "10S"):
+            _, inner, outer, wall = nearest_pipe(NPS=nps, schedule=schedule)
+            assert (size.outer_diameter, size.wall(schedule)) == pytest.approx((outer, wall), abs=1e-6), size.nps
+            assert size.inner_diameter(schedule) == pytest.approx(inner, abs=1e-6)
+
+
+def test_scale_up_sizes_the_jacket_at_each_generated_scale(client):
+    body = json.loads((ROOT / "examples" / "scale_up_path.json").read_text())
+    body["size_jacket"] = True
+    scales = client.post("/v1/scale-up", json=body).json["scales"]
+    assert scales[0]["jacket_design"] is None  # the reference keeps its own jacket
+    for scale in scales[1:]:
+        design = scale["jacket_design"]
+        assert design["candidates_evaluated"] > 50
+        if design["candidate"] is not None:
+            assert design["candidate"]["feasible"] and design["candidate"]["margin"] >= 1.3
+            assert design["recommendation"]["index"] == design["candidate"]["index"]
+        else:
+            assert "no candidate meets the duty" in design["recommendation"]["reasoning"]
+    without = client.post("/v1/scale-up", json=dict(body, size_jacket=False)).json["scales"]
+    assert all(s["jacket_design"] is None for s in without)

@@ -53,6 +53,7 @@ COIL_PITCH_RATIO = 2.0  # coil pitch over tube OD, common practice, no source
 COIL_CLEARANCE_RATIO = 1.0  # free space on each side of a coil tube, in tube ODs, common practice
 TURN_FRACTIONS = (0.25, 0.5, 0.75, 1.0)
 HALF_PIPE_SCHEDULE, COIL_SCHEDULE = "40", "10S"
+DEFAULT_COIL_TUBE_SIZES = ("1", "1-1/2", "2", "3")
 #: Most candidates one sizing evaluates (a request whose lists multiply beyond this is refused).
 MAX_CANDIDATES = 600
 
@@ -71,7 +72,7 @@ class SizingOptions:
     pipe_sizes: tuple[str, ...] = ("1-1/2", "2", "2-1/2", "3", "4")
     pipe_pitches: tuple[float, ...] | None = None
     zones: tuple[int, ...] = (1, 2, 3, 4)
-    coil_tube_sizes: tuple[str, ...] = ("1", "1-1/2", "2", "3")
+    coil_tube_sizes: tuple[str, ...] | None = None  # default DEFAULT_COIL_TUBE_SIZES, those that fit
     coil_turns: tuple[int, ...] | None = None
     coil_helix_diameter: float | None = None
     covers_bottom_head: bool = True
@@ -126,6 +127,15 @@ class Recommendation:
 
 
 @dataclass(frozen=True)
+class SizedDesign:
+    """The recommended design of one sizing (for a scale-up's scales)."""
+
+    recommendation: Recommendation
+    candidate: Candidate | None
+    candidates_evaluated: int
+
+
+@dataclass(frozen=True)
 class JacketSizing:
     candidates: tuple[Candidate, ...]
     recommendation: Recommendation
@@ -135,6 +145,12 @@ class JacketSizing:
     safety_factor: float
     warnings: Warnings = field(default_factory=Warnings)
     cautions: tuple[str, ...] = CAUTIONS + (SIZING_CAUTION,)
+
+    @property
+    def recommended(self) -> SizedDesign:
+        index = self.recommendation.index
+        return SizedDesign(self.recommendation, None if index is None else self.candidates[index],
+                           len(self.candidates))
 
 
 # ---------------------------------------------------------------- the envelope
@@ -166,23 +182,44 @@ def check_envelope(vessel: Vessel, options: SizingOptions) -> None:
             raise InputError(f"options.zones[{i}]", f"must be between 1 and 20, got {zones!r}")
     if not any(t in options.types for t in ("coil", "jacket_and_coil")):
         return
-    T, D = vessel.shape.diameter, vessel.agitator.diameter
-    annulus = (T - D) / 2.0
-    for i, nps in enumerate(options.coil_tube_sizes):
+    for i, nps in enumerate(options.coil_tube_sizes or ()):
         size = pipes.pipe_size(nps, f"options.coil_tube_sizes[{i}]")
         need = size.outer_diameter * (1.0 + 2.0 * COIL_CLEARANCE_RATIO)
+        annulus = _annulus(vessel)
         if need > annulus:
             raise InputError(f"options.coil_tube_sizes[{i}]",
                              f"an NPS {nps} coil needs {need:.4g} m (tube and a tube diameter of clearance each "
                              f"side) but the annulus between impeller tip and wall is {annulus:.4g} m")
-        if options.coil_helix_diameter is not None:
-            helix = options.coil_helix_diameter
-            d = size.outer_diameter
-            inner, outer = (helix - d) / 2.0, (helix + d) / 2.0
-            if inner - D / 2.0 < COIL_CLEARANCE_RATIO * d or T / 2.0 - outer < COIL_CLEARANCE_RATIO * d:
-                raise InputError("options.coil_helix_diameter",
-                                 f"a helix of {helix:g} m with NPS {nps} tube leaves less than one tube diameter "
-                                 f"to the impeller tip ({D / 2:.4g} m radius) or the wall ({T / 2:.4g} m radius)")
+    if options.coil_helix_diameter is None:
+        return
+    T, D = vessel.shape.diameter, vessel.agitator.diameter
+    helix = options.coil_helix_diameter
+    for nps in _coil_sizes(vessel, options, Warnings()):
+        d = pipes.pipe_size(nps).outer_diameter
+        inner, outer = (helix - d) / 2.0, (helix + d) / 2.0
+        if inner - D / 2.0 < COIL_CLEARANCE_RATIO * d or T / 2.0 - outer < COIL_CLEARANCE_RATIO * d:
+            raise InputError("options.coil_helix_diameter",
+                             f"a helix of {helix:g} m with NPS {nps} tube leaves less than one tube diameter "
+                             f"to the impeller tip ({D / 2:.4g} m radius) or the wall ({T / 2:.4g} m radius)")
+
+
+def _annulus(vessel: Vessel) -> float:
+    """Radial room between the impeller tip and the wall, m."""
+    return (vessel.shape.diameter - vessel.agitator.diameter) / 2.0
+
+
+def _coil_sizes(vessel: Vessel, options: SizingOptions, warnings: Warnings) -> tuple[str, ...]:
+    """The coil tube sizes to try: those given (checked by :func:`check_envelope`), or the defaults that fit
+    between impeller and wall with a tube diameter of clearance each side."""
+    if options.coil_tube_sizes is not None:
+        return options.coil_tube_sizes
+    fit = tuple(n for n in DEFAULT_COIL_TUBE_SIZES
+                if pipes.pipe_size(n).outer_diameter * (1.0 + 2.0 * COIL_CLEARANCE_RATIO) <= _annulus(vessel))
+    if len(fit) < len(DEFAULT_COIL_TUBE_SIZES):
+        warnings.add(CalcWarning("coil_sizes_left_out", f"coil tube sizes that do not fit between impeller and wall "
+                                                        f"({_annulus(vessel):.3g} m) are left out; tried: "
+                                                        f"{', '.join(fit) or 'none'}"))
+    return fit
 
 
 def _coils(vessel: Vessel, charge: Charge, process_temperature: float, options: SizingOptions,
@@ -190,7 +227,7 @@ def _coils(vessel: Vessel, charge: Charge, process_temperature: float, options: 
     volume = charge.liquid_volume(process_temperature)
     level = geometry.fill(vessel.shape, None, (), volume=volume).liquid_level
     out = []
-    for i, nps in enumerate(options.coil_tube_sizes):
+    for nps in _coil_sizes(vessel, options, warnings):
         size = pipes.pipe_size(nps)
         helix, pitch = _coil_geometry(vessel, size, options.coil_helix_diameter)
         d = size.outer_diameter
