@@ -6,6 +6,7 @@ from schemas.sizing import JacketSizingRequestSchema, JacketSizingResultSchema, 
 
 from . import charts
 from .http import calculate
+from .runtime import deadline
 
 bp = Blueprint("sizing", __name__, url_prefix="/v1")
 _request, _result = JacketSizingRequestSchema(), JacketSizingResultSchema()
@@ -14,7 +15,7 @@ MARKERS = {"annular": "o", "annular_spiral_baffle": "s", "half_pipe": "^", "coil
 
 def _size(args: dict):
     result = sizing.jacket_sizing(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
-                                  args["heat_release"], args["safety_factor"], args["options"])
+                                  args["heat_release"], args["safety_factor"], args["options"], deadline=deadline())
     return jacket_sizing_view(result)
 
 

@@ -35,6 +35,7 @@ from dataclasses import dataclass, field, replace
 
 from calc.checks.cooling_check import CAUTIONS, charge_mass, margin_of
 from calc.checks.heat_load import HeatLoad, HeatRelease, heat_load
+from calc.deadline import NEVER, Deadline
 from calc.films.jacket_side import JacketSpec
 from calc.network.flow_limit import flow_limit
 from calc.network.heat_transfer import HeatTransferResult, heat_transfer
@@ -348,10 +349,11 @@ def _rank_key(candidate: Candidate) -> tuple:
 
 
 def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
-                  heat_release: HeatRelease, safety_factor: float, options: SizingOptions = SizingOptions()
-                  ) -> JacketSizing:
+                  heat_release: HeatRelease, safety_factor: float, options: SizingOptions = SizingOptions(),
+                  deadline: Deadline = NEVER) -> JacketSizing:
     """Enumerate, evaluate and rank the candidate designs for the shell ``vessel`` (its own jacket and coils
-    are ignored; the coverage of ``options`` applies)."""
+    are ignored; the coverage of ``options`` applies). Each candidate first checks ``deadline``
+    (:class:`calc.deadline.OutOfTime` once it has passed)."""
     check_envelope(vessel, options)
     warnings = Warnings()
     shell = replace(vessel, jacket=None, coils=(),
@@ -361,6 +363,7 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
 
     def add(kind, jacket, coil, nps=None, coil_nps=None):
         nonlocal load
+        deadline.check()
         candidate, _, this_load = evaluate_candidate(len(candidates), kind, shell, charge, coolant, process_temperature,
                                                      heat_release, safety_factor, jacket, coil, nps, coil_nps)
         load = load or this_load
