@@ -38,7 +38,7 @@ from calc.checks.heat_load import HeatLoad, HeatRelease, heat_load
 from calc.deadline import NEVER, Deadline
 from calc.films.jacket_side import JacketSpec
 from calc.network.flow_limit import flow_limit
-from calc.network.heat_transfer import HeatTransferResult, heat_transfer
+from calc.network.heat_transfer import HeatTransferResult, assemble, heat_transfer
 from calc.sizing import pipes
 from calc.validity import CalcWarning, InputError, Warnings
 from calc.vessel import geometry
@@ -298,11 +298,12 @@ def evaluate_candidate(index: int, kind: str, vessel: Vessel, charge: Charge, co
     description = describe(jacket, coil, nps, coil_nps)
     design = replace(vessel, jacket=jacket, coils=() if coil is None else (coil,))
     try:
-        result = heat_transfer(design, charge, coolant, process_temperature)
-        limit = flow_limit(result.streams, coolant)
+        # the flow limit needs only the paths (no solve): solve once, at the flow the utility can push
+        limit = flow_limit(assemble(design, charge, coolant, process_temperature).streams, coolant)
         limited = limit.mass_flow is not None and limit.mass_flow < coolant.mass_flow() * (1.0 - 1e-9)
         if limited:
-            result = heat_transfer(design, charge, coolant.with_mass_flow(limit.mass_flow), process_temperature)
+            coolant = coolant.with_mass_flow(limit.mass_flow)
+        result = heat_transfer(design, charge, coolant, process_temperature)
     except InputError as exc:
         return Candidate(index, kind, description, jacket, coil, nps or coil_nps, 0.0, 0.0, 0.0, None, 0.0, 0.0,
                          0.0, 0.0, 0.0, 0.0, 0.0, None, None, False, False, f"does not fit: {exc.message}", (),
