@@ -5,7 +5,7 @@ import logging
 import os
 import re
 import uuid
-from importlib import metadata
+from importlib import metadata, resources
 
 from flask import Flask, g, request
 
@@ -33,7 +33,8 @@ DEFAULTS = {
     "RATE_LIMIT_STORAGE": "memory://",  # or a redis:// URL shared by every process and replica
     "RATE_LIMIT_PREFIX": "coolmargin",  # key prefix in that storage
     "TRUSTED_PROXIES": 0,  # proxies in front whose X-Forwarded-For names the client (1 behind docker/nginx.conf)
-    "OPENAPI_PATH": os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "openapi.yaml"),
+    # The contract ships inside the package (api/openapi.yaml links to the top-level file in a checkout).
+    "OPENAPI_PATH": str(resources.files("api").joinpath("openapi.yaml")),
 }
 _ENV_PREFIX = "COOLMARGIN_"
 _REQUEST_ID = re.compile(r"^[A-Za-z0-9._-]{1,64}$")

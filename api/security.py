@@ -18,7 +18,7 @@ from .errors import problem
 
 log = logging.getLogger("coolmargin")
 
-OPEN_PATHS = frozenset({"/health", "/ready", "/docs", "/openapi.yaml"})
+OPEN_PATHS = frozenset({"/", "/health", "/ready", "/docs", "/openapi.yaml"})
 CORS_METHODS = "GET, POST"
 CORS_HEADERS = "Content-Type, Authorization, X-Request-ID"
 CORS_MAX_AGE = "600"  # s a browser may cache a preflight answer

@@ -64,6 +64,9 @@ CAUTIONS = (
 DOSING_CAUTION = ("The dosing model assumes the feed reacts as it is added. Any unreacted feed that "
                   "accumulates releases more heat later and is not in this load: check accumulation "
                   "by calorimetry.")
+ENDOTHERMIC_CAUTION = ("This step was declared heat-absorbing (endothermic): 'adequate' here means only that "
+                       "the cooling does not limit it. Make sure the sign is right: an exothermic step entered "
+                       "with a positive enthalpy would be checked as if it needed no cooling.")
 
 
 @dataclass(frozen=True)
@@ -321,4 +324,6 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                                                    deadline),
                         _required_flow(vessel, charge, coolant, process_temperature, target, result, deadline))
     cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ())
+    if getattr(heat_release, "endothermic", False):
+        cautions += (ENDOTHERMIC_CAUTION,)
     return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings, cautions)
