@@ -13,6 +13,7 @@ import time
 from gunicorn import glogging
 from gunicorn.workers.gthread import ThreadWorker
 
+from api.logs import JsonFormatter
 from api.runtime import SERVING
 
 
@@ -99,7 +100,14 @@ class _JsonAtoms(glogging.SafeAtoms):
 
 
 class _JsonAccessLogger(glogging.Logger):
+    """Access log lines in access_log_format; gunicorn's error log as JSON lines too (api/logs.py)."""
+
     atoms_wrapper_class = _JsonAtoms
+
+    def setup(self, cfg):
+        super().setup(cfg)
+        for handler in self.error_log.handlers:
+            handler.setFormatter(JsonFormatter())
 
 
 logger_class = _JsonAccessLogger
