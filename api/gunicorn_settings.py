@@ -10,7 +10,7 @@ import re
 import tempfile
 import time
 
-from gunicorn import glogging
+from gunicorn import glogging, util
 from gunicorn.workers.gthread import ThreadWorker
 
 from api.logs import JsonFormatter
@@ -40,6 +40,19 @@ threads = _int("COOLMARGIN_THREADS", 16)
 # After SIGTERM a worker keeps serving for this many seconds while /ready answers 503 (draining), so a
 # load balancer stops sending before the listener closes; then in-flight requests finish (graceful_timeout).
 drain_seconds = float(os.environ.get("COOLMARGIN_DRAIN_SECONDS", 5))
+
+
+def _write_problem(sock, status_int, reason, mesg):
+    """gunicorn's own refusals (malformed request, 414, 431, ...) as RFC 9457 problem+json, not HTML."""
+    body = json.dumps({"type": "about:blank", "title": reason, "status": status_int,
+                       "detail": mesg or reason, "errors": []}).encode()
+    head = (f"HTTP/1.1 {status_int} {reason}\r\nConnection: close\r\nContent-Type: application/problem+json\r\n"
+            f"X-Content-Type-Options: nosniff\r\nContent-Length: {len(body)}\r\n\r\n")
+    util.write_nonblock(sock, head.encode("latin-1") + body)
+
+
+# gunicorn writes these answers through this one function (gunicorn.workers.base.Worker.handle_error)
+util.write_error = _write_problem
 
 
 class DrainingThreadWorker(ThreadWorker):
