@@ -12,6 +12,7 @@ from flask import Flask, g, request
 from calc.checks import scaleup
 
 from . import errors, limits, runtime, security
+from .logs import JsonFormatter, RequestIdFilter
 
 try:
     VERSION = metadata.version("coolmargin")
@@ -54,24 +55,14 @@ def _from_environment() -> dict:
     return settings
 
 
-class _RequestIdFilter(logging.Filter):
-    def filter(self, record: logging.LogRecord) -> bool:
-        if not hasattr(record, "request_id"):
-            try:
-                record.request_id = g.get("request_id", "-")
-            except RuntimeError:  # outside a request
-                record.request_id = "-"
-        return True
-
-
 def _configure_logging(level: str) -> None:
     """The service logger: one handler (added once per process) and the level the app is configured with."""
     logger = logging.getLogger("coolmargin")
     if not logger.handlers:
         handler = logging.StreamHandler()
-        handler.setFormatter(logging.Formatter("%(asctime)s %(levelname)s [%(request_id)s] %(name)s: %(message)s"))
-        handler.addFilter(_RequestIdFilter())
+        handler.setFormatter(JsonFormatter())  # JSON lines, like the access log, with the request id
         logger.addHandler(handler)
+        logger.addFilter(RequestIdFilter())
         logger.propagate = False
     logger.setLevel(level.upper())
 
@@ -101,8 +92,8 @@ def create_app(config: dict | None = None) -> Flask:
     security.register(app)  # after the request-id hook: refusals carry the request id
     runtime.register(app)  # after authentication: a refused request reads no body and takes no slot
 
-    from . import agitation, cooling, geometry, heat_transfer, probes, properties, safety
+    from . import agitation, cooling, geometry, heat_transfer, probes, properties, safety, sizing
 
-    for module in (probes, properties, geometry, agitation, heat_transfer, cooling, safety):
+    for module in (probes, properties, geometry, agitation, heat_transfer, cooling, sizing, safety):
         app.register_blueprint(module.bp)
     return app

@@ -30,7 +30,7 @@ _scale_request, _scale_result = ScaleUpRequestSchema(), ScaleUpResultSchema()
 def _scale_up(args: dict) -> scaleup.ScaleUp:
     return scaleup.scale_up(args["reference"], args["targets"], args["rule"], args["charge"], args["coolant"],
                             args["process_temperature"], args["heat_release"], args["safety_factor"],
-                            args["coolant_flow_rule"], deadline=deadline(),
+                            args["coolant_flow_rule"], deadline=deadline(), size_jacket=args["size_jacket"],
                             max_targets=int(current_app.config["MAX_SCALES"]))
 
 

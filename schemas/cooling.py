@@ -7,6 +7,7 @@ from calc.checks import cooling_check, heat_load
 from calc.checks import scaleup
 
 from .base import StrictSchema, finite_float
+from .candidates import SizedDesignSchema
 from .heat_transfer import HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema
 from .units import Quantity, absolute_temperature
 from .vessel import CoolantSchema, VesselSchema, require_agitator
@@ -96,6 +97,9 @@ class ScaleUpRequestSchema(StrictSchema):
     process_temperature = HeatTransferRequestSchema._declared_fields["process_temperature"]
     heat_release = fields.Nested(HeatReleaseSchema, required=True)
     safety_factor = CoolingCheckRequestSchema._declared_fields["safety_factor"]
+    size_jacket = fields.Boolean(load_default=False,
+                                 metadata={"description": "design the smallest feasible jacket or coil for each "
+                                                          "generated scale (as /v1/jacket-sizing with its defaults)"})
     coolant_flow_rule = fields.String(load_default="scale_with_area",
                                       validate=validate.OneOf(scaleup.COOLANT_FLOW_RULES),
                                       metadata={"description": "coolant flow at each scale: in proportion to the "
@@ -155,6 +159,8 @@ class ScaleSchema(CoolingCheckResultSchema):
     area_per_volume = Quantity("area per volume")
     overall_coefficient = Quantity("heat-transfer coefficient")
     controlling = fields.String()
+    jacket_design = fields.Nested(SizedDesignSchema, allow_none=True,
+                                  metadata={"description": "with size_jacket: the design sized for this scale"})
 
     def get_attribute(self, obj, attr, default):
         if attr in _CHECK_ATTRIBUTES:

@@ -128,6 +128,11 @@ class StreamSchema(StrictSchema):
                                                attribute="balance.log_mean_temperature_difference")
     service_velocity = Quantity("velocity", allow_none=True)
     service_reynolds = fields.Float(allow_none=True)
+    pressure_drop = Quantity("pressure", allow_none=True,
+                             description="supply-to-return pressure drop of the circuit (one zone of a jacket "
+                                         "in parallel zones): channel friction plus nozzle and fitting losses")
+    velocity = Quantity("velocity", allow_none=True, description="mean coolant velocity in the channel")
+    path_length = Quantity("length", allow_none=True, description="length of the coolant's path through one zone")
 
 
 class HeatTransferResultSchema(StrictSchema):

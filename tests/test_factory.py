@@ -56,12 +56,12 @@ def test_no_state_outlives_its_app():
 
     from api import security
 
-    before = len(security._APP_SECRETS)
+    before = len(security._LIVE_TOKENS)
     app = create_app({"AUTH_TOKENS": "temporary-secret-token-1234"})
     assert security.redact("seen temporary-secret-token-1234") == "seen [redacted]"
     del app
     gc.collect()
-    assert len(security._APP_SECRETS) <= before
+    assert len(security._LIVE_TOKENS) <= before
     assert "temporary-secret-token-1234" in security.redact("seen temporary-secret-token-1234")
     create_app({"LOG_LEVEL": "WARNING"})
     assert logging.getLogger("coolmargin").level == logging.WARNING

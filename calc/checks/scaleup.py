@@ -44,6 +44,7 @@ from calc.checks.cooling_check import (DEFAULT_SAFETY_FACTOR, CoolingCheck, _che
                                        cooling_check, evaluate, margin_of)
 from calc.checks.heat_load import HeatRelease
 from calc.properties import LiquidProperties
+from calc.sizing.jacket_sizing import SizedDesign, jacket_sizing
 from calc.validity import CalcWarning, CalculationError, InputError, TooLarge, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
 
@@ -74,6 +75,7 @@ class ScaleResult:
     vessel: Vessel
     coolant: Coolant
     check: CoolingCheck
+    jacket_design: SizedDesign | None = None  # when sizing was asked for
 
     @property
     def diameter(self) -> float:
@@ -316,7 +318,7 @@ def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_f
 def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coolant, process_temperature: float,
              heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
              coolant_flow_rule: str = "scale_with_area", limits: bool = True,
-             deadline: Deadline = NEVER, max_targets: int = MAX_TARGETS) -> ScaleUp:
+             deadline: Deadline = NEVER, size_jacket: bool = False, max_targets: int = MAX_TARGETS) -> ScaleUp:
     """Cooling checks of the reference and each target, and the largest adequate similar vessel.
 
     ``charge``, ``coolant`` and ``heat_release`` describe the reference scale; see the module notes
@@ -324,6 +326,9 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
     Every scale and every step of the family search first checks ``deadline``
     (:class:`calc.deadline.OutOfTime` once it has passed). More than ``max_targets`` targets raise
     :class:`calc.validity.TooLarge`.
+    ``size_jacket``: each generated scale also gets the smallest feasible jacket or coil designed for it
+    (:func:`calc.sizing.jacket_sizing.jacket_sizing` on its shell, with its coolant and heat release, default
+    candidates), beside the check of the reference's jacket scaled by similarity.
     """
     if rule not in RULES:
         raise InputError("rule", f"unknown scale-up rule {rule!r}; known rules: {', '.join(RULES)}")
@@ -359,8 +364,12 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
                 case = replace(case, coolant=own_coolant)
         check = cooling_check(case.vessel, case.charge, case.coolant, process_temperature, case.heat_release,
                               safety_factor, limits, deadline)
+        design = None
+        if size_jacket and generated:
+            design = jacket_sizing(case.vessel, case.charge, case.coolant, process_temperature, case.heat_release,
+                                   safety_factor, deadline=deadline).recommended
         scales.append(ScaleResult(case.vessel.name, case.volume, case.charge_volume, case.scale_factor, generated,
-                                  case.vessel.agitator.speed, case.vessel, case.coolant, check))
+                                  case.vessel.agitator.speed, case.vessel, case.coolant, check, design))
 
     largest_target = max((s.volume for s in scales), default=ref.volume)
     upper = max(ref.volume * SEARCH_RATIO, 10.0 * largest_target)
