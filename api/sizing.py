@@ -2,7 +2,7 @@
 from flask import Blueprint
 
 from calc.sizing import jacket_sizing as sizing
-from schemas.sizing import JacketSizingRequestSchema, JacketSizingResultSchema, jacket_sizing_view
+from schemas.sizing import JacketSizingRequestSchema, JacketSizingResultSchema
 
 from . import charts
 from .http import calculate
@@ -13,10 +13,9 @@ _request, _result = JacketSizingRequestSchema(), JacketSizingResultSchema()
 MARKERS = {"annular": "o", "annular_spiral_baffle": "s", "half_pipe": "^", "coil": "D", "jacket_and_coil": "P"}
 
 
-def _size(args: dict):
-    result = sizing.jacket_sizing(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
-                                  args["heat_release"], args["safety_factor"], args["options"], deadline=deadline())
-    return jacket_sizing_view(result)
+def _size(args: dict) -> sizing.JacketSizing:
+    return sizing.jacket_sizing(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
+                                args["heat_release"], args["safety_factor"], args["options"], deadline=deadline())
 
 
 def sizing_chart(payload: dict, fmt: str) -> bytes:

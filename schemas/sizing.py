@@ -80,7 +80,7 @@ class SmallestFeasibleSchema(StrictSchema):
 
 class JacketSizingResultSchema(StrictSchema):
     recommendation = fields.Nested(RecommendationSchema)
-    smallest_feasible = fields.List(fields.Nested(SmallestFeasibleSchema))
+    smallest_feasible = fields.List(fields.Nested(SmallestFeasibleSchema), attribute="smallest_feasible_by_type")
     candidates_evaluated = fields.Integer()
     duty = Quantity("power", metadata={"description": "heat load times the safety factor"})
     safety_factor = fields.Float()
@@ -89,11 +89,3 @@ class JacketSizingResultSchema(StrictSchema):
     warnings = fields.List(fields.Nested(WarningSchema))
     cautions = fields.List(fields.String())
 
-
-def jacket_sizing_view(result) -> dict:
-    """The few fields of a calc JacketSizing that are not its own attributes, beside the dataclass."""
-    return {"recommendation": result.recommendation, "candidates": result.candidates,
-            "smallest_feasible": [{"type": k, "index": v} for k, v in result.smallest_feasible.items()],
-            "candidates_evaluated": len(result.candidates), "duty": result.duty,
-            "safety_factor": result.safety_factor, "heat_load": result.heat_load,
-            "warnings": list(result.warnings), "cautions": list(result.cautions)}

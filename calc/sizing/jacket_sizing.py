@@ -138,6 +138,12 @@ class SizedDesign:
 
 
 @dataclass(frozen=True)
+class SmallestFeasible:
+    type: str
+    index: int | None
+
+
+@dataclass(frozen=True)
 class JacketSizing:
     candidates: tuple[Candidate, ...]
     recommendation: Recommendation
@@ -147,6 +153,15 @@ class JacketSizing:
     safety_factor: float
     warnings: Warnings = field(default_factory=Warnings)
     cautions: tuple[str, ...] = COOLING_CHECK + (SIZING_CAUTION,)
+
+    @property
+    def candidates_evaluated(self) -> int:
+        return len(self.candidates)
+
+    @property
+    def smallest_feasible_by_type(self) -> tuple[SmallestFeasible, ...]:
+        """For each type of design, the index of its smallest feasible candidate (None: none feasible)."""
+        return tuple(SmallestFeasible(kind, index) for kind, index in self.smallest_feasible.items())
 
     @property
     def recommended(self) -> SizedDesign:
