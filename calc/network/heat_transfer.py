@@ -320,12 +320,17 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     states at once (grids, limits, candidates, fleets) see ``calc.network.vectorised``; a test keeps
     the two in agreement.
     """
-    network = assemble(vessel, charge, coolant, process_temperature)
+    return solve(assemble(vessel, charge, coolant, process_temperature))
+
+
+def solve(network: Network) -> HeatTransferResult:
+    """Solve an assembled network (one state, the scalar path)."""
     warnings = Warnings(network.warnings)
-    streams = tuple(_solve_stream(stream.name, list(stream.surfaces), charge, coolant, stream.mass_flow,
-                                  process_temperature, vessel.fouling, warnings) for stream in network.streams)
-    return HeatTransferResult(process_temperature, network.process_properties, network.fill, network.agitation,
-                              streams, warnings)
+    streams = tuple(_solve_stream(stream.name, list(stream.surfaces), network.charge, network.coolant,
+                                  stream.mass_flow, network.process_temperature, network.vessel.fouling, warnings)
+                    for stream in network.streams)
+    return HeatTransferResult(network.process_temperature, network.process_properties, network.fill,
+                              network.agitation, streams, warnings)
 
 
 
