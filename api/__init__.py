@@ -21,6 +21,7 @@ DEFAULTS = {
     "MAX_NESTING_DEPTH": 32,  # levels of JSON objects/arrays
     "MAX_BATCH_CASES": 50,  # cases in one {"cases": [...]} call
     "MAX_SCALES": 20,  # targets in one scale-up
+    "MAX_WINDOW_POINTS": 2500,  # grid points in one operating window
     "MAX_SERIES_POINTS": 2000,  # points in a returned time series
     "MAX_SIMULATION_HORIZON": 7 * 24 * 3600.0,  # s of simulated time
     "SIMULATION_WALL_TIME": 10.0,  # s of computing per simulation request
@@ -88,8 +89,8 @@ def create_app(config: dict | None = None) -> Flask:
 
     security.register(app)  # after the request-id hook: refusals carry the request id
 
-    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service
+    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service, window
 
-    for module in (service, properties, geometry, agitation, heat_transfer, cooling, safety):
+    for module in (service, properties, geometry, agitation, heat_transfer, cooling, window, safety):
         app.register_blueprint(module.bp)
     return app

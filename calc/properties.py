@@ -145,7 +145,11 @@ def liquid_range(fluid: str, mass_fraction: float | None = None,
             if pressure >= state.p_critical():
                 high = state.T_critical()
             else:
-                state.update(CP.PQ_INPUTS, pressure, 0.0)
+                try:
+                    state.update(CP.PQ_INPUTS, pressure, 0.0)
+                except ValueError as exc:  # e.g. below the triple-point pressure: no liquid at all
+                    raise InputError("pressure", f"{info.name} has no liquid state at {pressure:.4g} Pa "
+                                                 f"({exc})") from None
                 high = state.T()
         else:
             state.update(CP.PT_INPUTS, pressure, 0.5 * (state.Tmin() + state.Tmax()))

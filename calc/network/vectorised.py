@@ -147,7 +147,8 @@ class Prepared:
                 flow = stream.mass_flow
                 if volume:
                     flow = coolant.flow if stream.name == "jacket" or coolant.coil_flow is None else coolant.coil_flow
-                streams_t.append((flow, volume, coolant_i, network.process_temperature))
+                follows = stream.name == "jacket" or coolant.coil_flow is None  # moves with coolant.flow
+                streams_t.append((flow, volume, coolant_i, network.process_temperature, follows))
                 for model in stream.surfaces:
                     film = model.process_film(props.viscosity)  # at ratio 1: the correlation's other arguments
                     layer, _ = wall.wall_layers(model.wall, network.vessel.fouling, model.process_radius,
@@ -159,8 +160,8 @@ class Prepared:
             self.network_local.append(np.searchsorted(streams, [surfaces_t[t][0] for t in surfaces]).astype(int))
         self.charge_liquids, self.coolant_liquids = charge_liquids, coolant_liquids
         if streams_t:
-            flows, per_volume, coolant_of, temperatures = (np.array(column) for column in zip(*streams_t))
-            self.flows, self.per_volume = flows.astype(float), per_volume.astype(bool)
+            flows, per_volume, coolant_of, temperatures, follows = (np.array(column) for column in zip(*streams_t))
+            self.flows, self.per_volume, self.follows = flows.astype(float), per_volume.astype(bool), follows.astype(bool)
             self.coolant_of, self.temperatures = coolant_of.astype(int), temperatures.astype(float)
         if not surfaces_t:
             return
@@ -194,8 +195,13 @@ class Prepared:
         self.coolant_range = np.array([_range(liquid) for liquid in coolant_liquids]) + [1e-3, -1e-2]
         self.charge_range = np.array([_range(liquid) for liquid in charge_liquids]) + [1e-3, -1e-2]
 
-    def solve(self, network_index=None, inlet_temperature=None, flow_factor=None) -> ManyResult:
-        """Solve N states; see the module notes for the arguments."""
+    def solve(self, network_index=None, inlet_temperature=None, flow_factor=None,
+              coil_flow_factor=None) -> ManyResult:
+        """Solve N states; see the module notes for the arguments.
+
+        ``coil_flow_factor`` (default: ``flow_factor``) multiplies the flow of coils that have a flow of
+        their own (``coolant.coil_flow``); coils without one follow the jacket's ``flow_factor``.
+        """
         networks = self.networks
         if network_index is None:
             network_index = np.arange(len(networks))
@@ -207,6 +213,8 @@ class Prepared:
             if inlet_temperature is None else np.broadcast_to(np.asarray(inlet_temperature, dtype=float), (size,))
         factor = np.ones(size) if flow_factor is None else \
             np.broadcast_to(np.asarray(flow_factor, dtype=float), (size,))
+        coil_factor = factor if coil_flow_factor is None else \
+            np.broadcast_to(np.asarray(coil_flow_factor, dtype=float), (size,))
 
         # rows: one per stream of each state, one per surface of each stream (a stream's surfaces adjacent)
         stream_rows, stream_state, surface_rows, surface_stream = [], [], [], []
@@ -236,9 +244,11 @@ class Prepared:
         if len(networks) > 1:
             order = np.argsort(sid, kind="stable")  # a stream's surfaces adjacent, in their own order
             tsurface, sid = tsurface[order], sid[order]
-        return self._iterate(size, network_index, inlet, factor, tstream, stream_state, tsurface, sid, first_stream)
+        return self._iterate(size, network_index, inlet, factor, coil_factor, tstream, stream_state, tsurface, sid,
+                             first_stream)
 
-    def _iterate(self, size, network_index, inlet, factor, tstream, stream_state, tsurface, sid, first_stream):
+    def _iterate(self, size, network_index, inlet, factor, coil_factor, tstream, stream_state, tsurface, sid,
+                 first_stream):
         n_streams = tstream.size
         t_in = inlet[stream_state]
         t_r = self.temperatures[tstream]
@@ -247,7 +257,7 @@ class Prepared:
         m = self.flows[tstream]
         if self.per_volume.any():
             m = np.where(self.per_volume[tstream], m * coolant.states(t_in).density, m)
-        m = m * factor[stream_state]
+        m = m * np.where(self.follows[tstream], factor[stream_state], coil_factor[stream_state])
         area = self.area[tsurface]
         mu_bulk = self.mu_bulk[tsurface]
         k_bulk = self.k_bulk[tsurface]
