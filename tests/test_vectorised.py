@@ -11,6 +11,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from marshmallow import ValidationError
 from hypothesis import given, settings, strategies as st
 
 from calc.films import jacket_side
@@ -54,8 +55,12 @@ def _example_states():
                 states += [(path.name, v, args["charge"], args["coolant"], args["process_temperature"])
                            for v in vessels if hasattr(v, "shape")]
             elif {"vessel", "charge", "coolant", "process_temperature"} <= set(body):
+                body.pop("axes", None)  # an operating window: its check's state
                 schema = CoolingCheckRequestSchema() if "heat_release" in body else HeatTransferRequestSchema()
-                args = schema.load(body)
+                try:
+                    args = schema.load(body)
+                except ValidationError:  # another resource's request (e.g. jacket sizing): not a network state
+                    continue
                 states.append((path.name, args["vessel"], args["charge"], args["coolant"], args["process_temperature"]))
     return states
 
@@ -81,7 +86,7 @@ def test_every_example_and_neighbouring_states_agree_with_the_scalar_path(name, 
 def test_examples_together_in_one_pass_agree_one_by_one():
     # N different vessels (and coolants, contents) in one call: the sizing and screening use
     many = heat_transfer_many([s[1:] for s in EXAMPLE_STATES] * 2)
-    assert len(many) == 2 * len(EXAMPLE_STATES) and len(many.networks) == len(EXAMPLE_STATES)
+    assert len(many) == 2 * len(EXAMPLE_STATES) and len(many.networks) <= len(EXAMPLE_STATES)  # equal ones once
     for i, (_, vessel, charge, coolant, process) in enumerate(EXAMPLE_STATES * 2):
         _agree(many, i, heat_transfer(vessel, charge, coolant, process))
 

@@ -11,20 +11,27 @@ covers the +-25-30 % scatter of the published film correlations). When the load 
 negative nothing needs removing: the margin is reported as None (unbounded), never as infinity,
 and the vessel is adequate.
 
-Three limits are solved (not estimated) for the safety factor given, each on the whole heat-transfer
-network, because properties, films and U change with the quantity varied. The two that need the network
-are searched together on the vectorised network (``calc.network.vectorised``): each pass solves every
-candidate of both in one call, a grid around the closed-form estimates until the sign changes, then
-Newton steps with slopes from neighbouring points (three or four passes in all, instead of a dozen
-scalar solves):
+Three limits are solved (not estimated) for the safety factor given, each by re-running the whole
+heat-transfer network, because properties, films and U change with the quantity varied:
 
 * ``minimum_dosing_time`` (dosing model only): Q_load(t) = A / t + P_agitator with
   A = -dH n - m_feed c_p,feed (T_r - T_feed), so t_min = A / (Q_capacity / SF - P_agitator)
   (closed form; the capacity does not depend on the dosing time at a steady T_r).
 * ``maximum_coolant_inlet_temperature``: the inlet temperature between just above the coolant's
   freezing point and T_r (the capacity falls to zero as the inlet approaches T_r), to 1e-9 K.
-* ``required_coolant_flow``: log(jacket mass flow), to 1e-10; coil flows change in proportion. The capacity rises with flow toward the limit set by the area and the process film;
-  the search stops at :data:`FLOW_SEARCH_CAP` times the given flow.
+* ``required_coolant_flow``: log(jacket mass flow), to 1e-10; coil flows change in proportion. The
+  capacity rises with flow toward the limit set by the area and the process film; the search stops at
+  the largest flow the utility can push (its available pressure difference, maximum velocity and maximum
+  flow: :mod:`calc.network.flow_limit`), or, when the utility gives no limit, at
+  :data:`FLOW_SEARCH_CAP` times the given flow (with a warning).
+
+Both are searched together on the vectorised network (``calc.network.vectorised``): each pass solves
+every candidate of both in one call, a grid around the closed-form estimates until the sign changes,
+then Newton steps with slopes from neighbouring points (three or four passes in all, instead of a
+dozen scalar solves).
+
+When the given flow is beyond the utility's limits, the coolant-temperature limit is solved at the
+largest flow the utility allows, and the check warns (the capacity itself stays at the given flow).
 """
 from __future__ import annotations
 
@@ -33,17 +40,19 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from calc.deadline import NEVER, Deadline
 from calc.network import coolant_balance, vectorised
 from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
+from calc.network.flow_limit import FlowLimit, flow_limit
 from calc.network.heat_transfer import HeatTransferResult, Network, assemble, heat_transfer, solve
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
 
 #: Safety factor on the heat load when none is given (common practice, no source).
 DEFAULT_SAFETY_FACTOR = 1.3
-#: The flow search stops at this multiple of the given coolant flow; the capacity there is reported as
-#: the limit set by the area and the process film (common practice, no source: a jacket's flow can
-#: rarely be raised by two orders of magnitude).
+#: Without utility limits the flow search stops at this multiple of the given coolant flow; the capacity
+#: there is reported as the limit set by the area and the process film (common practice, no source: a
+#: jacket's flow can rarely be raised by two orders of magnitude).
 FLOW_SEARCH_CAP = 100.0
 #: The inlet-temperature search starts this far above the coolant's freezing point, K.
 FREEZING_OFFSET = 0.1
@@ -66,6 +75,9 @@ CAUTIONS = (
 DOSING_CAUTION = ("The dosing model assumes the feed reacts as it is added. Any unreacted feed that "
                   "accumulates releases more heat later and is not in this load: check accumulation "
                   "by calorimetry.")
+ENDOTHERMIC_CAUTION = ("This step was declared heat-absorbing (endothermic): 'adequate' here means only that "
+                       "the cooling does not limit it. Make sure the sign is right: an exothermic step entered "
+                       "with a positive enthalpy would be checked as if it needed no cooling.")
 
 
 @dataclass(frozen=True)
@@ -246,7 +258,7 @@ RESIDUAL_TOLERANCE = 1e-11
 MAX_PASSES = 16
 
 
-def _search(searches: list[_Search], evaluate) -> None:
+def _search(searches: list[_Search], evaluate, deadline: Deadline = NEVER) -> None:
     """Run the searches together: each pass gathers every search's next points and solves them in one call.
 
     ``evaluate(points)`` takes [(search index, x), ...] and returns the residuals. The secant root of a
@@ -254,6 +266,7 @@ def _search(searches: list[_Search], evaluate) -> None:
     shrinks the bracket to ``SPREAD`` of its width or better; three or four passes reach ``xtol``.
     """
     for _ in range(MAX_PASSES):
+        deadline.check()
         wanted = [(i, x) for i, search in enumerate(searches) if not search.done
                   for x in search.next_points(SPREAD)]
         if not wanted:
@@ -265,10 +278,9 @@ def _search(searches: list[_Search], evaluate) -> None:
         raise CalculationError(f"limit search did not converge in {MAX_PASSES} passes")
 
 
-def _limit_searches(network: Network, result: HeatTransferResult, target: float, capacity: float
-                    ) -> tuple[_Search, _Search, str]:
-    """The inlet-temperature and flow searches of one check (see the module notes), and the inlet's floor."""
-    coolant, process_temperature = network.coolant, network.process_temperature
+def _inlet_search(network: Network, coolant: Coolant, target: float, capacity: float) -> tuple[_Search, str]:
+    """The inlet-temperature search at ``coolant``'s flow, given the capacity at its own inlet."""
+    process_temperature = network.process_temperature
     liquid_range = getattr(coolant.liquid, "liquid_range", None)
     if liquid_range is not None:
         freezing, boiling = liquid_range()
@@ -285,60 +297,80 @@ def _limit_searches(network: Network, result: HeatTransferResult, target: float,
     # that estimate is close, since U changes little with the inlet temperature.
     driving = process_temperature - given
     estimate = process_temperature - driving * target / capacity if capacity > 0.0 else low
-    inlet = _Search(low, high, min(max(estimate, low), high), 0.01 * driving, False, 1e-9,
-                    {given: capacity / target - 1.0})
-    log_given = math.log(coolant.mass_flow())
+    return _Search(low, high, min(max(estimate, low), high), 0.01 * driving, False, 1e-9,
+                   {given: capacity / target - 1.0}), floor
+
+
+def _solve_limits(network: Network, result: HeatTransferResult, target: float, limit: FlowLimit,
+                  deadline: Deadline = NEVER) -> tuple[Limit, Limit]:
+    """Warmest coolant inlet and required coolant flow, searched together on the vectorised network."""
+    coolant = network.coolant
+    given = coolant.mass_flow()
+    log_given = math.log(given)
+    prepared = vectorised.Prepared([network])
+    capacity = result.duty
+    inlet_flow = 1.0  # the inlet-temperature limit's flow, over the given
+    at_flow = "at the given flow"
+    if limit.mass_flow is not None and limit.mass_flow < given:
+        inlet_flow = limit.mass_flow / given
+        capacity = float(prepared.solve(np.zeros(1, dtype=int), None, np.array([inlet_flow])).duty[0])
+        at_flow = (f"at {limit.mass_flow:.4g} kg/s, the largest flow within {limit.reason} "
+                   "(the given flow is beyond it)")
+    inlet, floor = _inlet_search(network, coolant, target, capacity)
     estimate = math.log(_flow_estimate(result, target)) if result.streams else log_given
-    high = log_given + math.log(FLOW_SEARCH_CAP)
+    high = math.log(given * FLOW_SEARCH_CAP if limit.mass_flow is None else limit.mass_flow)
     low = log_given - 30.0 * math.log(10.0)
     # U A rises with the flow, so the fixed-U A estimate is low; the grid around it brackets the root
     flow = _Search(low, high, min(max(estimate, low), high), math.log(1.2), True, 1e-10,
-                   {log_given: capacity / target - 1.0})
-    return inlet, flow, floor
-
-
-def _solve_limits(network: Network, result: HeatTransferResult, target: float, capacity: float
-                  ) -> tuple[Limit, Limit]:
-    """Warmest coolant inlet and required coolant flow, searched together on the vectorised network."""
-    inlet, flow, floor = _limit_searches(network, result, target, capacity)
-    log_given = math.log(network.coolant.mass_flow())
-    prepared = vectorised.Prepared([network])
+                   {log_given: result.duty / target - 1.0} if log_given <= high else {})
+    if not flow.known:  # the given flow is beyond the utility's limit: start from the limit
+        flow.known[high] = float(prepared.solve(np.zeros(1, dtype=int), None,
+                                                np.array([math.exp(high - log_given)])).duty[0]) / target - 1.0
 
     def evaluate(points):
-        inlets = np.array([x if i == 0 else network.coolant.inlet_temperature for i, x in points])
-        factors = np.array([1.0 if i == 0 else math.exp(x - log_given) for i, x in points])
+        inlets = np.array([x if i == 0 else coolant.inlet_temperature for i, x in points])
+        factors = np.array([inlet_flow if i == 0 else math.exp(x - log_given) for i, x in points])
         return prepared.solve(np.zeros(len(points), dtype=int), inlets, factors).duty / target - 1.0
 
-    _search([inlet, flow], evaluate)
+    _search([inlet, flow], evaluate, deadline)
     if inlet.root is None and inlet.value >= 0.0:
         warmest = Limit(inlet.high, True, "every inlet temperature up to the process temperature (or the coolant's "
                                           "boiling point) removes the load with the safety factor",
                         (inlet.value + 1.0) * target)
     elif inlet.root is None:
         warmest = Limit(None, False, f"not reachable: even a coolant inlet just above {floor} does not remove "
-                                     "the load with the safety factor", (inlet.value + 1.0) * target)
+                                     f"the load with the safety factor {at_flow}", (inlet.value + 1.0) * target)
     else:
         warmest = Limit(inlet.root, True, "warmest coolant inlet that removes the load with the safety factor "
-                                          "at the given flow", (inlet.value + 1.0) * target)
+                                          f"{at_flow}", (inlet.value + 1.0) * target)
     if flow.root is None and flow.value < 0.0:
-        needed = Limit(None, False, "not reachable at any flow: the area and process film limit the capacity "
-                                    f"(shown at {FLOW_SEARCH_CAP:g} times the given flow)",
-                       (flow.value + 1.0) * target)
+        if limit.mass_flow is not None:
+            needed = Limit(None, False, f"not reachable within {limit.reason}: the largest flow it allows "
+                                        f"({limit.mass_flow:.4g} kg/s) does not remove the load with the safety "
+                                        "factor (capacity shown at that flow)", (flow.value + 1.0) * target)
+        else:
+            needed = Limit(None, False, "not reachable at any flow: the area and process film limit the capacity "
+                                        f"(shown at {FLOW_SEARCH_CAP:g} times the given flow; the utility gave no "
+                                        "available pressure difference, maximum velocity or maximum flow)",
+                           (flow.value + 1.0) * target)
     elif flow.root is None:  # pragma: no cover - capacity ~ m c_p (T_r - T_in) vanishes long before 1e-30 of the flow
         raise CalculationError("required coolant flow: no flow low enough to fall short of the load")
     else:
+        within = "" if limit.mass_flow is None else f", within {limit.reason} (at most {limit.mass_flow:.4g} kg/s)"
         needed = Limit(math.exp(flow.root), True, "jacket coolant mass flow that removes the load with the safety "
-                                                  "factor (coil flows in proportion)", (flow.value + 1.0) * target)
+                                                  f"factor (coil flows in proportion){within}",
+                       (flow.value + 1.0) * target)
     return warmest, needed
 
 
 def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
                   heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
-                  limits: bool = True) -> CoolingCheck:
+                  limits: bool = True, deadline: Deadline = NEVER) -> CoolingCheck:
     """Compare the cooling capacity at ``process_temperature`` (K) with the heat load.
 
     ``limits=False`` skips the three solved limits (``CoolingCheck.limits`` is then None), for
-    callers that need only the verdict.
+    callers that need only the verdict. The limit searches stop with :class:`calc.deadline.OutOfTime`
+    once ``deadline`` has passed.
     """
     safety_factor = _check_safety_factor(safety_factor)
     network = assemble(vessel, charge, coolant, process_temperature)
@@ -356,8 +388,14 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                                  "is unbounded (reported as null)"))
     stream = result.stream("jacket") or (result.streams[0] if result.streams else None)
     outlet = stream.balance.outlet_temperature if stream is not None else None
+    total_flow = sum(s.mass_flow for s in result.streams)
+    maximum = coolant.maximum_mass_flow()
+    if maximum is not None and total_flow > maximum * (1 + 1e-9):
+        warnings.add(CalcWarning("flow_exceeds_maximum", f"the coolant flow to all circuits ({total_flow:.4g} kg/s) "
+                                                         f"exceeds the utility's maximum ({maximum:.4g} kg/s)"))
     solved = None
     if limits:
+        limit = flow_limit(result.streams, coolant)
         target = safety_factor * load.total
         dosing = None
         if isinstance(heat_release, Dosing):
@@ -367,7 +405,9 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                                                        "will do")
             needed = Limit(0.0, True, "no net heat load: no coolant flow is needed")
         else:
-            warmest, needed = _solve_limits(network, result, target, capacity)
+            warmest, needed = _solve_limits(network, result, target, limit, deadline)
         solved = Limits(dosing, warmest, needed)
     cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ())
+    if getattr(heat_release, "endothermic", False):
+        cautions += (ENDOTHERMIC_CAUTION,)
     return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings, cautions)
