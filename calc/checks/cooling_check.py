@@ -234,9 +234,7 @@ class _Search:
         if self.known[best] == 0.0 or abs(self.known[best]) < RESIDUAL_TOLERANCE or b - a <= self.xtol:
             self.root, self.value, self.done = best, self.known[best], True
             return []
-        neighbour = min((x for x in points if x != best), key=lambda x: abs(x - best))
-        slope = (self.known[neighbour] - self.known[best]) / (neighbour - best)
-        x = best - self.known[best] / slope if slope != 0.0 else None
+        x = _newton_step(best, points, self.known)
         wanted = set()
         if x is None or not a < x < b:
             x = a - fa * (b - a) / (fb - fa)
@@ -249,11 +247,38 @@ class _Search:
         return sorted(wanted - set(self.known))
 
 
+def _newton_step(best: float, points: list[float], known: dict) -> float | None:
+    """Root near ``best`` of the parabola through it and its nearest evaluated neighbours (the line through
+    one neighbour when it has only one), by Newton's method on that model; None when it is flat."""
+    near = sorted(sorted((x for x in points if x != best), key=lambda x: abs(x - best))[:2] + [best])
+    if len(near) < 2:
+        return None
+    if len(near) == 2:
+        (x0, x1), f0, f1 = near, known[near[0]], known[near[1]]
+        slope = (f1 - f0) / (x1 - x0)
+        return best - known[best] / slope if slope != 0.0 else None
+    x0, x1, x2 = near
+    d01 = (known[x1] - known[x0]) / (x1 - x0)
+    d12 = (known[x2] - known[x1]) / (x2 - x1)
+    curvature = (d12 - d01) / (x2 - x0)
+    x = best
+    for _ in range(8):  # on the model only: cheap
+        value = known[x0] + d01 * (x - x0) + curvature * (x - x0) * (x - x1)
+        slope = d01 + curvature * (2.0 * x - x0 - x1)
+        if slope == 0.0:
+            return None
+        step = value / slope
+        x -= step
+        if abs(step) <= 1e-15 * max(abs(x), 1.0):
+            break
+    return x
+
+
 #: The neighbours of each Newton point sit this share of its step away.
 SPREAD = 0.02
 #: A limit is solved when capacity / target - 1 is this small (the margin then equals the safety factor to
 #: this relative precision).
-RESIDUAL_TOLERANCE = 1e-11
+RESIDUAL_TOLERANCE = 1e-8
 #: Most passes of the limit search (each pass solves every candidate of every limit in one vector call).
 MAX_PASSES = 16
 
@@ -308,6 +333,7 @@ def _solve_limits(network: Network, result: HeatTransferResult, target: float, l
     given = coolant.mass_flow()
     log_given = math.log(given)
     prepared = vectorised.Prepared([network])
+    prepared.warm_start([result])
     capacity = result.duty
     inlet_flow = 1.0  # the inlet-temperature limit's flow, over the given
     at_flow = "at the given flow"

@@ -192,8 +192,27 @@ class Prepared:
             numbers = _stack([{k: v for k, v in surfaces_t[t][5].fixed.items() if not isinstance(v, str)}
                               for t in templates])
             self.service_groups.append((key[0], numbers, dict(key[1])))
+        self.start = None  # warm start: see warm_start
         self.coolant_range = np.array([_range(liquid) for liquid in coolant_liquids]) + [1e-3, -1e-2]
         self.charge_range = np.array([_range(liquid) for liquid in charge_liquids]) + [1e-3, -1e-2]
+
+    def warm_start(self, results: Sequence) -> None:
+        """Start later solves from solved states (one scalar ``HeatTransferResult`` per network, in order).
+
+        Each stream starts with its mean coolant and wall temperatures at the same fractions of the
+        driving force T_r - T_in as in the solved state, which cuts the iterations for nearby states
+        (the limit searches). The answer stays the fixed point to ``TOLERANCE``; it is no longer the
+        scalar path's iterate bit for bit, so grids that must match the scalar path start cold.
+        """
+        mean, process, service = [], [], []
+        for network, result in zip(self.networks, results):
+            for stream in result.streams:
+                driving = network.process_temperature - stream.balance.inlet_temperature
+                mean.append((network.process_temperature - stream.mean_temperature) / driving)
+                for surface in stream.surfaces:
+                    process.append((network.process_temperature - surface.process_wall_temperature) / driving)
+                    service.append((network.process_temperature - surface.service_wall_temperature) / driving)
+        self.start = (np.array(mean), np.array(process), np.array(service))
 
     def solve(self, network_index=None, inlet_temperature=None, flow_factor=None,
               coil_flow_factor=None) -> ManyResult:
@@ -281,9 +300,14 @@ class Prepared:
         c_low_rows, c_high_rows = c_low[sid], c_high[sid]
         t_r_rows = t_r[sid]
 
-        mean = t_in.copy()
-        process_wall = 0.5 * (t_r_rows + t_in[sid])
-        service_wall = process_wall.copy()
+        if self.start is None:  # where the scalar path starts
+            mean = t_in.copy()
+            process_wall = 0.5 * (t_r_rows + t_in[sid])
+            service_wall = process_wall.copy()
+        else:
+            mean = t_r - self.start[0][tstream] * (t_r - t_in)
+            process_wall = t_r_rows - self.start[1][tsurface] * (t_r_rows - t_in[sid])
+            service_wall = t_r_rows - self.start[2][tsurface] * (t_r_rows - t_in[sid])
         active = np.ones(n_streams, dtype=bool)
         duty = np.zeros(n_streams)
         ua = np.zeros(n_streams)
