@@ -1,6 +1,8 @@
 """Schemas of /v1/operating-window: the cooling check's body plus two axes; the margin over the grid."""
 from __future__ import annotations
 
+import math
+
 import numpy as np
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
@@ -9,7 +11,7 @@ from calc.checks.operating_window import AXES, Axis
 from .base import StrictSchema
 from .cooling import CoolingCheckRequestSchema
 from .heat_transfer import WarningSchema, warning_dicts
-from .units import Quantity, parse_quantity
+from .units import Quantity, from_si, parse_quantity
 from .vessel import Flow
 
 #: The quantity kind of each axis (coolant.flow: a mass or a volume flow, as the coolant's own flow).
@@ -91,6 +93,31 @@ class WindowPointSchema(StrictSchema):
     note = fields.String()
 
 
+class PointList(fields.List):
+    """A list of :class:`WindowPointSchema` items dumped in one tight loop (a window holds up to thousands).
+
+    The same conversion as dumping each item with the schema (SI to each field's API unit, non-finite to
+    null), without marshmallow's per-field machinery, which cost as much as solving the grid.
+    """
+
+    def _serialize(self, value, attr, obj, **kwargs):
+        if value is None:
+            return None
+        schema = self.inner.schema
+        kinds = {name: field.kind for name, field in schema.fields.items() if isinstance(field, Quantity)}
+        out = []
+        for item in value:
+            row = {}
+            for name, v in item.items():
+                kind = kinds.get(name)
+                if kind is not None and v is not None:
+                    v = from_si(kind, float(v))
+                    v = v if math.isfinite(v) else None
+                row[name] = v
+            out.append(row)
+        return out
+
+
 class WindowAxisResultSchema(StrictSchema):
     quantity = fields.String()
     field = fields.String(metadata={"description": "the field of each point that holds this axis's value"})
@@ -100,10 +127,10 @@ class WindowAxisResultSchema(StrictSchema):
 class OperatingWindowResultSchema(StrictSchema):
     safety_factor = fields.Float()
     axes = fields.List(fields.Nested(WindowAxisResultSchema))
-    points = fields.List(fields.Nested(WindowPointSchema),
-                         metadata={"description": "one per grid point, the first axis outer, the second inner"})
-    boundary = fields.List(fields.Nested(WindowPointSchema),
-                           metadata={"description": "points where the margin equals the safety factor, solved on "
+    points = PointList(fields.Nested(WindowPointSchema),
+                       metadata={"description": "one per grid point, the first axis outer, the second inner"})
+    boundary = PointList(fields.Nested(WindowPointSchema),
+                         metadata={"description": "points where the margin equals the safety factor, solved on "
                                                     "each grid line where the verdict changes"})
     current = fields.Nested(WindowPointSchema, metadata={"description": "the request's own operating point"})
     adequate_share = fields.Float(metadata={"description": "share of the computed grid points that are adequate"})

@@ -170,20 +170,21 @@ def _check_axes(axes, vessel: Vessel, charge: Charge, coolant: Coolant, heat_rel
         if axis.quantity == "heat_release.dosing_time" and not isinstance(heat_release, Dosing):
             raise InputError(f"{name}.quantity", "a dosing-time axis needs the dosing heat-release model")
         if axis.quantity == "coolant.inlet_temperature":
-            for v in (min(axis.values), max(axis.values)):
-                try:
-                    coolant.liquid.at(v, field="coolant.inlet_temperature")
-                except InputError as exc:
-                    raise InputError(f"{name}.{'from' if v == axis.values[0] else 'to'}", exc.message) from None
+            _check_liquid(axis, name, coolant.liquid, "coolant.inlet_temperature")
             low = getattr(coolant.liquid, "liquid_range", lambda: (0.0, 0.0))()[0]
             if min(axis.values) <= low:
                 raise InputError(name, "reaches the coolant's freezing point")
         if axis.quantity == "process_temperature":
-            for v in (min(axis.values), max(axis.values)):
-                try:
-                    charge.liquid.at(v, field="process_temperature")
-                except InputError as exc:
-                    raise InputError(f"{name}.{'from' if v == axis.values[0] else 'to'}", exc.message) from None
+            _check_liquid(axis, name, charge.liquid, "process_temperature")
+
+
+def _check_liquid(axis: Axis, name: str, liquid, field_name: str) -> None:
+    """Both ends of a temperature axis within the liquid's range (the error names the end at fault)."""
+    for v in (min(axis.values), max(axis.values)):
+        try:
+            liquid.at(v, field=field_name)
+        except InputError as exc:
+            raise InputError(f"{name}.{'from' if v == axis.values[0] else 'to'}", exc.message) from None
 
 
 def operating_window(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
