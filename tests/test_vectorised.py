@@ -34,6 +34,7 @@ def _agree(vector, index, scalar):
     main = scalar.stream("jacket") or (scalar.streams[0] if scalar.streams else None)
     if main is not None:
         assert vector.outlet_temperature[index] == pytest.approx(main.balance.outlet_temperature, rel=RELATIVE)
+    assert vector.controlling[index] == scalar.controlling
     # both stop at the same iteration, or both run out of iterations (then both say so)
     assert vector.converged[index] == all(w.code != "iteration_not_converged" for w in scalar.warnings)
 

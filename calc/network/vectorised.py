@@ -54,6 +54,7 @@ class ManyResult:
     outlet_temperature: np.ndarray  # K, the main stream (jacket, else the first coil); NaN without one
     iterations: np.ndarray  # most iterations any of the state's streams took
     converged: np.ndarray  # bool, every stream of the state settled within MAX_ITERATIONS
+    controlling: np.ndarray  # the largest resistance on the surface with the most U A ("none": no surface)
     networks: tuple[Network, ...]
     network_index: np.ndarray  # which network each state solved
 
@@ -255,7 +256,8 @@ class Prepared:
         if offset == 0 or not surface_rows or not np.concatenate(surface_rows).size:
             nothing = np.zeros(size)
             return ManyResult(nothing, nothing.copy(), nothing.copy(), np.full(size, np.nan),
-                              np.zeros(size, dtype=int), np.ones(size, dtype=bool), networks, network_index)
+                              np.zeros(size, dtype=int), np.ones(size, dtype=bool),
+                              np.full(size, "none", dtype=object), networks, network_index)
         tstream = np.concatenate(stream_rows)
         stream_state = np.concatenate(stream_state)
         tsurface = np.concatenate(surface_rows)
@@ -360,8 +362,16 @@ class Prepared:
         np.maximum.at(most, stream_state, iterations)
         unsettled = np.zeros(size, dtype=bool)
         np.logical_or.at(unsettled, stream_state, active)
-        return ManyResult(total_duty, total_ua, total_area, main_outlet, most, ~unsettled, self.networks,
-                          network_index)
+        # as HeatTransferResult.controlling: the largest layer (first in LAYERS on a tie) of the surface
+        # carrying the most U A (first on a tie)
+        row_state = stream_state[sid]
+        order = np.lexsort((np.arange(sid.size), -(overall.U * area), row_state))
+        first = order[np.r_[True, row_state[order][1:] != row_state[order][:-1]]]
+        layers = np.array([np.broadcast_to(overall.resistances[name], sid.shape) for name in wall.LAYERS])
+        controlling = np.full(size, "none", dtype=object)
+        controlling[row_state[first]] = np.array(wall.LAYERS, dtype=object)[np.argmax(layers[:, first], axis=0)]
+        return ManyResult(total_duty, total_ua, total_area, main_outlet, most, ~unsettled, controlling,
+                          self.networks, network_index)
 
 
 def solve_many(networks: Sequence[Network], network_index=None, inlet_temperature=None,
