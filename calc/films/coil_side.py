@@ -210,12 +210,12 @@ def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant
     if correlation not in COIL_CORRELATIONS:
         raise InputError("vessel.coils.correlation", f"unknown option {correlation!r}; known: "
                                                      f"{', '.join(COIL_CORRELATIONS)}")
-    d = require_positive("vessel.coils.tube_inner_diameter", tube_inner_diameter)
+    d = require_positive("vessel.coils.tube_wall", tube_inner_diameter)  # the bore left by the wall
     D_c = require_positive("vessel.coils.helix_diameter", helix_diameter)
     if D_c <= d:
         raise InputError("vessel.coils.helix_diameter", "must exceed the tube diameter")
     require_positive("coolant.flow", mass_flow)
-    require_positive("coolant.viscosity_at_wall", mu_wall)
+    require_positive("coolant", mu_wall)  # the coolant's viscosity at the wall
     if not (isinstance(parallel_tubes, int) and parallel_tubes >= 1):
         raise InputError("vessel.coils.parallel_tubes", f"must be a whole number >= 1, got {parallel_tubes!r}")
     if pitch is not None:

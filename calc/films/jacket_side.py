@@ -628,7 +628,7 @@ def service_film_jacket(jacket: JacketSpec, coolant_props: LiquidProperties, mas
         raise InputError("vessel.jacket.type", f"unknown option {jacket.type!r}; known: "
                                                f"{', '.join(_JACKET_TYPES)}") from None
     require_positive("coolant.flow", mass_flow)
-    require_positive("coolant.viscosity_at_wall", mu_wall)
+    require_positive("coolant", mu_wall)  # the coolant's viscosity at the wall
     require_positive("vessel.diameter", vessel_outer_diameter)
     require_positive("vessel.jacket.top", jacket_height)
     if not (isinstance(jacket.passes, int) and jacket.passes >= 1):

@@ -27,7 +27,7 @@ from calc.films import process_side
 from calc.films import jacket_side as service_side
 from calc.films import wall
 from calc.properties import LiquidProperties
-from calc.validity import CalcWarning, InputError, Warnings
+from calc.validity import CalcWarning, InputError, Warnings, fields_renamed
 from calc.vessel.model import Charge, Coolant, Vessel
 
 TOLERANCE = 1e-6  # K
@@ -220,7 +220,8 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                          f"({coolant.inlet_temperature - 273.15:.2f} degC >= {process_temperature - 273.15:.2f} degC)")
     props = charge.liquid.at(process_temperature, field="process_temperature")
     volume = charge.liquid_volume(process_temperature)
-    filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume)
+    filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume,
+                           field="charge.volume" if charge.volume is not None else "charge.mass")
     warnings.extend_unique(filled.warnings)
     stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
     warnings.extend_unique(stirred.warnings)
@@ -276,8 +277,9 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
             lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
                 _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
                 pitch=_coil.pitch))
-        streams.append(_solve_stream(f"coil_{index}", [model], charge, coolant, coolant.coil_mass_flow(),
-                                     process_temperature, vessel.fouling, warnings))
+        with fields_renamed({"vessel.coils": f"vessel.coils[{index}]"}):
+            streams.append(_solve_stream(f"coil_{index}", [model], charge, coolant, coolant.coil_mass_flow(),
+                                         process_temperature, vessel.fouling, warnings))
     if not streams:
         warnings.add(CalcWarning("no_cooling_surface", "no wetted jacket or coil area: the vessel cannot be cooled"))
     return HeatTransferResult(process_temperature, props, filled, stirred, tuple(streams), warnings)
