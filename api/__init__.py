@@ -9,7 +9,8 @@ from importlib import metadata, resources
 
 from flask import Flask, g, request
 
-from . import errors, runtime, security
+from . import errors, limits, runtime, security
+from .logs import JsonFormatter
 
 try:
     VERSION = metadata.version("coolmargin")
@@ -29,6 +30,10 @@ DEFAULTS = {
     "AUTH_TOKENS": "",  # comma-separated bearer tokens; empty means open
     "AUTH_TOKENS_FILE": "",
     "CORS_ORIGINS": "",  # comma-separated allow-list
+    "RATE_LIMIT": "600 per minute",  # per client (token, else address); ';' between limits; empty: off
+    "RATE_LIMIT_STORAGE": "memory://",  # or a redis:// URL shared by every process and replica
+    "RATE_LIMIT_PREFIX": "coolmargin",  # key prefix in that storage
+    "TRUSTED_PROXIES": 0,  # proxies in front whose X-Forwarded-For names the client (1 behind docker/nginx.conf)
     # The contract ships inside the package (api/openapi.yaml links to the top-level file in a checkout).
     "OPENAPI_PATH": str(resources.files("api").joinpath("openapi.yaml")),
 }
@@ -47,22 +52,11 @@ def _from_environment() -> dict:
     return settings
 
 
-class _RequestIdFilter(logging.Filter):
-    def filter(self, record: logging.LogRecord) -> bool:
-        if not hasattr(record, "request_id"):
-            try:
-                record.request_id = g.get("request_id", "-")
-            except RuntimeError:  # outside a request
-                record.request_id = "-"
-        return True
-
-
 def _configure_logging() -> None:
     logger = logging.getLogger("coolmargin")
     if not logger.handlers:
         handler = logging.StreamHandler()
-        handler.setFormatter(logging.Formatter("%(asctime)s %(levelname)s [%(request_id)s] %(name)s: %(message)s"))
-        handler.addFilter(_RequestIdFilter())
+        handler.setFormatter(JsonFormatter())  # JSON lines, like the access log, with the request id
         logger.addHandler(handler)
         logger.setLevel(logging.INFO)
         logger.propagate = False
@@ -89,11 +83,12 @@ def create_app(config: dict | None = None) -> Flask:
         response.headers.setdefault("X-Content-Type-Options", "nosniff")
         return response
 
+    limits.register(app)  # before authentication: floods of bad tokens are counted per address
     security.register(app)  # after the request-id hook: refusals carry the request id
     runtime.register(app)  # after authentication: a refused request reads no body and takes no slot
 
-    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service
+    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service, sizing
 
-    for module in (service, properties, geometry, agitation, heat_transfer, cooling, safety):
+    for module in (service, properties, geometry, agitation, heat_transfer, cooling, sizing, safety):
         app.register_blueprint(module.bp)
     return app

@@ -238,6 +238,7 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
     results = []
     for index, case in enumerate(cases):
         if clock.expired():  # what is done stays done; the rest is answered as not computed
+            log.info("request stopped after %d of %d cases: %s", index, len(cases), OutOfTime(clock.gone()))
             results.extend(_not_computed(i, len(cases)) for i in range(index, len(cases)))
             break
         try:

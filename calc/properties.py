@@ -31,7 +31,8 @@ from __future__ import annotations
 
 import math
 import threading
-from dataclasses import dataclass
+from bisect import bisect_right
+from dataclasses import dataclass, field
 from functools import lru_cache
 
 import CoolProp.CoolProp as CP
@@ -217,6 +218,7 @@ class PropertyTable:
     log_viscosity: np.ndarray  # ln(Pa s)
     conductivity: np.ndarray  # W/(m K)
     inverse_temperature: np.ndarray  # -1/T, 1/K, increasing (the abscissa of ln viscosity)
+    _lists: tuple | None = field(default=None, repr=False)  # the arrays as lists, for one-state look-ups
 
     @property
     def span(self) -> tuple[float, float]:
@@ -235,10 +237,30 @@ class PropertyTable:
                                 np.interp(T, self.temperature, self.conductivity))
 
     def state(self, temperature: float) -> LiquidProperties:
-        """Properties at one temperature (K), floats; the same numbers :meth:`states` gives for it."""
-        s = self.states(temperature)
-        return LiquidProperties(float(temperature), float(s.density), float(s.heat_capacity), float(s.viscosity),
-                                float(s.thermal_conductivity))
+        """Properties at one temperature (K), floats: the arithmetic of ``numpy.interp`` (which :meth:`states`
+        uses) done in plain Python, which is several times faster for one value."""
+        T = float(temperature)
+        if self._lists is None:
+            object.__setattr__(self, "_lists", tuple(a.tolist() for a in (
+                self.temperature, self.density, self.heat_capacity, self.conductivity, self.inverse_temperature,
+                self.log_viscosity)))
+        grid, density, heat_capacity, conductivity, inverse, log_viscosity = self._lists
+        return LiquidProperties(T, _interp(T, grid, density), _interp(T, grid, heat_capacity),
+                                math.exp(_interp(-1.0 / T, inverse, log_viscosity)), _interp(T, grid, conductivity))
+
+
+def _interp(x: float, xp: list, fp: list) -> float:
+    """``numpy.interp(x, xp, fp)`` for one float x (same end rules, same formula)."""
+    if x <= xp[0]:
+        return fp[0]
+    last = len(xp) - 1
+    if x >= xp[last]:
+        return fp[last]
+    j = bisect_right(xp, x) - 1
+    if xp[j] == x:
+        return fp[j]
+    slope = (fp[j + 1] - fp[j]) / (xp[j + 1] - xp[j])
+    return slope * (x - xp[j]) + fp[j]
 
 
 @lru_cache(maxsize=TABLE_CACHE_SIZE)

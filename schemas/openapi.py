@@ -230,6 +230,13 @@ def paths() -> dict:
     return out
 
 
+class _PlainDumper(yaml.SafeDumper):
+    """Writes repeated parts in full instead of as YAML anchors, so the file reads (and merges) as plain text."""
+
+    def ignore_aliases(self, data) -> bool:
+        return True
+
+
 def write(path: str) -> None:
     """Replace the generated component schemas in the OpenAPI document at ``path``."""
     with open(path, encoding="utf-8") as handle:
@@ -242,7 +249,7 @@ def write(path: str) -> None:
             if method in {"get", "post", "put", "patch", "delete"}:
                 operation["responses"] = with_common_problems(operation.get("responses", {}))
     with open(path, "w", encoding="utf-8") as handle:
-        yaml.safe_dump(document, handle, sort_keys=False, width=110, allow_unicode=True)
+        yaml.dump(document, handle, Dumper=_PlainDumper, sort_keys=False, width=110, allow_unicode=True)
 
 
 if __name__ == "__main__":  # pragma: no cover
