@@ -87,8 +87,8 @@ def create_app(config: dict | None = None) -> Flask:
     security.register(app)  # after the request-id hook: refusals carry the request id
     runtime.register(app)  # after authentication: a refused request reads no body and takes no slot
 
-    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service
+    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service, sizing
 
-    for module in (service, properties, geometry, agitation, heat_transfer, cooling, safety):
+    for module in (service, properties, geometry, agitation, heat_transfer, cooling, sizing, safety):
         app.register_blueprint(module.bp)
     return app
