@@ -74,7 +74,7 @@ def _post_and_hang_up(base: str, body: dict, after: float) -> None:
 def test_a_client_that_hangs_up_frees_the_calculation_slot():
     # one worker, one calculation slot: a 50-case scale-up batch holds it for 7 s or more unless the
     # server notices the client has gone
-    with gunicorn(workers=1) as base:
+    with gunicorn(workers=1, env={"COOLMARGIN_CALCULATION_SLOTS": "1"}) as base:
         _post_and_hang_up(base, {"cases": [DEMO] * 50}, after=1.0)
         status, seconds, _, _ = timed_get(base + "/v1/properties?fluid=water&temperature=20", timeout=30)
         assert status == 200 and seconds < 3.0, seconds
