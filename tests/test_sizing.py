@@ -198,3 +198,15 @@ def test_scale_up_sizes_the_jacket_at_each_generated_scale(client):
             assert "no candidate meets the duty" in design["recommendation"]["reasoning"]
     without = client.post("/v1/scale-up", json=dict(body, size_jacket=False)).json["scales"]
     assert all(s["jacket_design"] is None for s in without)
+
+
+def test_readme_walk_through_matches_the_service(client):
+    # Not a reference value: the README quotes this demo's answer, and must keep saying what the service says.
+    readme = (ROOT / "README.md").read_text()
+    body = client.post("/v1/jacket-sizing", json=EXAMPLE).json
+    feasible = sum(c["feasible"] for c in body["candidates"])
+    chosen = body["candidates"][body["recommendation"]["index"]]
+    assert f"{body['candidates_evaluated']} candidates are evaluated and {feasible} are feasible" in readme
+    assert chosen["description"] == "annular jacket, gap 25 mm, spiral baffle pitch 100 mm"
+    assert f"(margin {chosen['margin']:.2f}, {chosen['pressure_drop'] / 1e5:.2f} bar)" in readme
+    assert not any(c["feasible"] for c in body["candidates"] if c["type"] == "annular")
