@@ -210,3 +210,19 @@ def test_readme_walk_through_matches_the_service(client):
     assert chosen["description"] == "annular jacket, gap 25 mm, spiral baffle pitch 100 mm"
     assert f"(margin {chosen['margin']:.2f}, {chosen['pressure_drop'] / 1e5:.2f} bar)" in readme
     assert not any(c["feasible"] for c in body["candidates"] if c["type"] == "annular")
+
+
+@pytest.mark.parametrize("change, field", [
+    ({"coolant": {"inlet_temperature": "50 degC"}}, "coolant.inlet_temperature"),
+    ({"options": {"jacket_top": "9 m"}}, "options.jacket_top"),
+    ({"charge": {"volume": "40 m^3"}}, "fill.volume"),
+])
+def test_errors_no_design_changes_are_the_requests_own(client, change, field):
+    body = copy.deepcopy(EXAMPLE)
+    for key, value in change.items():
+        body[key] = dict(body.get(key) or {}, **value)
+    if "charge" in change:
+        body["charge"] = {"fluid": "toluene", **change["charge"]}
+    response = client.post("/v1/jacket-sizing", json=body)
+    assert response.status_code == 422, response.json
+    assert [e["field"] for e in response.json["errors"]] == [field]  # as the cooling check names it

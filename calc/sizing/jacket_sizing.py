@@ -306,7 +306,7 @@ def evaluate_candidate(index: int, kind: str, vessel: Vessel, charge: Charge, co
         result = heat_transfer(design, charge, coolant, process_temperature)
     except InputError as exc:
         return Candidate(index, kind, description, jacket, coil, nps or coil_nps, 0.0, 0.0, 0.0, None, 0.0, 0.0,
-                         0.0, 0.0, 0.0, 0.0, 0.0, None, None, False, False, f"does not fit: {exc.message}", (),
+                         0.0, 0.0, 0.0, 0.0, 0.0, None, None, False, False, f"not evaluated: {exc.message}", (),
                          vessel.coverage), None, None
     load = heat_load(heat_release, charge_mass(result), process_temperature, result.agitation.power)
     capacity = result.duty
@@ -357,8 +357,15 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     (:class:`calc.deadline.OutOfTime` once it has passed)."""
     check_envelope(vessel, options)
     warnings = Warnings()
+    brim = geometry.brim_height(vessel.shape)
+    if options.jacket_top is not None and options.jacket_top > brim:
+        raise InputError("options.jacket_top", f"must be at most the top of the straight side ({brim:.4g} m), "
+                                               f"got {options.jacket_top:g}")
     shell = replace(vessel, jacket=None, coils=(),
                     coverage=geometry.JacketCoverage(options.covers_bottom_head, options.jacket_top))
+    # what no design changes (coolant colder than the contents, the charge fits, the agitator) is checked once
+    # here, so it is refused as the request's error rather than reported against every candidate
+    warnings.extend_unique(assemble(shell, charge, coolant, process_temperature).warnings)
     candidates: list[Candidate] = []
     load = None
 
