@@ -226,3 +226,25 @@ def test_errors_no_design_changes_are_the_requests_own(client, change, field):
     response = client.post("/v1/jacket-sizing", json=body)
     assert response.status_code == 422, response.json
     assert [e["field"] for e in response.json["errors"]] == [field]  # as the cooling check names it
+
+
+def test_jacket_and_coil_only_when_no_jacket_alone_suffices():
+    from calc.checks.heat_load import heat_release_model
+
+    options = sizing.SizingOptions(gaps=(0.05,), baffle_pitches=(0.2,), pipe_sizes=("3",), zones=(1, 2),
+                                   coil_tube_sizes=("1-1/2",))
+
+    def run(power):
+        return sizing.jacket_sizing(SHELL, ARGS["charge"], ARGS["coolant"], ARGS["process_temperature"],
+                                    heat_release_model("total_power", power=power), 1.3, options)
+
+    easy, hard = run(30e3), run(150e3)
+    assert any(c.feasible for c in easy.candidates if c.type in sizing.JACKET_TYPES)
+    assert not any(c.type == "jacket_and_coil" for c in easy.candidates)
+    assert not any(c.feasible for c in hard.candidates if c.type in sizing.JACKET_TYPES)
+    combos = [c for c in hard.candidates if c.type == "jacket_and_coil"]
+    assert combos and any(w.code == "coil_shields_wall" for w in hard.warnings)
+    for combo in combos:  # a coil added to a jacket adds area and capacity (physics), and displaces liquid
+        alone = next(c for c in hard.candidates if c.type in sizing.JACKET_TYPES and c.jacket == combo.jacket)
+        assert combo.heat_transfer_area > alone.heat_transfer_area
+        assert combo.cooling_capacity > alone.cooling_capacity and combo.displaced_volume > 0

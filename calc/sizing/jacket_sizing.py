@@ -401,6 +401,11 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                 add("jacket_and_coil", best.jacket, coil, best.pipe_size if kind == "half_pipe" else None, coil_nps)
     if not candidates:
         raise InputError("options.types", "no candidate to evaluate: choose at least one type")
+    if any(c.type == "jacket_and_coil" for c in candidates):
+        warnings.add(CalcWarning("coil_shields_wall",
+                                 "jacket + coil: the jacket wall's process film is computed as without the coil; a "
+                                 "coil between impeller and wall slows the flow along the wall and lowers that film "
+                                 "(not modelled: the combined capacity may be optimistic)"))
     smallest = {}
     for kind in TYPES:
         feasible = [c for c in candidates if c.type == kind and c.feasible]
