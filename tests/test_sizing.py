@@ -248,3 +248,13 @@ def test_jacket_and_coil_only_when_no_jacket_alone_suffices():
         alone = next(c for c in hard.candidates if c.type in sizing.JACKET_TYPES and c.jacket == combo.jacket)
         assert combo.heat_transfer_area > alone.heat_transfer_area
         assert combo.cooling_capacity > alone.cooling_capacity and combo.displaced_volume > 0
+
+
+def test_sizing_warnings_and_cautions():
+    result = sizing.jacket_sizing(ARGS["vessel"], ARGS["charge"], ARGS["coolant"], ARGS["process_temperature"],
+                                  ARGS["heat_release"], ARGS["safety_factor"])
+    assert "no_cooling_surface" not in {w.code for w in result.warnings}  # the bare shell is not a candidate
+    cautions = " ".join(result.cautions)
+    for phrase in ("Screening estimate", "reaction calorimetry", "licensed engineer", "pressure-vessel code",
+                   "accumulates"):  # the dosing caution rides along for a dosing step
+        assert phrase in cautions

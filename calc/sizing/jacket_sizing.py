@@ -33,8 +33,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field, replace
 
-from calc.checks.cooling_check import CAUTIONS, charge_mass, margin_of
-from calc.checks.heat_load import HeatLoad, HeatRelease, heat_load
+from calc.checks.cooling_check import CAUTIONS, DOSING_CAUTION, charge_mass, margin_of
+from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
 from calc.deadline import NEVER, Deadline
 from calc.films.jacket_side import JacketSpec
 from calc.network.flow_limit import flow_limit
@@ -365,7 +365,7 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                     coverage=geometry.JacketCoverage(options.covers_bottom_head, options.jacket_top))
     # what no design changes (coolant colder than the contents, the charge fits, the agitator) is checked once
     # here, so it is refused as the request's error rather than reported against every candidate
-    warnings.extend_unique(assemble(shell, charge, coolant, process_temperature).warnings)
+    assemble(shell, charge, coolant, process_temperature)  # its warnings are each candidate's
     candidates: list[Candidate] = []
     load = None
 
@@ -412,7 +412,8 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         smallest[kind] = min(feasible, key=_rank_key).index if feasible else None
     recommendation = _recommend(candidates, smallest, safety_factor)
     duty = safety_factor * load.total if load is not None else 0.0
-    return JacketSizing(tuple(candidates), recommendation, smallest, load, duty, safety_factor, warnings)
+    cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ()) + (SIZING_CAUTION,)
+    return JacketSizing(tuple(candidates), recommendation, smallest, load, duty, safety_factor, warnings, cautions)
 
 
 def _recommend(candidates: list[Candidate], smallest: dict, safety_factor: float) -> Recommendation:
