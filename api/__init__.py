@@ -10,7 +10,7 @@ from importlib import metadata, resources
 from flask import Flask, g, request
 
 from . import errors, limits, runtime, security
-from .logs import JsonFormatter
+from .logs import JsonFormatter, RequestIdFilter
 
 try:
     VERSION = metadata.version("coolmargin")
@@ -27,7 +27,7 @@ DEFAULTS = {
     "MAX_SIMULATION_HORIZON": 7 * 24 * 3600.0,  # s of simulated time
     "SIMULATION_WALL_TIME": 10.0,  # s of computing per simulation request
     "REQUEST_BUDGET": 20.0,  # s a request (or a whole batch) may take; then what is done, or a 503
-    "CALCULATION_SLOTS": 1,  # calculations computing at once in one process
+    "CALCULATION_SLOTS": 16,  # calculations computing at once in one process (16: one per gunicorn thread)
     "AUTH_TOKENS": "",  # comma-separated bearer tokens; empty means open
     "AUTH_TOKENS_FILE": "",
     "CORS_ORIGINS": "",  # comma-separated allow-list
@@ -59,6 +59,7 @@ def _configure_logging() -> None:
         handler = logging.StreamHandler()
         handler.setFormatter(JsonFormatter())  # JSON lines, like the access log, with the request id
         logger.addHandler(handler)
+        logger.addFilter(RequestIdFilter())
         logger.setLevel(logging.INFO)
         logger.propagate = False
 

@@ -7,6 +7,7 @@ from schemas.window import OperatingWindowRequestSchema, OperatingWindowResultSc
 from . import charts
 from .errors import ProblemError
 from .http import calculate
+from .runtime import deadline
 
 bp = Blueprint("window", __name__, url_prefix="/v1")
 _request, _result = OperatingWindowRequestSchema(), OperatingWindowResultSchema()
@@ -20,7 +21,8 @@ def _window(args: dict) -> dict:
                            [{"field": "axes", "message": f"points of the two axes multiply to {count}; "
                                                         f"at most {limit}"}])
     result = window_calculation(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
-                                args["heat_release"], tuple(args["axes"]), args["safety_factor"])
+                                args["heat_release"], tuple(args["axes"]), args["safety_factor"],
+                                deadline=deadline())
     return operating_window_dict(result)
 
 

@@ -25,6 +25,7 @@ import numpy as np
 from calc.checks.cooling_check import (CAUTIONS, DOSING_CAUTION, _check_safety_factor, _Search, _search,
                                        charge_mass, cooling_check, margin_of)
 from calc.checks.heat_load import Dosing, HeatRelease, heat_load
+from calc.deadline import NEVER, Deadline
 from calc.network import vectorised
 from calc.network.heat_transfer import Network, assemble
 from calc.validity import CalcWarning, InputError, Warnings
@@ -189,8 +190,12 @@ def _check_liquid(axis: Axis, name: str, liquid, field_name: str) -> None:
 
 def operating_window(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
                      heat_release: HeatRelease, axes: tuple[Axis, Axis],
-                     safety_factor: float = 1.3, band: Callable | None = None) -> OperatingWindow:
-    """The margin over the grid of ``axes`` around the check's state, its boundary and the check's own point."""
+                     safety_factor: float = 1.3, band: Callable | None = None,
+                     deadline: Deadline = NEVER) -> OperatingWindow:
+    """The margin over the grid of ``axes`` around the check's state, its boundary and the check's own point.
+
+    ``deadline`` is checked before the grid and before each pass of the boundary search.
+    """
     safety_factor = _check_safety_factor(safety_factor)
     _check_axes(axes, vessel, charge, coolant, heat_release)
     flow_axis = next((a for a in axes if a.quantity == "coolant.flow"), None)
@@ -198,13 +203,14 @@ def operating_window(vessel: Vessel, charge: Charge, coolant: Coolant, process_t
     states = _States(vessel, charge, coolant, process_temperature, heat_release, safety_factor, flow_kind)
     first, second = axes
     grid = [{first.quantity: x, second.quantity: y} for x in first.values for y in second.values]
+    deadline.check()
     try:
         solved = states.evaluate(grid)
     except InputError as exc:  # a state of the grid the network refuses (e.g. an impeller speed out of range)
         raise InputError("axes", f"a grid point is not a valid state: {exc.field}: {exc.message}") from None
     points = tuple(_point(solved, i, (state[first.quantity], state[second.quantity]), safety_factor)
                    for i, state in enumerate(grid))
-    boundary = _boundary(states, axes, solved, safety_factor)
+    boundary = _boundary(states, axes, solved, safety_factor, deadline)
 
     # the request's own operating point: the single check, with its warnings (the scalar path)
     check = cooling_check(vessel, charge, coolant, process_temperature, heat_release, safety_factor, limits=False)
@@ -254,7 +260,8 @@ def _point(solved: dict, i: int, values: tuple, safety_factor: float) -> WindowP
                        outlet if math.isfinite(outlet) else None)
 
 
-def _boundary(states: _States, axes, solved: dict, safety_factor: float) -> tuple[WindowPoint, ...]:
+def _boundary(states: _States, axes, solved: dict, safety_factor: float,
+              deadline: Deadline = NEVER) -> tuple[WindowPoint, ...]:
     """Where margin = safety factor on each grid line between neighbours of different verdict (solved)."""
     first, second = axes
     n1, n2 = len(first.values), len(second.values)
@@ -290,7 +297,7 @@ def _boundary(states: _States, axes, solved: dict, safety_factor: float) -> tupl
         result = states.evaluate(batch)
         return np.log(result["margin"] / safety_factor)
 
-    _search(searches, evaluate)
+    _search(searches, evaluate, deadline)
     done = [(k, s.root) for k, s in enumerate(searches) if s.root is not None]
     batch = [{**lines[k][1], lines[k][0]: x} for k, x in done]
     result = states.evaluate(batch)
