@@ -24,11 +24,10 @@ def _request_id(record: logging.LogRecord) -> str | None:
 
 
 class RequestIdFilter(logging.Filter):
-    """Stamps each record with the request id it was logged under, so every handler sees it."""
+    """Stamps ``request_id`` on every record of the logger it guards, so any handler (and a test's) sees it."""
 
     def filter(self, record: logging.LogRecord) -> bool:
-        if getattr(record, "request_id", None) in (None, "-"):
-            record.request_id = _request_id(record)
+        record.request_id = _request_id(record) or "-"
         return True
 
 

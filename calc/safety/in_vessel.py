@@ -11,7 +11,7 @@ from calc.network.heat_transfer import lumped_exchange
 from calc.properties import Liquid
 from calc.safety.dynamics import simulate
 from calc.safety.tank_model import Jacket, SimulationInput, SimulationResult
-from calc.validity import Warnings
+from calc.validity import Warnings, fields_renamed
 from calc.vessel.model import Charge, Coolant, Vessel
 
 
@@ -37,7 +37,10 @@ def simulate_in_vessel(inp: SimulationInput, given: RunVessel | None) -> Simulat
     if given is None:
         return simulate(inp)
     contents = Charge(given.contents, mass=inp.charge.mass)
-    exchange = lumped_exchange(given.vessel, contents, given.coolant, inp.charge.temperature)
+    # the request's own paths: the vessel and its coolant sit under "vessel", the start state under "charge"
+    with fields_renamed({"vessel": "vessel.vessel", "coolant": "vessel.coolant",
+                         "process_temperature": "charge.temperature"}):
+        exchange = lumped_exchange(given.vessel, contents, given.coolant, inp.charge.temperature)
     jacket = Jacket(exchange.ua, exchange.coolant_flow, exchange.coolant_heat_capacity, exchange.inlet_temperature)
     shaft_power = exchange.shaft_power if given.agitator_power else inp.shaft_power
     result = simulate(replace(inp, jacket=jacket, shaft_power=shaft_power))

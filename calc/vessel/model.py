@@ -141,5 +141,6 @@ def stirred(vessel: Vessel, charge: Charge, process_temperature: float) -> Agita
     """
     props = charge.liquid.at(process_temperature, field="process_temperature")
     filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils,
-                           volume=charge.liquid_volume(process_temperature))
+                           volume=charge.liquid_volume(process_temperature),
+                           field="charge.volume" if charge.volume is not None else "charge.mass")
     return agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
