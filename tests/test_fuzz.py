@@ -48,8 +48,9 @@ for _package in ("api", "calc", "schemas"):
     for _module in pkgutil.walk_packages(importlib.import_module(_package).__path__, _package + "."):
         importlib.import_module(_module.name)
 
-# The app as served, with the calculation budget shortened so a generated simulation cannot run for long.
-APP = create_app({"SIMULATION_WALL_TIME": 2.0})
+# The app as served, with the calculation budgets shortened so a generated simulation cannot run for long
+# nor a generated operating window hold many points.
+APP = create_app({"SIMULATION_WALL_TIME": 2.0, "MAX_WINDOW_POINTS": 64})  # grids above 64 points: 413
 
 CONFIG = schemathesis.Config.from_dict({
     "seed": SEED,

@@ -40,7 +40,8 @@ from calc.vessel import agitation as agitation_module
 from calc.vessel import geometry
 from calc.checks.cooling_check import CAUTIONS, DEFAULT_SAFETY_FACTOR, DOSING_CAUTION, CoolingCheck, _check_safety_factor, \
     cooling_check, evaluate, margin_of
-from calc.checks.heat_load import Dosing, HeatRelease
+from calc.checks.heat_load import Dosing, HeatRelease, heat_load
+from calc.network import vectorised
 from calc.properties import LiquidProperties
 from calc.sizing.jacket_sizing import jacket_sizing
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings, fields_renamed
@@ -214,6 +215,24 @@ def _check_targets(targets) -> list:
     return targets
 
 
+def _scan(reference: _Reference, rule: str, coolant_rule: str, safety_factor: float, grid: list[float],
+          memo: dict, deadline: Deadline) -> None:
+    """The family's scan points solved together on the vectorised network, into ``memo`` as ``state`` would."""
+    if not grid:
+        return
+    deadline.check()
+    similar = [_similar(reference, math.exp(x), rule, coolant_rule) for x in grid]
+    cases = [(vessel, charge, coolant, reference.process_temperature) for vessel, charge, _, coolant, _, _ in similar]
+    solved = vectorised.heat_transfer_many(cases)
+    for i, (x, (_, _, _, _, heat_release, _)) in enumerate(zip(grid, similar)):
+        network = solved.networks[solved.network_index[i]]
+        load = heat_load(heat_release, network.fill.volume * network.process_properties.density,
+                         reference.process_temperature, network.agitation.power)
+        margin = margin_of(float(solved.duty[i]), load.total)
+        value = 10.0 if margin is None else (math.log(margin / safety_factor) if margin > 0 else -50.0)
+        memo[x] = (value, solved.controlling[i])
+
+
 def _target_scale(ref: _Reference, target, own_coolant: Coolant | None, i: int, rule: str, coolant_flow_rule: str,
                   process_temperature: float, safety_factor: float, limits: bool, deadline: Deadline,
                   warnings: Warnings, size_jacket: bool = False) -> ScaleResult:
@@ -262,6 +281,7 @@ def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_f
                  reference_check.heat_transfer.controlling)
     count = max(2, int(math.ceil((high - low) / math.log(10.0) * SCAN_POINTS_PER_DECADE)))
     grid = [low + (high - low) * i / count for i in range(count + 1)]
+    _scan(reference, rule, coolant_rule, safety_factor, [x for x in grid if x not in memo], memo, deadline)
     states = [state(x) for x in grid]
 
     switches = []

@@ -350,17 +350,22 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     states at once (grids, limits, candidates, fleets) see ``calc.network.vectorised``; a test keeps
     the two in agreement.
     """
-    network = assemble(vessel, charge, coolant, process_temperature)
+    return solve(assemble(vessel, charge, coolant, process_temperature))
+
+
+def solve(network: Network) -> HeatTransferResult:
+    """Solve an assembled network (one state, the scalar path)."""
     warnings = Warnings(network.warnings)
     solved = []
     for stream in network.streams:
         # a coil's errors name its place in the request: vessel.coils[i]
         coil = {"vessel.coils": f"vessel.coils[{stream.name[5:]}]"} if stream.name.startswith("coil_") else {}
         with fields_renamed(coil):
-            solved.append(_solve_stream(stream.name, list(stream.surfaces), charge, coolant, stream.mass_flow,
-                                        process_temperature, vessel.fouling, warnings, stream.path))
-    return HeatTransferResult(process_temperature, network.process_properties, network.fill, network.agitation,
-                              tuple(solved), warnings)
+            solved.append(_solve_stream(stream.name, list(stream.surfaces), network.charge, network.coolant,
+                                        stream.mass_flow, network.process_temperature, network.vessel.fouling,
+                                        warnings, stream.path))
+    return HeatTransferResult(network.process_temperature, network.process_properties, network.fill,
+                              network.agitation, tuple(solved), warnings)
 
 
 
