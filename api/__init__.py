@@ -10,7 +10,7 @@ from importlib import metadata, resources
 from flask import Flask, g, request
 
 from . import errors, limits, runtime, security
-from .logs import JsonFormatter
+from .logs import JsonFormatter, RequestIdFilter
 
 try:
     VERSION = metadata.version("coolmargin")
@@ -58,6 +58,7 @@ def _configure_logging() -> None:
         handler = logging.StreamHandler()
         handler.setFormatter(JsonFormatter())  # JSON lines, like the access log, with the request id
         logger.addHandler(handler)
+        logger.addFilter(RequestIdFilter())  # on the logger: every handler's records carry it
         logger.setLevel(logging.INFO)
         logger.propagate = False
 

@@ -23,6 +23,15 @@ def _request_id(record: logging.LogRecord) -> str | None:
         return None
 
 
+class RequestIdFilter(logging.Filter):
+    """Puts the request id on every record of the logger it filters (``-`` outside a request)."""
+
+    def filter(self, record: logging.LogRecord) -> bool:
+        if not hasattr(record, "request_id"):
+            record.request_id = _request_id(record) or "-"
+        return True
+
+
 class JsonFormatter(logging.Formatter):
     """``{"time", "level", "logger", "process", "request_id", "message"[, "traceback"][, "stack"]}``."""
 
