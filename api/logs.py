@@ -24,11 +24,10 @@ def _request_id(record: logging.LogRecord) -> str | None:
 
 
 class RequestIdFilter(logging.Filter):
-    """Puts the request id on every record of the logger it filters (``-`` outside a request)."""
+    """Stamps ``request_id`` on every record of the logger it guards, so any handler (and a test's) sees it."""
 
     def filter(self, record: logging.LogRecord) -> bool:
-        if not hasattr(record, "request_id"):
-            record.request_id = _request_id(record) or "-"
+        record.request_id = _request_id(record) or "-"
         return True
 
 
