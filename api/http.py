@@ -13,7 +13,7 @@ import math
 import re
 from typing import Any, Callable
 
-from flask import Response, current_app, request
+from flask import Response, current_app, g, request
 from marshmallow import Schema, ValidationError
 
 from calc.validity import finite_or_input_error
@@ -251,7 +251,7 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[Any], Any], r
         except Exception as exc:  # each case reports its own problem
             status, detail, errors, title = problem_for(exc)
             if status >= 500 and not isinstance(exc, OutOfTime):
-                log.exception("batch case %d failed", index)  # the request id rides on the log record
+                log.exception("batch case %d failed", index, extra={"request_id": g.get("request_id", "-")})
             for error in errors:
                 error["field"] = f"cases[{index}].{error['field']}"
             results.append({"status": status, "problem": problem_body(status, detail, errors, title)})

@@ -215,7 +215,7 @@ def test_readme_walk_through_matches_the_service(client):
 @pytest.mark.parametrize("change, field", [
     ({"coolant": {"inlet_temperature": "50 degC"}}, "coolant.inlet_temperature"),
     ({"options": {"jacket_top": "9 m"}}, "options.jacket_top"),
-    ({"charge": {"volume": "40 m^3"}}, "fill.volume"),
+    ({"charge": {"volume": "40 m^3"}}, "charge.volume"),
 ])
 def test_errors_no_design_changes_are_the_requests_own(client, change, field):
     body = copy.deepcopy(EXAMPLE)

@@ -4,26 +4,16 @@ References: the cooling check itself (definition: a window point is the check wi
 which test_cooling.py and test_vectorised.py tie to published values), and two facts of the trade marked
 "common practice, no source": a warmer coolant inlet and a shorter dosing time never raise the margin.
 """
-import copy
 import json
 
 import pytest
 from hypothesis import given, settings, strategies as st
 
 from serving import ROOT
+from test_hostile_input import _set as _with  # a copy of the body with one dotted field replaced
 
 EXAMPLE = json.loads((ROOT / "examples" / "operating_window_production.json").read_text())
 CHECK = {k: v for k, v in EXAMPLE.items() if k != "axes"}
-
-
-def _with(body, path, value):
-    body = copy.deepcopy(body)
-    node = body
-    *parents, last = path.split(".")
-    for key in parents:
-        node = node[key]
-    node[last] = value
-    return body
 
 
 def _window(client, axes, **extra):
