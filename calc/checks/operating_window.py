@@ -52,7 +52,7 @@ class Axis:
 class WindowPoint:
     """One state of the window: its two axis values (SI), margin and verdict; None where not a cooling state."""
 
-    values: tuple[float, float]
+    values: tuple[float, ...]  # one per axis
     margin: float | None
     adequate: bool | None
     cooling_capacity: float | None  # W
@@ -66,7 +66,7 @@ class WindowPoint:
 class OperatingWindow:
     """The grid (first axis outer, second inner), the boundary points and the request's own point."""
 
-    axes: tuple[Axis, Axis]
+    axes: tuple[Axis, ...]  # two
     safety_factor: float
     points: tuple[WindowPoint, ...]
     boundary: tuple[WindowPoint, ...]  # margin = safety factor, on grid lines where the verdict changes
@@ -152,7 +152,9 @@ class _States:
     def _load(self, network: Network, dosing_time: float | None):
         key = (network.process_temperature, network.vessel.agitator.speed, dosing_time)
         if key not in self.loads:
-            release = self.heat_release if dosing_time is None else replace(self.heat_release, dosing_time=dosing_time)
+            release = self.heat_release
+            if dosing_time is not None and isinstance(release, Dosing):  # a dosing axis needs the dosing model
+                release = replace(release, dosing_time=dosing_time)
             mass = network.fill.volume * network.process_properties.density
             self.loads[key] = heat_load(release, mass, network.process_temperature, network.agitation.power)
         return self.loads[key]
@@ -226,15 +228,15 @@ def operating_window(vessel: Vessel, charge: Charge, coolant: Coolant, process_t
                                  "contents: no cooling state, no margin"))
     if band is not None:
         points = tuple(replace(p, margin_band=b) for p, b in zip(points, band(states, grid)))
-    share = sum(p.adequate for p in computed) / len(computed) if computed else 0.0
+    share = sum(1 for p in computed if p.adequate) / len(computed) if computed else 0.0
     cautions = check_cautions(heat_release) + (
         "Each grid point is a steady cooling check; the map does not show how the plant moves between points.",)
     return OperatingWindow(tuple(axes), safety_factor, points, boundary, current, share, warnings, cautions)
 
 
-def _own_value(axis: Axis, vessel: Vessel, coolant: Coolant, process_temperature: float, release) -> float | None:
+def _own_value(axis: Axis, vessel: Vessel, coolant: Coolant, process_temperature: float, release) -> float:
     if axis.quantity == "heat_release.dosing_time":
-        return release.dosing_time
+        return float(release.dosing_time)
     if axis.quantity == "coolant.inlet_temperature":
         return coolant.inlet_temperature
     if axis.quantity == "process_temperature":
