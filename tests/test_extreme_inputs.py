@@ -31,7 +31,7 @@ def quiet_client():
     from api import create_app
 
     logging.getLogger("coolmargin").setLevel(logging.CRITICAL)
-    yield create_app({"TESTING": False, "SIMULATION_WALL_TIME": 2.0}).test_client()
+    yield create_app({"TESTING": False, "SIMULATION_WALL_TIME": 2.0, "RATE_LIMIT": ""}).test_client()
     logging.getLogger("coolmargin").setLevel(logging.NOTSET)
 
 
