@@ -27,6 +27,10 @@ DEFAULTS = {
     "AUTH_TOKENS": "",  # comma-separated bearer tokens; empty means open
     "AUTH_TOKENS_FILE": "",
     "CORS_ORIGINS": "",  # comma-separated allow-list
+    "DATABASE_URL": "",  # SQLAlchemy URL of the plant catalogue; empty: a SQLite file in the user's data dir
+    "MIGRATE_ON_START": 1,  # bring the catalogue's schema up to date when the app is built
+    "MAX_SCREENING_VESSELS": 200,  # vessels in one screening (413 above)
+    "SCREENING_WALL_TIME": 20.0,  # s of computing per screening request; past it the answer is partial
     "OPENAPI_PATH": os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "openapi.yaml"),
 }
 _ENV_PREFIX = "COOLMARGIN_"
@@ -88,8 +92,9 @@ def create_app(config: dict | None = None) -> Flask:
 
     security.register(app)  # after the request-id hook: refusals carry the request id
 
-    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service
+    from . import agitation, cooling, geometry, heat_transfer, properties, records, safety, screenings, service
 
-    for module in (service, properties, geometry, agitation, heat_transfer, cooling, safety):
+    records.attach(app)
+    for module in (service, properties, geometry, agitation, heat_transfer, cooling, safety, records, screenings):
         app.register_blueprint(module.bp)
     return app

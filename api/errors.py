@@ -10,6 +10,8 @@ from werkzeug.exceptions import HTTPException
 from calc.validity import CalculationError, InputError
 from schemas.base import error_list
 
+from .storage import Conflict, NotFound, Stale, StorageError, Unavailable
+
 log = logging.getLogger("coolmargin")
 PROBLEM_TYPE = "about:blank"
 
@@ -26,6 +28,7 @@ TITLES = {
     400: "Malformed request", 401: "Authentication required", 404: "Not found",
     405: "Method not allowed", 406: "Not acceptable", 413: "Request too large",
     415: "Unsupported media type", 422: "Invalid input", 429: "Too many requests",
+    403: "Forbidden", 409: "Conflict", 412: "Precondition failed", 428: "Precondition required",
     500: "Internal error", 503: "Not ready",
 }
 
@@ -64,6 +67,9 @@ def problem_for(exc: Exception) -> tuple[int, str, list[dict], str | None]:
         return 422, str(exc), [], "Calculation did not converge"
     if isinstance(exc, ProblemError):
         return exc.status, exc.detail, exc.errors, exc.title
+    if isinstance(exc, StorageError):
+        status = {NotFound: 404, Conflict: 409, Stale: 412, Unavailable: 503}.get(type(exc), 500)
+        return status, str(exc), [], "Catalogue unavailable" if status == 503 else None
     if isinstance(exc, HTTPException):
         return exc.code or 500, exc.description or exc.name, [], None
     return 500, "The server could not complete the calculation; the error was logged with the request id.", [], None
@@ -78,4 +84,8 @@ def register(app: Flask) -> None:
         headers = {}
         if isinstance(exc, HTTPException) and status == 405 and exc.valid_methods:
             headers["Allow"] = ", ".join(exc.valid_methods)
+        if isinstance(exc, Stale):
+            headers["ETag"] = exc.current.etag  # what a retry should send, after reading the change
+        if isinstance(exc, Unavailable):
+            headers["Retry-After"] = "5"
         return problem(status, detail, errors, title, headers)

@@ -1,7 +1,10 @@
 """Optional bearer-token authentication, a CORS allow-list, security headers and log redaction.
 
-Configured by AUTH_TOKENS (comma-separated), AUTH_TOKENS_FILE (one token a line, '#' comments) and
+Configured by AUTH_TOKENS (comma-separated entries), AUTH_TOKENS_FILE (one entry a line, '#' comments) and
 CORS_ORIGINS (comma-separated exact origins, or "*"). With no token configured the service is open.
+An entry is ``TOKEN`` or ``TOKEN NAME`` or ``TOKEN NAME ROLE`` (whitespace-separated): NAME is what the
+catalogue records as the author of a change (default ``token-`` and 8 hex digits of the token's SHA-256),
+ROLE is ``write`` (the default: may change the catalogue) or ``read`` (calculations and reading only).
 The liveness/readiness probes and the published contract (/docs, /openapi.yaml) stay open: the contract
 holds no plant data, and probes must work for the orchestrator without a secret.
 """
@@ -11,6 +14,7 @@ import hashlib
 import hmac
 import logging
 import re
+from dataclasses import dataclass
 
 from flask import Flask, current_app, g, request
 
@@ -19,8 +23,8 @@ from .errors import problem
 log = logging.getLogger("coolmargin")
 
 OPEN_PATHS = frozenset({"/health", "/ready", "/docs", "/openapi.yaml"})
-CORS_METHODS = "GET, POST"
-CORS_HEADERS = "Content-Type, Authorization, X-Request-ID"
+CORS_METHODS = "GET, POST, PUT, PATCH, DELETE"
+CORS_HEADERS = "Content-Type, Authorization, X-Request-ID, If-Match"
 CORS_MAX_AGE = "600"  # s a browser may cache a preflight answer
 REALM = 'Bearer realm="coolmargin"'
 # /docs uses one inline <style> block and nothing else: no scripts, no external resources.
@@ -36,9 +40,37 @@ def _split(raw: str) -> list[str]:
     return [item.strip() for item in (raw or "").split(",") if item.strip()]
 
 
-def load_tokens(inline: str, path: str) -> list[str]:
-    """Tokens from the comma-separated setting and the file (one a line, '#' starts a comment)."""
-    tokens = _split(inline)
+ROLES = ("write", "read")
+_NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._@-]{0,63}$")
+
+
+@dataclass(frozen=True)
+class Token:
+    secret: str
+    name: str
+    write: bool
+
+
+def parse_token(entry: str) -> Token:
+    """``TOKEN [NAME [ROLE]]`` -> Token; a bare token may write and gets a name derived from its digest."""
+    parts = entry.split()
+    if not parts or len(parts) > 3:
+        raise ConfigurationError("an auth token entry is 'TOKEN', 'TOKEN NAME' or 'TOKEN NAME ROLE'")
+    secret = parts[0]
+    name = parts[1] if len(parts) > 1 else "token-" + hashlib.sha256(secret.encode("utf-8", "surrogateescape")).hexdigest()[:8]
+    role = parts[2] if len(parts) > 2 else "write"
+    if not _NAME.match(name):
+        raise ConfigurationError("an auth token's name is 1-64 letters, digits or . _ @ -")
+    if role not in ROLES:
+        raise ConfigurationError(f"an auth token's role is one of {', '.join(ROLES)}")
+    if not secret.isprintable():
+        raise ConfigurationError("an auth token contains whitespace or control characters")
+    return Token(secret, name, role == "write")
+
+
+def load_token_entries(inline: str, path: str) -> list[Token]:
+    """Tokens with their names and roles from the setting and the file."""
+    entries = _split(inline)
     if path:
         try:
             with open(path, encoding="utf-8") as handle:
@@ -49,11 +81,17 @@ def load_tokens(inline: str, path: str) -> list[str]:
         from_file = [token for token in from_file if token]
         if not from_file:
             raise ConfigurationError("AUTH_TOKENS_FILE is set but holds no token")
-        tokens.extend(from_file)
-    for token in tokens:
-        if any(ch.isspace() for ch in token) or not token.isprintable():
-            raise ConfigurationError("an auth token contains whitespace or control characters")
+        entries.extend(from_file)
+    tokens = [parse_token(entry) for entry in entries]
+    names = [token.name for token in tokens]
+    if len(set(names)) != len(names):
+        raise ConfigurationError("two auth tokens share a name; the catalogue could not tell their changes apart")
     return tokens
+
+
+def load_tokens(inline: str, path: str) -> list[str]:
+    """The secrets alone (see ``load_token_entries`` for names and roles)."""
+    return [token.secret for token in load_token_entries(inline, path)]
 
 
 def _digest(token: str) -> bytes:
@@ -61,13 +99,18 @@ def _digest(token: str) -> bytes:
     return hashlib.sha256(token.encode("utf-8", "surrogateescape")).digest()
 
 
-def token_matches(supplied: str, digests: list[bytes]) -> bool:
-    """Constant-time check against every configured token, with no early exit."""
+def token_index(supplied: str, digests: list[bytes]) -> int | None:
+    """Which configured token matches, compared in constant time against every one, with no early exit."""
     candidate = _digest(supplied)
-    matched = False
-    for digest in digests:
-        matched |= hmac.compare_digest(candidate, digest)
-    return matched
+    found = -1
+    for index, digest in enumerate(digests):
+        hit = hmac.compare_digest(candidate, digest)
+        found = index if hit else found
+    return None if found < 0 else found
+
+
+def token_matches(supplied: str, digests: list[bytes]) -> bool:
+    return token_index(supplied, digests) is not None
 
 
 # ---- log redaction ------------------------------------------------------------------------------
@@ -113,8 +156,19 @@ def _allowed_origin(origin: str | None, allowed: frozenset[str]) -> bool:
     return bool(origin) and ("*" in allowed or origin in allowed)
 
 
+def can_write() -> bool:
+    """May this request change the catalogue? (Always, with authentication off.)"""
+    return g.get("token_write", True)
+
+
+def author() -> str:
+    """The name recorded with a change: the token's name, or ``anonymous`` with authentication off."""
+    return g.get("token_name", "anonymous")
+
+
 def _authenticate():
-    digests = current_app.extensions["coolmargin.security"]["digests"]
+    settings = current_app.extensions["coolmargin.security"]
+    digests = settings["digests"]
     if not digests or request.method == "OPTIONS" or request.path in OPEN_PATHS:
         return None
     scheme, _, supplied = request.headers.get("Authorization", "").partition(" ")
@@ -124,11 +178,14 @@ def _authenticate():
                     extra={"request_id": g.get("request_id", "-")})
         return problem(401, "This service requires a bearer token: send 'Authorization: Bearer <token>'.",
                        headers={"WWW-Authenticate": REALM})
-    if not token_matches(supplied, digests):
+    index = token_index(supplied, digests)
+    if index is None:
         log.warning("request refused: token not recognised (%s %s)", request.method, request.path,
                     extra={"request_id": g.get("request_id", "-")})
         return problem(401, "The bearer token was not recognised.",
                        headers={"WWW-Authenticate": REALM + ', error="invalid_token"'})
+    token = settings["tokens"][index]
+    g.token_name, g.token_write = token.name, token.write
     return None
 
 
@@ -153,7 +210,7 @@ def _headers(response):
         response.vary.add("Origin")
     if _allowed_origin(origin, origins):
         response.headers["Access-Control-Allow-Origin"] = origin
-        response.headers["Access-Control-Expose-Headers"] = "X-Request-ID"
+        response.headers["Access-Control-Expose-Headers"] = "X-Request-ID, ETag, Location"
     response.headers.setdefault("X-Content-Type-Options", "nosniff")
     response.headers.setdefault("X-Frame-Options", "DENY")
     response.headers.setdefault("Referrer-Policy", "no-referrer")
@@ -168,11 +225,12 @@ def register(app: Flask) -> None:
 
     Call after the request-id hook is registered, so refusals carry the request id.
     """
-    tokens = load_tokens(app.config.get("AUTH_TOKENS", ""), app.config.get("AUTH_TOKENS_FILE", ""))
-    _SECRETS.update(tokens)
+    tokens = load_token_entries(app.config.get("AUTH_TOKENS", ""), app.config.get("AUTH_TOKENS_FILE", ""))
+    _SECRETS.update(token.secret for token in tokens)
     _install_redaction()
     app.extensions["coolmargin.security"] = {
-        "digests": [_digest(token) for token in tokens],
+        "digests": [_digest(token.secret) for token in tokens],
+        "tokens": tokens,
         "origins": frozenset(_split(app.config.get("CORS_ORIGINS", ""))),
     }
     app.before_request(_preflight)

@@ -118,7 +118,11 @@ def liquid_range(fluid: str, mass_fraction: float | None = None,
             if pressure >= state.p_critical():
                 high = state.T_critical()
             else:
-                state.update(CP.PQ_INPUTS, pressure, 0.0)
+                try:
+                    state.update(CP.PQ_INPUTS, pressure, 0.0)
+                except ValueError:  # below the triple-point pressure there is no saturated liquid
+                    raise InputError("pressure", f"{pressure:.4g} Pa is below the lowest pressure at which "
+                                                 f"{info.name} can be liquid") from None
                 high = state.T()
         else:
             state.update(CP.PT_INPUTS, pressure, 0.5 * (state.Tmin() + state.Tmax()))

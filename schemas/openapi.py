@@ -164,6 +164,7 @@ def paths() -> dict:
                               "responses": {"200": ok, "400": _PROBLEM, "401": _PROBLEM, "413": _PROBLEM,
                                             "415": _PROBLEM, "422": _PROBLEM}},
         }
+    out.update(record_paths())
     for library in registry.LIBRARIES:
         item = {"$ref": f"#/components/schemas/{_name(library.item)}"}
         out[library.path] = {"get": {
@@ -175,6 +176,118 @@ def paths() -> dict:
                     "items": {"type": "array", "items": item}, "units": {"$ref": "#/components/schemas/Units"}}}},
                 "text/csv": {"schema": {"type": "string"}}}},
                 "401": _PROBLEM, "422": _PROBLEM}}}
+    return out
+
+
+_RECORD_PROBLEMS = {"401": _PROBLEM, "404": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}
+_KEY = {"name": "key", "in": "path", "required": True, "description": "the record's id, or the tag of a live record "
+        "(of the latest retired one when none is live)", "schema": {"type": "string", "minLength": 1, "maxLength": 64}}
+_IF_MATCH = {"name": "If-Match", "in": "header", "required": True,
+             "description": "ETag of the revision the change is based on (RFC 9110 §13.1.1); missing: 428, "
+                            "stale: 412 with the current ETag", "schema": {"type": "string", "maxLength": 200}}
+_ETAG = {"ETag": {"description": "entity tag of the record's current revision", "schema": {"type": "string"}}}
+
+
+def _record_ok(description: str, status_headers: dict | None = None) -> dict:
+    out = {"description": description,
+           "content": {"application/json": {"schema": {"$ref": "#/components/schemas/Record"}}}}
+    if status_headers:
+        out["headers"] = status_headers
+    return out
+
+
+def _list_ok(description: str) -> dict:
+    return {"description": description, "content": {
+        "application/json": {"schema": {"$ref": "#/components/schemas/RecordList"}},
+        "text/csv": {"schema": {"type": "string"}}}}
+
+
+def _query_parameters(schema_cls: type[Schema], names: list[str]) -> list[dict]:
+    refs: dict[str, type] = {}
+    schema = schema_cls()
+    out = []
+    for name in names:
+        field = schema.fields[name]
+        item = _field(field, refs)
+        description = item.pop("description", "")
+        if "$ref" in item:  # a quantity: text with a unit, or a number in the default unit
+            item = {"type": "string", "maxLength": 80, "x-unit": item["x-unit"]}
+        out.append({"name": name, "in": "query", "description": description, "schema": item})
+    return out
+
+
+def record_paths() -> dict:
+    """Path items of the catalogue collections: the records, their revisions, and the changes to them."""
+    from . import registry
+    from .records import RecordQuerySchema
+
+    plant = json.loads((EXAMPLES / "plant.json").read_text())
+    out: dict = {}
+    for collection in registry.COLLECTIONS:
+        plural = collection.path.split("/")[-1]
+        name = plural.capitalize()
+        single = collection.kind.capitalize()
+        content = {"$ref": f"#/components/schemas/{_name(collection.content)}"}
+        example = next(item["content"] for item in plant["records"] if item["kind"] == collection.kind)
+        body = {"required": True, "content": {"application/json": {
+            "schema": content, "examples": {"demo": {"summary": "from the demo plant (examples/plant.json)",
+                                                     "value": example}}}}}
+        filters = ["tag", "retired", "limit", "offset"]
+        if collection.vessel_filters:
+            filters[1:1] = ["material", "jacket_type", "volume_min", "volume_max"]
+        tags = ["catalogue"]
+        out[collection.path] = {
+            "get": {"tags": tags, "summary": f"List {plural}: {collection.summary}", "operationId": f"list{name}",
+                    "parameters": [{"$ref": "#/components/parameters/format"}] + _query_parameters(RecordQuerySchema,
+                                                                                                filters),
+                    "responses": {"200": _list_ok(f"Current revisions of the live {plural} matching every filter, "
+                                                  "ordered by tag."), "401": _PROBLEM, "422": _PROBLEM,
+                                  "503": _PROBLEM}},
+            "post": {"tags": tags, "summary": f"Create a {collection.kind} record (revision 1)",
+                     "description": "The content is validated by the same schemas as the calculations. A token "
+                                    "with the write role is needed when tokens are configured.",
+                     "operationId": f"create{single}", "requestBody": body,
+                     "responses": {"201": _record_ok("Created; Location names the record, ETag its revision.",
+                                                     {**_ETAG, "Location": {"description": "the record's URL",
+                                                                            "schema": {"type": "string"}}}),
+                                   "400": _PROBLEM, "401": _PROBLEM, "403": _PROBLEM, "409": _PROBLEM,
+                                   "413": _PROBLEM, "415": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}},
+        }
+        item_path = f"{collection.path}/{{key}}"
+        change = {"400": _PROBLEM, "401": _PROBLEM, "403": _PROBLEM, "404": _PROBLEM, "409": _PROBLEM,
+                  "412": _PROBLEM, "413": _PROBLEM, "415": _PROBLEM, "422": _PROBLEM, "428": _PROBLEM,
+                  "503": _PROBLEM}
+        out[item_path] = {
+            "get": {"tags": tags, "summary": f"The current revision of a {collection.kind}",
+                    "operationId": f"read{single}", "parameters": [_KEY],
+                    "responses": {"200": _record_ok("The current revision, with its ETag.", _ETAG),
+                                  **_RECORD_PROBLEMS}},
+            "put": {"tags": tags, "summary": f"Replace a {collection.kind}'s content (a new revision)",
+                    "operationId": f"replace{single}", "parameters": [_KEY, _IF_MATCH], "requestBody": body,
+                    "responses": {"200": _record_ok("The new revision.", _ETAG), **change}},
+            "patch": {"tags": tags, "summary": f"Change part of a {collection.kind} (JSON Merge Patch, RFC 7396; "
+                                               "a new revision)",
+                      "operationId": f"update{single}", "parameters": [_KEY, _IF_MATCH],
+                      "requestBody": {"required": True, "content": {
+                          "application/merge-patch+json": {"schema": {"type": "object"}},
+                          "application/json": {"schema": {"type": "object"}}}},
+                      "responses": {"200": _record_ok("The new revision.", _ETAG), **change}},
+            "delete": {"tags": tags, "summary": f"Retire a {collection.kind}: a last revision marks it retired; "
+                                                "its history stays readable",
+                       "operationId": f"retire{single}",
+                       "parameters": [_KEY, dict(_IF_MATCH, required=False,
+                                                 description="optional; when sent, a stale ETag is refused with 412")],
+                       "responses": {"200": _record_ok("The retiring revision."), **change}},
+        }
+        out[f"{item_path}/revisions"] = {"get": {
+            "tags": tags, "summary": f"Every revision of a {collection.kind}, oldest first, with author and time",
+            "operationId": f"history{single}", "parameters": [{"$ref": "#/components/parameters/format"}, _KEY],
+            "responses": {"200": _list_ok("All revisions."), **_RECORD_PROBLEMS}}}
+        out[f"{item_path}/revisions/{{number}}"] = {"get": {
+            "tags": tags, "summary": f"One revision of a {collection.kind}", "operationId": f"revision{single}",
+            "parameters": [_KEY, {"name": "number", "in": "path", "required": True,
+                                  "schema": {"type": "integer", "minimum": 1}}],
+            "responses": {"200": _record_ok("That revision as it was written."), **_RECORD_PROBLEMS}}}
     return out
 
 
