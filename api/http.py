@@ -12,12 +12,13 @@ import json
 import math
 from typing import Any, Callable
 
-from flask import Response, current_app, request
+from flask import Response, current_app, g, request
 from marshmallow import Schema, ValidationError
 
 from schemas.base import clean, unflatten, unit_map
 
 from .errors import ProblemError
+from .references import records_used, resolve
 
 RESERVED_PARAMETERS = {"format", "field"}
 FORMATS = {"json": "application/json", "csv": "text/csv", "svg": "image/svg+xml", "png": "image/png"}
@@ -62,8 +63,11 @@ def request_object() -> dict:
 
 
 def load(schema: Schema) -> dict:
-    """Validate and convert the request object with ``schema`` (ValidationError -> 422)."""
-    return schema.load(request_object())
+    """Validate and convert the request object with ``schema`` (ValidationError -> 422).
+
+    Stored records named by ``{"ref": ...}`` are filled in first (see ``api.references``).
+    """
+    return schema.load(resolve(request_object(), schema))
 
 
 def units_of(schema: Schema) -> dict[str, str]:
@@ -194,6 +198,9 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple
                                [{"field": "format", "message": "no chart for this resource"}])
         return Response(chart(payload, fmt), status=status, mimetype=FORMATS[fmt])
     body = dict(payload)
+    used = records_used()
+    if used:
+        body["records"] = used
     body["units"] = units
     return Response(json.dumps(body, allow_nan=False), status=status, mimetype="application/json")
 
@@ -220,7 +227,11 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
         try:
             if not isinstance(case, dict):
                 raise ValidationError(["must be an object"])
-            results.append({"status": 200, "result": clean(result_schema.dump(compute(schema.load(case))))})
+            g.records_used = []
+            result = clean(result_schema.dump(compute(schema.load(resolve(case, schema)))))
+            if g.records_used:
+                result["records"] = records_used()
+            results.append({"status": 200, "result": result})
         except Exception as exc:  # each case reports its own problem
             status, detail, errors, title = problem_for(exc)
             if status >= 500:
@@ -240,4 +251,4 @@ def calculate(schema: Schema, compute: Callable[[dict], dict], result_schema: Sc
             raise ProblemError(422, "a batch body holds only 'cases'",
                                [{"field": sorted(set(data) - {"cases"})[0], "message": "not allowed beside cases"}])
         return batch_response(data["cases"], schema, compute, result_schema)
-    return respond(compute(schema.load(data)), result_schema, **respond_options)
+    return respond(compute(schema.load(resolve(data, schema))), result_schema, **respond_options)

@@ -14,7 +14,11 @@ from marshmallow import Schema, fields, validate
 from .units import Quantity
 
 
-def _field(field: fields.Field, refs: dict[str, type]) -> dict:
+_RECORD_REF = {"$ref": "#/components/schemas/RecordRef"}
+
+
+def _field(field: fields.Field, refs: dict[str, type], referable: bool = False) -> dict:
+    """JSON Schema of one field; with ``referable``, a vessel or coolant may also be a stored record's ref."""
     metadata = field.metadata or {}
     if isinstance(field, Quantity):
         out: dict = {"$ref": "#/components/schemas/QuantityText", "x-unit": metadata["unit"]}
@@ -25,8 +29,10 @@ def _field(field: fields.Field, refs: dict[str, type]) -> dict:
         name = nested.__name__.removesuffix("Schema")
         refs[name] = nested
         out = {"$ref": f"#/components/schemas/{name}"}
+        if referable and getattr(nested, "record_kind", None):
+            out = {"anyOf": [out, _RECORD_REF]}
     elif isinstance(field, fields.List):
-        out = {"type": "array", "items": _field(field.inner, refs)}
+        out = {"type": "array", "items": _field(field.inner, refs, referable)}
     elif isinstance(field, fields.Dict):
         out = {"type": "object", "additionalProperties": _field(field.value_field, refs) if field.value_field else {}}
     elif isinstance(field, fields.Boolean):
@@ -59,20 +65,39 @@ def _field(field: fields.Field, refs: dict[str, type]) -> dict:
     return out
 
 
-def json_schema(schema_cls: type[Schema], refs: dict[str, type] | None = None, *, response: bool = False) -> dict:
-    """The JSON Schema of one marshmallow schema class; nested classes are collected in ``refs``."""
+def json_schema(schema_cls: type[Schema], refs: dict[str, type] | None = None, *, response: bool = False,
+                root: bool = False) -> dict:
+    """The JSON Schema of one marshmallow schema class; nested classes are collected in ``refs``.
+
+    A calculation request (``root``) may name a stored step, and its vessel and coolant objects may be
+    stored records' refs: the members those supply are then not required (see api/references.py).
+    """
+    from .records import STEP_SUPPLIES
+
     refs = {} if refs is None else refs
     schema = schema_cls()
+    referable = not response and getattr(schema_cls, "accepts_refs", True)
     properties = {}
     required = []
     for name, field in schema.fields.items():
         key = field.data_key or name
-        properties[key] = _field(field, refs)
+        properties[key] = _field(field, refs, referable)
         if field.required:
             required.append(key)
     out: dict = {"type": "object", "properties": properties}
     if not response:
         out["additionalProperties"] = False
+    if referable and "vessel" in properties and "coolant" in required:
+        required.remove("coolant")
+        properties["coolant"]["description"] = ("required unless `vessel` names a stored vessel with a utility, "
+                                                "whose coolant is then used")
+    supplied = [key for key in required if key in STEP_SUPPLIES]
+    if referable and root and set(properties) & STEP_SUPPLIES:
+        properties["step"] = dict(_RECORD_REF, description="a stored process step: supplies the members of this "
+                                  "request it describes; members given beside it override it")
+        if supplied:
+            required = [key for key in required if key not in supplied]
+            out["anyOf"] = [{"required": supplied}, {"required": ["step"]}]
     if required:
         out["required"] = required
     return out
@@ -80,19 +105,30 @@ def json_schema(schema_cls: type[Schema], refs: dict[str, type] | None = None, *
 
 def components(request_roots: list[type], response_roots: list[type]) -> dict:
     """Every schema reachable from the roots, keyed by class name without 'Schema'."""
+    from .records import RecordRefSchema
+
     done: dict[str, dict] = {}
     for roots, response in ((request_roots, False), (response_roots, True)):
+        root_names = {cls.__name__.removesuffix("Schema") for cls in roots}
         pending = {cls.__name__.removesuffix("Schema"): cls for cls in roots}
         while pending:
             name, cls = pending.popitem()
             if name in done:
                 continue
             refs: dict[str, type] = {}
-            done[name] = json_schema(cls, refs, response=response)
+            done[name] = json_schema(cls, refs, response=response, root=name in root_names and not response)
             pending.update({k: v for k, v in refs.items() if k not in done})
+    done["RecordRef"] = json_schema(RecordRefSchema)
     for cls in response_roots:
         done[_name(cls)]["properties"]["units"] = {"$ref": "#/components/schemas/Units"}
     from . import registry
+    from .records import ReferenceSchema
+
+    done["Reference"] = json_schema(ReferenceSchema, response=True)
+    for calc in registry.CALCULATIONS:
+        done[_name(calc.response)]["properties"]["records"] = {
+            "type": "array", "items": {"$ref": "#/components/schemas/Reference"},
+            "description": "the stored records (and revisions) the request named, present when it named any"}
 
     for calc in registry.CALCULATIONS:
         if calc.batch:

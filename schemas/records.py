@@ -46,7 +46,11 @@ class CalibrationSchema(StrictSchema):
     notes = _notes()
 
 
-class VesselRecordSchema(StrictSchema):
+class _RecordContent(StrictSchema):
+    accepts_refs = False  # a record holds objects, never references to other records' objects
+
+
+class VesselRecordSchema(_RecordContent):
     tag = _tag(required=True)
     vessel = fields.Nested(VesselSchema, required=True)
     utility = fields.String(load_default=None, validate=validate.Length(min=1, max=64),
@@ -56,13 +60,13 @@ class VesselRecordSchema(StrictSchema):
     notes = _notes()
 
 
-class UtilityRecordSchema(StrictSchema):
+class UtilityRecordSchema(_RecordContent):
     tag = _tag(required=True)
     coolant = fields.Nested(CoolantSchema, required=True)
     notes = _notes()
 
 
-class StepRecordSchema(StrictSchema):
+class StepRecordSchema(_RecordContent):
     """A process step: what goes into the vessel, at what temperature, releasing what heat."""
 
     tag = _tag(required=True)
@@ -144,8 +148,17 @@ class ReferenceSchema(StrictSchema):
 
 
 class RecordRefSchema(StrictSchema):
+    """A stored record named where its object would stand in a calculation request."""
+
     ref = fields.String(required=True, validate=validate.Length(min=1, max=64),
                         metadata={"description": "id or tag of a stored record; its current revision is used"})
+    revision = fields.Integer(validate=validate.Range(min=1),
+                              metadata={"description": "use this revision instead of the current one"})
+
+
+# What a step record can supply to a calculation request (its own members and its cooling-failure scenario).
+STEP_SUPPLIES = frozenset(set(StepRecordSchema().fields) - {"tag", "notes", "cooling_failure"}) | frozenset(
+    ThermalSafetyRequestSchema().fields)
 
 
 __all__ = ["CalibrationSchema", "RECORD_SCHEMAS", "RecordListSchema", "RecordQuerySchema", "RecordSchema",
