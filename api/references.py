@@ -21,7 +21,15 @@ from schemas.records import CONTENT
 
 from .storage import NotFound, RevisionView
 
-SLOTS = {"vessel": "vessel", "reference": "vessel", "coolant": "utility"}
+SLOTS = {"vessel": "vessel", "reference": "vessel", "coolant": "utility", "step": "step"}
+STEP_MEMBERS = ("charge", "process_temperature", "heat_release", "safety_factor")
+
+
+def _content(kind: str, body: dict) -> dict:
+    """The part of a record that stands where a ref named it."""
+    if kind == "step":  # a request member that is a whole step (a screening's)
+        return {k: body[k] for k in STEP_MEMBERS if k in body}
+    return body[CONTENT[kind]]
 
 
 def _is_ref(value: Any) -> bool:
@@ -68,7 +76,7 @@ def _walk(node: dict, schema: Schema | None, path: str, used: list[dict]) -> dic
         if key in SLOTS and _is_ref(value) and key in declared:
             kind = SLOTS[key]
             revision = _fetch(kind, value, field)
-            out[key] = revision.body[CONTENT[kind]]
+            out[key] = _content(kind, revision.body)
             used.append(_used(revision, field))
             if kind == "vessel":
                 _defaults(out, node, revision, declared, path, used)
@@ -118,7 +126,7 @@ def _step(data: dict, declared: set[str], used: list[dict]) -> dict:
 def resolve(data: dict, schema: Schema) -> dict:
     """The request with every stored record it names filled in; the records used go to ``g.records_used``."""
     if not _contains_ref(data):
-        if "step" in data:
+        if "step" in data and "step" not in _declared(schema):
             _step(data, _declared(schema), [])  # explains the one accepted form
         return data
     used: list[dict] = []

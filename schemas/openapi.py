@@ -24,6 +24,13 @@ def _field(field: fields.Field, refs: dict[str, type], referable: bool = False) 
         out: dict = {"$ref": "#/components/schemas/QuantityText", "x-unit": metadata["unit"]}
     elif field.__class__.__name__ == "Flow":
         out = {"$ref": "#/components/schemas/QuantityText", "x-unit": metadata["unit"]}
+    elif field.__class__.__name__ == "VesselSelection":
+        from .screening import MAX_LISTED_VESSELS, VesselFilterSchema
+
+        refs["VesselFilter"] = VesselFilterSchema
+        out = {"anyOf": [{"type": "array", "minItems": 1, "maxItems": MAX_LISTED_VESSELS,
+                          "items": {"type": "string", "minLength": 1, "maxLength": 64}},
+                         {"$ref": "#/components/schemas/VesselFilter"}]}
     elif isinstance(field, fields.Nested):
         nested = field.nested if isinstance(field.nested, type) else type(field.schema)
         name = nested.__name__.removesuffix("Schema")
@@ -201,6 +208,7 @@ def paths() -> dict:
                                             "415": _PROBLEM, "422": _PROBLEM}},
         }
     out.update(record_paths())
+    out.update(screening_paths())
     for library in registry.LIBRARIES:
         item = {"$ref": f"#/components/schemas/{_name(library.item)}"}
         out[library.path] = {"get": {
@@ -325,6 +333,60 @@ def record_paths() -> dict:
                                   "schema": {"type": "integer", "minimum": 1}}],
             "responses": {"200": _record_ok("That revision as it was written."), **_RECORD_PROBLEMS}}}
     return out
+
+
+def screening_paths() -> dict:
+    """Path items of /v1/screenings (create, list, read, re-run)."""
+    ok = {"description": "The ranked screening: a row per vessel; CSV one row per vessel; SVG/PNG the margins "
+                         "with the safety-factor line.",
+          "content": {"application/json": {"schema": {"$ref": "#/components/schemas/ScreeningResult"}},
+                      "text/csv": {"schema": {"type": "string"}}, "image/svg+xml": {"schema": {"type": "string"}},
+                      "image/png": {"schema": {"type": "string"}}}}
+    created = dict(ok, description="Screened and stored; Location names the stored screening. " + ok["description"],
+                   headers={"Location": {"description": "the stored screening", "schema": {"type": "string"}}})
+    problems = {"400": _PROBLEM, "401": _PROBLEM, "404": _PROBLEM, "413": _PROBLEM, "415": _PROBLEM,
+                "422": _PROBLEM, "503": _PROBLEM}
+    screening_id = {"name": "screening_id", "in": "path", "required": True,
+                    "schema": {"type": "string", "minLength": 1, "maxLength": 64}}
+    description = ("One process step (stored, {\"ref\": ...}, or inline) against many stored vessels (all live "
+                   "vessels, a filter, or a list of ids or tags), each with its own utility unless a coolant is "
+                   "given. Rows are ranked: adequate first, then by margin. Each row gives margin, verdict, "
+                   "minimum dosing time, warmest coolant inlet, controlling resistance and warnings, or why there "
+                   "is no verdict (the charge does not fit). The screening is stored with the revisions it used; "
+                   "`changes` says what differs from the previous run of the same request. Past the computing "
+                   "budget the remaining rows are 'not evaluated' and the status is partial. A screening "
+                   "estimate: confirm with reaction calorimetry and plant data; local codes and a licensed "
+                   "engineer's review govern.")
+    plant = json.loads((EXAMPLES / "plant.json").read_text())
+    step = next(item["content"]["tag"] for item in plant["records"] if item["kind"] == "step")
+    return {
+        "/v1/screenings": {
+            "post": {"tags": ["screening"], "summary": "Which vessels can run this step, and at what dosing time?",
+                     "description": description, "operationId": "createScreening",
+                     "parameters": [{"$ref": "#/components/parameters/format"}],
+                     "requestBody": {"required": True, "content": {"application/json": {
+                         "schema": {"$ref": "#/components/schemas/ScreeningRequest"},
+                         "examples": {"demo": {"summary": "the demo plant's step against every vessel",
+                                               "value": {"step": {"ref": step}}}}}}},
+                     "responses": {"201": created, **problems}},
+            "get": {"tags": ["screening"], "summary": "Stored screenings, newest first", "operationId": "listScreenings",
+                    "parameters": [{"name": "limit", "in": "query", "schema": {"type": "integer", "minimum": 1,
+                                                                                "maximum": 500}},
+                                   {"name": "offset", "in": "query", "schema": {"type": "integer", "minimum": 0}}],
+                    "responses": {"200": {"description": "Summaries.", "content": {"application/json": {
+                        "schema": {"$ref": "#/components/schemas/ScreeningList"}}}},
+                        "401": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}},
+        },
+        "/v1/screenings/{screening_id}": {"get": {
+            "tags": ["screening"], "summary": "A stored screening, as it was answered", "operationId": "readScreening",
+            "parameters": [{"$ref": "#/components/parameters/format"}, screening_id],
+            "responses": {"200": ok, "401": _PROBLEM, "404": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}}},
+        "/v1/screenings/{screening_id}/rerun": {"post": {
+            "tags": ["screening"], "summary": "Run a stored screening's request again on the current revisions",
+            "description": "A new stored screening; its `changes` list what differs from the previous run.",
+            "operationId": "rerunScreening", "parameters": [{"$ref": "#/components/parameters/format"}, screening_id],
+            "responses": {"201": created, **problems}}},
+    }
 
 
 def write(path: str) -> None:

@@ -12,6 +12,7 @@ from .cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, Scale
                       ScaleUpResultSchema)
 from .properties import FluidSchema, PropertiesResultSchema
 from .records import RecordListSchema, RecordSchema, StepRecordSchema, UtilityRecordSchema, VesselRecordSchema
+from .screening import ScreeningListSchema, ScreeningRequestSchema, ScreeningResultSchema
 from .safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
                      ThermalSafetyRequestSchema, ThermalSafetyResultSchema)
 
@@ -126,6 +127,6 @@ COLLECTIONS = [
     Collection("/v1/steps", "step", "Process steps: charge, process temperature, heat release, safety factor and "
                "the cooling-failure scenario", StepRecordSchema),
 ]
-REQUEST_SCHEMAS = [c.request for c in CALCULATIONS] + [c.content for c in COLLECTIONS]
+REQUEST_SCHEMAS = [c.request for c in CALCULATIONS] + [c.content for c in COLLECTIONS] + [ScreeningRequestSchema]
 RESPONSE_SCHEMAS = ([PropertiesResultSchema, FluidSchema] + [c.response for c in CALCULATIONS] + [l.item for l in LIBRARIES]
-                    + [RecordSchema, RecordListSchema])
+                    + [RecordSchema, RecordListSchema, ScreeningResultSchema, ScreeningListSchema])
