@@ -15,12 +15,12 @@ from flask import Blueprint, Flask, Response, current_app, request
 from marshmallow import ValidationError
 
 from schemas.base import clean, unit_map
-from schemas.records import RECORD_SCHEMAS, RecordListSchema, RecordQuerySchema, RecordSchema, index_of
+from schemas.records import RECORD_SCHEMAS, RecordListSchema, RecordQuerySchema, RecordSchema
 
-from . import security
+from . import bulk, security
 from .errors import ProblemError
 from .http import request_object, requested_format, to_csv
-from .storage import Catalogue, NotFound, RevisionView, Stale, Unavailable
+from .storage import Catalogue, RevisionView, Stale, Unavailable
 
 log = logging.getLogger("coolmargin")
 bp = Blueprint("records", __name__, url_prefix="/v1")
@@ -73,20 +73,9 @@ def _answer(revision: RevisionView, status: int = 200) -> Response:
     return response
 
 
-def validated(kind: str, content: Any, prefix: str = "") -> tuple[dict, dict]:
+def validated(kind: str, content: Any) -> tuple[dict, dict]:
     """Check a record's content with the calculation schemas; return it as sent and its index fields."""
-    if not isinstance(content, dict):
-        raise ValidationError({prefix or "(body)": ["must be an object"]})
-    try:
-        loaded = RECORD_SCHEMAS[kind]().load(content)
-    except ValidationError as error:
-        raise ValidationError({prefix: error.messages} if prefix else error.messages) from None
-    if kind == "vessel" and loaded.get("utility") is not None:
-        try:
-            store().get("utility", loaded["utility"])
-        except NotFound:
-            raise ValidationError({"utility": [f"no utility with id or tag {loaded['utility']!r}"]}) from None
-    return content, index_of(kind, loaded)
+    return content, bulk.check_content(store(), kind, content)
 
 
 def _if_match(current: RevisionView) -> int:
@@ -171,6 +160,24 @@ def _retire(kind: str, key: str):
     current = catalogue.get(kind, key)
     expected = _if_match(current) if "If-Match" in request.headers else None
     return _answer(catalogue.revise(kind, current.record_id, expected, security.author(), retire=True))
+
+
+@bp.post("/vessels/import")
+def import_vessels():
+    """A vessel list from a spreadsheet (CSV, see api/bulk.py); ``replace=true`` revises existing tags."""
+    require_write()
+    if request.mimetype != "text/csv":
+        raise ProblemError(415, f"send the vessel list as text/csv, not {request.mimetype or 'no content type'}")
+    replace = request.args.get("replace", "false")
+    if replace not in ("true", "false"):
+        raise ValidationError({"replace": ["must be true or false"]})
+    try:
+        text = request.get_data(as_text=False).decode("utf-8")
+    except UnicodeDecodeError:
+        raise ProblemError(400, "the CSV is not UTF-8 text") from None
+    summary = bulk.import_vessels(store(), bulk.vessels_from_csv(text), security.author(), replace == "true")
+    status = 201 if summary["created"] or summary["revised"] else 200
+    return Response(json.dumps(summary), status=status, mimetype="application/json")
 
 
 def _revisions(kind: str, key: str):

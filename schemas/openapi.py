@@ -126,6 +126,9 @@ def components(request_roots: list[type], response_roots: list[type]) -> dict:
             done[name] = json_schema(cls, refs, response=response, root=name in root_names and not response)
             pending.update({k: v for k, v in refs.items() if k not in done})
     done["RecordRef"] = json_schema(RecordRefSchema)
+    listed = {"type": "array", "items": {"$ref": "#/components/schemas/Reference"}}
+    done["ImportSummary"] = {"type": "object", "description": "what an import did, record by record",
+                             "properties": {name: listed for name in ("created", "revised", "unchanged", "existing")}}
     for cls in response_roots:
         done[_name(cls)]["properties"]["units"] = {"$ref": "#/components/schemas/Units"}
     from . import registry
@@ -323,6 +326,26 @@ def record_paths() -> dict:
                                                  description="optional; when sent, a stale ETag is refused with 412")],
                        "responses": {"200": _record_ok("The retiring revision."), **change}},
         }
+        if collection.kind == "vessel":
+            out[f"{collection.path}/import"] = {"post": {
+                "tags": tags, "summary": "Import a vessel list from a spreadsheet (CSV)",
+                "description": "One vessel a row; columns named by their dotted path in a vessel record (tag, "
+                               "utility, notes, diameter, wall.thickness, agitator.speed, coils[0].turns, ...); "
+                               "units in the header (`diameter [m]`) or in a unit row under it (tag cell empty or "
+                               "`units`); a cell with its own unit keeps it. Every row is validated first: one bad "
+                               "cell refuses the file, naming row and field. Existing tags are left alone unless "
+                               "replace=true, which revises those whose content differs.",
+                "operationId": "importVessels",
+                "parameters": [{"name": "replace", "in": "query", "schema": {"type": "string",
+                                                                             "enum": ["true", "false"]}}],
+                "requestBody": {"required": True, "content": {"text/csv": {"schema": {"type": "string"}}}},
+                "responses": {
+                    "201": {"description": "Some vessels created or revised.", "content": {"application/json": {
+                        "schema": {"$ref": "#/components/schemas/ImportSummary"}}}},
+                    "200": {"description": "Nothing needed writing.", "content": {"application/json": {
+                        "schema": {"$ref": "#/components/schemas/ImportSummary"}}}},
+                    "400": _PROBLEM, "401": _PROBLEM, "403": _PROBLEM, "409": _PROBLEM, "413": _PROBLEM,
+                    "415": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}}}
         out[f"{item_path}/revisions"] = {"get": {
             "tags": tags, "summary": f"Every revision of a {collection.kind}, oldest first, with author and time",
             "operationId": f"history{single}", "parameters": [{"$ref": "#/components/parameters/format"}, _KEY],
