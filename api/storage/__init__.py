@@ -13,6 +13,7 @@ import hashlib
 import json
 import os
 import uuid
+import weakref
 from dataclasses import dataclass
 from datetime import datetime, timezone
 from pathlib import Path
@@ -98,7 +99,10 @@ def request_key(request: dict) -> str:
 def _sqlite_engine(url: str) -> Engine:
     path = make_url(url).database
     if path and path != ":memory:":
-        Path(path).parent.mkdir(parents=True, exist_ok=True)
+        try:
+            Path(path).parent.mkdir(parents=True, exist_ok=True)
+        except OSError:
+            pass  # connecting fails in turn and says so (503 on record routes); calculations still run
     engine = create_engine(url, connect_args={"timeout": 30, "check_same_thread": False})
 
     @event.listens_for(engine, "connect")
@@ -139,6 +143,10 @@ class Catalogue:
         self.url = url or default_url()
         self.engine = make_engine(self.url)
         self.migrated = False
+        # gunicorn forks its workers from a process that has already connected (migrations on start): a
+        # child must never use its parent's connections, or two processes would talk over one socket.
+        engine = weakref.ref(self.engine)
+        os.register_at_fork(after_in_child=lambda: _forget_connections(engine))
 
     # ---- plumbing -------------------------------------------------------------------------------
     @contextlib.contextmanager
@@ -389,6 +397,12 @@ class Catalogue:
         with self._connection() as connection:
             rows = connection.execute(select(Record.kind, func.count()).group_by(Record.kind)).all()
         return {kind: count for kind, count in rows}
+
+
+def _forget_connections(reference) -> None:
+    engine = reference()
+    if engine is not None:
+        engine.dispose(close=False)  # drop the inherited pool without closing the parent's sockets
 
 
 def _screening_dict(row) -> dict:
