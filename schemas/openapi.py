@@ -283,6 +283,7 @@ def record_paths() -> dict:
         if collection.vessel_filters:
             filters[1:1] = ["material", "jacket_type", "volume_min", "volume_max"]
         tags = ["catalogue"]
+        key = dict(_KEY, example=example["tag"])  # the demo plant's record: fuzzing starts from a real one
         out[collection.path] = {
             "get": {"tags": tags, "summary": f"List {plural}: {collection.summary}", "operationId": f"list{name}",
                     "parameters": [{"$ref": "#/components/parameters/format"}] + _query_parameters(RecordQuerySchema,
@@ -306,15 +307,16 @@ def record_paths() -> dict:
                   "503": _PROBLEM}
         out[item_path] = {
             "get": {"tags": tags, "summary": f"The current revision of a {collection.kind}",
-                    "operationId": f"read{single}", "parameters": [_KEY],
+                    "operationId": f"read{single}", "parameters": [key],
                     "responses": {"200": _record_ok("The current revision, with its ETag.", _ETAG),
                                   **_RECORD_PROBLEMS}},
             "put": {"tags": tags, "summary": f"Replace a {collection.kind}'s content (a new revision)",
-                    "operationId": f"replace{single}", "parameters": [_KEY, _IF_MATCH], "requestBody": body,
+                    "operationId": f"replace{single}", "parameters": [key, dict(_IF_MATCH, example="*")],
+                    "requestBody": body,
                     "responses": {"200": _record_ok("The new revision.", _ETAG), **change}},
             "patch": {"tags": tags, "summary": f"Change part of a {collection.kind} (JSON Merge Patch, RFC 7396; "
                                                "a new revision)",
-                      "operationId": f"update{single}", "parameters": [_KEY, _IF_MATCH],
+                      "operationId": f"update{single}", "parameters": [key, dict(_IF_MATCH, example="*")],
                       "requestBody": {"required": True, "content": {
                           "application/merge-patch+json": {"schema": {"type": "object"}},
                           "application/json": {"schema": {"type": "object"}}}},
@@ -322,7 +324,7 @@ def record_paths() -> dict:
             "delete": {"tags": tags, "summary": f"Retire a {collection.kind}: a last revision marks it retired; "
                                                 "its history stays readable",
                        "operationId": f"retire{single}",
-                       "parameters": [_KEY, dict(_IF_MATCH, required=False,
+                       "parameters": [key, dict(_IF_MATCH, required=False,
                                                  description="optional; when sent, a stale ETag is refused with 412")],
                        "responses": {"200": _record_ok("The retiring revision."), **change}},
         }
@@ -348,12 +350,12 @@ def record_paths() -> dict:
                     "415": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}}}
         out[f"{item_path}/revisions"] = {"get": {
             "tags": tags, "summary": f"Every revision of a {collection.kind}, oldest first, with author and time",
-            "operationId": f"history{single}", "parameters": [{"$ref": "#/components/parameters/format"}, _KEY],
+            "operationId": f"history{single}", "parameters": [{"$ref": "#/components/parameters/format"}, key],
             "responses": {"200": _list_ok("All revisions."), **_RECORD_PROBLEMS}}}
         out[f"{item_path}/revisions/{{number}}"] = {"get": {
             "tags": tags, "summary": f"One revision of a {collection.kind}", "operationId": f"revision{single}",
-            "parameters": [_KEY, {"name": "number", "in": "path", "required": True,
-                                  "schema": {"type": "integer", "minimum": 1}}],
+            "parameters": [key, {"name": "number", "in": "path", "required": True, "example": 1,
+                                 "schema": {"type": "integer", "minimum": 1}}],
             "responses": {"200": _record_ok("That revision as it was written."), **_RECORD_PROBLEMS}}}
     return out
 
