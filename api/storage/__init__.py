@@ -19,7 +19,7 @@ from datetime import datetime, timezone
 from pathlib import Path
 from typing import Any, Iterator
 
-from sqlalchemy import create_engine, event, func, or_, select, text, update
+from sqlalchemy import bindparam, case, create_engine, event, func, or_, select, text, update
 from sqlalchemy.engine import Connection, Engine, make_url
 from sqlalchemy.exc import DBAPIError, IntegrityError, OperationalError
 from sqlalchemy.orm import Session
@@ -221,9 +221,17 @@ class Catalogue:
         return _row_view(record, found)
 
     def get(self, kind: str, key: str, number: int | None = None) -> RevisionView:
+        """The current (or numbered) revision of the record named by id or tag; one prepared statement."""
         with self._connection() as connection:
-            record = self._record(connection, kind, key)
-            return self._revision(connection, record, record.revision if number is None else number)
+            statement = _CURRENT if number is None else _NUMBERED
+            row = connection.execute(statement, {"kind": kind, "key": key, "number": number}).first()
+        if row is None:
+            if number is not None:
+                self.get(kind, key)  # says which is missing: the record, or only that revision
+                raise NotFound(f"{kind} {key!r} has no revision {number}")
+            raise NotFound(f"no {kind} with id or tag {key!r}")
+        return RevisionView(row.id, row.kind, row.revision_tag, row.number, row.body, row.author,
+                            _aware(row.created_at), row.revision_retired, row.revision)
 
     def history(self, kind: str, key: str) -> list[RevisionView]:
         with self._connection() as connection:
@@ -397,6 +405,23 @@ class Catalogue:
         with self._connection() as connection:
             rows = connection.execute(select(Record.kind, func.count()).group_by(Record.kind)).all()
         return {kind: count for kind, count in rows}
+
+
+def _lookup(numbered: bool):
+    """SELECT of one record's revision by id or tag (an id wins; then a live record; then the latest retired)."""
+    records, revisions = Record.__table__, Revision.__table__
+    key = bindparam("key")
+    number = bindparam("number") if numbered else records.c.revision
+    return (select(records.c.id, records.c.kind, records.c.revision, revisions.c.number,
+                   revisions.c.tag.label("revision_tag"), revisions.c.body, revisions.c.author, revisions.c.created_at,
+                   revisions.c.retired.label("revision_retired"))
+            .join(revisions, (revisions.c.record_id == records.c.id) & (revisions.c.number == number))
+            .where(records.c.kind == bindparam("kind"), or_(records.c.id == key, records.c.tag == key))
+            .order_by(case((records.c.id == key, 0), else_=1), records.c.retired, records.c.updated_at.desc())
+            .limit(1))
+
+
+_CURRENT, _NUMBERED = _lookup(False), _lookup(True)
 
 
 def _forget_connections(reference) -> None:
