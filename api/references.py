@@ -129,10 +129,13 @@ def resolve(data: dict, schema: Schema) -> dict:
         if "step" in data and "step" not in _declared(schema):
             _step(data, _declared(schema), [])  # explains the one accepted form
         return data
+    from .records import store
+
     used: list[dict] = []
-    if "step" in data and "step" not in _declared(schema):
-        data = _step(data, _declared(schema), used)
-    data = _walk(data, schema, "", used)
+    with store().reading():
+        if "step" in data and "step" not in _declared(schema):
+            data = _step(data, _declared(schema), used)
+        data = _walk(data, schema, "", used)
     g.setdefault("records_used", []).extend(used)
     return data
 

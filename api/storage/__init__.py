@@ -9,6 +9,7 @@ never both win the same number: the loser is told its ETag is stale.
 from __future__ import annotations
 
 import contextlib
+import contextvars
 import hashlib
 import json
 import os
@@ -143,6 +144,8 @@ class Catalogue:
         self.url = url or default_url()
         self.engine = make_engine(self.url)
         self.migrated = False
+        self._shared: contextvars.ContextVar[Connection | None] = contextvars.ContextVar(f"catalogue-{id(self)}",
+                                                                                         default=None)
         # gunicorn forks its workers from a process that has already connected (migrations on start): a
         # child must never use its parent's connections, or two processes would talk over one socket.
         engine = weakref.ref(self.engine)
@@ -150,7 +153,24 @@ class Catalogue:
 
     # ---- plumbing -------------------------------------------------------------------------------
     @contextlib.contextmanager
+    def reading(self) -> Iterator[None]:
+        """Reads inside share one connection and one transaction (a consistent view, one pool checkout)."""
+        if self._shared.get() is not None:
+            yield
+            return
+        with self._connection() as connection:
+            token = self._shared.set(connection)
+            try:
+                yield
+            finally:
+                self._shared.reset(token)
+
+    @contextlib.contextmanager
     def _connection(self, write: bool = False) -> Iterator[Connection]:
+        shared = self._shared.get()
+        if shared is not None and not write:
+            yield shared
+            return
         try:
             engine = self.engine.execution_options(write=True) if write else self.engine
             with engine.begin() as connection:
