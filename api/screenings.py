@@ -24,6 +24,7 @@ from . import charts, security
 from .errors import ProblemError
 from .http import request_object, requested_format, to_csv
 from .records import store
+from .runtime import deadline
 from .references import records_used, resolve
 from .storage import NotFound, RevisionView, request_key
 
@@ -155,8 +156,10 @@ def run(body: dict, previous_id: str | None = None) -> tuple[dict, int]:
     limit = current_app.config["MAX_SCREENING_VESSELS"]
     vessels = _select(args["vessels"], limit)
     candidates, info = _candidates(vessels, args["coolant"])
+    # the screening's own budget, inside the request's (whatever is left of it when the rows start)
+    budget = deadline().within(current_app.config["SCREENING_WALL_TIME"])
     result = screening_calc.screen(candidates, step["charge"], step["process_temperature"], step["heat_release"],
-                                   step["safety_factor"], current_app.config["SCREENING_WALL_TIME"])
+                                   step["safety_factor"], budget)
     rows = [screening_row(row, info[row.key]) for row in result.rows]
     rows = clean(_result.dump({"rows": rows})["rows"])
     used = records_used()
@@ -179,8 +182,9 @@ def run(body: dict, previous_id: str | None = None) -> tuple[dict, int]:
     warnings = []
     if not result.complete:
         warnings.append({"code": "screening_budget",
-                         "message": f"the {current_app.config['SCREENING_WALL_TIME']:g} s budget ran out; rows "
-                                    "marked 'not evaluated' were not checked: narrow the selection or re-run"})
+                         "message": "the time budget (COOLMARGIN_SCREENING_WALL_TIME, within the request's "
+                                    "COOLMARGIN_REQUEST_BUDGET) ran out; rows marked 'not evaluated' were not "
+                                    "checked: narrow the selection or re-run"})
     payload = {"status": "complete" if result.complete else "partial",
                "step": step_ref, "safety_factor": step["safety_factor"], "counts": counts, "rows": rows,
                "changes": changes, "records": used + [r["vessel"] for r in rows]

@@ -5,6 +5,10 @@ CORS_ORIGINS (comma-separated exact origins, or "*"). With no token configured t
 An entry is ``TOKEN`` or ``TOKEN NAME`` or ``TOKEN NAME ROLE`` (whitespace-separated): NAME is what the
 catalogue records as the author of a change (default ``token-`` and 8 hex digits of the token's SHA-256),
 ROLE is ``write`` (the default: may change the catalogue) or ``read`` (calculations and reading only).
+The token file is watched: each process re-reads it within TOKEN_RECHECK seconds of a change (its
+modification time, inode or size), so tokens rotate without a restart; a changed file that cannot be
+used (unreadable, empty, a malformed entry) is refused with an error in the log, and the tokens
+in force stay.
 The liveness/readiness probes and the published contract (/docs, /openapi.yaml) stay open: the contract
 holds no plant data, and probes must work for the orchestrator without a secret.
 """
@@ -13,7 +17,10 @@ from __future__ import annotations
 import hashlib
 import hmac
 import logging
+import os
 import re
+import threading
+import time
 from dataclasses import dataclass
 
 from flask import Flask, current_app, g, request
@@ -22,7 +29,7 @@ from .errors import problem
 
 log = logging.getLogger("coolmargin")
 
-OPEN_PATHS = frozenset({"/health", "/ready", "/docs", "/openapi.yaml"})
+OPEN_PATHS = frozenset({"/", "/health", "/ready", "/docs", "/openapi.yaml"})
 CORS_METHODS = "GET, POST, PUT, PATCH, DELETE"
 CORS_HEADERS = "Content-Type, Authorization, X-Request-ID, If-Match"
 CORS_MAX_AGE = "600"  # s a browser may cache a preflight answer
@@ -92,6 +99,62 @@ def load_token_entries(inline: str, path: str) -> list[Token]:
 def load_tokens(inline: str, path: str) -> list[str]:
     """The secrets alone (see ``load_token_entries`` for names and roles)."""
     return [token.secret for token in load_token_entries(inline, path)]
+
+
+#: Seconds between two looks at the token file's modification time, per process.
+TOKEN_RECHECK = 1.0
+
+
+class AcceptedTokens:
+    """The tokens in force (names, roles, digests): the inline ones and the file's, re-read when the file changes."""
+
+    def __init__(self, inline: str, path: str):
+        self.inline, self.path = inline, path
+        self._lock = threading.Lock()
+        self._next_check = 0.0
+        self._stamp = self._file_stamp()
+        self._use(load_token_entries(inline, path))  # at start-up an unusable file stops the service
+
+    def _use(self, tokens: list[Token]) -> None:
+        _SECRETS.update(token.secret for token in tokens)
+        # one assignment, so a request never sees the digests of one file with the names of another
+        self._in_force = (tuple(tokens), [_digest(token.secret) for token in tokens])
+
+    def _file_stamp(self):
+        try:
+            status = os.stat(self.path)
+        except OSError:
+            return None
+        return status.st_mtime_ns, status.st_ino, status.st_size
+
+    def in_force(self) -> tuple[tuple[Token, ...], list[bytes]]:
+        if self.path and time.monotonic() >= self._next_check:
+            with self._lock:
+                if time.monotonic() >= self._next_check:
+                    self._next_check = time.monotonic() + TOKEN_RECHECK
+                    self._reload_if_changed()
+        return self._in_force
+
+    def digests(self) -> list[bytes]:
+        return self.in_force()[1]
+
+    def _reload_if_changed(self) -> None:
+        stamp = self._file_stamp()
+        if stamp == self._stamp:
+            return
+        self._stamp = stamp
+        try:
+            tokens = load_token_entries(self.inline, self.path)
+        except ConfigurationError as exc:
+            log.error("the token file changed but cannot be used (%s); the tokens in force stay", exc)
+            return
+        self._use(tokens)
+        log.warning("token file re-read: %d token(s) now accepted", len(tokens))
+
+
+def accepted_digests() -> list[bytes]:
+    """Digests of the tokens this process accepts now (empty: authentication is off)."""
+    return current_app.extensions["coolmargin.security"]["tokens"].digests()
 
 
 def _digest(token: str) -> bytes:
@@ -167,8 +230,7 @@ def author() -> str:
 
 
 def _authenticate():
-    settings = current_app.extensions["coolmargin.security"]
-    digests = settings["digests"]
+    tokens, digests = current_app.extensions["coolmargin.security"]["tokens"].in_force()
     if not digests or request.method == "OPTIONS" or request.path in OPEN_PATHS:
         return None
     scheme, _, supplied = request.headers.get("Authorization", "").partition(" ")
@@ -184,7 +246,7 @@ def _authenticate():
                     extra={"request_id": g.get("request_id", "-")})
         return problem(401, "The bearer token was not recognised.",
                        headers={"WWW-Authenticate": REALM + ', error="invalid_token"'})
-    token = settings["tokens"][index]
+    token = tokens[index]
     g.token_name, g.token_write = token.name, token.write
     return None
 
@@ -225,16 +287,15 @@ def register(app: Flask) -> None:
 
     Call after the request-id hook is registered, so refusals carry the request id.
     """
-    tokens = load_token_entries(app.config.get("AUTH_TOKENS", ""), app.config.get("AUTH_TOKENS_FILE", ""))
-    _SECRETS.update(token.secret for token in tokens)
+    tokens = AcceptedTokens(app.config.get("AUTH_TOKENS", ""), app.config.get("AUTH_TOKENS_FILE", ""))
     _install_redaction()
     app.extensions["coolmargin.security"] = {
-        "digests": [_digest(token.secret) for token in tokens],
         "tokens": tokens,
         "origins": frozenset(_split(app.config.get("CORS_ORIGINS", ""))),
     }
     app.before_request(_preflight)
     app.before_request(_authenticate)
     app.after_request(_headers)
-    log.info("authentication %s; %d CORS origin(s) allowed", "required" if tokens else "off (no token configured)",
+    log.info("authentication %s; %d CORS origin(s) allowed",
+             "required" if tokens.digests() else "off (no token configured)",
              len(app.extensions["coolmargin.security"]["origins"]))

@@ -13,6 +13,10 @@ POSTGRES_URL = os.environ.get("COOLMARGIN_TEST_POSTGRES_URL", "postgresql+psycop
 
 from api import create_app  # noqa: E402  (after the environment above)
 
+# The suite sends thousands of requests from one address; rate limits are tested on their own
+# (tests/test_limits.py). This reaches every app and every server the tests start.
+os.environ.setdefault("COOLMARGIN_RATE_LIMIT", "1000000 per minute")
+
 
 @pytest.fixture(scope="session")
 def app():

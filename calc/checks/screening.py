@@ -9,12 +9,12 @@ margin first); candidates without a verdict come last, in the order given.
 from __future__ import annotations
 
 import math
-import time
 from dataclasses import dataclass
 from typing import Any
 
 from calc.checks.cooling_check import CoolingCheck, cooling_check
 from calc.checks.heat_load import HeatRelease
+from calc.deadline import NEVER, Deadline, OutOfTime
 from calc.validity import CalculationError, InputError
 from calc.vessel.model import Charge, Coolant, Vessel
 
@@ -59,24 +59,29 @@ def rank(rows: list[ScreeningRow]) -> list[ScreeningRow]:
     return [ScreeningRow(r.key, r.check, r.problem, r.evaluated, index + 1) for index, r in enumerate(ordered)]
 
 
+NOT_EVALUATED = ("(budget)", "not evaluated: the screening's time budget was spent before this vessel")
+
+
 def screen(candidates: list[Candidate], charge: Charge, process_temperature: float, heat_release: HeatRelease,
-           safety_factor: float, wall_time: float | None = None) -> Screening:
-    """Cooling check of the step in every candidate; past ``wall_time`` seconds the rest are not evaluated."""
-    started = time.monotonic()
+           safety_factor: float, deadline: Deadline = NEVER) -> Screening:
+    """Cooling check of the step in every candidate; once ``deadline`` passes, the rest are not evaluated."""
     rows: list[ScreeningRow] = []
     complete = True
     for candidate in candidates:
         if candidate.problem is not None or candidate.vessel is None or candidate.coolant is None:
             rows.append(ScreeningRow(candidate.key, None, candidate.problem or ("vessel", "incomplete"), True))
             continue
-        if wall_time is not None and time.monotonic() - started > wall_time:
+        if not complete or deadline.expired():
             complete = False
-            rows.append(ScreeningRow(candidate.key, None, ("(budget)", f"not evaluated: the screening's "
-                                                                      f"{wall_time:g} s budget was spent"), False))
+            rows.append(ScreeningRow(candidate.key, None, NOT_EVALUATED, False))
             continue
         try:
             check = cooling_check(candidate.vessel, charge, candidate.coolant, process_temperature, heat_release,
-                                  safety_factor)
+                                  safety_factor, deadline=deadline)
+        except OutOfTime:
+            complete = False
+            rows.append(ScreeningRow(candidate.key, None, NOT_EVALUATED, False))
+            continue
         except InputError as error:
             rows.append(ScreeningRow(candidate.key, None, (error.field, error.message), True))
             continue
