@@ -86,7 +86,9 @@ def register(app: Flask) -> None:
         if isinstance(exc, HTTPException) and exc.response is not None:
             return exc.response  # already a full answer (the rate limiter's 429 problem)
         status, detail, errors, title = problem_for(exc)
-        if status >= 500:
+        if isinstance(exc, Unavailable):  # the database's state, not a fault of this code: no traceback
+            log.warning("catalogue request refused: %s", exc, extra={"request_id": g.get("request_id", "-")})
+        elif status >= 500:
             log.exception("internal error", extra={"request_id": g.get("request_id", "-")})
         headers = {}
         if isinstance(exc, HTTPException) and status == 405 and exc.valid_methods:

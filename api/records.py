@@ -120,10 +120,14 @@ def _list(kind: str):
             if query[name] is not None:
                 raise ValidationError({name: [f"filters vessels only, not {COLLECTIONS[kind]}"]})
     items, total = store().list(kind, **query)
-    payload = {"items": [view(item) for item in items], "total": total, "limit": query["limit"],
-               "offset": query["offset"]}
+    return _listing(kind, items, total, query["limit"], query["offset"], ("tag", "id", "revision"))
+
+
+def _listing(kind: str, items: list[RevisionView], total: int, limit: int, offset: int, lead: tuple) -> Response:
+    """Revisions as ``{"items", "total", "limit", "offset", "units"}``, or CSV one row per revision."""
+    payload = {"items": [view(item) for item in items], "total": total, "limit": limit, "offset": offset}
     if requested_format() == "csv":
-        return Response(to_csv(payload["items"], _UNITS[kind], lead=("tag", "id", "revision")), mimetype="text/csv")
+        return Response(to_csv(payload["items"], _UNITS[kind], lead=lead), mimetype="text/csv")
     payload = clean(RecordListSchema().dump(payload)) | {"units": {f"items.{k}": v for k, v in _UNITS[kind].items()}}
     return Response(json.dumps(payload, allow_nan=False), mimetype="application/json")
 
@@ -132,26 +136,24 @@ def _read(kind: str, key: str):
     return _answer(store().get(kind, key))
 
 
-def _replace(kind: str, key: str):
+def _change(kind: str, key: str, new_content) -> Response:
+    """A new revision with the content ``new_content(current content)`` gives, based on the If-Match revision."""
     require_write()
     catalogue = store()
     current = catalogue.get(kind, key)
     expected = _if_match(current)
-    content, index = validated(kind, request_object())
+    content, index = validated(kind, new_content(current.body))
     revision = catalogue.revise(kind, current.record_id, expected, security.author(), tag=content["tag"],
                                 body=content, index=index)
     return _answer(revision)
+
+
+def _replace(kind: str, key: str):
+    return _change(kind, key, lambda current: request_object())
 
 
 def _update(kind: str, key: str):
-    require_write()
-    catalogue = store()
-    current = catalogue.get(kind, key)
-    expected = _if_match(current)
-    content, index = validated(kind, _merge_patch(current.body, request_object()))
-    revision = catalogue.revise(kind, current.record_id, expected, security.author(), tag=content["tag"],
-                                body=content, index=index)
-    return _answer(revision)
+    return _change(kind, key, lambda current: _merge_patch(current, request_object()))
 
 
 def _retire(kind: str, key: str):
@@ -182,12 +184,7 @@ def import_vessels():
 
 def _revisions(kind: str, key: str):
     history = store().history(kind, key)
-    payload = {"items": [view(item) for item in history], "total": len(history), "limit": len(history), "offset": 0}
-    if requested_format() == "csv":
-        return Response(to_csv(payload["items"], _UNITS[kind], lead=("revision", "author", "created_at")),
-                        mimetype="text/csv")
-    payload = clean(RecordListSchema().dump(payload)) | {"units": {f"items.{k}": v for k, v in _UNITS[kind].items()}}
-    return Response(json.dumps(payload, allow_nan=False), mimetype="application/json")
+    return _listing(kind, history, len(history), len(history), 0, ("revision", "author", "created_at"))
 
 
 def _revision(kind: str, key: str, number: int):
