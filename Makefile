@@ -33,7 +33,10 @@ nginx:
 	    DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -q --no-install-recommends nginx; }
 
 run: install
+	$(BIN)/coolmargin db upgrade
+	$(BIN)/coolmargin import --if-empty --author demo examples/plant.json
 	@echo "coolmargin: http://$(HOST):$(PORT)  (reference /docs, contract /openapi.yaml, demo examples/README.md)"
+	@echo "  plant: curl -s http://$(HOST):$(PORT)/v1/vessels; curl -s -X POST 'http://$(HOST):$(PORT)/v1/screenings?format=csv' -H 'Content-Type: application/json' -d '{\"step\": {\"ref\": \"AC-7-FAST\"}}'"
 	@echo "  demo: curl -s -X POST 'http://$(HOST):$(PORT)/v1/scale-up?format=csv' -H 'Content-Type: application/json' -d @examples/scale_up_demo.json"
 	@echo "        $(BIN)/coolmargin scale-up examples/scale_up_demo.json"
 	COOLMARGIN_BIND=$(HOST):$(PORT) $(BIN)/gunicorn --config docker/gunicorn.conf.py 'api.wsgi:app'

@@ -34,6 +34,10 @@ DEFAULTS = {
     "AUTH_TOKENS": "",  # comma-separated bearer tokens; empty means open
     "AUTH_TOKENS_FILE": "",
     "CORS_ORIGINS": "",  # comma-separated allow-list
+    "DATABASE_URL": "",  # SQLAlchemy URL of the plant catalogue; empty: a SQLite file in the user's data dir
+    "MIGRATE_ON_START": 1,  # bring the catalogue's schema up to date when the app is built
+    "MAX_SCREENING_VESSELS": 200,  # vessels in one screening (413 above)
+    "SCREENING_WALL_TIME": 20.0,  # s of computing per screening request; past it the answer is partial
     "RATE_LIMIT": "600 per minute",  # per client (token, else address); ';' between limits; empty: off
     "RATE_LIMIT_STORAGE": "memory://",  # or a redis:// URL shared by every process and replica
     "RATE_LIMIT_PREFIX": "coolmargin",  # key prefix in that storage
@@ -93,8 +97,11 @@ def create_app(config: dict | None = None) -> Flask:
     security.register(app)  # after the request-id hook: refusals carry the request id
     runtime.register(app)  # after authentication: a refused request reads no body and takes no slot
 
-    from . import agitation, cooling, geometry, heat_transfer, probes, properties, safety, sizing, window
+    from . import (agitation, cooling, geometry, heat_transfer, probes, properties, records, safety, screenings,
+                   sizing, window)
 
-    for module in (probes, properties, geometry, agitation, heat_transfer, cooling, window, sizing, safety):
+    records.attach(app)
+    for module in (probes, properties, geometry, agitation, heat_transfer, cooling, window, sizing, safety, records,
+                   screenings):
         app.register_blueprint(module.bp)
     return app

@@ -4,6 +4,11 @@
 FILE.json`` runs a cooling check and ``coolmargin scale-up FILE.json`` a scale-up (locally, or against
 ``--url``), each printing a table. Exit status: 0 adequate everywhere, 1 inadequate somewhere,
 2 invalid input.
+
+The plant catalogue (COOLMARGIN_DATABASE_URL, or ``--database-url``): ``coolmargin db upgrade`` applies
+the migrations; ``coolmargin export [FILE]`` writes every record with its history as JSON;
+``coolmargin import FILE`` restores an export or creates the records of a hand-written file (a ``.csv``
+file is a vessel list from a spreadsheet); ``--if-empty`` imports only into an empty catalogue.
 """
 from __future__ import annotations
 
@@ -125,6 +130,82 @@ def _check(args: argparse.Namespace) -> int:
     return worst
 
 
+def _catalogue(args: argparse.Namespace):
+    from .storage import Catalogue
+
+    catalogue = Catalogue(args.database_url or os.environ.get("COOLMARGIN_DATABASE_URL") or None)
+    catalogue.upgrade()
+    return catalogue
+
+
+def _db(args: argparse.Namespace) -> int:
+    from .storage import StorageError
+
+    try:
+        catalogue = _catalogue(args)
+    except StorageError as error:
+        print(f"coolmargin: {error}", file=sys.stderr)
+        return EXIT_INVALID
+    print(f"catalogue at schema revision {catalogue.schema_revision()}: "
+          + ", ".join(f"{n} {k}" for k, n in sorted(catalogue.counts().items()) or [("records", 0)]))
+    catalogue.dispose()
+    return EXIT_OK
+
+
+def _export(args: argparse.Namespace) -> int:
+    catalogue = _catalogue(args)
+    try:
+        document = catalogue.export()
+    finally:
+        catalogue.dispose()
+    text = json.dumps(document, indent=1, ensure_ascii=False) + "\n"
+    if args.file in (None, "-"):
+        sys.stdout.write(text)
+    else:
+        Path(args.file).write_text(text, encoding="utf-8")
+        print(f"exported {len(document['records'])} records to {args.file}", file=sys.stderr)
+    return EXIT_OK
+
+
+def _import(args: argparse.Namespace) -> int:
+    try:
+        text = Path(args.file).read_text(encoding="utf-8")
+    except OSError as error:
+        print(f"coolmargin: cannot read {args.file}: {error}", file=sys.stderr)
+        return EXIT_INVALID
+    catalogue = _catalogue(args)
+    try:
+        return _import_into(catalogue, text, args)
+    finally:
+        catalogue.dispose()
+
+
+def _import_into(catalogue, text: str, args: argparse.Namespace) -> int:
+    from marshmallow import ValidationError
+
+    from . import bulk
+    from .storage import StorageError
+
+    if args.if_empty and sum(catalogue.counts().values()):
+        print("coolmargin: the catalogue holds records already; nothing imported (--if-empty)", file=sys.stderr)
+        return EXIT_OK
+    author = args.author or os.environ.get("USER") or "import"
+    try:
+        if args.file.lower().endswith(".csv"):
+            summary = bulk.import_vessels(catalogue, bulk.vessels_from_csv(text), author, args.replace)
+        else:
+            summary = bulk.import_catalogue(catalogue, json.loads(text), author)
+    except (ValueError, ValidationError) as error:
+        messages = error.messages if isinstance(error, ValidationError) else str(error)
+        print(f"coolmargin: {args.file} was not imported: {messages}", file=sys.stderr)
+        return EXIT_INVALID
+    except StorageError as error:
+        print(f"coolmargin: {error}", file=sys.stderr)
+        return EXIT_INVALID
+    print(", ".join(f"{len(items)} {what}" for what, items in summary.items()))
+    return EXIT_OK
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(prog="coolmargin", description=__doc__.splitlines()[0])
     commands = parser.add_subparsers(dest="command", required=True)
@@ -140,6 +221,23 @@ def build_parser() -> argparse.ArgumentParser:
     scale.add_argument("file")
     scale.add_argument("--url", default=None, help="service base URL; default: compute locally")
     scale.set_defaults(handler=_scale_up)
+    database = argparse.ArgumentParser(add_help=False)
+    database.add_argument("--database-url", default=None,
+                          help="SQLAlchemy URL of the catalogue; default COOLMARGIN_DATABASE_URL or a SQLite file "
+                               "in the user's data directory")
+    db = commands.add_parser("db", parents=[database], help="the catalogue's schema")
+    db.add_argument("action", choices=["upgrade"], help="apply the migrations up to the newest")
+    db.set_defaults(handler=_db)
+    export = commands.add_parser("export", parents=[database], help="write the whole catalogue, with history, as JSON")
+    export.add_argument("file", nargs="?", default=None, help="output file; default standard output")
+    export.set_defaults(handler=_export)
+    load = commands.add_parser("import", parents=[database],
+                               help="restore an export, create a hand-written catalogue file, or a vessel CSV")
+    load.add_argument("file")
+    load.add_argument("--if-empty", action="store_true", help="only when the catalogue holds no record")
+    load.add_argument("--replace", action="store_true", help="CSV: revise vessels whose tag exists already")
+    load.add_argument("--author", default=None, help="name recorded with the new revisions; default $USER")
+    load.set_defaults(handler=_import)
     return parser
 
 

@@ -11,6 +11,8 @@ from calc.deadline import OutOfTime
 from calc.validity import CalculationError, InputError, TooLarge
 from schemas.base import error_list
 
+from .storage import Conflict, NotFound, Stale, StorageError, Unavailable
+
 log = logging.getLogger("coolmargin")
 PROBLEM_TYPE = "about:blank"
 
@@ -27,6 +29,7 @@ TITLES = {
     400: "Malformed request", 401: "Authentication required", 404: "Not found",
     405: "Method not allowed", 406: "Not acceptable", 413: "Request too large",
     415: "Unsupported media type", 422: "Invalid input", 429: "Too many requests",
+    403: "Forbidden", 409: "Conflict", 412: "Precondition failed", 428: "Precondition required",
     500: "Internal error", 503: "Not ready",
 }
 OUT_OF_TIME = ("the calculation did not finish within the request's time budget "
@@ -69,6 +72,9 @@ def problem_for(exc: Exception) -> tuple[int, str, list[dict], str | None]:
         return 422, str(exc), [], "Calculation did not converge"
     if isinstance(exc, ProblemError):
         return exc.status, exc.detail, exc.errors, exc.title
+    if isinstance(exc, StorageError):
+        status = {NotFound: 404, Conflict: 409, Stale: 412, Unavailable: 503}.get(type(exc), 500)
+        return status, str(exc), [], "Catalogue unavailable" if status == 503 else None
     if isinstance(exc, OutOfTime):
         return 503, OUT_OF_TIME, [], "Time budget used up"
     if isinstance(exc, HTTPException):
@@ -82,11 +88,15 @@ def register(app: Flask) -> None:
         if isinstance(exc, HTTPException) and exc.response is not None:
             return exc.response  # already a full answer (the rate limiter's 429 problem)
         status, detail, errors, title = problem_for(exc)
-        if status >= 500:
+        if isinstance(exc, Unavailable):  # the database's state, not a fault of this code: no traceback
+            log.warning("catalogue request refused: %s", exc, extra={"request_id": g.get("request_id", "-")})
+        elif status >= 500:
             log.exception("internal error", extra={"request_id": g.get("request_id", "-")})
         headers = {}
         if isinstance(exc, HTTPException) and status == 405 and exc.valid_methods:
             headers["Allow"] = ", ".join(exc.valid_methods)
+        if isinstance(exc, Stale):
+            headers["ETag"] = exc.current.etag  # what a retry should send, after reading the change
         if isinstance(exc, OutOfTime):
             log.info("request stopped: %s", exc, extra={"request_id": g.get("request_id", "-")})
         if status == 503:

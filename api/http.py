@@ -22,6 +22,7 @@ from schemas.base import clean, numeric_leaves, unflatten, unit_map
 from calc.deadline import OutOfTime
 
 from .errors import ProblemError
+from .references import records_used, resolve
 from .runtime import deadline
 
 RESERVED_PARAMETERS = {"format", "field"}
@@ -216,6 +217,9 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple
                                [{"field": "format", "message": "no chart for this resource"}])
         return Response(chart(payload, fmt), status=status, mimetype=FORMATS[fmt])
     body = dict(payload)
+    used = records_used()
+    if used:
+        body["records"] = used
     body["units"] = units
     return Response(json.dumps(body, allow_nan=False), status=status, mimetype="application/json")
 
@@ -247,7 +251,12 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[Any], Any], r
         try:
             if not isinstance(case, dict):
                 raise ValidationError(["must be an object"])
-            results.append({"status": 200, "result": clean(result_schema.dump(_run(compute, schema.load(case), case)))})
+            g.records_used = []
+            resolved = resolve(case, schema)
+            result = clean(result_schema.dump(_run(compute, schema.load(resolved), resolved)))
+            if g.records_used:
+                result["records"] = records_used()
+            results.append({"status": 200, "result": result})
         except Exception as exc:  # each case reports its own problem
             status, detail, errors, title = problem_for(exc)
             if status >= 500 and not isinstance(exc, OutOfTime):
@@ -310,7 +319,8 @@ def calculate(schema: Schema, compute: Callable[[Any], Any], result_schema: Sche
             raise ProblemError(422, "a batch body holds only 'cases'",
                                [{"field": sorted(set(data) - {"cases"})[0], "message": "not allowed beside cases"}])
         return batch_response(data["cases"], schema, compute, result_schema)
-    return respond(_run(compute, schema.load(data), data), result_schema, **respond_options)
+    resolved = resolve(data, schema)
+    return respond(_run(compute, schema.load(resolved), resolved), result_schema, **respond_options)
 
 
 def _run(compute: Callable[[Any], Any], args: Any, raw: dict | None = None) -> Any:

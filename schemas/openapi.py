@@ -14,6 +14,9 @@ from marshmallow import Schema, fields, validate
 from .units import MAX_EXPONENT, MAX_NESTING, MAX_TEXT, QUANTITY_PATTERN, Quantity
 
 
+_RECORD_REF = {"$ref": "#/components/schemas/RecordRef"}
+
+
 def quantity_schema(unit: str, minimum: float, maximum: float, exclusive_minimum: bool, reason: str) -> dict:
     """A request quantity: a number in ``unit`` within its bounds, or text "number unit" (checked by the server)."""
     number: dict = {"type": "number", "exclusiveMinimum" if exclusive_minimum else "minimum": minimum,
@@ -23,7 +26,8 @@ def quantity_schema(unit: str, minimum: float, maximum: float, exclusive_minimum
             "x-range": f"{shown} to {maximum:g} {unit}".rstrip() + f" ({reason})"}
 
 
-def _field(field: fields.Field, refs: dict[str, type], response: bool = False) -> dict:
+def _field(field: fields.Field, refs: dict[str, type], response: bool = False, referable: bool = False) -> dict:
+    """JSON Schema of one field; with ``referable``, a vessel or coolant may also be a stored record's ref."""
     metadata = field.metadata or {}
     if isinstance(field, Quantity) and not response:
         out: dict = quantity_schema(metadata["unit"], field.minimum, field.maximum, field.exclusive_minimum,
@@ -32,13 +36,22 @@ def _field(field: fields.Field, refs: dict[str, type], response: bool = False) -
         out = {"type": "number", "x-unit": metadata["unit"]}
     elif field.__class__.__name__ == "Flow":
         out = quantity_schema(metadata["unit"], field.minimum, field.maximum, False, metadata["bounds_reason"])
+    elif field.__class__.__name__ == "VesselSelection":
+        from .screening import MAX_LISTED_VESSELS, VesselFilterSchema
+
+        refs["VesselFilter"] = VesselFilterSchema
+        out = {"anyOf": [{"type": "array", "minItems": 1, "maxItems": MAX_LISTED_VESSELS,
+                          "items": {"type": "string", "minLength": 1, "maxLength": 64}},
+                         {"$ref": "#/components/schemas/VesselFilter"}]}
     elif isinstance(field, fields.Nested):
         nested = field.nested if isinstance(field.nested, type) else type(field.schema)
         name = nested.__name__.removesuffix("Schema")
         refs[name] = nested
         out = {"$ref": f"#/components/schemas/{name}"}
+        if referable and getattr(nested, "record_kind", None):
+            out = {"anyOf": [out, _RECORD_REF]}
     elif isinstance(field, fields.List):
-        out = {"type": "array", "items": _field(field.inner, refs, response)}
+        out = {"type": "array", "items": _field(field.inner, refs, response, referable)}
     elif isinstance(field, fields.Dict):
         out = {"type": "object",
                "additionalProperties": _field(field.value_field, refs, response) if field.value_field else {}}
@@ -74,20 +87,39 @@ def _field(field: fields.Field, refs: dict[str, type], response: bool = False) -
     return out
 
 
-def json_schema(schema_cls: type[Schema], refs: dict[str, type] | None = None, *, response: bool = False) -> dict:
-    """The JSON Schema of one marshmallow schema class; nested classes are collected in ``refs``."""
+def json_schema(schema_cls: type[Schema], refs: dict[str, type] | None = None, *, response: bool = False,
+                root: bool = False) -> dict:
+    """The JSON Schema of one marshmallow schema class; nested classes are collected in ``refs``.
+
+    A calculation request (``root``) may name a stored step, and its vessel and coolant objects may be
+    stored records' refs: the members those supply are then not required (see api/references.py).
+    """
+    from .records import STEP_SUPPLIES
+
     refs = {} if refs is None else refs
     schema = schema_cls()
+    referable = not response and getattr(schema_cls, "accepts_refs", True)
     properties = {}
     required = []
     for name, field in schema.fields.items():
         key = field.data_key or name
-        properties[key] = _field(field, refs, response)
+        properties[key] = _field(field, refs, response, referable)
         if field.required:
             required.append(key)
     out: dict = {"type": "object", "properties": properties}
     if not response:
         out["additionalProperties"] = False
+    if referable and "vessel" in properties and "coolant" in required:
+        required.remove("coolant")
+        properties["coolant"]["description"] = ("required unless `vessel` names a stored vessel with a utility, "
+                                                "whose coolant is then used")
+    supplied = [key for key in required if key in STEP_SUPPLIES]
+    if referable and root and set(properties) & STEP_SUPPLIES:
+        properties["step"] = dict(_RECORD_REF, description="a stored process step: supplies the members of this "
+                                  "request it describes; members given beside it override it")
+        if supplied:
+            required = [key for key in required if key not in supplied]
+            out["anyOf"] = [{"required": supplied}, {"required": ["step"]}]
     if required:
         out["required"] = required
     return out
@@ -95,19 +127,33 @@ def json_schema(schema_cls: type[Schema], refs: dict[str, type] | None = None, *
 
 def components(request_roots: list[type], response_roots: list[type]) -> dict:
     """Every schema reachable from the roots, keyed by class name without 'Schema'."""
+    from .records import RecordRefSchema
+
     done: dict[str, dict] = {}
     for roots, response in ((request_roots, False), (response_roots, True)):
+        root_names = {cls.__name__.removesuffix("Schema") for cls in roots}
         pending = {cls.__name__.removesuffix("Schema"): cls for cls in roots}
         while pending:
             name, cls = pending.popitem()
             if name in done:
                 continue
             refs: dict[str, type] = {}
-            done[name] = json_schema(cls, refs, response=response)
+            done[name] = json_schema(cls, refs, response=response, root=name in root_names and not response)
             pending.update({k: v for k, v in refs.items() if k not in done})
+    done["RecordRef"] = json_schema(RecordRefSchema)
+    listed = {"type": "array", "items": {"$ref": "#/components/schemas/Reference"}}
+    done["ImportSummary"] = {"type": "object", "description": "what an import did, record by record",
+                             "properties": {name: listed for name in ("created", "revised", "unchanged", "existing")}}
     for cls in response_roots:
         done[_name(cls)]["properties"]["units"] = {"$ref": "#/components/schemas/Units"}
     from . import registry
+    from .records import ReferenceSchema
+
+    done["Reference"] = json_schema(ReferenceSchema, response=True)
+    for calc in registry.CALCULATIONS:
+        done[_name(calc.response)]["properties"]["records"] = {
+            "type": "array", "items": {"$ref": "#/components/schemas/Reference"},
+            "description": "the stored records (and revisions) the request named, present when it named any"}
 
     for calc in registry.CALCULATIONS:
         if calc.batch:
@@ -216,6 +262,9 @@ def paths() -> dict:
                                                                  "413": _PROBLEM, "415": _PROBLEM,
                                                                  "422": _PROBLEM})},
         }
+    for path, item in {**record_paths(), **screening_paths()}.items():
+        out[path] = {method: dict(operation, responses=with_common_problems(operation["responses"]))
+                     for method, operation in item.items()}
     for library in registry.LIBRARIES:
         item = {"$ref": f"#/components/schemas/{_name(library.item)}"}
         out[library.path] = {"get": {
@@ -228,6 +277,194 @@ def paths() -> dict:
                 "text/csv": {"schema": {"type": "string"}}}},
                 "401": _PROBLEM, "422": _PROBLEM} | {s: _PROBLEM for s in COMMON_PROBLEMS}}}
     return out
+
+
+_RECORD_PROBLEMS = {"401": _PROBLEM, "404": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}
+_KEY = {"name": "key", "in": "path", "required": True, "description": "the record's id, or the tag of a live record "
+        "(of the latest retired one when none is live)", "schema": {"type": "string", "minLength": 1, "maxLength": 64}}
+_IF_MATCH = {"name": "If-Match", "in": "header", "required": True,
+             "description": "ETag of the revision the change is based on (RFC 9110 §13.1.1); missing: 428, "
+                            "stale: 412 with the current ETag", "schema": {"type": "string", "maxLength": 200}}
+_ETAG = {"ETag": {"description": "entity tag of the record's current revision", "schema": {"type": "string"}}}
+
+
+def _record_ok(description: str, status_headers: dict | None = None) -> dict:
+    out = {"description": description,
+           "content": {"application/json": {"schema": {"$ref": "#/components/schemas/Record"}}}}
+    if status_headers:
+        out["headers"] = status_headers
+    return out
+
+
+def _list_ok(description: str) -> dict:
+    return {"description": description, "content": {
+        "application/json": {"schema": {"$ref": "#/components/schemas/RecordList"}},
+        "text/csv": {"schema": {"type": "string"}}}}
+
+
+def _query_parameters(schema_cls: type[Schema], names: list[str]) -> list[dict]:
+    refs: dict[str, type] = {}
+    schema = schema_cls()
+    out = []
+    for name in names:
+        field = schema.fields[name]
+        item = _field(field, refs)
+        description = item.pop("description", "")
+        if "$ref" in item:  # a quantity: text with a unit, or a number in the default unit
+            item = {"type": "string", "maxLength": 80, "x-unit": item["x-unit"]}
+        out.append({"name": name, "in": "query", "description": description, "schema": item})
+    return out
+
+
+def record_paths() -> dict:
+    """Path items of the catalogue collections: the records, their revisions, and the changes to them."""
+    from . import registry
+    from .records import RecordQuerySchema
+
+    plant = json.loads((EXAMPLES / "plant.json").read_text())
+    out: dict = {}
+    for collection in registry.COLLECTIONS:
+        plural = collection.path.split("/")[-1]
+        name = plural.capitalize()
+        single = collection.kind.capitalize()
+        content = {"$ref": f"#/components/schemas/{_name(collection.content)}"}
+        example = next(item["content"] for item in plant["records"] if item["kind"] == collection.kind)
+        body = {"required": True, "content": {"application/json": {
+            "schema": content, "examples": {"demo": {"summary": "from the demo plant (examples/plant.json)",
+                                                     "value": example}}}}}
+        filters = ["tag", "retired", "limit", "offset"]
+        if collection.vessel_filters:
+            filters[1:1] = ["material", "jacket_type", "volume_min", "volume_max"]
+        tags = ["catalogue"]
+        key = dict(_KEY, example=example["tag"])  # the demo plant's record: fuzzing starts from a real one
+        out[collection.path] = {
+            "get": {"tags": tags, "summary": f"List {plural}: {collection.summary}", "operationId": f"list{name}",
+                    "parameters": [{"$ref": "#/components/parameters/format"}] + _query_parameters(RecordQuerySchema,
+                                                                                                filters),
+                    "responses": {"200": _list_ok(f"Current revisions of the live {plural} matching every filter, "
+                                                  "ordered by tag."), "401": _PROBLEM, "422": _PROBLEM,
+                                  "503": _PROBLEM}},
+            "post": {"tags": tags, "summary": f"Create a {collection.kind} record (revision 1)",
+                     "description": "The content is validated by the same schemas as the calculations. A token "
+                                    "with the write role is needed when tokens are configured.",
+                     "operationId": f"create{single}", "requestBody": body,
+                     "responses": {"201": _record_ok("Created; Location names the record, ETag its revision.",
+                                                     {**_ETAG, "Location": {"description": "the record's URL",
+                                                                            "schema": {"type": "string"}}}),
+                                   "400": _PROBLEM, "401": _PROBLEM, "403": _PROBLEM, "409": _PROBLEM,
+                                   "413": _PROBLEM, "415": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}},
+        }
+        item_path = f"{collection.path}/{{key}}"
+        change = {"400": _PROBLEM, "401": _PROBLEM, "403": _PROBLEM, "404": _PROBLEM, "409": _PROBLEM,
+                  "412": _PROBLEM, "413": _PROBLEM, "415": _PROBLEM, "422": _PROBLEM, "428": _PROBLEM,
+                  "503": _PROBLEM}
+        out[item_path] = {
+            "get": {"tags": tags, "summary": f"The current revision of a {collection.kind}",
+                    "operationId": f"read{single}", "parameters": [key],
+                    "responses": {"200": _record_ok("The current revision, with its ETag.", _ETAG),
+                                  **_RECORD_PROBLEMS}},
+            "put": {"tags": tags, "summary": f"Replace a {collection.kind}'s content (a new revision)",
+                    "operationId": f"replace{single}", "parameters": [key, dict(_IF_MATCH, example="*")],
+                    "requestBody": body,
+                    "responses": {"200": _record_ok("The new revision.", _ETAG), **change}},
+            "patch": {"tags": tags, "summary": f"Change part of a {collection.kind} (JSON Merge Patch, RFC 7396; "
+                                               "a new revision)",
+                      "operationId": f"update{single}", "parameters": [key, dict(_IF_MATCH, example="*")],
+                      "requestBody": {"required": True, "content": {
+                          "application/merge-patch+json": {"schema": {"type": "object"}},
+                          "application/json": {"schema": {"type": "object"}}}},
+                      "responses": {"200": _record_ok("The new revision.", _ETAG), **change}},
+            "delete": {"tags": tags, "summary": f"Retire a {collection.kind}: a last revision marks it retired; "
+                                                "its history stays readable",
+                       "operationId": f"retire{single}",
+                       "parameters": [key, dict(_IF_MATCH, required=False,
+                                                 description="optional; when sent, a stale ETag is refused with 412")],
+                       "responses": {"200": _record_ok("The retiring revision."), **change}},
+        }
+        if collection.kind == "vessel":
+            out[f"{collection.path}/import"] = {"post": {
+                "tags": tags, "summary": "Import a vessel list from a spreadsheet (CSV)",
+                "description": "One vessel a row; columns named by their dotted path in a vessel record (tag, "
+                               "utility, notes, diameter, wall.thickness, agitator.speed, coils[0].turns, ...); "
+                               "units in the header (`diameter [m]`) or in a unit row under it (tag cell empty or "
+                               "`units`); a cell with its own unit keeps it. Every row is validated first: one bad "
+                               "cell refuses the file, naming row and field. Existing tags are left alone unless "
+                               "replace=true, which revises those whose content differs.",
+                "operationId": "importVessels",
+                "parameters": [{"name": "replace", "in": "query", "schema": {"type": "string",
+                                                                             "enum": ["true", "false"]}}],
+                "requestBody": {"required": True, "content": {"text/csv": {"schema": {"type": "string"}}}},
+                "responses": {
+                    "201": {"description": "Some vessels created or revised.", "content": {"application/json": {
+                        "schema": {"$ref": "#/components/schemas/ImportSummary"}}}},
+                    "200": {"description": "Nothing needed writing.", "content": {"application/json": {
+                        "schema": {"$ref": "#/components/schemas/ImportSummary"}}}},
+                    "400": _PROBLEM, "401": _PROBLEM, "403": _PROBLEM, "409": _PROBLEM, "413": _PROBLEM,
+                    "415": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}}}
+        out[f"{item_path}/revisions"] = {"get": {
+            "tags": tags, "summary": f"Every revision of a {collection.kind}, oldest first, with author and time",
+            "operationId": f"history{single}", "parameters": [{"$ref": "#/components/parameters/format"}, key],
+            "responses": {"200": _list_ok("All revisions."), **_RECORD_PROBLEMS}}}
+        out[f"{item_path}/revisions/{{number}}"] = {"get": {
+            "tags": tags, "summary": f"One revision of a {collection.kind}", "operationId": f"revision{single}",
+            "parameters": [key, {"name": "number", "in": "path", "required": True, "example": 1,
+                                 "schema": {"type": "integer", "minimum": 1}}],
+            "responses": {"200": _record_ok("That revision as it was written."), **_RECORD_PROBLEMS}}}
+    return out
+
+
+def screening_paths() -> dict:
+    """Path items of /v1/screenings (create, list, read, re-run)."""
+    ok = {"description": "The ranked screening: a row per vessel; CSV one row per vessel; SVG/PNG the margins "
+                         "with the safety-factor line.",
+          "content": {"application/json": {"schema": {"$ref": "#/components/schemas/ScreeningResult"}},
+                      "text/csv": {"schema": {"type": "string"}}, "image/svg+xml": {"schema": {"type": "string"}},
+                      "image/png": {"schema": {"type": "string"}}}}
+    created = dict(ok, description="Screened and stored; Location names the stored screening. " + ok["description"],
+                   headers={"Location": {"description": "the stored screening", "schema": {"type": "string"}}})
+    problems = {"400": _PROBLEM, "401": _PROBLEM, "404": _PROBLEM, "413": _PROBLEM, "415": _PROBLEM,
+                "422": _PROBLEM, "503": _PROBLEM}
+    screening_id = {"name": "screening_id", "in": "path", "required": True,
+                    "schema": {"type": "string", "minLength": 1, "maxLength": 64}}
+    description = ("One process step (stored, {\"ref\": ...}, or inline) against many stored vessels (all live "
+                   "vessels, a filter, or a list of ids or tags), each with its own utility unless a coolant is "
+                   "given. Rows are ranked: adequate first, then by margin. Each row gives margin, verdict, "
+                   "minimum dosing time, warmest coolant inlet, controlling resistance and warnings, or why there "
+                   "is no verdict (the charge does not fit). The screening is stored with the revisions it used; "
+                   "`changes` says what differs from the previous run of the same request. Past the computing "
+                   "budget the remaining rows are 'not evaluated' and the status is partial. A screening "
+                   "estimate: confirm with reaction calorimetry and plant data; local codes and a licensed "
+                   "engineer's review govern.")
+    plant = json.loads((EXAMPLES / "plant.json").read_text())
+    step = next(item["content"]["tag"] for item in plant["records"] if item["kind"] == "step")
+    return {
+        "/v1/screenings": {
+            "post": {"tags": ["screening"], "summary": "Which vessels can run this step, and at what dosing time?",
+                     "description": description, "operationId": "createScreening",
+                     "parameters": [{"$ref": "#/components/parameters/format"}],
+                     "requestBody": {"required": True, "content": {"application/json": {
+                         "schema": {"$ref": "#/components/schemas/ScreeningRequest"},
+                         "examples": {"demo": {"summary": "the demo plant's step against every vessel",
+                                               "value": {"step": {"ref": step}}}}}}},
+                     "responses": {"201": created, **problems}},
+            "get": {"tags": ["screening"], "summary": "Stored screenings, newest first", "operationId": "listScreenings",
+                    "parameters": [{"name": "limit", "in": "query", "schema": {"type": "integer", "minimum": 1,
+                                                                                "maximum": 500}},
+                                   {"name": "offset", "in": "query", "schema": {"type": "integer", "minimum": 0}}],
+                    "responses": {"200": {"description": "Summaries.", "content": {"application/json": {
+                        "schema": {"$ref": "#/components/schemas/ScreeningList"}}}},
+                        "401": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}},
+        },
+        "/v1/screenings/{screening_id}": {"get": {
+            "tags": ["screening"], "summary": "A stored screening, as it was answered", "operationId": "readScreening",
+            "parameters": [{"$ref": "#/components/parameters/format"}, screening_id],
+            "responses": {"200": ok, "401": _PROBLEM, "404": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}}},
+        "/v1/screenings/{screening_id}/rerun": {"post": {
+            "tags": ["screening"], "summary": "Run a stored screening's request again on the current revisions",
+            "description": "A new stored screening; its `changes` list what differs from the previous run.",
+            "operationId": "rerunScreening", "parameters": [{"$ref": "#/components/parameters/format"}, screening_id],
+            "responses": {"201": created, **problems}}},
+    }
 
 
 class _PlainDumper(yaml.SafeDumper):

@@ -11,6 +11,8 @@ from .heat_transfer import (AgitationRequestSchema, AgitationResultSchema, Coola
 from .cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
                       ScaleUpResultSchema)
 from .properties import FluidSchema, PropertiesQuerySchema, PropertiesResultSchema
+from .records import RecordListSchema, RecordSchema, StepRecordSchema, UtilityRecordSchema, VesselRecordSchema
+from .screening import ScreeningListSchema, ScreeningRequestSchema, ScreeningResultSchema
 from .sizing import JacketSizingRequestSchema, JacketSizingResultSchema
 from .window import OperatingWindowRequestSchema, OperatingWindowResultSchema
 from .safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
@@ -132,5 +134,29 @@ LIBRARIES = [
             ImpellerSchema),
     Library("/v1/materials", "libraries", "The wall-material library with conductivities and sources", MaterialSchema),
 ]
-REQUEST_SCHEMAS = [PropertiesQuerySchema] + [c.request for c in CALCULATIONS]
-RESPONSE_SCHEMAS = [PropertiesResultSchema, FluidSchema] + [c.response for c in CALCULATIONS] + [library.item for library in LIBRARIES]
+
+
+@dataclass(frozen=True)
+class Collection:
+    """A catalogue resource: records of one kind with their revisions (create, list, read, replace, update,
+    retire)."""
+
+    path: str
+    kind: str
+    summary: str
+    content: type  # the record schema (validated by the calculation schemas inside it)
+    vessel_filters: bool = False
+
+
+COLLECTIONS = [
+    Collection("/v1/vessels", "vessel", "Vessels of the plant: geometry, wall, jacket, coils, agitator, fouling, "
+               "the utility that serves each, and an optional calibration", VesselRecordSchema, vessel_filters=True),
+    Collection("/v1/utilities", "utility", "Utilities (coolants) of the plant: fluid, inlet temperature and flow",
+               UtilityRecordSchema),
+    Collection("/v1/steps", "step", "Process steps: charge, process temperature, heat release, safety factor and "
+               "the cooling-failure scenario", StepRecordSchema),
+]
+REQUEST_SCHEMAS = ([PropertiesQuerySchema] + [c.request for c in CALCULATIONS] + [c.content for c in COLLECTIONS]
+                   + [ScreeningRequestSchema])
+RESPONSE_SCHEMAS = ([PropertiesResultSchema, FluidSchema] + [c.response for c in CALCULATIONS] + [library.item for library in LIBRARIES]
+                    + [RecordSchema, RecordListSchema, ScreeningResultSchema, ScreeningListSchema])

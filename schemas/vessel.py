@@ -105,6 +105,7 @@ class FoulingSchema(StrictSchema):
 
 
 class VesselSchema(StrictSchema):
+    record_kind = "vessel"  # a calculation may name a stored vessel here: {"ref": "<id or tag>"}
     name = fields.String(load_default="vessel", validate=validate.Length(max=120))
     diameter = _length("inside diameter", required=True)
     straight_side = _length("tangent-to-tangent height of the cylindrical shell", required=True)
@@ -229,6 +230,7 @@ class Flow(fields.Field):
 
 
 class CoolantSchema(_LiquidFields):
+    record_kind = "utility"  # a calculation may name a stored utility here: {"ref": "<id or tag>"}
     inlet_temperature = absolute_temperature(required=True)
     flow = Flow(required=True)
     coil_flow = Flow(load_default=None, metadata={"description": "flow through each coil; default the jacket flow"})

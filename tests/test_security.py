@@ -135,9 +135,10 @@ def test_preflight_from_an_allowed_origin_is_a_204_without_auth(cors):
     response = _preflight(cors, ORIGIN)
     assert response.status_code == 204 and response.get_data() == b""
     assert response.headers["Access-Control-Allow-Origin"] == ORIGIN
-    assert {m.strip() for m in response.headers["Access-Control-Allow-Methods"].split(",")} == {"GET", "POST"}
+    assert {m.strip() for m in response.headers["Access-Control-Allow-Methods"].split(",")} == {"GET", "POST", "PUT", "PATCH",
+                                                                                             "DELETE"}
     allowed = {h.strip().lower() for h in response.headers["Access-Control-Allow-Headers"].split(",")}
-    assert {"content-type", "authorization", "x-request-id"} <= allowed
+    assert {"content-type", "authorization", "x-request-id", "if-match"} <= allowed
     assert "Origin" in response.headers["Vary"]
 
 

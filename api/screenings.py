@@ -1,0 +1,271 @@
+"""``/v1/screenings``: one process step against many stored vessels, each with its own utility, ranked.
+
+A screening is stored with the request, the record revisions it used and its ranked rows; it can be read
+back and re-run, and every run says what changed since the previous run of the same request (vessels
+added or retired, revisions of vessel, utility or step, margins and verdicts). A screening has a
+computing budget (SCREENING_WALL_TIME); rows past it are marked "not evaluated" and the status is partial.
+"""
+from __future__ import annotations
+
+import json
+from datetime import datetime
+
+from flask import Blueprint, Response, current_app, request
+from marshmallow import ValidationError
+
+from calc.checks import screening as screening_calc
+from schemas.base import clean, unit_map
+from schemas.records import RecordQuerySchema
+from schemas.screening import (SCREENING_CAUTIONS, ScreeningListSchema, ScreeningRequestSchema,
+                               ScreeningResultSchema, screening_row)
+from schemas.vessel import CoolantSchema, VesselSchema
+
+from . import charts, security
+from .errors import ProblemError
+from .http import request_object, requested_format, to_csv
+from .records import store
+from .runtime import deadline
+from .references import records_used, resolve
+from .storage import NotFound, RevisionView, request_key
+
+bp = Blueprint("screenings", __name__, url_prefix="/v1")
+_request, _result, _list = ScreeningRequestSchema(), ScreeningResultSchema(), ScreeningListSchema()
+_UNITS = unit_map(_result)
+_ROW_UNITS = {k[len("rows."):]: v for k, v in _UNITS.items() if k.startswith("rows.")}
+_PAGE = RecordQuerySchema(only=("limit", "offset"))
+LEAD = ("rank", "tag", "verdict", "margin", "minimum_dosing_time", "maximum_coolant_inlet_temperature",
+        "controlling")
+
+
+def _select(selection, limit: int) -> list[RevisionView]:
+    catalogue = store()
+    if selection is None:
+        vessels, total = catalogue.list("vessel", limit=limit + 1)
+    elif selection[0] == "filter":
+        vessels, total = catalogue.list("vessel", limit=limit + 1, **selection[1])
+    else:
+        keys = selection[1]
+        if len(keys) > limit:
+            total = len(keys)
+            vessels = []
+        else:
+            vessels = []
+            for index, key in enumerate(keys):
+                try:
+                    vessels.append(catalogue.get("vessel", key))
+                except NotFound as exc:
+                    raise ValidationError({"vessels": {index: [str(exc)]}}) from None
+            total = len(vessels)
+    if total > limit:
+        raise ProblemError(413, f"{total} vessels selected; at most {limit} per screening: narrow the selection",
+                           [{"field": "vessels", "message": f"at most {limit} vessels"}])
+    if not vessels:
+        raise ProblemError(422, "no stored vessel matches the selection",
+                           [{"field": "vessels", "message": "matches no live vessel"}])
+    return vessels
+
+
+def _candidates(vessels: list[RevisionView], coolant) -> tuple[list, dict]:
+    """Calc inputs of every vessel (problems kept per vessel) and what each row says about its records."""
+    catalogue = store()
+    utilities: dict[str, object] = {}
+    vessel_schema, coolant_schema = VesselSchema(), CoolantSchema()
+    candidates, info = [], {}
+    for revision in vessels:
+        body = revision.body
+        index_info = {"tag": revision.tag, "name": body["vessel"].get("name", revision.tag),
+                      "vessel": revision.reference() | {"used_as": "vessel"}, "utility": None, "volume": None}
+        info[revision.record_id] = index_info
+        problem, vessel, own = None, None, coolant
+        try:
+            vessel = vessel_schema.load(body["vessel"])
+            if vessel.agitator is None:
+                problem = ("vessel.agitator", "the vessel has no agitator; the cooling check needs one")
+            from calc.vessel import geometry
+
+            index_info["volume"] = geometry.volume_at_level(vessel.shape, geometry.brim_height(vessel.shape))
+        except ValidationError as error:  # a record written under older rules
+            problem = ("vessel", f"the stored vessel is no longer valid: {error.messages}")
+        if own is None and problem is None:
+            utility_key = body.get("utility")
+            if utility_key is None:
+                problem = ("coolant", "the vessel names no utility; give a coolant for the screening")
+            else:
+                if utility_key not in utilities:
+                    try:
+                        found = catalogue.get("utility", utility_key)
+                        utilities[utility_key] = (found, coolant_schema.load(found.body["coolant"]))
+                    except (NotFound, ValidationError) as error:
+                        utilities[utility_key] = (None, str(error))
+                found, loaded = utilities[utility_key]
+                if found is None:
+                    problem = ("vessel.utility", f"utility {utility_key!r}: {loaded}")
+                else:
+                    own = loaded
+                    index_info["utility"] = found.reference() | {"used_as": "coolant"}
+        candidates.append(screening_calc.Candidate(revision.record_id, vessel, own, problem))
+    return candidates, info
+
+
+def _changes(previous: dict | None, rows: list[dict]) -> dict | None:
+    """What differs from the previous run of the same request, vessel by vessel."""
+    if previous is None:
+        return None
+    before = {row["vessel"]["id"]: row for row in previous["result"]["rows"]}
+    after = {row["vessel"]["id"]: row for row in rows}
+    items = []
+    for vessel_id, row in after.items():
+        old = before.get(vessel_id)
+        if old is None:
+            items.append({"tag": row["tag"], "vessel_id": vessel_id, "change": "added", "details": ["newly selected"],
+                          "verdict_before": None, "verdict_after": row["verdict"], "margin_before": None,
+                          "margin_after": row["margin"]})
+            continue
+        details = []
+        for member in ("vessel", "utility"):
+            was, now = old.get(member) or {}, row.get(member) or {}
+            if (was.get("id"), was.get("revision")) != (now.get("id"), now.get("revision")):
+                details.append(f"{member} {was.get('tag', '-')} revision {was.get('revision', '-')} -> "
+                               f"{now.get('tag', '-')} revision {now.get('revision', '-')}")
+        if old["verdict"] != row["verdict"]:
+            details.append(f"verdict {old['verdict']} -> {row['verdict']}")
+        if old["margin"] != row["margin"]:
+            details.append(f"margin {_fmt(old['margin'])} -> {_fmt(row['margin'])}")
+        if details:
+            items.append({"tag": row["tag"], "vessel_id": vessel_id, "change": "changed", "details": details,
+                          "verdict_before": old["verdict"], "verdict_after": row["verdict"],
+                          "margin_before": old["margin"], "margin_after": row["margin"]})
+    for vessel_id, old in before.items():
+        if vessel_id not in after:
+            items.append({"tag": old["tag"], "vessel_id": vessel_id, "change": "removed",
+                          "details": ["no longer selected (retired or changed)"], "verdict_before": old["verdict"],
+                          "verdict_after": None, "margin_before": old["margin"], "margin_after": None})
+    return {"previous_id": previous["id"], "previous_created_at": previous["created_at"].isoformat(),
+            "items": items}
+
+
+def _fmt(value) -> str:
+    return "-" if value is None else f"{value:.3g}"
+
+
+def run(body: dict, previous_id: str | None = None) -> tuple[dict, int]:
+    """Screen, store and shape; returns the stored payload and the HTTP status (201)."""
+    data = resolve(body, _request)
+    args = _request.load(data)
+    step = args["step"]
+    limit = current_app.config["MAX_SCREENING_VESSELS"]
+    vessels = _select(args["vessels"], limit)
+    candidates, info = _candidates(vessels, args["coolant"])
+    # the screening's own budget, inside the request's (whatever is left of it when the rows start)
+    budget = deadline().within(current_app.config["SCREENING_WALL_TIME"])
+    result = screening_calc.screen(candidates, step["charge"], step["process_temperature"], step["heat_release"],
+                                   step["safety_factor"], budget)
+    rows = [screening_row(row, info[row.key]) for row in result.rows]
+    rows = clean(_result.dump({"rows": rows})["rows"])
+    used = records_used()
+    step_ref = next((u for u in used if u["kind"] == "step"), None)
+    counts = {"screened": len(rows), "adequate": sum(r["verdict"] == "adequate" for r in rows),
+              "not_adequate": sum(r["verdict"] == "not adequate" for r in rows),
+              "no_verdict": sum(r["verdict"] == "no verdict" for r in rows),
+              "not_evaluated": sum(r["verdict"] == "not evaluated" for r in rows)}
+    catalogue = store()
+    key = request_key(body)
+    previous = catalogue.last_screening(key)
+    changes = _changes(previous, rows)
+    if changes is not None:
+        step_before = previous["result"].get("step")
+        if step_before and step_ref and step_before.get("revision") != step_ref.get("revision"):
+            changes["items"].insert(0, {"tag": step_ref["tag"], "vessel_id": "", "change": "changed",
+                                        "details": [f"step {step_ref['tag']} revision {step_before['revision']} -> "
+                                                    f"{step_ref['revision']}"], "verdict_before": None,
+                                        "verdict_after": None, "margin_before": None, "margin_after": None})
+    warnings = []
+    if not result.complete:
+        warnings.append({"code": "screening_budget",
+                         "message": "the time budget (COOLMARGIN_SCREENING_WALL_TIME, within the request's "
+                                    "COOLMARGIN_REQUEST_BUDGET) ran out; rows marked 'not evaluated' were not "
+                                    "checked: narrow the selection or re-run"})
+    payload = {"status": "complete" if result.complete else "partial",
+               "step": step_ref, "safety_factor": step["safety_factor"], "counts": counts, "rows": rows,
+               "changes": changes, "records": used + [r["vessel"] for r in rows]
+               + [r["utility"] for r in rows if r.get("utility")],
+               "warnings": warnings, "cautions": list(SCREENING_CAUTIONS)}
+    payload["records"] = list({json.dumps(r, sort_keys=True): r for r in payload["records"]}.values())
+    stored = catalogue.save_screening(request=body, used=payload["records"], result=payload,
+                                      author=security.author(), total=len(rows),
+                                      done=len(rows) - counts["not_evaluated"], previous_id=previous_id)
+    return _shaped(stored), 201
+
+
+def _shaped(stored: dict) -> dict:
+    created = stored["created_at"]
+    return {"id": stored["id"], "created_at": created.isoformat() if isinstance(created, datetime) else created,
+            "author": stored["author"], **stored["result"]}
+
+
+def chart(payload: dict, fmt: str) -> bytes:
+    """Margin of every vessel (bars, ranked) with the safety factor as a line."""
+    rows = payload["rows"]
+    fig, (axis,) = charts.figure(1)
+    fig.set_size_inches(7.5, 1.2 + 0.32 * max(len(rows), 3))
+    labels = [row["tag"] for row in rows][::-1]
+    margins = [row["margin"] if row["margin"] is not None else 0.0 for row in rows][::-1]
+    colours = [charts.COLOURS[2] if row["verdict"] == "adequate" else
+               charts.COLOURS[1] if row["verdict"] == "not adequate" else "#bbbbbb" for row in rows][::-1]
+    axis.barh(labels, margins, color=colours, zorder=3)
+    for position, row in enumerate(rows[::-1]):
+        if row["margin"] is None:
+            note = "unbounded (no net load)" if row["verdict"] == "adequate" else row["verdict"]
+            axis.annotate(note, (0, position), xytext=(4, -3), textcoords="offset points", fontsize=7,
+                          color="#555555")
+    factor = payload["safety_factor"]
+    axis.axvline(factor, color="#555555", linestyle="--", linewidth=1.0, label=f"safety factor {factor:g}")
+    axis.set_xlabel("margin (cooling capacity / heat load)")
+    step = payload.get("step")
+    axis.set_title(f"Screening of step {step['tag'] if step else '(inline)'} over {len(rows)} vessels", fontsize=10)
+    axis.legend(fontsize=7, frameon=False, loc="lower right")
+    charts.footnote(fig)
+    return charts.render(fig, fmt)
+
+
+def _answer(payload: dict, status: int = 200) -> Response:
+    fmt = requested_format()
+    if fmt == "csv":
+        response = Response(to_csv(payload["rows"], _ROW_UNITS, LEAD), status=status, mimetype="text/csv")
+    elif fmt in ("svg", "png"):
+        response = Response(chart(payload, fmt), status=status, mimetype=f"image/{'svg+xml' if fmt == 'svg' else 'png'}")
+    else:
+        body = clean(payload) | {"units": _UNITS}  # rows were dumped (to API units) when the screening ran
+        response = Response(json.dumps(body, allow_nan=False), status=status, mimetype="application/json")
+    if status == 201:
+        response.headers["Location"] = f"/v1/screenings/{payload['id']}"
+    return response
+
+
+@bp.post("/screenings")
+def create():
+    payload, status = run(request_object())
+    return _answer(payload, status)
+
+
+@bp.get("/screenings")
+def listing():
+    page = _PAGE.load({k: v for k, v in request.args.items() if k != "format"})
+    items, total = store().screenings(page["limit"], page["offset"])
+    summaries = [{"id": s["id"], "created_at": s["created_at"].isoformat(), "author": s["author"],
+                  "status": s["result"].get("status", s["status"]), "step": s["result"].get("step"),
+                  "counts": s["result"].get("counts")} for s in items]
+    body = clean(_list.dump({"items": summaries, "total": total, **page}))
+    return Response(json.dumps(body), mimetype="application/json")
+
+
+@bp.get("/screenings/<screening_id>")
+def read(screening_id: str):
+    return _answer(_shaped(store().screening(screening_id)))
+
+
+@bp.post("/screenings/<screening_id>/rerun")
+def rerun(screening_id: str):
+    stored = store().screening(screening_id)
+    payload, status = run(stored["request"], previous_id=screening_id)
+    return _answer(payload, status)

@@ -1,0 +1,148 @@
+"""Fleet screening over the stored demo plant, on SQLite and the real PostgreSQL.
+
+Oracle: each row must equal /v1/cooling-check of the same vessel, utility and step sent inline (the
+screening ranks checks, it does not compute differently); the ranking rule (adequate first, then by margin)
+and the verdict rule (adequate when margin >= safety factor) are the contract's own, common practice, no
+source. RFC 9110 §15.3.2 for 201 + Location.
+"""
+from __future__ import annotations
+
+import pytest
+
+from plant import load_plant, record
+
+
+@pytest.fixture()
+def plant(store_client):
+    load_plant(store_client)
+    return store_client
+
+
+def _inline_check(client, vessel_tag: str, step_tag: str) -> dict:
+    vessel = record("vessel", vessel_tag)
+    step = record("step", step_tag)
+    body = {"vessel": vessel["vessel"], "coolant": record("utility", vessel["utility"])["coolant"],
+            **{k: step[k] for k in ("charge", "process_temperature", "heat_release", "safety_factor")}}
+    return client.post("/v1/cooling-check", json=body)
+
+
+def test_rows_equal_the_inline_checks_and_are_ranked(plant):
+    response = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-FAST"}})
+    assert response.status_code == 201 and response.headers["Location"] == f"/v1/screenings/{response.json['id']}"
+    answer = response.get_json()
+    rows = answer["rows"]
+    assert [row["rank"] for row in rows] == list(range(1, 9))
+    assert answer["counts"]["screened"] == 8 == sum(v for k, v in answer["counts"].items() if k != "screened")
+    for row in rows:
+        inline = _inline_check(plant, row["tag"], "AC-7-FAST")
+        if row["verdict"] == "no verdict":
+            assert inline.status_code == 422 and row["problem"]["field"] == inline.json["errors"][0]["field"]
+            continue
+        check = inline.get_json()
+        assert row["margin"] == check["margin"] and row["adequate"] == check["adequate"]
+        assert row["minimum_dosing_time"] == check["limits"]["minimum_dosing_time"]
+        assert row["maximum_coolant_inlet_temperature"] == check["limits"]["maximum_coolant_inlet_temperature"]
+        assert row["controlling"] == check["heat_transfer"]["resistances"]["controlling"]
+        assert row["verdict"] == ("adequate" if check["margin"] >= answer["safety_factor"] else "not adequate")
+    verdicts = [row["verdict"] for row in rows]
+    assert verdicts == sorted(verdicts, key=["adequate", "not adequate", "no verdict"].index)
+    margins = [row["margin"] for row in rows if row["verdict"] == "not adequate"]
+    assert margins == sorted(margins, reverse=True)
+    # the 4.6 m^3 batch does not fit the laboratory, pilot, 1.6 m^3 or 4 m^3 vessels
+    assert {row["tag"] for row in rows if row["verdict"] == "no verdict"} == {"L-1", "P-250", "R-160", "R-400"}
+    assert any("licensed engineer" in caution for caution in answer["cautions"])
+    assert {r["tag"] for r in answer["records"] if r["kind"] == "utility"} == {"GLY-5", "CW-24", "GLY-LAB", "GLY-M5"}
+
+
+def test_selection_by_list_and_filter_and_a_common_coolant(plant):
+    listed = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": ["R-631", "R-630"],
+                                                "coolant": {"ref": "GLY-5"}}).get_json()
+    assert {row["tag"] for row in listed["rows"]} == {"R-630", "R-631"}
+    # the same vessel geometry with the same coolant: the same margin
+    assert listed["rows"][0]["margin"] == listed["rows"][1]["margin"]
+    assert all(row["utility"] is None for row in listed["rows"])
+    filtered = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"},
+                                                  "vessels": {"jacket_type": "half_pipe", "volume_min": "7 m^3"}})
+    assert {row["tag"] for row in filtered.json["rows"]} == {"R-800", "R-1200"}
+    unknown = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": ["R-630", "R-999"]})
+    assert unknown.status_code == 422 and unknown.json["errors"][0]["field"] == "vessels[1]"
+    empty = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": {"tag": "X-*"}})
+    assert empty.status_code == 422 and empty.json["errors"][0]["field"] == "vessels"
+
+
+def test_an_inline_step_works_without_a_stored_one(plant):
+    step = record("step", "AC-7-PROD")
+    inline = {k: step[k] for k in ("charge", "process_temperature", "heat_release", "safety_factor")}
+    by_ref = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": ["R-630"]}).json
+    given = plant.post("/v1/screenings", json={"step": inline, "vessels": ["R-630"]}).json
+    assert given["step"] is None and given["rows"][0]["margin"] == by_ref["rows"][0]["margin"]
+
+
+def test_stored_rerun_says_what_changed(plant):
+    first = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-FAST"}}).get_json()
+    assert first["changes"] is None
+    again = plant.post(f"/v1/screenings/{first['id']}/rerun").get_json()
+    assert again["changes"]["previous_id"] == first["id"] and again["changes"]["items"] == []
+    assert plant.get(f"/v1/screenings/{first['id']}").get_json() == first  # stored as answered
+    etag = plant.get("/v1/vessels/R-800").headers["ETag"]
+    plant.patch("/v1/vessels/R-800", json={"vessel": {"agitator": {"speed": "60 rpm"}}}, headers={"If-Match": etag})
+    plant.delete("/v1/vessels/R-1200")
+    third = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-FAST"}}).get_json()
+    changes = {item["tag"]: item for item in third["changes"]["items"]}
+    assert set(changes) == {"R-800", "R-1200"}
+    assert changes["R-1200"]["change"] == "removed"
+    r800 = changes["R-800"]
+    assert r800["change"] == "changed" and "vessel R-800 revision 1 -> R-800 revision 2" in r800["details"]
+    assert r800["margin_after"] < r800["margin_before"]  # slower agitator, thinner process film
+    listing = plant.get("/v1/screenings").json
+    assert listing["total"] == 3 and listing["items"][0]["id"] == third["id"]
+
+
+def test_csv_and_chart(plant):
+    created = plant.post("/v1/screenings?format=csv", json={"step": {"ref": "AC-7-FAST"}})
+    assert created.status_code == 201 and created.mimetype == "text/csv"
+    lines = created.get_data(as_text=True).splitlines()
+    assert lines[0].startswith("rank,tag,verdict,margin,minimum_dosing_time [s],maximum_coolant_inlet_temperature "
+                               "[degC],controlling") and len(lines) == 9
+    svg = plant.get(created.headers["Location"] + "?format=svg")
+    assert svg.mimetype == "image/svg+xml" and b"safety factor 1.3" in svg.data and b"R-800" in svg.data
+
+
+def test_size_limit_and_time_budget(database_url):
+    from api import create_app
+
+    app = create_app({"TESTING": True, "DATABASE_URL": database_url, "MAX_SCREENING_VESSELS": 3,
+                      "SCREENING_WALL_TIME": 0.0})
+    client = app.test_client()
+    try:
+        load_plant(client)
+        too_many = client.post("/v1/screenings", json={"step": {"ref": "AC-7-FAST"}})
+        assert too_many.status_code == 413 and too_many.json["errors"][0]["field"] == "vessels"
+        partial = client.post("/v1/screenings", json={"step": {"ref": "AC-7-FAST"},
+                                                      "vessels": ["R-630", "R-800", "R-1200"]}).get_json()
+        assert partial["status"] == "partial" and partial["warnings"][0]["code"] == "screening_budget"
+        assert partial["counts"]["not_evaluated"] >= 2
+    finally:
+        app.extensions["coolmargin.catalogue"].dispose()
+
+
+
+def test_catalogue_and_screening_answers_conform_to_the_contract(plant):
+    from test_openapi import SPEC_PATH, check_contract
+    import json
+
+    from openapi_core import Config, OpenAPI
+
+    contract = OpenAPI.from_file_path(str(SPEC_PATH), config=Config(extra_media_type_deserializers={
+        "application/problem+json": json.loads}))
+    body = {"step": {"ref": "AC-7-FAST"}}
+    created = plant.post("/v1/screenings", json=body)
+    check_contract(contract, created, body)
+    check_contract(contract, plant.get(created.headers["Location"]))
+    check_contract(contract, plant.get("/v1/screenings"))
+    check_contract(contract, plant.get("/v1/vessels?volume_min=1"))
+    check_contract(contract, plant.get("/v1/vessels/R-630"))
+    check_contract(contract, plant.get("/v1/steps/AC-7-FAST/revisions"))
+    check_contract(contract, plant.get("/v1/utilities/GLY-5/revisions/1"))
+    check = {"vessel": {"ref": "R-630"}, "step": {"ref": "AC-7-PROD"}}
+    check_contract(contract, plant.post("/v1/cooling-check", json=check), check)
