@@ -9,7 +9,7 @@ from calc.checks import scaleup
 
 from .base import StrictSchema, finite_float
 from .heat_transfer import (HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema,
-                            heat_transfer_dict, warning_dicts)
+                            heat_transfer_dict, warning_dicts, with_correlations)
 from .units import Quantity
 from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, require_agitator
 
@@ -95,6 +95,7 @@ class ScaleUpRequestSchema(StrictSchema):
     process_temperature = HeatTransferRequestSchema._declared_fields["process_temperature"]
     heat_release = fields.Nested(HeatReleaseSchema, required=True)
     safety_factor = CoolingCheckRequestSchema._declared_fields["safety_factor"]
+    correlations = HeatTransferRequestSchema._declared_fields["correlations"]
     coolant_flow_rule = fields.String(load_default="scale_with_area",
                                       validate=validate.OneOf(["scale_with_area", "as_given"]),
                                       metadata={"description": "coolant flow at each scale: in proportion to the "
@@ -103,6 +104,21 @@ class ScaleUpRequestSchema(StrictSchema):
     @validates_schema
     def _agitator(self, data, **kwargs):
         require_agitator(data.get("reference"), "reference")
+
+    @post_load
+    def _choose(self, data, **kwargs):
+        """The correlation choice holds at every scale: on the reference and on explicit targets."""
+        choice = data.pop("correlations", None)
+        data["reference"] = with_correlations(data["reference"], choice)
+        targets = []
+        for target in data["targets"]:
+            if isinstance(target, tuple):
+                target = (with_correlations(target[0], choice), target[1])
+            elif not isinstance(target, (int, float)):
+                target = with_correlations(target, choice)
+            targets.append(target)
+        data["targets"] = targets
+        return data
 
 
 # ---------------------------------------------------------------- results

@@ -1,8 +1,12 @@
-"""Coolant-side film coefficients inside helical coils (tube side), curvature-corrected.
+"""Coolant-side film coefficients in curved channels: inside helical coils (tube side), and the
+half-pipe and spiral-baffle jacket channels when treated as curved (``channel="curved"``).
 
-Laminar below Schmidt's critical Reynolds number, turbulent above it (Schmidt 1967, or Mori &
-Nakayama 1967), each registered with its source and validity range in :data:`CORRELATIONS`. The
-result is the jackets' :class:`calc.service_side.FilmResult`.
+Laminar below Schmidt's critical Reynolds number, fully turbulent above Re = 2.2e4 (Schmidt 1967, or
+Mori & Nakayama 1967), and in between the linear interpolation of Gnielinski's method for helically
+coiled tubes (VDI Heat Atlas, chapter Gc; from memory): Schmidt's own transitional formula starts
+30-50 % above his laminar one at Re_crit, a jump this rule avoids. Each correlation is registered with
+its source and validity range in :data:`CORRELATIONS`. The result is the jackets'
+:class:`calc.films.jacket_side.FilmResult`.
 """
 from __future__ import annotations
 
@@ -83,7 +87,7 @@ def Nu_coil_turbulent_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
     ----------
     Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
     """
-    if Re <= 2.2e4:
+    if Re < 2.2e4:  # the second range from 2.2e4 on, so the transition interpolation meets it exactly
         return 0.023 * (1 + 14.8 * (1 + r) * r ** (1 / 3)) * Re ** (0.8 - 0.22 * r ** 0.1) * Pr ** (1 / 3)
     return 0.023 * (1 + 3.6 * (1 - r) * r ** 0.8) * Re ** 0.8 * Pr ** (1 / 3)
 
@@ -127,19 +131,6 @@ def Nu_coil_turbulent_Mori_Nakayama_1967(Re: float, Pr: float, r: float) -> floa
     return Pr ** 0.4 / 41 * Re ** (5 / 6) * r ** (1 / 12) * (1 + 0.061 / (Re * r ** 2.5) ** (1 / 6))
 
 
-CORRELATIONS: dict[str, Correlation] = {
-    "schmidt_1967_laminar": Correlation(
-        "Schmidt (1967), laminar", Nu_coil_laminar_Schmidt_1967,
-        "Schmidt, Chem. Ing. Tech. 39, 781 (1967); " + VDI_HEAT_ATLAS, {"Re": (100.0, None)}),
-    "schmidt_1967": Correlation(
-        "Schmidt (1967)", Nu_coil_turbulent_Schmidt_1967,
-        "Schmidt, Chem. Ing. Tech. 39, 781 (1967)", {"Re": (None, 1.5e5)}),
-    "mori_nakayama_1967": Correlation(
-        "Mori & Nakayama (1967)", Nu_coil_turbulent_Mori_Nakayama_1967,
-        "Mori & Nakayama, Int. J. Heat Mass Transfer 10, 681 (1967)", {"Re r^2": (0.1, None)}),
-}
-#: Options of the coil's turbulent correlation.
-COIL_CORRELATIONS = ("schmidt_1967", "mori_nakayama_1967")
 
 
 def coil_critical_reynolds_Schmidt_1967(r: float) -> float:
@@ -167,12 +158,94 @@ def coil_critical_reynolds_Schmidt_1967(r: float) -> float:
     return 2300.0 * (1 + 8.6 * r ** 0.45)
 
 
+#: Fully turbulent flow in a helical coil above this Reynolds number (Schmidt 1967; VDI Heat Atlas Gc).
+COIL_TURBULENT_REYNOLDS = 2.2e4
+
+
+def Nu_coil_transition_Gnielinski_1986(Re: float, Pr: float, r: float, turbulent=Nu_coil_turbulent_Schmidt_1967) -> float:
+    """Transitional flow in a helical coil: linear interpolation in Re, Gnielinski's rule for coiled tubes.
+
+    Nu = g Nu_lam(Re_crit) + (1 - g) Nu_turb(2.2e4),  g = (2.2e4 - Re)/(2.2e4 - Re_crit),
+    Re_crit = 2300 (1 + 8.6 r^0.45); Nu_lam is Schmidt's laminar form, Nu_turb the chosen turbulent one.
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on the tube inside (or channel equivalent) diameter, [-]
+    Pr : float
+        Prandtl number, [-]
+    r : float
+        Diameter over curvature diameter, [-]
+    turbulent : callable
+        Turbulent correlation Nu(Re, Pr, r), [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number, [-]
+
+    Notes
+    -----
+    Re_crit <= Re <= 2.2e4. Continuous with both neighbours by construction.
+
+    Examples
+    --------
+    >>> Re_crit = coil_critical_reynolds_Schmidt_1967(0.05)
+    >>> Nu_coil_transition_Gnielinski_1986(Re_crit, 5.0, 0.05) == Nu_coil_laminar_Schmidt_1967(Re_crit, 5.0, 0.05)
+    True
+
+    References
+    ----------
+    Gnielinski, V. "Heat transfer and pressure drop in helically coiled tubes". Proc. 8th Int. Heat
+    Transfer Conf., San Francisco, vol. 6, 2847-2854 (1986) (from memory); VDI Heat Atlas, 2nd ed., Springer
+    2010, chapter Gc.
+    """
+    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
+    weight = min(max((COIL_TURBULENT_REYNOLDS - Re) / (COIL_TURBULENT_REYNOLDS - Re_crit), 0.0), 1.0)
+    return (weight * Nu_coil_laminar_Schmidt_1967(Re_crit, Pr, r)
+            + (1.0 - weight) * turbulent(COIL_TURBULENT_REYNOLDS, Pr, r))
+
+
+CORRELATIONS: dict[str, Correlation] = {
+    "gnielinski_coil_transition": Correlation(
+        "Gnielinski (1986), coiled-tube transition interpolation", Nu_coil_transition_Gnielinski_1986,
+        "Gnielinski, 8th Int. Heat Transfer Conf. (1986), as in the " + VDI_HEAT_ATLAS + ", chapter Gc (from memory)",
+        {"Re": (None, 2.2e4)}),
+    "schmidt_1967_laminar": Correlation(
+        "Schmidt (1967), laminar", Nu_coil_laminar_Schmidt_1967,
+        "Schmidt, Chem. Ing. Tech. 39, 781 (1967); " + VDI_HEAT_ATLAS, {"Re": (100.0, None)}),
+    "schmidt_1967": Correlation(
+        "Schmidt (1967)", Nu_coil_turbulent_Schmidt_1967,
+        "Schmidt, Chem. Ing. Tech. 39, 781 (1967)", {"Re": (None, 1.5e5)}),
+    "mori_nakayama_1967": Correlation(
+        "Mori & Nakayama (1967)", Nu_coil_turbulent_Mori_Nakayama_1967,
+        "Mori & Nakayama, Int. J. Heat Mass Transfer 10, 681 (1967)", {"Re r^2": (0.1, None)}),
+}
+#: Options of the coil's turbulent correlation.
+COIL_CORRELATIONS = ("schmidt_1967", "mori_nakayama_1967")
+
+
+def curved_nusselt(Re: float, Pr: float, r: float, correlation: str = "schmidt_1967") -> tuple[float, str, float]:
+    """(Nu without the viscosity correction, registry key used, Re_crit) in a curved channel or coil tube."""
+    if correlation not in COIL_CORRELATIONS:
+        raise InputError("correlations.coil_tube", f"unknown option {correlation!r}; known: "
+                                                   f"{', '.join(COIL_CORRELATIONS)}")
+    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
+    turbulent = CORRELATIONS[correlation].function
+    if Re < Re_crit:
+        return Nu_coil_laminar_Schmidt_1967(Re, Pr, r), "schmidt_1967_laminar", Re_crit
+    if Re < COIL_TURBULENT_REYNOLDS:
+        return Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent), "gnielinski_coil_transition", Re_crit
+    return turbulent(Re, Pr, r), correlation, Re_crit
+
+
 def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant_props: LiquidProperties,
                       mass_flow: float, mu_wall: float, pitch: float | None = None, parallel_tubes: int = 1,
                       correlation: str = "schmidt_1967") -> FilmResult:
     """Coolant film coefficient inside a helical coil, on the tube inside area.
 
-    Laminar below Re_crit (Schmidt 1967, VDI form), turbulent above (``correlation``); both times
+    Laminar below Re_crit (Schmidt 1967, VDI form), turbulent above 2.2e4 (``correlation``), interpolated
+    between (:func:`Nu_coil_transition_Gnielinski_1986`); all times
     (mu/mu_w)^0.14 (Sieder & Tate's viscosity correction, common practice). With a pitch, the curvature
     diameter is D_c [1 + (p/(pi D_c))^2] (VDI Heat Atlas, Gc).
 
@@ -207,9 +280,6 @@ def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant
     >>> r.regime, round(r.reynolds)
     ('turbulent', 50848)
     """
-    if correlation not in COIL_CORRELATIONS:
-        raise InputError("vessel.coils.correlation", f"unknown option {correlation!r}; known: "
-                                                     f"{', '.join(COIL_CORRELATIONS)}")
     d = require_positive("vessel.coils.tube_inner_diameter", tube_inner_diameter)
     D_c = require_positive("vessel.coils.helix_diameter", helix_diameter)
     if D_c <= d:
@@ -227,12 +297,20 @@ def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant
     Re = props.density * velocity * d / props.viscosity
     Pr = props.prandtl
     r = d / D_c
-    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
-    key = "schmidt_1967_laminar" if Re < Re_crit else correlation
+    return curved_film(props, Re, velocity, d, r, mu_wall, correlation, warnings)
+
+
+def curved_film(props: LiquidProperties, Re: float, velocity: float, d: float, r: float, mu_wall: float,
+                correlation: str, warnings: Warnings) -> FilmResult:
+    """The film of :func:`curved_nusselt` times (mu/mu_w)^0.14 on diameter ``d``, with range and flow warnings."""
+    Nu, key, Re_crit = curved_nusselt(Re, props.prandtl, r, correlation)
     entry = CORRELATIONS[key]
-    Nu = entry.function(Re, Pr, r) * (props.viscosity / mu_wall) ** 0.14
-    entry.check(warnings, Re=Re, **{"Re r^2": Re * r * r})
+    Nu *= (props.viscosity / mu_wall) ** 0.14
+    entry.check(warnings, Re=Re)
+    if key in COIL_CORRELATIONS:
+        CORRELATIONS[key].check(warnings, **{"Re r^2": Re * r * r})
     regime = flow_warnings(warnings, Re, velocity, Re_crit, entry.name)
     if regime != "laminar":
-        regime = "turbulent" if Re >= 2.2e4 else "transitional"
-    return FilmResult(Nu * props.thermal_conductivity / d, Re, velocity, entry.name, Nu, Pr, d, regime, warnings)
+        regime = "turbulent" if Re >= COIL_TURBULENT_REYNOLDS else "transitional"
+    return FilmResult(Nu * props.thermal_conductivity / d, Re, velocity, entry.name, Nu, props.prandtl, d, regime,
+                      warnings)

@@ -225,6 +225,7 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
     warnings.extend_unique(stirred.warnings)
     shape, agitator, level = vessel.shape, vessel.agitator, filled.liquid_level
+    choice = vessel.correlations.validate(agitator.impeller)
     streams: list[Stream] = []
 
     if vessel.jacket is not None and filled.jacketed_area > 0:
@@ -239,7 +240,7 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         jacket_height = top if vessel.coverage.covers_bottom_head else top - geometry.head_depth(shape)
         outer = _outer_diameter(vessel)
 
-        def service(props_c, mu_w, rho_w, _jacket=vessel.jacket):
+        def service(props_c, mu_w, rho_w, _jacket=choice.jacket(vessel.jacket)):
             return service_side.service_film_jacket(_jacket, props_c, coolant.mass_flow(), mu_w, outer,
                                                     max(jacket_height, 1e-3), rho_wall=rho_w)
 
@@ -252,7 +253,8 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                 name, area, vessel.wall, radius, "inside",
                 lambda mu_w, _surface=surface: process_side.process_film_jacket(
                     agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
-                    baffled=agitator.baffled, surface=_surface),
+                    baffled=agitator.baffled, surface=_surface, alternative=choice.process_wall,
+                    factor=choice.process_factor, constants=choice.process_constants),
                 service))
         streams.append(_solve_stream("jacket", models, charge, coolant, coolant.mass_flow(), process_temperature,
                                      vessel.fouling, warnings))
@@ -272,10 +274,11 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
             f"coil_{index}", area, coil_wall, coil.tube_outer_diameter / 2.0, "outside",
             lambda mu_w, _coil=coil: process_side.process_film_coil(
                 agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
-                _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled),
+                _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled,
+                factor=choice.coil_process_factor),
             lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
                 _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
-                pitch=_coil.pitch))
+                pitch=_coil.pitch, correlation=choice.coil_tube))
         streams.append(_solve_stream(f"coil_{index}", [model], charge, coolant, coolant.coil_mass_flow(),
                                      process_temperature, vessel.fouling, warnings))
     if not streams:

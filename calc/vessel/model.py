@@ -13,6 +13,7 @@ from calc.vessel import geometry
 from calc.vessel.agitation import Agitator
 from calc.properties import Liquid
 from calc.validity import InputError
+from calc.films.selection import CorrelationChoice
 from calc.films.wall import Fouling, WallSpec
 
 
@@ -31,6 +32,7 @@ class Vessel:
     coils: tuple[geometry.HelicalCoil, ...] = ()
     fouling: Fouling = field(default_factory=Fouling)
     name: str = "vessel"
+    correlations: CorrelationChoice = field(default_factory=CorrelationChoice)
 
     def scaled(self, factor: float, agitator_speed: float | None = None, name: str | None = None) -> "Vessel":
         """A geometrically similar vessel: every length times ``factor``, wall thickness and fouling kept.
