@@ -1,10 +1,12 @@
-"""Heat transfer: ``/v1/heat-transfer``, ``/v1/coolant-balance`` and the wall library ``/v1/materials``."""
+"""Heat transfer: ``/v1/heat-transfer``, ``/v1/coolant-balance``, the wall library ``/v1/materials`` and
+the correlation alternatives ``/v1/correlations``."""
 from flask import Blueprint
 
 from calc.network import heat_transfer
-from calc.films import wall
+from calc.films import selection, wall
 from schemas.heat_transfer import (CoolantBalanceRequestSchema, CoolantBalanceResultSchema,
-                                   HeatTransferRequestSchema, HeatTransferResultSchema, MaterialSchema,
+                                   CorrelationAlternativeSchema, HeatTransferRequestSchema,
+                                   HeatTransferResultSchema, MaterialSchema,
                                    coolant_balance_dict, heat_transfer_dict)
 
 from .http import list_response, load, respond
@@ -13,6 +15,7 @@ bp = Blueprint("heat_transfer", __name__, url_prefix="/v1")
 _request, _result = HeatTransferRequestSchema(), HeatTransferResultSchema()
 _balance_request, _balance_result = CoolantBalanceRequestSchema(), CoolantBalanceResultSchema()
 _material = MaterialSchema()
+_alternative = CorrelationAlternativeSchema()
 
 
 @bp.route("/heat-transfer", methods=["GET", "POST"])
@@ -33,3 +36,8 @@ def coolant_balance():
 @bp.get("/materials")
 def material_library():
     return list_response(wall.library(), _material)
+
+
+@bp.get("/correlations")
+def correlation_library():
+    return list_response(selection.alternatives(), _alternative)

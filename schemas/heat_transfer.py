@@ -257,6 +257,18 @@ class ImpellerSchema(StrictSchema):
                                   for key, bands in process_side.wall_alternatives(info.id).items()]}
 
 
+class CorrelationAlternativeSchema(StrictSchema):
+    resistance = fields.String(metadata={"description": "the field of the request's correlations object"})
+    id = fields.String(metadata={"description": "what that field takes"})
+    name = fields.String()
+    default = fields.Boolean()
+    applies_to = fields.String()
+    source = fields.String()
+    validity = fields.Dict(keys=fields.String(), values=fields.Raw(),
+                           metadata={"description": "published range per quantity, [low, high] (null = open)"})
+    constants = fields.Dict(keys=fields.String(), values=fields.Raw(), metadata={"description": "constants used"})
+
+
 class MaterialSchema(StrictSchema):
     id = fields.String()
     name = fields.String()

@@ -7,7 +7,8 @@ from dataclasses import dataclass
 
 from .heat_transfer import (AgitationRequestSchema, AgitationResultSchema, CoolantBalanceRequestSchema,
                             CoolantBalanceResultSchema, GeometryRequestSchema, GeometryResultSchema,
-                            HeatTransferRequestSchema, HeatTransferResultSchema, ImpellerSchema, MaterialSchema)
+                            HeatTransferRequestSchema, HeatTransferResultSchema, ImpellerSchema, MaterialSchema,
+                            CorrelationAlternativeSchema)
 from .cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
                       ScaleUpResultSchema)
 from .properties import FluidSchema, PropertiesResultSchema
@@ -102,6 +103,8 @@ LIBRARIES = [
     Library("/v1/impellers", "libraries", "The impeller library with power numbers, film constants and sources",
             ImpellerSchema),
     Library("/v1/materials", "libraries", "The wall-material library with conductivities and sources", MaterialSchema),
+    Library("/v1/correlations", "libraries", "Every published alternative of each resistance, with source, validity "
+            "range and constants (what the correlations object of a request chooses)", CorrelationAlternativeSchema),
 ]
 REQUEST_SCHEMAS = [c.request for c in CALCULATIONS]
 RESPONSE_SCHEMAS = [PropertiesResultSchema, FluidSchema] + [c.response for c in CALCULATIONS] + [l.item for l in LIBRARIES]
