@@ -139,8 +139,31 @@ class LimitsSchema(StrictSchema):
     required_coolant_flow_note = fields.String()
 
 
+class BandMemberSchema(StrictSchema):
+    resistance = fields.String(metadata={"description": "the resistance whose correlation this member replaces "
+                                                        "(a field of correlations), calibration, or joint"})
+    alternative = fields.String()
+    margin = fields.Float(allow_none=True)
+
+
+class MarginBandSchema(StrictSchema):
+    low = fields.Float(allow_none=True, metadata={"description": "lowest margin over the members and the nominal"})
+    high = fields.Float(allow_none=True, metadata={"description": "highest margin over the members and the nominal"})
+    basis = fields.String(metadata={"description": "published_alternatives, or calibration (the fit's intervals)"})
+    low_set_by = fields.String(metadata={"description": "the alternative that gives the low end"})
+    high_set_by = fields.String(metadata={"description": "the alternative that gives the high end"})
+    holds_across_band = fields.Boolean(metadata={"description": "the verdict is the same at every member"})
+    statement = fields.String()
+    members = fields.List(fields.Nested(BandMemberSchema))
+
+
 class CoolingCheckResultSchema(StrictSchema):
     adequate = fields.Boolean()
+    calibrated = fields.Boolean(metadata={"description": "the heat transfer uses the vessel's own measured "
+                                                         "constants (a calibration), not only published ones"})
+    margin_band = fields.Nested(MarginBandSchema, allow_none=True, metadata={
+        "description": "the margin recomputed over the published alternatives of each resistance (or the "
+                       "calibration's intervals); the verdict stays nominal margin >= safety_factor"})
     margin = fields.Float(allow_none=True, metadata={"description": "cooling capacity / heat load; null when "
                                                                      "there is no load to remove"})
     safety_factor = fields.Float()
@@ -207,8 +230,10 @@ def cooling_check_dict(check) -> dict:
         dosing, dosing_note = _limit(limits.minimum_dosing_time, "value")
         inlet, inlet_note = _limit(limits.maximum_coolant_inlet_temperature, "value")
         flow, flow_note = _limit(limits.required_coolant_flow, "value")
+    band = check.margin_band
     return {
         "adequate": check.adequate, "margin": check.margin, "safety_factor": check.safety_factor,
+        "calibrated": check.calibrated, "margin_band": None if band is None else band,
         "heat_load": {"total": load.total, "reaction": load.reaction, "agitator": load.agitator,
                       "feed_sensible": load.feed_sensible},
         "cooling_capacity": check.cooling_capacity, "coolant_outlet_temperature": check.coolant_outlet_temperature,

@@ -32,6 +32,7 @@ from scipy.optimize import brentq
 
 from calc.network import coolant_balance
 from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
+from calc.checks.margin_band import MarginBand, margin_band
 from calc.network.heat_transfer import HeatTransferResult, heat_transfer
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
@@ -102,6 +103,8 @@ class CoolingCheck:
     limits: Limits | None
     warnings: Warnings = field(default_factory=Warnings)
     cautions: tuple[str, ...] = CAUTIONS
+    margin_band: MarginBand | None = None  # the margin over the published alternatives (calc.checks.margin_band)
+    calibrated: bool = False
 
 
 def charge_mass(result: HeatTransferResult) -> float:
@@ -285,11 +288,11 @@ def _required_flow(vessel: Vessel, charge: Charge, coolant: Coolant, process_tem
 
 def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
                   heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
-                  limits: bool = True) -> CoolingCheck:
+                  limits: bool = True, band: bool = True) -> CoolingCheck:
     """Compare the cooling capacity at ``process_temperature`` (K) with the heat load.
 
-    ``limits=False`` skips the three solved limits (``CoolingCheck.limits`` is then None), for
-    callers that need only the verdict.
+    ``limits=False`` skips the three solved limits (``CoolingCheck.limits`` is then None), and
+    ``band=False`` the margin band, for callers that need only the verdict.
     """
     safety_factor = _check_safety_factor(safety_factor)
     result, load = evaluate(vessel, charge, coolant, process_temperature, heat_release)
@@ -315,4 +318,10 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                         _maximum_inlet_temperature(vessel, charge, coolant, process_temperature, target, capacity),
                         _required_flow(vessel, charge, coolant, process_temperature, target, result))
     cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ())
-    return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings, cautions)
+    spread = None
+    if band:
+        spread = margin_band(vessel, charge, coolant, process_temperature, result, load.total, margin, safety_factor)
+        if not spread.holds_across_band:
+            warnings.add(CalcWarning("verdict_not_robust", spread.statement))
+    return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings, cautions,
+                        spread)
