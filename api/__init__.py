@@ -88,8 +88,8 @@ def create_app(config: dict | None = None) -> Flask:
 
     security.register(app)  # after the request-id hook: refusals carry the request id
 
-    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service
+    from . import agitation, cooling, fits, geometry, heat_transfer, properties, safety, service
 
-    for module in (service, properties, geometry, agitation, heat_transfer, cooling, safety):
+    for module in (service, properties, geometry, agitation, heat_transfer, cooling, safety, fits):
         app.register_blueprint(module.bp)
     return app
