@@ -96,6 +96,7 @@ class ScaleUpRequestSchema(StrictSchema):
     heat_release = fields.Nested(HeatReleaseSchema, required=True)
     safety_factor = CoolingCheckRequestSchema._declared_fields["safety_factor"]
     correlations = HeatTransferRequestSchema._declared_fields["correlations"]
+    calibration = HeatTransferRequestSchema._declared_fields["calibration"]
     coolant_flow_rule = fields.String(load_default="scale_with_area",
                                       validate=validate.OneOf(["scale_with_area", "as_given"]),
                                       metadata={"description": "coolant flow at each scale: in proportion to the "
@@ -108,14 +109,14 @@ class ScaleUpRequestSchema(StrictSchema):
     @post_load
     def _choose(self, data, **kwargs):
         """The correlation choice holds at every scale: on the reference and on explicit targets."""
-        choice = data.pop("correlations", None)
-        data["reference"] = with_correlations(data["reference"], choice)
+        choice, calibration = data.pop("correlations", None), data.pop("calibration", None)
+        data["reference"] = with_correlations(data["reference"], choice, calibration)
         targets = []
-        for target in data["targets"]:
+        for target in data["targets"]:  # the calibrated process constant carries; the remaining resistance not
             if isinstance(target, tuple):
-                target = (with_correlations(target[0], choice), target[1])
+                target = (with_correlations(target[0], choice, calibration, remaining=False), target[1])
             elif not isinstance(target, (int, float)):
-                target = with_correlations(target, choice)
+                target = with_correlations(target, choice, calibration, remaining=False)
             targets.append(target)
         data["targets"] = targets
         return data

@@ -6,7 +6,7 @@ from dataclasses import replace
 from marshmallow import ValidationError, fields, post_load, pre_dump, validate, validates_schema
 
 from calc.films import coil_side, jacket_side, process_side
-from calc.films.selection import CorrelationChoice
+from calc.films.selection import Calibration, CorrelationChoice
 
 from .base import StrictSchema, finite_float
 from .units import Quantity
@@ -83,18 +83,49 @@ class CorrelationsSchema(StrictSchema):
         return CorrelationChoice(**data)
 
 
-def with_correlations(vessel, choice):
-    """The vessel carrying the request's correlation choice (kept by scale-up's similar vessels)."""
-    return vessel if vessel is None or choice is None else replace(vessel, correlations=choice)
+class CalibrationSchema(StrictSchema):
+    """A vessel's own measured constants: paste the calibration object of /v1/wilson-plot."""
+
+    process_constant = finite_float(required=True, validate=validate.Range(0, 100, min_inclusive=False),
+                                    metadata={"description": "a of Nu = a Re^b Pr^c (mu/mu_w)^0.14 at the wall"})
+    process_constant_interval = fields.List(finite_float(allow_none=True), load_default=None,
+                                            validate=validate.Length(equal=2))
+    exponent = finite_float(load_default=2.0 / 3.0, validate=validate.Range(0.3, 1.0))
+    prandtl_exponent = finite_float(load_default=1.0 / 3.0, validate=validate.Range(0.2, 0.5))
+    remaining_resistance = Quantity("fouling resistance", load_default=None, minimum=0,
+                                    description="measured wall + fouling + coolant film of the jacket")
+    remaining_resistance_interval = fields.List(Quantity("fouling resistance"), load_default=None,
+                                                validate=validate.Length(equal=2))
+
+    @post_load
+    def _build(self, data, **kwargs):
+        interval = data["process_constant_interval"]
+        if interval is not None:
+            interval = tuple(float("inf") if v is None else v for v in interval)
+        remaining = data["remaining_resistance_interval"]
+        return Calibration(data["process_constant"], interval, data["exponent"], data["prandtl_exponent"],
+                           data["remaining_resistance"], None if remaining is None else tuple(remaining))
+
+
+def with_correlations(vessel, choice, calibration=None, remaining=True):
+    """The vessel carrying the request's correlation choice and calibration (kept by scale-up's similar vessels)."""
+    if vessel is None or (choice is None and calibration is None):
+        return vessel
+    choice = (choice or vessel.correlations).calibrated(calibration, remaining)
+    return replace(vessel, correlations=choice)
 
 
 class HeatTransferRequestSchema(_AgitatedVesselSchema):
     coolant = fields.Nested(CoolantSchema, required=True)
     correlations = fields.Nested(CorrelationsSchema, load_default=None)
+    calibration = fields.Nested(CalibrationSchema, load_default=None, metadata={
+        "description": "the vessel's own measured constants (from /v1/wilson-plot): results say calibrated and "
+                       "the margin band spans the fit's intervals"})
 
     @post_load
     def _choose(self, data, **kwargs):
-        data["vessel"] = with_correlations(data["vessel"], data.pop("correlations", None))
+        data["vessel"] = with_correlations(data["vessel"], data.pop("correlations", None),
+                                           data.pop("calibration", None))
         return data
 
 

@@ -94,3 +94,61 @@ def test_band_always_contains_the_nominal_margin(flow_factor, rpm):
     check = cooling_check(vessel, args["charge"], coolant, args["process_temperature"], args["heat_release"],
                           args["safety_factor"], limits=False)
     assert check.margin_band.low <= check.margin <= check.margin_band.high
+
+
+def _calibrated_body(interval_a=(0.40, 0.60), interval_r=(0.8e-3, 1.2e-3)):
+    from tests.test_correlation_choice import _body
+
+    body = _body("rushton_turbine", 120.0, 2.5, heat_release={"model": "total_power", "power": 2.0e5})
+    body["calibration"] = {"process_constant": 0.5, "process_constant_interval": list(interval_a),
+                           "remaining_resistance": 1.0e-3, "remaining_resistance_interval": list(interval_r)}
+    return body
+
+
+def test_calibrated_film_and_u_rederived_by_hand(client):
+    # Calibration: Nu = a Re^(2/3) Pr^(1/3) (mu/mu_w)^0.14 with the vessel's own a (constant viscosity, so the
+    # wall factor is 1), and 1/U = 1/h + R_remaining on the jacket (Wilson 1915 decomposition).
+    result = client.post("/v1/cooling-check", json=_calibrated_body()).get_json()
+    assert result["calibrated"] is True and result["margin_band"]["basis"] == "calibration"
+    heat = result["heat_transfer"]
+    Re, Pr = heat["agitation"]["reynolds"], 1800.0 * 0.05 / 0.15
+    h = 0.5 * Re ** (2 / 3) * Pr ** (1 / 3) * 0.15 / 1.5
+    assert heat["film_coefficients"]["process_jacket"] == pytest.approx(h, rel=1e-9)
+    shell = heat["resistances"]
+    assert sum(v for k, v in shell.items() if k not in ("process_film", "controlling")) == pytest.approx(1e-3, rel=1e-9)
+
+
+def test_calibrated_band_is_the_fit_interval_and_shrinks_with_it(client):
+    # The band comes from the fit's intervals (issue 12): its ends are the interval ends' margins; a zero-width
+    # interval collapses the band onto the nominal margin.
+    wide = client.post("/v1/cooling-check", json=_calibrated_body()).get_json()
+    band = wide["margin_band"]
+    names = {m["resistance"] for m in band["members"]}
+    assert names <= {"calibrated_process_constant", "calibrated_remaining_resistance", "joint"}
+    assert band["low"] < wide["margin"] < band["high"]
+    narrow = client.post("/v1/cooling-check", json=_calibrated_body((0.5, 0.5), (1e-3, 1e-3))).get_json()
+    assert narrow["margin_band"]["low"] == pytest.approx(narrow["margin"], rel=1e-9)
+    assert narrow["margin_band"]["high"] == pytest.approx(narrow["margin"], rel=1e-9)
+    published = client.post("/v1/cooling-check", json={k: v for k, v in _calibrated_body().items()
+                                                        if k != "calibration"}).get_json()
+    assert published["calibrated"] is False and published["margin_band"]["basis"] == "published_alternatives"
+
+
+def test_scale_up_carries_the_calibrated_constant_and_says_so(client):
+    from tests.test_correlation_choice import _body
+
+    body = _calibrated_body()
+    scale = {"reference": body["vessel"], "targets": [{"volume": 10.0}], "rule": "constant_power_per_volume",
+             "charge": body["charge"], "coolant": body["coolant"], "process_temperature": 60.0,
+             "heat_release": {"model": "specific_power", "power_per_mass": 20.0}, "calibration": body["calibration"]}
+    result = client.post("/v1/scale-up", json=scale).get_json()
+    assert all(s["calibrated"] for s in result["scales"])
+    assert "calibration_carried" in {w["code"] for w in result["warnings"]}
+    target = result["scales"][1]["heat_transfer"]
+    Re = target["agitation"]["reynolds"]
+    D = result["scales"][1]["diameter"]
+    h = 0.5 * Re ** (2 / 3) * (1800.0 * 0.05 / 0.15) ** (1 / 3) * 0.15 / D  # the reference's a, at the new scale
+    assert target["film_coefficients"]["process_jacket"] == pytest.approx(h, rel=1e-9)
+    # the measured remaining resistance stays with the measured vessel
+    others = sum(v for k, v in target["resistances"].items() if k not in ("process_film", "controlling"))
+    assert others != pytest.approx(1e-3, rel=1e-3)

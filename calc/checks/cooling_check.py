@@ -323,5 +323,13 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         spread = margin_band(vessel, charge, coolant, process_temperature, result, load.total, margin, safety_factor)
         if not spread.holds_across_band:
             warnings.add(CalcWarning("verdict_not_robust", spread.statement))
+    calibrated = vessel.correlations.calibration is not None
+    if calibrated:
+        cal = vessel.correlations.calibration
+        warnings.add(CalcWarning("calibrated", f"calibrated: the process film uses the vessel's own constant a = "
+                                               f"{cal.process_constant:.4g}" + (
+            "" if vessel.correlations.remaining_resistance is None else
+            f" and the measured remaining resistance {vessel.correlations.remaining_resistance:.4g} m2 K/W")
+            + "; the margin band spans the fit's 95 % intervals"))
     return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings, cautions,
-                        spread)
+                        spread, calibrated)

@@ -29,6 +29,7 @@ warnings appear when it is chosen alone.
 """
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, replace
 
 from calc.films import process_side
@@ -36,7 +37,8 @@ from calc.films.selection import CorrelationChoice
 from calc.network.heat_transfer import HeatTransferResult, heat_transfer
 
 #: Cooling-check margins of members are capacity / load; these name the resistance a member varies.
-RESISTANCES = ("process_wall", "process_coil", "annular_jacket", "channel", "coil_tube", "calibration")
+RESISTANCES = ("process_wall", "process_coil", "annular_jacket", "channel", "coil_tube",
+               "calibrated_process_constant", "calibrated_remaining_resistance")
 
 
 @dataclass(frozen=True)
@@ -75,12 +77,21 @@ def published_members(result: HeatTransferResult, vessel) -> list[tuple[str, str
     members: list[tuple[str, str, CorrelationChoice]] = []
     jacket = result.stream("jacket") is not None
     coils = any(stream.name.startswith("coil") for stream in result.streams)
-    if jacket:
+    calibration = base.calibration
+    if jacket and calibration is not None:
+        if calibration.process_constant_interval is not None:
+            members += [("calibrated_process_constant", f"a={a:.4g}", replace(base, process_constants=calibration.constants(a)))
+                        for a in calibration.process_constant_interval if math.isfinite(a) and a > 0]
+        if base.remaining_resistance is not None and calibration.remaining_resistance_interval is not None:
+            members += [("calibrated_remaining_resistance", f"R={r:.4g}", replace(base, remaining_resistance=r))
+                        for r in calibration.remaining_resistance_interval if r >= 0]
+    if jacket and calibration is None:
         options = [key for key in process_side.wall_alternatives(vessel.agitator.impeller) if key != base.process_wall]
         if options:
             members += [("process_wall", key, replace(base, process_wall=key)) for key in options]
         else:
             members += _scatter("process_factor", base, "process_wall")
+    if jacket and base.remaining_resistance is None:
         kind = vessel.jacket.type
         if kind == "annular":
             from calc.films.jacket_side import ANNULAR_CORRELATIONS as options
@@ -110,9 +121,9 @@ def _joint(base: CorrelationChoice, picks: list[BandMember]) -> CorrelationChoic
 
 def margin_band(vessel, charge, coolant, process_temperature: float, result: HeatTransferResult, load_total: float,
                 nominal: float | None, safety_factor: float,
-                members: list[tuple[str, str, CorrelationChoice]] | None = None,
-                basis: str = "published_alternatives") -> MarginBand:
+                members: list[tuple[str, str, CorrelationChoice]] | None = None) -> MarginBand:
     """The band around ``nominal`` (capacity/load of ``result``); ``members`` default: :func:`published_members`."""
+    basis = "published_alternatives" if vessel.correlations.calibration is None else "calibration"
     if members is None:
         members = published_members(result, vessel)
     if nominal is None or load_total <= 0.0:

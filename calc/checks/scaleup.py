@@ -283,6 +283,13 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
     targets = _check_targets(targets)
     warnings = Warnings()
 
+    calibration = reference.correlations.calibration
+    if calibration is not None:
+        warnings.add(CalcWarning(
+            "calibration_carried",
+            f"the reference vessel's calibrated process constant a = {calibration.process_constant:.4g} (its own "
+            "Wilson plot) is carried to the larger similar vessels, which share impeller and geometry ratios; their "
+            "wall, fouling and coolant film are computed from the published correlations"))
     first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits)
     result = first.heat_transfer
     ref = _Reference(reference, charge, coolant, heat_release, process_temperature, result.fill.brim_volume,

@@ -23,6 +23,28 @@ from calc.vessel.agitation import IMPELLERS, FilmConstants
 
 
 @dataclass(frozen=True)
+class Calibration:
+    """A vessel's own measured heat transfer (a Wilson plot, ``calc.fits.wilson``), with its 95 % intervals.
+
+    ``process_constant`` is a of Nu = a Re^b Pr^c (mu/mu_w)^0.14 at the wall (Nu = h T/k, no H/T factor:
+    the vessel's own fill); ``remaining_resistance`` (m2 K/W, optional) the wall + fouling + coolant film
+    of the surface it was measured on (the jacket).
+    """
+
+    process_constant: float
+    process_constant_interval: tuple[float, float] | None = None
+    exponent: float = 2.0 / 3.0
+    prandtl_exponent: float = 1.0 / 3.0
+    remaining_resistance: float | None = None
+    remaining_resistance_interval: tuple[float, float] | None = None
+
+    def constants(self, a: float | None = None) -> FilmConstants:
+        return FilmConstants("chilton_drew_jebens_1944", self.process_constant if a is None else a, self.exponent,
+                             self.prandtl_exponent, 0.14, "calibration: the vessel's own Wilson plot",
+                             baffled=None)
+
+
+@dataclass(frozen=True)
 class CorrelationChoice:
     """The correlation of each resistance; every default is the library's (the behaviour without a choice)."""
 
@@ -33,6 +55,17 @@ class CorrelationChoice:
     process_factor: float = 1.0  # multiplies the wall's (and bottom head's) process constant a
     coil_process_factor: float = 1.0  # multiplies the coil's process constant a
     process_constants: FilmConstants | None = None  # a vessel's own fitted wall constants (calibration)
+    remaining_resistance: float | None = None  # m2 K/W, jacket wall + fouling + coolant film (calibration)
+    calibration: Calibration | None = None  # where the two above come from, with their intervals
+
+    def calibrated(self, calibration: Calibration | None, remaining: bool = True) -> "CorrelationChoice":
+        """This choice with ``calibration`` applied (``remaining=False``: the process constant only)."""
+        from dataclasses import replace
+
+        if calibration is None:
+            return self
+        return replace(self, process_constants=calibration.constants(), calibration=calibration,
+                       remaining_resistance=calibration.remaining_resistance if remaining else None)
 
     def validate(self, impeller: str | None = None) -> "CorrelationChoice":
         """Raise :class:`InputError` naming ``correlations.<field>`` for an unknown option."""

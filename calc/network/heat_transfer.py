@@ -120,6 +120,7 @@ class _SurfaceModel:
     process_side: str
     process_film: Callable[[float], object]  # mu_wall -> process FilmResult
     service_film: Callable[[LiquidProperties, float, float], object]  # props, mu_wall, rho_wall -> FilmResult
+    remaining_resistance: float | None = None  # m2 K/W measured beyond the process film (calibration)
 
 
 def _process_viscosity(charge: Charge, temperature: float, warnings: Warnings) -> float:
@@ -173,6 +174,8 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
             service_film = model.service_film(state, service_wall_state.viscosity, service_wall_state.density)
             overall = wall.overall_coefficient(process_film.h, service_film.h, model.wall, fouling,
                                                process_radius=model.process_radius, process_side=model.process_side)
+            if model.remaining_resistance is not None:
+                overall = wall.with_remaining_resistance(overall, model.remaining_resistance)
             surfaces.append(Surface(model.name, model.area, process_film, service_film, overall,
                                     process_wall, service_wall))
         ua = sum(s.ua for s in surfaces)
@@ -255,7 +258,7 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                     agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
                     baffled=agitator.baffled, surface=_surface, alternative=choice.process_wall,
                     factor=choice.process_factor, constants=choice.process_constants),
-                service))
+                service, choice.remaining_resistance))
         streams.append(_solve_stream("jacket", models, charge, coolant, coolant.mass_flow(), process_temperature,
                                      vessel.fouling, warnings))
     elif vessel.jacket is not None:

@@ -49,8 +49,12 @@ class Vessel:
             lengths = {name: getattr(jacket, name) * factor for name in _JACKET_LENGTHS
                        if getattr(jacket, name, None) is not None}
             jacket = replace(jacket, **lengths)
+        # A calibrated process constant carries to similar vessels (same impeller and geometry ratios); the
+        # measured remaining resistance (wall, fouling, coolant film) belongs to the measured vessel only.
+        correlations = replace(self.correlations, remaining_resistance=None)
         return replace(
             self,
+            correlations=correlations,
             jacket=jacket,
             shape=geometry.scale_shape(self.shape, factor),
             coverage=geometry.scale_jacket(self.coverage, factor),
