@@ -18,6 +18,7 @@ from calc.properties import FLUIDS, STANDARD_PRESSURE
 from .base import StrictSchema, finite_float
 from .heat_transfer import WarningSchema, warning_dicts
 from .units import Quantity
+from .heat_transfer import CalibrationSchema, CorrelationsSchema, with_correlations
 from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, _LiquidFields, require_agitator
 
 MAX_SPECIES = 20
@@ -271,10 +272,19 @@ class SimulationVesselSchema(StrictSchema):
     vessel = fields.Nested(VesselSchema, required=True)
     contents = fields.Nested(ContentsSchema, required=True)
     coolant = fields.Nested(CoolantSchema, required=True)
+    correlations = fields.Nested(CorrelationsSchema, load_default=None)
+    calibration = fields.Nested(CalibrationSchema, load_default=None, metadata={
+        "description": "the vessel's own measured constants (from /v1/wilson-plot); the run's UA uses them"})
 
     @validates_schema
     def _agitator(self, data, **kwargs):
         require_agitator(data.get("vessel"), "vessel", "required for the vessel's films and shaft power")
+
+    @post_load
+    def _choose(self, data, **kwargs):
+        data["vessel"] = with_correlations(data["vessel"], data.pop("correlations", None),
+                                           data.pop("calibration", None))
+        return data
 
 
 class SimulationRequestSchema(StrictSchema):

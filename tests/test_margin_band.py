@@ -152,3 +152,14 @@ def test_scale_up_carries_the_calibrated_constant_and_says_so(client):
     # the measured remaining resistance stays with the measured vessel
     others = sum(v for k, v in target["resistances"].items() if k not in ("process_film", "controlling"))
     assert others != pytest.approx(1e-3, rel=1e-3)
+
+
+def test_simulation_with_a_calibration_says_so_and_uses_it(client):
+    # The run's UA comes from the network with the calibrated constant: a lower a gives a hotter run.
+    body = json.loads((EXAMPLES / "simulation_production_failure.json").read_text())
+    plain = client.post("/v1/simulations", json=body).get_json()
+    body["vessel"]["calibration"] = {"process_constant": 0.2}
+    calibrated = client.post("/v1/simulations", json=body).get_json()
+    assert "calibrated" in {w["code"] for w in calibrated["warnings"]}
+    assert "calibrated" not in {w["code"] for w in plain["warnings"]}
+    assert calibrated["summary"]["maximum_temperature"] > plain["summary"]["maximum_temperature"]

@@ -334,6 +334,9 @@ def jacket_duty(vessel: Vessel, charge: Charge, coolant: Coolant, process_temper
     warnings.add(CalcWarning("ua_held_constant",
                              f"UA = {result.ua:.4g} W/K from the heat-transfer network at "
                              f"{process_temperature - 273.15:.2f} degC is held constant over the simulation"))
+    if vessel.correlations.calibration is not None:
+        warnings.add(CalcWarning("calibrated", "calibrated: UA uses the vessel's own measured process constant "
+                                               f"a = {vessel.correlations.calibration.process_constant:.4g}"))
     main = result.stream("jacket") or (result.streams[0] if result.streams else None)
     if main is None:
         return JacketDuty(0.0, coolant.mass_flow(), coolant.liquid.at(coolant.inlet_temperature).heat_capacity,
