@@ -218,3 +218,12 @@ def test_coil_film_rises_with_reynolds(impeller, re1, re2):
     h = [process_film_coil(impeller, Re, WATER_30C, WATER_30C.viscosity, 1.8, 1.8, 0.05, 0.6).h
          for Re in (low, high)]
     assert h[1] > h[0]
+
+
+def test_every_published_constant_set_hands_over_without_a_jump():
+    # Every library and alternative wall set of every impeller either meets its neighbour (different Re
+    # exponents) or differs from it only in a (blended): checked by switch_reynolds for the whole library.
+    for impeller in IMPELLERS:
+        for bands in process_side.wall_alternatives(impeller).values():
+            for transition in process_side.transitions(bands):
+                assert transition["re_from"] <= transition["re_to"]

@@ -198,9 +198,14 @@ def blend_range(Re_switch: float, decades: float = BLEND_DECADES) -> tuple[float
 
 
 def switch_reynolds(lower: FilmConstants, upper: FilmConstants) -> tuple[float, bool]:
-    """(Re where ``upper`` takes over, blended?): where the fits meet if exponents differ, else blended."""
+    """(Re where ``upper`` takes over, blended?): where the fits meet if the Re exponents differ, else
+    blended around the published boundary (the two sets then differ only in a, so the blend is one
+    constant: a = (1 - w) a_lower + w a_upper)."""
     if upper.b != lower.b:
         return (lower.a / upper.a) ** (1.0 / (upper.b - lower.b)), False
+    if (upper.c, upper.d, upper.height_exponent) != (lower.c, lower.d, lower.height_exponent):
+        raise ValueError(f"constant sets {lower.source!r} and {upper.source!r} share b but not c, d, e: "
+                         "no blend of a alone joins them")  # a library error, caught by the registry test
     return upper.re_low, True
 
 
@@ -261,15 +266,14 @@ def _film(info: ImpellerInfo, bands: tuple[FilmConstants, ...], surface: str, Re
         warnings.add(CalcWarning(
             "baffling_basis",
             f"{label}: the constants were measured in baffled vessels; an unbaffled vessel transfers less"))
-    nusselt = 0.0
-    for weight, band in weighted:
-        arguments = dict(Re=Re, Pr=props.prandtl, viscosity_ratio=props.viscosity / mu_wall, a=band.a * factor,
-                         b=band.b, c=band.c, d=band.d, H_over_T=geometry["H_over_T"],
-                         height_exponent=band.height_exponent)
-        arguments.update({name: geometry[name] for name in correlation.geometry})
-        nusselt += weight * correlation.function(**arguments)
-    h = nusselt * props.thermal_conductivity / lengths[correlation.length_scale]
+    # blended sets differ only in a (switch_reynolds), so the blend is one evaluation with the blended a
     a = sum(weight * band.a for weight, band in weighted) * factor
+    arguments = dict(Re=Re, Pr=props.prandtl, viscosity_ratio=props.viscosity / mu_wall, a=a,
+                     b=constants.b, c=constants.c, d=constants.d, H_over_T=geometry["H_over_T"],
+                     height_exponent=constants.height_exponent)
+    arguments.update({name: geometry[name] for name in correlation.geometry})
+    nusselt = correlation.function(**arguments)
+    h = nusselt * props.thermal_conductivity / lengths[correlation.length_scale]
     return FilmResult(h, nusselt, correlation.name, a, constants.source, constants, warnings)
 
 
