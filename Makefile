@@ -1,19 +1,36 @@
-# coolmargin: every target creates the virtualenv and installs the project first.
+# coolmargin: every target creates the virtualenv and installs what it needs first.
+# Versions are pinned by docker/constraints.txt, the same file the container image uses.
 PYTHON ?= python3
 VENV ?= .venv
 BIN := $(VENV)/bin
 HOST ?= 127.0.0.1
 PORT ?= 8000
+CONSTRAINTS := docker/constraints.txt
+PIP := $(BIN)/python -m pip install --quiet -c $(CONSTRAINTS)
 
-.PHONY: install run test bench lint load clean
+.PHONY: install install-test nginx run test bench lint load clean constraints
 
-$(BIN)/.installed: pyproject.toml
+$(BIN)/python:
 	$(PYTHON) -m venv $(VENV)
-	$(BIN)/python -m pip install --quiet --upgrade pip
-	$(BIN)/python -m pip install --quiet -e '.[test]'
+
+# Serving needs only the project's own dependencies; the tests add theirs.
+$(BIN)/.installed: pyproject.toml $(CONSTRAINTS) | $(BIN)/python
+	$(PIP) -e .
+	touch $@
+
+$(BIN)/.installed-test: $(BIN)/.installed
+	$(PIP) -e '.[test]'
 	touch $@
 
 install: $(BIN)/.installed
+install-test: $(BIN)/.installed-test
+
+# Debian's nginx, for the tests that run docker/nginx.conf natively (tests/test_proxy.py); needs root or sudo.
+nginx:
+	@command -v nginx >/dev/null 2>&1 || test -x /usr/sbin/nginx || { \
+	    SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); \
+	    apt-cache policy nginx nginx-light | grep -q 'Candidate: [0-9]' || $$SUDO apt-get update -q; \
+	    DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -q --no-install-recommends nginx; }
 
 run: install
 	@echo "coolmargin: http://$(HOST):$(PORT)  (reference /docs, contract /openapi.yaml, demo examples/README.md)"
@@ -21,18 +38,26 @@ run: install
 	@echo "        $(BIN)/coolmargin scale-up examples/scale_up_demo.json"
 	COOLMARGIN_BIND=$(HOST):$(PORT) $(BIN)/gunicorn --config docker/gunicorn.conf.py 'api.wsgi:app'
 
-test: install
+test: install-test nginx
 	$(BIN)/python -m pytest
 
-bench: install
+bench: install-test
 	$(BIN)/python tests/benchmarks/bench.py
 
-load: install
+load: install-test
 	$(BIN)/python tests/benchmarks/load.py
 
-lint: install
+lint: install-test
 	$(BIN)/python -m compileall -q api calc schemas tests
 	$(BIN)/python -m pytest -q tests/test_openapi.py
+
+# Re-pin after changing dependencies in pyproject.toml: a fresh virtualenv, the project with its tests, frozen.
+constraints:
+	rm -rf $(VENV)-pin && $(PYTHON) -m venv $(VENV)-pin
+	$(VENV)-pin/bin/python -m pip install --quiet '.[test]'
+	( echo "# Pinned versions for make and docker/Dockerfile; regenerate with 'make constraints'."; \
+	  $(VENV)-pin/bin/python -m pip freeze --exclude coolmargin ) > $(CONSTRAINTS)
+	rm -rf $(VENV)-pin
 
 clean:
 	rm -rf $(VENV) build *.egg-info .pytest_cache .hypothesis

@@ -5,11 +5,12 @@ import logging
 import os
 import re
 import uuid
-from importlib import metadata
+from importlib import metadata, resources
 
 from flask import Flask, g, request
 
-from . import errors, security
+from . import errors, limits, runtime, security
+from .logs import JsonFormatter, RequestIdFilter
 
 try:
     VERSION = metadata.version("coolmargin")
@@ -24,10 +25,17 @@ DEFAULTS = {
     "MAX_SERIES_POINTS": 2000,  # points in a returned time series
     "MAX_SIMULATION_HORIZON": 7 * 24 * 3600.0,  # s of simulated time
     "SIMULATION_WALL_TIME": 10.0,  # s of computing per simulation request
+    "REQUEST_BUDGET": 20.0,  # s a request (or a whole batch) may take; then what is done, or a 503
+    "CALCULATION_SLOTS": 16,  # calculations computing at once in one process (16: one per gunicorn thread)
     "AUTH_TOKENS": "",  # comma-separated bearer tokens; empty means open
     "AUTH_TOKENS_FILE": "",
     "CORS_ORIGINS": "",  # comma-separated allow-list
-    "OPENAPI_PATH": os.path.join(os.path.dirname(os.path.dirname(os.path.abspath(__file__))), "openapi.yaml"),
+    "RATE_LIMIT": "600 per minute",  # per client (token, else address); ';' between limits; empty: off
+    "RATE_LIMIT_STORAGE": "memory://",  # or a redis:// URL shared by every process and replica
+    "RATE_LIMIT_PREFIX": "coolmargin",  # key prefix in that storage
+    "TRUSTED_PROXIES": 0,  # proxies in front whose X-Forwarded-For names the client (1 behind docker/nginx.conf)
+    # The contract ships inside the package (api/openapi.yaml links to the top-level file in a checkout).
+    "OPENAPI_PATH": str(resources.files("api").joinpath("openapi.yaml")),
 }
 _ENV_PREFIX = "COOLMARGIN_"
 _REQUEST_ID = re.compile(r"^[A-Za-z0-9._-]{1,64}$")
@@ -44,23 +52,13 @@ def _from_environment() -> dict:
     return settings
 
 
-class _RequestIdFilter(logging.Filter):
-    def filter(self, record: logging.LogRecord) -> bool:
-        if not hasattr(record, "request_id"):
-            try:
-                record.request_id = g.get("request_id", "-")
-            except RuntimeError:  # outside a request
-                record.request_id = "-"
-        return True
-
-
 def _configure_logging() -> None:
     logger = logging.getLogger("coolmargin")
     if not logger.handlers:
         handler = logging.StreamHandler()
-        handler.setFormatter(logging.Formatter("%(asctime)s %(levelname)s [%(request_id)s] %(name)s: %(message)s"))
-        handler.addFilter(_RequestIdFilter())
+        handler.setFormatter(JsonFormatter())  # JSON lines, like the access log, with the request id
         logger.addHandler(handler)
+        logger.addFilter(RequestIdFilter())
         logger.setLevel(logging.INFO)
         logger.propagate = False
 
@@ -86,10 +84,12 @@ def create_app(config: dict | None = None) -> Flask:
         response.headers.setdefault("X-Content-Type-Options", "nosniff")
         return response
 
+    limits.register(app)  # before authentication: floods of bad tokens are counted per address
     security.register(app)  # after the request-id hook: refusals carry the request id
+    runtime.register(app)  # after authentication: a refused request reads no body and takes no slot
 
-    from . import agitation, cooling, fits, geometry, heat_transfer, properties, safety, service
+    from . import agitation, cooling, fits, geometry, heat_transfer, properties, safety, service, sizing
 
-    for module in (service, properties, geometry, agitation, heat_transfer, cooling, safety, fits):
+    for module in (service, properties, geometry, agitation, heat_transfer, cooling, sizing, safety, fits):
         app.register_blueprint(module.bp)
     return app

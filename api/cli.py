@@ -13,15 +13,14 @@ import os
 import sys
 from pathlib import Path
 
-ROOT = Path(__file__).resolve().parents[1]
 EXIT_OK, EXIT_INADEQUATE, EXIT_INVALID = 0, 1, 2
 
 
 def _serve(args: argparse.Namespace) -> int:
     os.environ["COOLMARGIN_BIND"] = f"{args.host}:{args.port}"
-    config = ROOT / "docker" / "gunicorn.conf.py"
-    os.execvp(sys.executable, [sys.executable, "-m", "gunicorn", "--config", str(config),
-                               "--chdir", str(ROOT), "api.wsgi:app"])
+    # The settings ship inside the package, so this works from a wheel as well as from a checkout.
+    os.execvp(sys.executable, [sys.executable, "-m", "gunicorn", "--config", "python:api.gunicorn_settings",
+                               "api.wsgi:app"])
     return EXIT_OK  # pragma: no cover (exec does not return)
 
 

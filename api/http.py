@@ -10,14 +10,19 @@ import csv
 import io
 import json
 import math
+import re
 from typing import Any, Callable
 
 from flask import Response, current_app, request
 from marshmallow import Schema, ValidationError
 
-from schemas.base import clean, unflatten, unit_map
+from calc.validity import finite_or_input_error
+from schemas.base import clean, numeric_leaves, unflatten, unit_map
+
+from calc.deadline import OutOfTime
 
 from .errors import ProblemError
+from .runtime import deadline
 
 RESERVED_PARAMETERS = {"format", "field"}
 FORMATS = {"json": "application/json", "csv": "text/csv", "svg": "image/svg+xml", "png": "image/png"}
@@ -118,12 +123,20 @@ def _flatten(value: Any, prefix: str, row: dict) -> None:
 
 
 def _unit_for(column: str, units: dict[str, str]) -> str | None:
+    """The unit of a CSV column; list items (``streams[0].duty``) take their list's unit (``streams.duty``).
+
+    >>> _unit_for("heat_transfer.streams[1].duty", {"heat_transfer.streams.duty": "W"})
+    'W'
+    >>> _unit_for("concentrations.amine", {"concentrations.*": "mol/m^3"})
+    'mol/m^3'
+    """
     if column in units:
         return units[column]
-    generic = ".".join("*" if p.isdigit() else p for p in column.replace("]", "").replace("[", ".").split("."))
+    unindexed = re.sub(r"\[\d+\]", "", column)
+    if unindexed in units:
+        return units[unindexed]
     for key, unit in units.items():
-        pattern = key.replace("[]", "")
-        if pattern == generic or (pattern.endswith(".*") and generic.startswith(pattern[:-1])):
+        if key.endswith(".*") and unindexed.startswith(key[:-1]):
             return unit
     return None
 
@@ -154,13 +167,24 @@ def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = ()) 
     return buffer.getvalue()
 
 
+#: A spreadsheet reads a cell starting with one of these as a formula (OWASP, "CSV Injection").
+FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+
+
 def _csv_cell(value: Any) -> Any:
+    """One CSV cell; text that a spreadsheet would run as a formula is neutralised with a leading quote.
+
+    >>> print(_csv_cell("=1+2"), _csv_cell("@SUM(A1)"), _csv_cell(-5.0), _csv_cell("R-630"))
+    '=1+2 '@SUM(A1) -5.0 R-630
+    """
     if value is None:
         return ""
     if isinstance(value, bool):
         return "true" if value else "false"
     if isinstance(value, float):
         return repr(value) if math.isfinite(value) else ""
+    if isinstance(value, str) and value.startswith(FORMULA_STARTS):
+        return "'" + value
     return value
 
 
@@ -176,12 +200,7 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple
     field = request.args.get("field")
     if field:
         value = pick(payload, field)
-        if isinstance(value, (dict, list)):
-            text = json.dumps(value)
-        elif isinstance(value, bool):
-            text = "true" if value else "false"
-        else:
-            text = "" if value is None else str(value)
+        text = json.dumps(value) if isinstance(value, (dict, list)) else _text_value(value)
         return Response(text + "\n", status=status, mimetype="text/plain")
     fmt = requested_format()
     if fmt == "csv":
@@ -215,21 +234,63 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
         raise ProblemError(422, "cases must be a non-empty list", [{"field": "cases", "message": "must be a non-empty list"}])
     if len(cases) > limit:
         raise ProblemError(413, f"at most {limit} cases per call", [{"field": "cases", "message": f"at most {limit} cases"}])
+    clock = deadline()
     results = []
     for index, case in enumerate(cases):
+        if clock.expired():  # what is done stays done; the rest is answered as not computed
+            log.info("request stopped after %d of %d cases: %s", index, len(cases), OutOfTime(clock.gone()))
+            results.extend(_not_computed(i, len(cases)) for i in range(index, len(cases)))
+            break
         try:
             if not isinstance(case, dict):
                 raise ValidationError(["must be an object"])
-            results.append({"status": 200, "result": clean(result_schema.dump(compute(schema.load(case))))})
+            results.append({"status": 200, "result": clean(result_schema.dump(_run(compute, schema.load(case), case)))})
         except Exception as exc:  # each case reports its own problem
             status, detail, errors, title = problem_for(exc)
-            if status >= 500:
+            if status >= 500 and not isinstance(exc, OutOfTime):
                 log.exception("batch case %d failed", index)  # the request id rides on the log record
             for error in errors:
                 error["field"] = f"cases[{index}].{error['field']}"
             results.append({"status": status, "problem": problem_body(status, detail, errors, title)})
-    body = {"cases": results, "units": units_of(result_schema)}
+    return _batch_answer(results, units_of(result_schema))
+
+
+def _batch_answer(results: list[dict], units: dict[str, str]) -> Response:
+    """A batch in the negotiated format: JSON, CSV a row per case, or one value per line for ``field``."""
+    field = request.args.get("field")
+    if field:
+        lines = []
+        for case in results:
+            if case["status"] != 200:
+                lines.append(f"error {case['status']}: {case['problem']['detail']}".replace("\n", " "))
+                continue
+            value = pick(case["result"], field)
+            lines.append(json.dumps(value) if isinstance(value, (dict, list)) else _text_value(value))
+        return Response("".join(line + "\n" for line in lines), mimetype="text/plain")
+    fmt = requested_format()
+    if fmt == "csv":
+        rows = [{"case": i, "status": case["status"], **(case.get("result") or {}),
+                 **({"problem": case["problem"]["detail"]} if "problem" in case else {})}
+                for i, case in enumerate(results)]
+        return Response(to_csv(rows, units, ("case", "status", "problem")), mimetype="text/csv")
+    if fmt != "json":
+        raise ProblemError(422, "a batch has no chart; use format json or csv",
+                           [{"field": "format", "message": "no chart for a batch"}])
+    body = {"cases": results, "units": units}
     return Response(json.dumps(body, allow_nan=False), mimetype="application/json")
+
+
+def _text_value(value: Any) -> str:
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    return "" if value is None else str(value)
+
+
+def _not_computed(index: int, total: int) -> dict:
+    from .errors import OUT_OF_TIME, problem_body
+
+    detail = f"case {index} of {total} was not computed: {OUT_OF_TIME}"
+    return {"status": 503, "problem": problem_body(503, detail, [], "Time budget used up")}
 
 
 def calculate(schema: Schema, compute: Callable[[dict], dict], result_schema: Schema, **respond_options) -> Response:
@@ -240,4 +301,12 @@ def calculate(schema: Schema, compute: Callable[[dict], dict], result_schema: Sc
             raise ProblemError(422, "a batch body holds only 'cases'",
                                [{"field": sorted(set(data) - {"cases"})[0], "message": "not allowed beside cases"}])
         return batch_response(data["cases"], schema, compute, result_schema)
-    return respond(compute(schema.load(data)), result_schema, **respond_options)
+    return respond(_run(compute, schema.load(data), data), result_schema, **respond_options)
+
+
+def _run(compute: Callable[[Any], Any], args: Any, raw: dict | None = None) -> Any:
+    """Compute under calc's numerical guard, which names the request field most likely at fault."""
+    return finite_or_input_error(compute, args, numeric_leaves(request_object() if raw is None else raw))
+
+
+guarded = _run

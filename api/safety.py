@@ -5,6 +5,7 @@ from flask import Blueprint, Response, current_app, request
 
 from calc.safety import dynamics
 from calc.network import heat_transfer
+from calc.validity import fields_renamed
 from calc.safety import criticality as safety
 from calc.safety import steady_states
 from calc.safety import tank_model
@@ -17,7 +18,8 @@ from schemas.safety import (CSTRRequestSchema, CSTRResultSchema, SimulationReque
 
 from .errors import ProblemError
 from .charts import figure as _figure, footnote as _footnote, render as _render
-from .http import load, requested_format, respond, to_csv
+from .http import guarded, load, requested_format, respond, to_csv
+from .runtime import deadline
 
 bp = Blueprint("safety", __name__, url_prefix="/v1")
 _safety_request, _safety_result = ThermalSafetyRequestSchema(), ThermalSafetyResultSchema()
@@ -29,7 +31,7 @@ _cstr_request, _cstr_result = CSTRRequestSchema(), CSTRResultSchema()
 @bp.route("/thermal-safety", methods=["GET", "POST"])
 def thermal_safety():
     inp = load(_safety_request)
-    return respond(thermal_safety_dict(safety.assess_thermal_safety(inp)), _safety_result)
+    return respond(thermal_safety_dict(guarded(safety.assess_thermal_safety, inp)), _safety_result)
 
 
 # ---------------------------------------------------------------- simulations
@@ -75,13 +77,16 @@ def simulations():
     budget = tank_model.Budget(horizon_limit=float(config["MAX_SIMULATION_HORIZON"]),
                              output_points=args["output_points"],
                              maximum_output_points=int(config["MAX_SERIES_POINTS"]),
-                             wall_time=float(config["SIMULATION_WALL_TIME"]))
+                             wall_time=float(config["SIMULATION_WALL_TIME"]), deadline=deadline())
     duty = None
     if args["vessel"] is not None:
         given = args["vessel"]
         contents = Charge(given["contents"], mass=args["charge"].mass)
-        duty = heat_transfer.jacket_duty(given["vessel"], contents, given["coolant"], args["charge"].temperature)
-    result = simulation_dict(dynamics.simulate(simulation_input(args, budget, duty)))
+        # the request's own paths: the vessel and its coolant sit under "vessel", the start state under "charge"
+        with fields_renamed({"vessel": "vessel.vessel", "coolant": "vessel.coolant",
+                             "process_temperature": "charge.temperature"}):
+            duty = heat_transfer.jacket_duty(given["vessel"], contents, given["coolant"], args["charge"].temperature)
+    result = simulation_dict(guarded(dynamics.simulate, simulation_input(args, budget, duty)))
     if duty is not None:
         result["warnings"] = warning_dicts(duty.warnings) + result["warnings"]
     if not request.args.get("field") and requested_format() == "csv":
@@ -115,5 +120,5 @@ def _cstr_chart(payload: dict, fmt: str) -> bytes:
 @bp.route("/cstr-steady-states", methods=["GET", "POST"])
 def cstr_steady_states():
     inp = load(_cstr_request)
-    result = steady_states_dict(steady_states.cstr_steady_states(inp))
+    result = steady_states_dict(guarded(steady_states.cstr_steady_states, inp))
     return respond(result, _cstr_result, rows="states", chart=_cstr_chart)

@@ -4,12 +4,15 @@ from __future__ import annotations
 from functools import lru_cache
 
 import yaml
-from flask import Blueprint, Response, current_app, jsonify, render_template
+import json
+
+from flask import Blueprint, Response, current_app, jsonify, redirect, render_template
 
 from calc import properties
 
 from . import VERSION
 from .errors import problem
+from .runtime import SERVING
 
 bp = Blueprint("service", __name__)
 
@@ -40,6 +43,15 @@ def health():
 
 @bp.get("/ready")
 def ready():
+    """Ready to take a calculation now: not draining, a worker thread free, the contract and properties load.
+
+    Each worker process answers for itself (the kernel hands a probe to one of them).
+    """
+    if SERVING.draining.is_set():
+        return problem(503, "not ready: draining after a stop signal; send new requests elsewhere")
+    if SERVING.saturated():
+        return problem(503, f"not ready: all {SERVING.threads} worker threads of this process are busy",
+                       headers={"Retry-After": "1"})
     try:
         spec()
         properties.liquid_properties("water", 293.15)
@@ -76,15 +88,19 @@ def _rows(schema, document: dict, prefix: str = "", depth: int = 0) -> list[dict
         sub = _resolve(sub, document)
         path = f"{prefix}.{name}" if prefix else name
         kind = sub.get("type", "object" if "properties" in sub else "")
-        if "x-unit" in sub and not kind:
-            kind = "number, or text with a unit"
+        # An optional quantity is oneOf [quantity, null]: its unit sits on the quantity variant.
+        variants = [_resolve(v, document) for v in sub.get("oneOf", []) + sub.get("anyOf", [])]
+        unit = sub.get("x-unit") or next((v["x-unit"] for v in variants if "x-unit" in v), "")
+        nullable = any(v.get("type") == "null" for v in variants)
+        if unit and (not kind or (nullable and len(variants) == 2)):
+            kind = "number, or text with a unit" + (" (or null)" if nullable else "")
         if isinstance(kind, list):
             kind = " | ".join(kind)
         if "enum" in sub:
             kind = "one of: " + ", ".join(str(v) for v in sub["enum"])
-        rows.append({"name": path, "type": kind, "unit": sub.get("x-unit", ""),
+        rows.append({"name": path, "type": kind, "unit": unit,
                      "required": name in required, "description": sub.get("description", "")})
-        if "properties" in sub or "oneOf" in sub:
+        if "properties" in sub or ("oneOf" in sub and not unit):
             rows.extend(_rows(sub, document, path, depth + 1))
         elif sub.get("type") == "array" and isinstance(sub.get("items"), dict):
             rows.extend(_rows(sub["items"], document, path + "[]", depth + 1))
@@ -99,7 +115,11 @@ def docs():
         for method, op in item.items():
             if method not in {"get", "post", "put", "delete", "patch"}:
                 continue
-            body = op.get("requestBody", {}).get("content", {}).get("application/json", {}).get("schema")
+            json_body = op.get("requestBody", {}).get("content", {}).get("application/json", {})
+            body = json_body.get("schema")
+            examples = [{"name": name, "summary": example.get("summary", ""),
+                         "text": json.dumps(example.get("value"), indent=2)}
+                        for name, example in (json_body.get("examples") or {}).items()]
             ok = (op.get("responses", {}).get("200", {}).get("content", {})
                   .get("application/json", {}).get("schema"))
             parameters = [_resolve(p, document) for p in op.get("parameters", [])]
@@ -109,7 +129,27 @@ def docs():
                 "parameters": [{"name": p.get("name"), "where": p.get("in"),
                                 "unit": _resolve(p.get("schema", {}), document).get("x-unit", ""),
                                 "description": p.get("description", "")} for p in parameters],
-                "body": _rows(body, document), "result": _rows(ok, document),
+                "body": _rows(body, document), "result": _rows(ok, document), "examples": examples,
                 "anchor": f"{method}-{path.strip('/').replace('/', '-').replace('{', '').replace('}', '')}",
             })
-    return render_template("docs.html", info=document.get("info", {}), operations=operations, version=VERSION)
+    config = current_app.config
+    limits = [
+        ("request body", f"{config['MAX_CONTENT_LENGTH']:,} bytes (413 above)"),
+        ("JSON nesting", f"{config['MAX_NESTING_DEPTH']} levels (413 above)"),
+        ("cases in one batch call", f"{config['MAX_BATCH_CASES']} (413 above)"),
+        ("targets in one scale-up", f"{config['MAX_SCALES']} (413 above)"),
+        ("points in a simulation series", f"{config['MAX_SERIES_POINTS']} (422 above)"),
+        ("simulated time", f"{config['MAX_SIMULATION_HORIZON']:g} s (422 above)"),
+        ("computing time per simulation", f"{config['SIMULATION_WALL_TIME']:g} s (then a partial result)"),
+    ]
+    schemes = document.get("components", {}).get("securitySchemes", {})
+    return render_template("docs.html", info=document.get("info", {}), operations=operations, version=VERSION,
+                           authentication=[scheme.get("description", "") for scheme in schemes.values()],
+                           tokens_required=bool(config.get("AUTH_TOKENS") or config.get("AUTH_TOKENS_FILE")),
+                           limits=limits)
+
+
+@bp.get("/")
+def index():
+    """The service root points a person (or a client following redirects) to the reference."""
+    return redirect("/docs", code=302)

@@ -104,3 +104,98 @@ class Correlation:
         for quantity, value in values.items():
             low, high = (self.validity or {}).get(quantity, (None, None))
             warnings.check(self.name, quantity, value, low, high)
+
+
+#: How the sign convention is explained wherever a reaction enthalpy is read.
+SIGN_CONVENTION = ("coolmargin's convention is the thermodynamic one: a reaction enthalpy is negative when the "
+                   "reaction releases heat (exothermic) and the heat released is -dH")
+
+
+def require_sign(field: str, enthalpy: float, endothermic: bool, flag_field: str) -> float:
+    """Check a reaction enthalpy [J/mol] against what the request says the step does.
+
+    Engineers quote heats of reaction with either sign, and a positive enthalpy read as "absorbs heat"
+    turns a runaway-prone step into one that needs no cooling. So a positive enthalpy is refused unless
+    the request says explicitly that the step absorbs heat (``flag_field`` true), and an explicit
+    endothermic step must then have a positive enthalpy. Raises :class:`InputError` naming ``field``.
+
+    >>> require_sign("heat_release.reaction_enthalpy", -120e3, False, "heat_release.endothermic")
+    -120000.0
+    >>> require_sign("heat_release.reaction_enthalpy", 120e3, False, "heat_release.endothermic")
+    Traceback (most recent call last):
+    ...
+    calc.validity.InputError: heat_release.reaction_enthalpy: is positive (120000 J/mol), ...
+    """
+    if isinstance(enthalpy, bool) or not isinstance(enthalpy, (int, float)) or not math.isfinite(enthalpy):
+        raise InputError(field, f"must be a finite number in J/mol, got {enthalpy!r}")
+    if enthalpy > 0.0 and not endothermic:
+        raise InputError(field, f"is positive ({enthalpy:.6g} J/mol), which would mean the step absorbs heat; "
+                                f"{SIGN_CONVENTION}. Give an exothermic enthalpy as a negative number, or set "
+                                f"{flag_field} to true if this step really absorbs heat")
+    if endothermic and enthalpy <= 0.0:
+        raise InputError(flag_field, f"is true, but {field} is {enthalpy:.6g} J/mol (not positive): "
+                                     f"{SIGN_CONVENTION}")
+    return float(enthalpy)
+
+
+def _extreme_input(inputs: dict[str, float]) -> tuple[str, float] | None:
+    """The input farthest from 1 in orders of magnitude: the likeliest cause of an overflow."""
+    scored = [(abs(math.log10(abs(v))), name, v) for name, v in inputs.items()
+              if isinstance(v, float) and math.isfinite(v) and v != 0.0]
+    if not scored:
+        return None
+    _, name, value = max(scored)
+    return name, value
+
+
+def finite_or_input_error(compute, argument, inputs: dict[str, float]):
+    """Run ``compute(argument)``; a numerical breakdown becomes an :class:`InputError` naming an input.
+
+    Every field is bounded at the API, yet products of bounded inputs (an exponential of an activation
+    energy over a low temperature, a huge flow through a tiny gap) can still overflow, divide by zero
+    or reach a library that refuses non-finite numbers. Those are faults of the input's combination,
+    not of the service: the error names the input farthest from ordinary magnitudes (``inputs`` maps
+    request field paths to their numbers) and says what broke. InputError and CalculationError pass
+    through unchanged.
+    """
+    try:
+        return compute(argument)
+    except (InputError, CalculationError):
+        raise
+    except (ArithmeticError, ValueError) as exc:  # overflow, 0/0, math domain, "array must not contain infs"
+        culprit = _extreme_input(inputs)
+        field, shown = ("(body)", "") if culprit is None else (culprit[0], f" (the most extreme input is "
+                                                                           f"{culprit[0]} = {culprit[1]:.4g})")
+        raise InputError(field, f"the calculation broke down numerically with these inputs{shown}: "
+                                f"{type(exc).__name__}: {exc}; check the values and units") from exc
+
+
+class fields_renamed:
+    """Context manager: an :class:`InputError` raised inside names the request's own path.
+
+    The same calculation serves requests of different shapes (a vessel is ``vessel`` in a cooling check,
+    ``reference`` or ``targets[2].vessel`` in a scale-up, ``vessel.vessel`` in a simulation), so a caller
+    that knows the shape renames the leading part of the field: ``{"vessel": "reference"}`` turns
+    ``vessel.jacket.gap`` into ``reference.jacket.gap``. The longest matching prefix wins.
+
+    >>> try:
+    ...     with fields_renamed({"vessel": "targets[1].vessel"}):
+    ...         raise InputError("vessel.jacket.gap", "must be positive")
+    ... except InputError as error:
+    ...     print(error.field)
+    targets[1].vessel.jacket.gap
+    """
+
+    def __init__(self, mapping: dict[str, str]):
+        self.mapping = sorted(mapping.items(), key=lambda item: -len(item[0]))
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, kind, error, traceback):
+        if not isinstance(error, InputError):
+            return False
+        for old, new in self.mapping:
+            if error.field == old or error.field.startswith((old + ".", old + "[")):
+                raise InputError(new + error.field[len(old):], error.message) from None
+        return False

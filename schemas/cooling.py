@@ -8,6 +8,7 @@ from calc.checks import heat_load
 from calc.checks import scaleup
 
 from .base import StrictSchema, finite_float
+from .candidates import SizedDesignSchema
 from .heat_transfer import (HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema,
                             heat_transfer_dict, warning_dicts, with_correlations)
 from .units import Quantity
@@ -23,7 +24,11 @@ class HeatReleaseSchema(StrictSchema):
                               description="specific_power: heat release per kg of charge (e.g. a calorimeter peak)")
     power = Quantity("power", load_default=None, minimum=0, description="total_power: heat release")
     reaction_enthalpy = Quantity("molar enthalpy", load_default=None,
-                                 description="dosing: J per mol of dosed reagent, negative = exothermic")
+                                 description="dosing: J per mol of dosed reagent, negative = exothermic; a "
+                                             "positive value is refused unless endothermic is true")
+    endothermic = fields.Boolean(load_default=None,
+                                 metadata={"description": "dosing: true declares a step that absorbs heat "
+                                                          "(positive reaction_enthalpy); default false"})
     dosed_amount = Quantity("amount of substance", load_default=None, minimum=0, exclusive_minimum=True)
     dosing_time = Quantity("time", load_default=None, minimum=0, exclusive_minimum=True)
     feed_mass = Quantity("mass", load_default=None, minimum=0)
@@ -32,7 +37,7 @@ class HeatReleaseSchema(StrictSchema):
 
     _FIELDS = {"specific_power": ("power_per_mass",), "total_power": ("power",),
                "dosing": ("reaction_enthalpy", "dosed_amount", "dosing_time", "feed_mass", "feed_temperature",
-                          "feed_heat_capacity")}
+                          "feed_heat_capacity", "endothermic")}
     _REQUIRED = {"specific_power": ("power_per_mass",), "total_power": ("power",),
                  "dosing": ("reaction_enthalpy", "dosed_amount", "dosing_time")}
 
@@ -97,6 +102,9 @@ class ScaleUpRequestSchema(StrictSchema):
     safety_factor = CoolingCheckRequestSchema._declared_fields["safety_factor"]
     correlations = HeatTransferRequestSchema._declared_fields["correlations"]
     calibration = HeatTransferRequestSchema._declared_fields["calibration"]
+    size_jacket = fields.Boolean(load_default=False,
+                                 metadata={"description": "design the smallest feasible jacket or coil for each "
+                                                          "generated scale (as /v1/jacket-sizing with its defaults)"})
     coolant_flow_rule = fields.String(load_default="scale_with_area",
                                       validate=validate.OneOf(["scale_with_area", "as_given"]),
                                       metadata={"description": "coolant flow at each scale: in proportion to the "
@@ -189,6 +197,8 @@ class ScaleSchema(CoolingCheckResultSchema):
     area_per_volume = Quantity("area per volume")
     overall_coefficient = Quantity("heat-transfer coefficient")
     controlling = fields.String()
+    jacket_design = fields.Nested(SizedDesignSchema, allow_none=True,
+                                  metadata={"description": "with size_jacket: the design sized for this scale"})
 
 
 class ControllingSwitchSchema(StrictSchema):
@@ -258,6 +268,7 @@ def scale_up_dict(result) -> dict:
             "diameter": scale.vessel.shape.diameter, "impeller_diameter": scale.vessel.agitator.diameter,
             "agitator_speed": scale.agitator_speed, "area_per_volume": heat.fill.area_per_volume,
             "overall_coefficient": heat.overall_coefficient, "controlling": heat.controlling,
+            "jacket_design": scale.jacket_design,
         })
     return {
         "rule": result.rule, "coolant_flow_rule": result.coolant_flow_rule, "safety_factor": result.safety_factor,

@@ -35,13 +35,15 @@ from dataclasses import dataclass, field, replace
 
 from scipy.optimize import brentq
 
+from calc.deadline import NEVER, Deadline
 from calc.vessel import agitation as agitation_module
 from calc.vessel import geometry
 from calc.checks.cooling_check import CAUTIONS, DEFAULT_SAFETY_FACTOR, DOSING_CAUTION, CoolingCheck, _check_safety_factor, \
     cooling_check, evaluate, margin_of
 from calc.checks.heat_load import Dosing, HeatRelease
 from calc.properties import LiquidProperties
-from calc.validity import CalcWarning, CalculationError, InputError, Warnings
+from calc.sizing.jacket_sizing import jacket_sizing
+from calc.validity import CalcWarning, CalculationError, InputError, Warnings, fields_renamed
 from calc.vessel.model import Charge, Coolant, Vessel
 
 RULES = tuple(sorted(agitation_module.SCALE_UP_RULES)) + ("as_given",)
@@ -70,6 +72,7 @@ class ScaleResult:
     vessel: Vessel
     coolant: Coolant
     check: CoolingCheck
+    jacket_design: object | None = None  # calc.sizing.jacket_sizing.SizedDesign, when sizing was asked for
 
 
 @dataclass(frozen=True)
@@ -170,7 +173,7 @@ def _speed_for_power_per_volume(vessel: Vessel, props: LiquidProperties, volume:
 
 def _given(reference: _Reference, vessel: Vessel, index: int, rule: str, coolant_rule: str, warnings: Warnings):
     """An explicit target vessel: its charge, coolant, heat release and agitator speed under ``rule``."""
-    field_name = f"targets.{index}"
+    field_name = f"targets[{index}]"
     if vessel.agitator is None:
         raise InputError(f"{field_name}.vessel.agitator", "an explicit target vessel needs its agitator")
     vessel.agitator.validate()
@@ -207,18 +210,44 @@ def _check_targets(targets) -> list:
             continue
         if isinstance(target, bool) or not isinstance(target, (int, float)) or not math.isfinite(target) \
                 or target <= 0:
-            raise InputError(f"targets.{i}.volume", f"must be a positive volume or a vessel, got {target!r}")
+            raise InputError(f"targets[{i}].volume", f"must be a positive volume or a vessel, got {target!r}")
     return targets
 
 
+def _target_scale(ref: _Reference, target, own_coolant: Coolant | None, i: int, rule: str, coolant_flow_rule: str,
+                  process_temperature: float, safety_factor: float, limits: bool, deadline: Deadline,
+                  warnings: Warnings, size_jacket: bool = False) -> ScaleResult:
+    """The cooling check of target ``i``: an explicit vessel (with its own coolant, if given) or a volume."""
+    if isinstance(target, Vessel):
+        vessel, scaled_charge, charge_volume, scaled_coolant, release, factor, volume = \
+            _given(ref, target, i, rule, coolant_flow_rule, warnings)
+        if own_coolant is not None:
+            scaled_coolant = own_coolant
+        generated = False
+    else:
+        volume = float(target)
+        vessel, scaled_charge, charge_volume, scaled_coolant, release, factor = \
+            _similar(ref, volume, rule, coolant_flow_rule)
+        generated = True
+    check = cooling_check(vessel, scaled_charge, scaled_coolant, process_temperature, release,
+                          safety_factor, limits, deadline)
+    design = None
+    if size_jacket and generated:
+        design = jacket_sizing(vessel, scaled_charge, scaled_coolant, process_temperature, release,
+                               safety_factor, deadline=deadline).recommended
+    return ScaleResult(vessel.name, volume, charge_volume, factor, generated, vessel.agitator.speed,
+                       vessel, scaled_coolant, check, design)
+
+
 def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_factor: float, upper: float,
-                   reference_check: CoolingCheck, warnings: Warnings):
+                   reference_check: CoolingCheck, warnings: Warnings, deadline: Deadline = NEVER):
     """Largest adequate volume (Brent's method on log V) and controlling switches (scan, then bisection)."""
     memo: dict[float, tuple[float, str]] = {}
 
     def state(log_volume: float) -> tuple[float, str]:
         """(log(margin / SF), controlling resistance) of the similar vessel of volume exp(log_volume)."""
         if log_volume not in memo:
+            deadline.check()
             vessel, charge, _, coolant, heat_release, _ = _similar(reference, math.exp(log_volume), rule, coolant_rule)
             result, load = evaluate(vessel, charge, coolant, reference.process_temperature, heat_release)
             margin = margin_of(result.duty, load.total)
@@ -268,11 +297,17 @@ def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_f
 
 def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coolant, process_temperature: float,
              heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
-             coolant_flow_rule: str = "scale_with_area", limits: bool = True) -> ScaleUp:
+             coolant_flow_rule: str = "scale_with_area", limits: bool = True,
+             deadline: Deadline = NEVER, size_jacket: bool = False) -> ScaleUp:
     """Cooling checks of the reference and each target, and the largest adequate similar vessel.
 
     ``charge``, ``coolant`` and ``heat_release`` describe the reference scale; see the module notes
     for how each is carried to the targets. ``limits`` is passed to each scale's cooling check.
+    Every scale and every step of the family search first checks ``deadline``
+    (:class:`calc.deadline.OutOfTime` once it has passed).
+    ``size_jacket``: each generated scale also gets the smallest feasible jacket or coil designed for it
+    (:func:`calc.sizing.jacket_sizing.jacket_sizing` on its shell, with its coolant and heat release, default
+    candidates), beside the check of the reference's jacket scaled by similarity.
     """
     if rule not in RULES:
         raise InputError("rule", f"unknown scale-up rule {rule!r}; known rules: {', '.join(RULES)}")
@@ -290,41 +325,36 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
             f"the reference vessel's calibrated process constant a = {calibration.process_constant:.4g} (its own "
             "Wilson plot) is carried to the larger similar vessels, which share impeller and geometry ratios; their "
             "wall, fouling and coolant film are computed from the published correlations"))
-    first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits)
+    with fields_renamed({"vessel": "reference"}):
+        first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits,
+                              deadline)
     result = first.heat_transfer
     ref = _Reference(reference, charge, coolant, heat_release, process_temperature, result.fill.brim_volume,
                      result.fill.volume, result.fill.heat_transfer_area, result.process_properties,
                      result.agitation.power_per_volume)
     if not ref.area > 0.0 and coolant_flow_rule == "scale_with_area":
-        raise InputError("vessel", "the reference vessel has no heat-transfer area at its fill; "
+        raise InputError("reference", "the reference vessel has no heat-transfer area at its fill; "
                                    "the coolant flow cannot be scaled with the area")
     scales = [ScaleResult(reference.name, ref.volume, ref.charge_volume, 1.0, False, reference.agitator.speed,
                           reference, coolant, first)]
     for i, target in enumerate(targets):
+        deadline.check()
         own_coolant = None
         if isinstance(target, tuple):  # (vessel, its own utility)
             target, own_coolant = target
-        if isinstance(target, Vessel):
-            vessel, scaled_charge, charge_volume, scaled_coolant, release, factor, volume = \
-                _given(ref, target, i, rule, coolant_flow_rule, warnings)
-            if own_coolant is not None:
-                scaled_coolant = own_coolant
-            generated = False
-        else:
-            volume = float(target)
-            vessel, scaled_charge, charge_volume, scaled_coolant, release, factor = \
-                _similar(ref, volume, rule, coolant_flow_rule)
-            generated = True
-        check = cooling_check(vessel, scaled_charge, scaled_coolant, process_temperature, release,
-                              safety_factor, limits)
-        scales.append(ScaleResult(vessel.name, volume, charge_volume, factor, generated, vessel.agitator.speed,
-                                  vessel, scaled_coolant, check))
+        # the request's own paths: an explicit target is targets[i].vessel (+ .coolant), a generated one its volume
+        renamed = ({"vessel": f"targets[{i}].vessel"}
+                   | ({"coolant": f"targets[{i}].coolant"} if own_coolant is not None else {})
+                   if isinstance(target, Vessel) else {"vessel": f"targets[{i}].volume"})
+        with fields_renamed(renamed):
+            scales.append(_target_scale(ref, target, own_coolant, i, rule, coolant_flow_rule, process_temperature,
+                                        safety_factor, limits, deadline, warnings, size_jacket))
 
     largest_target = max((s.volume for s in scales), default=ref.volume)
     upper = max(ref.volume * SEARCH_RATIO, 10.0 * largest_target)
     family_rule = "constant_speed" if rule == "as_given" else rule
     largest, beyond, message, switches = _family_search(ref, family_rule, coolant_flow_rule, safety_factor, upper,
-                                                        first, warnings)
+                                                        first, warnings, deadline)
     cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ())
     return ScaleUp(tuple(scales), largest, beyond, upper, message, switches, rule, coolant_flow_rule, safety_factor,
                    warnings, cautions)

@@ -12,8 +12,12 @@ from __future__ import annotations
 
 import math
 
+from typing import NamedTuple
+
+from calc import arrays
+from calc.films.jacket_side import VDI_HEAT_ATLAS, FilmFormula, FilmResult, flow_warnings
 from calc.properties import LiquidProperties
-from calc.films.jacket_side import VDI_HEAT_ATLAS, FilmResult, flow_warnings
+from calc.hydraulics.friction import coil_critical_reynolds_Schmidt_1967
 from calc.validity import Correlation, InputError, Warnings, require_positive
 
 
@@ -87,9 +91,10 @@ def Nu_coil_turbulent_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
     ----------
     Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
     """
-    if Re < 2.2e4:  # the second range from 2.2e4 on, so the transition interpolation meets it exactly
-        return 0.023 * (1 + 14.8 * (1 + r) * r ** (1 / 3)) * Re ** (0.8 - 0.22 * r ** 0.1) * Pr ** (1 / 3)
-    return 0.023 * (1 + 3.6 * (1 - r) * r ** 0.8) * Re ** 0.8 * Pr ** (1 / 3)
+    return arrays.where(Re < 2.2e4,  # the second range from 2.2e4 on (meets the transition)
+                        
+                        0.023 * (1 + 14.8 * (1 + r) * r ** (1 / 3)) * Re ** (0.8 - 0.22 * r ** 0.1) * Pr ** (1 / 3),
+                        0.023 * (1 + 3.6 * (1 - r) * r ** 0.8) * Re ** 0.8 * Pr ** (1 / 3))
 
 
 def Nu_coil_turbulent_Mori_Nakayama_1967(Re: float, Pr: float, r: float) -> float:
@@ -126,36 +131,11 @@ def Nu_coil_turbulent_Mori_Nakayama_1967(Re: float, Pr: float, r: float) -> floa
     Mori, Y.; Nakayama, W. "Study on Forced Convective Heat Transfer in Curved Pipes". Int. J. Heat Mass
     Transfer 10, 681-695 (1967), doi:10.1016/0017-9310(67)90113-5.
     """
-    if Pr < 1:
-        return Pr / (26.2 * (Pr ** (2 / 3) - 0.074)) * Re ** 0.8 * r ** 0.1 * (1 + 0.098 * (Re * r * r) ** -0.2)
-    return Pr ** 0.4 / 41 * Re ** (5 / 6) * r ** (1 / 12) * (1 + 0.061 / (Re * r ** 2.5) ** (1 / 6))
+    return arrays.where(Pr < 1,
+                        Pr / (26.2 * (Pr ** (2 / 3) - 0.074)) * Re ** 0.8 * r ** 0.1 * (1 + 0.098 * (Re * r * r) ** -0.2),
+                        Pr ** 0.4 / 41 * Re ** (5 / 6) * r ** (1 / 12) * (1 + 0.061 / (Re * r ** 2.5) ** (1 / 6)))
 
 
-
-
-def coil_critical_reynolds_Schmidt_1967(r: float) -> float:
-    """Laminar-turbulent transition inside a helical coil, Schmidt (1967): Re_crit = 2300 (1 + 8.6 r^0.45).
-
-    Parameters
-    ----------
-    r : float
-        Tube inside diameter over curvature diameter, [-]
-
-    Returns
-    -------
-    Re_crit : float
-        Critical Reynolds number, [-]
-
-    Examples
-    --------
-    >>> round(coil_critical_reynolds_Schmidt_1967(0.05))
-    7438
-
-    References
-    ----------
-    Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
-    """
-    return 2300.0 * (1 + 8.6 * r ** 0.45)
 
 
 #: Fully turbulent flow in a helical coil above this Reynolds number (Schmidt 1967; VDI Heat Atlas Gc).
@@ -201,7 +181,7 @@ def Nu_coil_transition_Gnielinski_1986(Re: float, Pr: float, r: float, turbulent
     2010, chapter Gc.
     """
     Re_crit = coil_critical_reynolds_Schmidt_1967(r)
-    weight = min(max((COIL_TURBULENT_REYNOLDS - Re) / (COIL_TURBULENT_REYNOLDS - Re_crit), 0.0), 1.0)
+    weight = arrays.clip((COIL_TURBULENT_REYNOLDS - Re) / (COIL_TURBULENT_REYNOLDS - Re_crit), 0.0, 1.0)
     return (weight * Nu_coil_laminar_Schmidt_1967(Re_crit, Pr, r)
             + (1.0 - weight) * turbulent(COIL_TURBULENT_REYNOLDS, Pr, r))
 
@@ -225,18 +205,10 @@ CORRELATIONS: dict[str, Correlation] = {
 COIL_CORRELATIONS = ("schmidt_1967", "mori_nakayama_1967")
 
 
-def curved_nusselt(Re: float, Pr: float, r: float, correlation: str = "schmidt_1967") -> tuple[float, str, float]:
-    """(Nu without the viscosity correction, registry key used, Re_crit) in a curved channel or coil tube."""
+def _check_correlation(correlation: str) -> None:
     if correlation not in COIL_CORRELATIONS:
         raise InputError("correlations.coil_tube", f"unknown option {correlation!r}; known: "
                                                    f"{', '.join(COIL_CORRELATIONS)}")
-    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
-    turbulent = CORRELATIONS[correlation].function
-    if Re < Re_crit:
-        return Nu_coil_laminar_Schmidt_1967(Re, Pr, r), "schmidt_1967_laminar", Re_crit
-    if Re < COIL_TURBULENT_REYNOLDS:
-        return Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent), "gnielinski_coil_transition", Re_crit
-    return turbulent(Re, Pr, r), correlation, Re_crit
 
 
 def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant_props: LiquidProperties,
@@ -280,37 +252,74 @@ def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant
     >>> r.regime, round(r.reynolds)
     ('turbulent', 50848)
     """
-    d = require_positive("vessel.coils.tube_inner_diameter", tube_inner_diameter)
+    require_positive("coolant.flow", mass_flow)
+    require_positive("coolant", mu_wall)  # the coolant's viscosity at the wall
+    formula = coil_film_formula(tube_inner_diameter, helix_diameter, pitch, parallel_tubes, correlation)
+    warnings = Warnings()
+    flow = formula.function(coolant_props, mass_flow * formula.flow_share, mu_wall, None, **formula.fixed)
+    return formula.describe(coolant_props, flow, warnings)
+
+
+class _CoilFlow(NamedTuple):
+    h: float
+    reynolds: float
+    velocity: float
+    nusselt: float
+    critical_reynolds: float
+
+
+def coil_flow(props, mass_flow, mu_wall, rho_wall, d, D_c, correlation, area=None, beta=None, dT=None,
+              warnings=None) -> _CoilFlow:
+    """Film in a coil tube or curved channel at a coolant state (floats or arrays): Schmidt laminar below
+    Re_crit, Gnielinski's interpolation to 2.2e4, the turbulent ``correlation`` above; times (mu/mu_w)^0.14.
+    ``d`` is the (equivalent) diameter, ``area`` the flow area (default the tube's pi d^2/4)."""
+    area = math.pi / 4 * d * d if area is None else area
+    velocity = mass_flow / (props.density * area)
+    Re = props.density * velocity * d / props.viscosity
+    Pr = props.prandtl
+    r = d / D_c
+    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
+    turbulent = CORRELATIONS[correlation].function
+    Nu = arrays.where(Re < Re_crit, Nu_coil_laminar_Schmidt_1967(Re, Pr, r),
+                      arrays.where(Re < COIL_TURBULENT_REYNOLDS, Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent),
+                                   turbulent(Re, Pr, r)))
+    Nu = Nu * (props.viscosity / mu_wall) ** 0.14
+    return _CoilFlow(Nu * props.thermal_conductivity / d, Re, velocity, Nu, Re_crit)
+
+
+def _describer(d: float, D_c: float, correlation: str):
+    def describe(props, flow: _CoilFlow, warnings: Warnings) -> FilmResult:
+        Re, r = flow.reynolds, d / D_c
+        key = ("schmidt_1967_laminar" if Re < flow.critical_reynolds else
+               "gnielinski_coil_transition" if Re < COIL_TURBULENT_REYNOLDS else correlation)
+        entry = CORRELATIONS[key]
+        entry.check(warnings, Re=Re, **{"Re r^2": Re * r * r})
+        regime = flow_warnings(warnings, Re, flow.velocity, flow.critical_reynolds, entry.name)
+        if regime != "laminar":
+            regime = "turbulent" if Re >= COIL_TURBULENT_REYNOLDS else "transitional"
+        return FilmResult(flow.h, Re, flow.velocity, entry.name, flow.nusselt, props.prandtl, d, regime, warnings)
+    return describe
+
+
+def curved_formula(d_e: float, d_curve: float, area: float, share: float, correlation: str) -> FilmFormula:
+    """A curved jacket channel (half pipe, spiral baffle) treated as a coil tube of diameter De, curvature De/D_c."""
+    _check_correlation(correlation)
+    return FilmFormula(coil_flow, {"d": d_e, "D_c": d_curve, "correlation": correlation, "area": area}, share,
+                       _describer(d_e, d_curve, correlation))
+
+
+def coil_film_formula(tube_inner_diameter: float, helix_diameter: float, pitch: float | None = None,
+                      parallel_tubes: int = 1, correlation: str = "schmidt_1967") -> FilmFormula:
+    """The coil's coolant film as a :class:`~calc.films.jacket_side.FilmFormula` (geometry checked once)."""
+    _check_correlation(correlation)
+    d = require_positive("vessel.coils.tube_wall", tube_inner_diameter)  # the bore left by the wall
     D_c = require_positive("vessel.coils.helix_diameter", helix_diameter)
     if D_c <= d:
         raise InputError("vessel.coils.helix_diameter", "must exceed the tube diameter")
-    require_positive("coolant.flow", mass_flow)
-    require_positive("coolant.viscosity_at_wall", mu_wall)
     if not (isinstance(parallel_tubes, int) and parallel_tubes >= 1):
         raise InputError("vessel.coils.parallel_tubes", f"must be a whole number >= 1, got {parallel_tubes!r}")
     if pitch is not None:
         D_c *= 1 + (require_positive("vessel.coils.pitch", pitch) / (math.pi * D_c)) ** 2
-    warnings = Warnings()
-    props = coolant_props
-    m_tube = mass_flow / parallel_tubes
-    velocity = m_tube / (props.density * math.pi / 4 * d * d)
-    Re = props.density * velocity * d / props.viscosity
-    Pr = props.prandtl
-    r = d / D_c
-    return curved_film(props, Re, velocity, d, r, mu_wall, correlation, warnings)
 
-
-def curved_film(props: LiquidProperties, Re: float, velocity: float, d: float, r: float, mu_wall: float,
-                correlation: str, warnings: Warnings) -> FilmResult:
-    """The film of :func:`curved_nusselt` times (mu/mu_w)^0.14 on diameter ``d``, with range and flow warnings."""
-    Nu, key, Re_crit = curved_nusselt(Re, props.prandtl, r, correlation)
-    entry = CORRELATIONS[key]
-    Nu *= (props.viscosity / mu_wall) ** 0.14
-    entry.check(warnings, Re=Re)
-    if key in COIL_CORRELATIONS:
-        CORRELATIONS[key].check(warnings, **{"Re r^2": Re * r * r})
-    regime = flow_warnings(warnings, Re, velocity, Re_crit, entry.name)
-    if regime != "laminar":
-        regime = "turbulent" if Re >= COIL_TURBULENT_REYNOLDS else "transitional"
-    return FilmResult(Nu * props.thermal_conductivity / d, Re, velocity, entry.name, Nu, props.prandtl, d, regime,
-                      warnings)
+    return FilmFormula(coil_flow, {"d": d, "D_c": D_c, "correlation": correlation, "area": math.pi / 4 * d * d},
+                       1.0 / parallel_tubes, _describer(d, D_c, correlation))

@@ -26,8 +26,9 @@ from calc.vessel import geometry
 from calc.films import process_side
 from calc.films import jacket_side as service_side
 from calc.films import wall
+from calc.hydraulics import paths
 from calc.properties import LiquidProperties
-from calc.validity import CalcWarning, InputError, Warnings
+from calc.validity import CalcWarning, InputError, Warnings, fields_renamed
 from calc.vessel.model import Charge, Coolant, Vessel
 
 TOLERANCE = 1e-6  # K
@@ -61,10 +62,27 @@ class Stream:
     balance: coolant_balance_module.CoolantBalance
     mean_temperature: float  # K
     iterations: int
+    hydraulics: paths.Hydraulics | None = None  # pressure drop at the solved mean temperature
+    path: paths.FlowPath | None = None  # the coolant's route, for hydraulic limits
 
     @property
     def ua(self) -> float:
         return sum(s.ua for s in self.surfaces)
+
+    @property
+    def pressure_drop(self) -> float | None:
+        """Supply-to-return pressure drop, Pa."""
+        return None if self.hydraulics is None else self.hydraulics.pressure_drop
+
+    @property
+    def velocity(self) -> float | None:
+        """Mean coolant velocity in the channel, m/s."""
+        return None if self.hydraulics is None else self.hydraulics.velocity
+
+    @property
+    def path_length(self) -> float | None:
+        """Length of the coolant's path through one zone, m."""
+        return None if self.hydraulics is None else self.hydraulics.path_length
 
 
 @dataclass(frozen=True)
@@ -120,7 +138,38 @@ class _SurfaceModel:
     process_side: str
     process_film: Callable[[float], object]  # mu_wall -> process FilmResult
     service_film: Callable[[LiquidProperties, float, float], object]  # props, mu_wall, rho_wall -> FilmResult
+    service_formula: service_side.FilmFormula  # the same coolant film, for arrays of states (vectorised network)
     remaining_resistance: float | None = None  # m2 K/W measured beyond the process film (calibration)
+
+
+@dataclass(frozen=True)
+class StreamModel:
+    """One coolant circuit before solving: its surfaces and its mass flow at the coolant given."""
+
+    name: str
+    mass_flow: float  # kg/s
+    surfaces: tuple[_SurfaceModel, ...]
+    path: paths.FlowPath | None = None  # the coolant's route, for its pressure drop
+
+
+@dataclass(frozen=True)
+class Network:
+    """The network of one vessel, charge and coolant at one process temperature, assembled but not solved.
+
+    Everything that does not depend on the iterated coolant and wall temperatures is here, checked
+    once: the contents' properties, fill, agitation and the streams with their surfaces.
+    ``calc.network.vectorised`` solves many of these (and many coolant states of each) at once.
+    """
+
+    vessel: Vessel
+    charge: Charge
+    coolant: Coolant
+    process_temperature: float  # K
+    process_properties: LiquidProperties
+    fill: geometry.FillGeometry
+    agitation: agitation.AgitationResult
+    streams: tuple[StreamModel, ...]
+    warnings: Warnings
 
 
 def _process_viscosity(charge: Charge, temperature: float, warnings: Warnings) -> float:
@@ -155,7 +204,8 @@ def _coolant_state(coolant: Coolant, temperature: float) -> LiquidProperties:
 
 
 def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolant: Coolant, mass_flow: float,
-                  process_temperature: float, fouling: wall.Fouling, warnings: Warnings) -> Stream:
+                  process_temperature: float, fouling: wall.Fouling, warnings: Warnings,
+                  path: paths.FlowPath | None = None) -> Stream:
     inlet = coolant.inlet_temperature
     freezing = None
     if hasattr(coolant.liquid, "liquid_range"):
@@ -202,7 +252,13 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
         warnings.extend_unique(CalcWarning(w.code, f"{surface.name.replace('_', ' ')}: {w.message}")
                                for w in surface.overall.warnings)
     warnings.extend_unique(balance.warnings)
-    return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations)
+    hydraulics = None
+    if path is not None:
+        hydraulics = paths.pressure_drop(path, mass_flow, _coolant_state(coolant, mean))
+        warnings.extend_unique(CalcWarning(w.code, f"{name} pressure drop: {w.message}") for w in hydraulics.warnings)
+        warnings.extend_unique(paths.limit_warnings(hydraulics, name, coolant.available_pressure_drop,
+                                                    coolant.maximum_velocity))
+    return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations, hydraulics, path)
 
 
 def _outer_diameter(vessel: Vessel) -> float:
@@ -214,8 +270,8 @@ def _outer_diameter(vessel: Vessel) -> float:
     return vessel.shape.diameter + 2.0 * (spec.thickness + lining)
 
 
-def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> HeatTransferResult:
-    """Solve the vessel's heat-transfer network at the process temperature ``process_temperature`` (K)."""
+def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> Network:
+    """Check the inputs and set up the vessel's network at ``process_temperature`` (K), unsolved."""
     warnings = Warnings()
     if coolant.inlet_temperature >= process_temperature:
         raise InputError("coolant.inlet_temperature",
@@ -223,7 +279,8 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                          f"({coolant.inlet_temperature - 273.15:.2f} degC >= {process_temperature - 273.15:.2f} degC)")
     props = charge.liquid.at(process_temperature, field="process_temperature")
     volume = charge.liquid_volume(process_temperature)
-    filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume)
+    filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume,
+                           field="charge.volume" if charge.volume is not None else "charge.mass")
     warnings.extend_unique(filled.warnings)
     stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
     warnings.extend_unique(stirred.warnings)
@@ -243,9 +300,12 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         jacket_height = top if vessel.coverage.covers_bottom_head else top - geometry.head_depth(shape)
         outer = _outer_diameter(vessel)
 
-        def service(props_c, mu_w, rho_w, _jacket=choice.jacket(vessel.jacket)):
+        chosen_jacket = choice.jacket(vessel.jacket)
+
+        def service(props_c, mu_w, rho_w, _jacket=chosen_jacket):
             return service_side.service_film_jacket(_jacket, props_c, coolant.mass_flow(), mu_w, outer,
                                                     max(jacket_height, 1e-3), rho_wall=rho_w)
+        jacket_formula, _ = service_side.jacket_film_formula(chosen_jacket, outer, max(jacket_height, 1e-3))
 
         models = []
         for name, area, surface, radius in (("jacket_shell", shell_area, "wall", shape.diameter / 2.0),
@@ -258,9 +318,9 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                     agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
                     baffled=agitator.baffled, surface=_surface, alternative=choice.process_wall,
                     factor=choice.process_factor, constants=choice.process_constants),
-                service, choice.remaining_resistance))
-        streams.append(_solve_stream("jacket", models, charge, coolant, coolant.mass_flow(), process_temperature,
-                                     vessel.fouling, warnings))
+                service, jacket_formula, choice.remaining_resistance))
+        streams.append(StreamModel("jacket", coolant.mass_flow(), tuple(models),
+                                   paths.jacket_path(vessel.jacket, outer, max(jacket_height, 1e-3))))
     elif vessel.jacket is not None:
         warnings.add(CalcWarning("jacket_not_wetted", "the liquid does not reach the jacket: no jacket heat transfer"))
 
@@ -273,6 +333,9 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         coil_wall = replace(vessel.wall, thickness=coil.tube_wall, lining_thickness=0.0, lining_conductivity=None)
         if wall.material(coil_wall.material).lining_thickness:  # a glass-lined vessel's coils are alloy
             coil_wall = replace(coil_wall, material="stainless_316l")
+        with fields_renamed({"vessel.coils": f"vessel.coils[{index}]"}):
+            formula = coil_side.coil_film_formula(coil.tube_inner_diameter, coil.helix_diameter, pitch=coil.pitch,
+                                                  correlation=choice.coil_tube)
         model = _SurfaceModel(
             f"coil_{index}", area, coil_wall, coil.tube_outer_diameter / 2.0, "outside",
             lambda mu_w, _coil=coil: process_side.process_film_coil(
@@ -281,12 +344,34 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                 factor=choice.coil_process_factor),
             lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
                 _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
-                pitch=_coil.pitch, correlation=choice.coil_tube))
-        streams.append(_solve_stream(f"coil_{index}", [model], charge, coolant, coolant.coil_mass_flow(),
-                                     process_temperature, vessel.fouling, warnings))
+                pitch=_coil.pitch, correlation=choice.coil_tube),
+            formula)
+        streams.append(StreamModel(f"coil_{index}", coolant.coil_mass_flow(), (model,), paths.coil_path(coil)))
     if not streams:
         warnings.add(CalcWarning("no_cooling_surface", "no wetted jacket or coil area: the vessel cannot be cooled"))
-    return HeatTransferResult(process_temperature, props, filled, stirred, tuple(streams), warnings)
+    return Network(vessel, charge, coolant, process_temperature, props, filled, stirred, tuple(streams), warnings)
+
+
+def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> HeatTransferResult:
+    """Solve the vessel's heat-transfer network at the process temperature ``process_temperature`` (K).
+
+    The readable specification of the solution: one state, every film with its warnings. For many
+    states at once (grids, limits, candidates, fleets) see ``calc.network.vectorised``; a test keeps
+    the two in agreement.
+    """
+    network = assemble(vessel, charge, coolant, process_temperature)
+    warnings = Warnings(network.warnings)
+    solved = []
+    for stream in network.streams:
+        # a coil's errors name its place in the request: vessel.coils[i]
+        coil = {"vessel.coils": f"vessel.coils[{stream.name[5:]}]"} if stream.name.startswith("coil_") else {}
+        with fields_renamed(coil):
+            solved.append(_solve_stream(stream.name, list(stream.surfaces), charge, coolant, stream.mass_flow,
+                                        process_temperature, vessel.fouling, warnings, stream.path))
+    return HeatTransferResult(process_temperature, network.process_properties, network.fill, network.agitation,
+                              tuple(solved), warnings)
+
+
 
 
 def coolant_balance_at_mean(coolant: Coolant, process_temperature: float, ua: float

@@ -17,7 +17,8 @@ from typing import Callable
 import numpy as np
 from scipy.integrate import BDF, LSODA, Radau
 
-from calc.validity import CalcWarning, InputError, Warnings, require_positive
+from calc.deadline import NEVER, Deadline
+from calc.validity import CalcWarning, InputError, Warnings, require_positive, require_sign
 
 CAUTION = ("Screening estimate: confirm with reaction calorimetry and plant data, follow local codes "
            "and have a licensed engineer review the result.")
@@ -45,6 +46,7 @@ class Reaction:
     reference_temperature: float  # K
     activation_energy: float  # J/mol
     enthalpy: float  # J/mol of extent at the enthalpy reference temperature, negative = exothermic
+    endothermic: bool = False  # the request declares a heat-absorbing reaction (enthalpy > 0 allowed)
 
 
 @dataclass(frozen=True)
@@ -127,7 +129,8 @@ class Budget:
     horizon_limit: float = 30 * 86400.0  # s
     output_points: int = 201
     maximum_output_points: int = 20001
-    wall_time: float = 10.0  # s
+    wall_time: float = 10.0  # s of computing for this run
+    deadline: Deadline = NEVER  # the caller's clock (a request's budget); the run stops at the sooner of the two
 
 
 @dataclass(frozen=True)
@@ -333,7 +336,7 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
         _non_negative(f"{f}.rate_constant", r.rate_constant)
         require_positive(f"{f}.reference_temperature", r.reference_temperature)
         _non_negative(f"{f}.activation_energy", r.activation_energy)
-        _finite(f"{f}.enthalpy", r.enthalpy)
+        require_sign(f"{f}.enthalpy", r.enthalpy, r.endothermic, f"{f}.endothermic")
         imbalance = sum(v * molar_mass[k] for k, v in r.stoichiometry.items())
         scale = sum(abs(v) * molar_mass[k] for k, v in r.stoichiometry.items()) or 1.0
         if abs(imbalance) > 1e-6 * scale:
@@ -354,7 +357,7 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
     if inp.horizon > b.horizon_limit:
         raise InputError("horizon", f"must not exceed {b.horizon_limit:g} s")
     if not (isinstance(b.output_points, int) and 2 <= b.output_points <= b.maximum_output_points):
-        raise InputError("budget.output_points", f"must be an integer from 2 to {b.maximum_output_points}")
+        raise InputError("output_points", f"must be a whole number from 2 to {b.maximum_output_points}")
     require_positive("budget.wall_time", b.wall_time)
     if not (isinstance(inp.rtol, numbers.Real) and 1e-12 <= inp.rtol <= 1e-3):
         raise InputError("rtol", "must lie between 1e-12 and 1e-3")
@@ -398,8 +401,8 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
         if not c.maximum_inlet_temperature > c.minimum_inlet_temperature:
             raise InputError("controller.maximum_inlet_temperature", "must exceed the minimum inlet temperature")
     if inp.failure is not None and inp.failure.time is not None:
-        if not (_non_negative("failure.time", inp.failure.time) <= inp.horizon):
-            raise InputError("failure.time", "must lie within the horizon")
+        if not (_non_negative("cooling_failure.time", inp.failure.time) <= inp.horizon):
+            raise InputError("cooling_failure.time", f"must lie within the horizon ({inp.horizon:g} s)")
     for i, lim in enumerate(inp.limits):
         require_positive(f"limits[{i}].temperature", lim.temperature)
         if lim.direction not in (-1, 0, 1):
