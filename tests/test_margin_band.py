@@ -45,7 +45,8 @@ def test_band_contains_nominal_and_reproduces_each_alternative_chosen_alone(args
     assert {m.resistance for m in singles} >= {"process_wall"}
     for member in singles:
         alone = _check(args, vessel=replace(args["vessel"], correlations=member.choice), band=False)
-        assert alone.margin == pytest.approx(member.margin, rel=1e-12), member
+        # members are solved by the vectorised network, which agrees with the scalar one to 1e-9
+        assert alone.margin == pytest.approx(member.margin, rel=1e-8), member
     margins = [m.margin for m in band.members] + [check.margin]
     assert band.low == min(margins) and band.high == max(margins)
 

@@ -3,8 +3,8 @@
 The nominal margin uses one correlation per resistance. The published alternatives disagree by more
 than the safety factor usually allows for (``calc.films.selection``), so every check also reports the
 spread of the margin over them: an ensemble, each member one solve of the heat-transfer network
-(``calc.network.heat_transfer.heat_transfer``, the network's public entry) with one resistance's
-correlation replaced:
+(all members in one pass of ``calc.network.vectorised.heat_transfer_many``, the network's public
+ensemble entry; the joint members in a second) with one resistance's correlation replaced:
 
 * process side at the wall: every other published constant set of the impeller
   (``calc.films.process_side.wall_alternatives``); where none is published, the constant a times
@@ -34,7 +34,8 @@ from dataclasses import dataclass, replace
 
 from calc.films import process_side
 from calc.films.selection import CorrelationChoice
-from calc.network.heat_transfer import HeatTransferResult, heat_transfer
+from calc.network.heat_transfer import HeatTransferResult
+from calc.network.vectorised import heat_transfer_many
 
 #: Cooling-check margins of members are capacity / load; these name the resistance a member varies.
 RESISTANCES = ("process_wall", "process_coil", "annular_jacket", "channel", "coil_tube",
@@ -130,12 +131,18 @@ def margin_band(vessel, charge, coolant, process_temperature: float, result: Hea
         return MarginBand(None, None, basis, "", "", True, "no net heat load: nothing needs removing, no band",
                           ())
 
-    def solve(resistance: str, alternative: str, choice: CorrelationChoice) -> BandMember:
-        duty = heat_transfer(replace(vessel, correlations=choice), charge, coolant, process_temperature).duty
-        return BandMember(resistance, alternative, duty / load_total, choice)
+    def solve(batch: list[tuple[str, str, CorrelationChoice]]) -> list[BandMember]:
+        """Every member of ``batch`` in one pass of the vectorised network (the public ensemble entry)."""
+        if not batch:
+            return []
+        duty = heat_transfer_many([(replace(vessel, correlations=choice), charge, coolant, process_temperature)
+                                   for _, _, choice in batch]).duty
+        return [BandMember(resistance, alternative, float(d) / load_total, choice)
+                for (resistance, alternative, choice), d in zip(batch, duty)]
 
-    solved = [solve(*member) for member in members]
+    solved = solve(members)
     base = vessel.correlations
+    joints = []
     for direction in (min, max):
         picks = []
         for resistance in dict.fromkeys(m.resistance for m in solved):
@@ -145,7 +152,8 @@ def margin_band(vessel, charge, coolant, process_temperature: float, result: Hea
                 picks.append(best)
         if len(picks) > 1:
             label = " + ".join(f"{m.resistance}={m.alternative}" for m in picks)
-            solved.append(solve("joint", label, _joint(base, picks)))
+            joints.append(("joint", label, _joint(base, picks)))
+    solved += solve(joints)
     margins = [nominal] + [m.margin for m in solved]
     low, high = min(margins), max(margins)
 
