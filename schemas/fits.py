@@ -51,7 +51,10 @@ class QuantitySeries(fields.Field):
                 if unit is not None:
                     if isinstance(item, bool) or not isinstance(item, (int, float)):
                         raise ValidationError("must be a number (the unit is given once)")
-                    item = f"{float(item)!r} {unit}"
+                    try:
+                        item = f"{float(item)!r} {unit}"
+                    except OverflowError:
+                        raise ValidationError("must be a finite number") from None
                 out.append(parse_quantity(self.kind, item))
             except ValidationError as error:
                 raise ValidationError({index: error.messages}) from None

@@ -43,6 +43,10 @@ MIN_DRIVING_FORCE = 1.0
 #: Smallest change of the contents' temperature over the series, K.
 MIN_CHANGE = 0.5
 MODES = ("cooling", "heating")
+#: Logged temperatures beyond this are not a liquid run (and would overflow the fit), K.
+MAX_TEMPERATURE = 5000.0
+#: Longest clock reading, s.
+MAX_DURATION = 1.0e9
 
 
 @dataclass(frozen=True)
@@ -100,10 +104,16 @@ def check_series(series: Series, mode: str) -> None:
         if len(array) != n:
             raise InputError(f"series.{name}", f"has {len(array)} values but series.time has {n}: every "
                                                "series needs one value per time")
+    for name, array in others:
+        if np.any(array <= 0.0) or np.any(array > MAX_TEMPERATURE):
+            raise InputError(f"series.{name}", f"every logged temperature must lie between absolute zero and "
+                                               f"{MAX_TEMPERATURE:g} K")
     if n < MIN_POINTS:
         raise InputError("series.time", f"too short: {n} points; at least {MIN_POINTS} are needed to fit UA and "
                                         "the starting temperature and still estimate the scatter")
     steps = np.diff(t)
+    if not (abs(t[0]) <= MAX_DURATION and abs(t[-1]) <= MAX_DURATION):
+        raise InputError("series.time", f"the clock must stay within {MAX_DURATION:g} s (about 30 years)")
     if np.any(steps <= 0):
         where = int(np.argmax(steps <= 0)) + 1
         raise InputError("series.time", f"the clock must increase strictly: value {where} ({t[where]:g} s) does "
