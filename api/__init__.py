@@ -97,11 +97,11 @@ def create_app(config: dict | None = None) -> Flask:
     security.register(app)  # after the request-id hook: refusals carry the request id
     runtime.register(app)  # after authentication: a refused request reads no body and takes no slot
 
-    from . import (agitation, cooling, geometry, heat_transfer, probes, properties, records, safety, screenings,
-                   sizing, window)
+    from . import (agitation, cooling, fits, geometry, heat_transfer, probes, properties, records, safety,
+                   screenings, sizing, window)
 
     records.attach(app)
-    for module in (probes, properties, geometry, agitation, heat_transfer, cooling, window, sizing, safety, records,
-                   screenings):
+    for module in (probes, properties, geometry, agitation, heat_transfer, cooling, window, sizing, safety, fits,
+                   records, screenings):
         app.register_blueprint(module.bp)
     return app

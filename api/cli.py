@@ -49,9 +49,15 @@ def _post(path: str, body: dict, url: str | None) -> tuple[int, dict]:
         return error.code, json.loads(error.read() or b"{}")
 
 
+def _band(result: dict) -> str:
+    band = result.get("margin_band") or {}
+    return "-" if band.get("low") is None else f"{band['low']:.3g}-{band['high']:.3g}"
+
+
 def _print_check(result: dict, units: dict, out) -> None:
     rows = [("verdict", "ADEQUATE" if result["adequate"] else "NOT ADEQUATE", ""),
             ("margin (capacity / load)", f"{result['margin']:.3g}" if result["margin"] is not None else "-", ""),
+            ("margin band", _band(result), ""),
             ("safety factor", f"{result['safety_factor']:g}", ""),
             ("heat load", f"{result['heat_load']['total'] / 1e3:.4g}", "kW"),
             ("cooling capacity", f"{result['cooling_capacity'] / 1e3:.4g}", "kW"),
@@ -89,9 +95,10 @@ def _scale_up(args: argparse.Namespace) -> int:
         return status
     units = answer["units"]
     print(f"scale-up, rule {answer['rule']}, safety factor {answer['safety_factor']:g}")
-    header = f"  {'vessel':<34} {'volume':>9} {'A/V':>6} {'U':>6} {'load':>9} {'capacity':>9} {'margin':>7}  verdict"
+    header = (f"  {'vessel':<34} {'volume':>9} {'A/V':>6} {'U':>6} {'load':>9} {'capacity':>9} {'margin':>7} "
+              f"{'band':>11}  verdict")
     print(header)
-    print(f"  {'':<34} {'m^3':>9} {'1/m':>6} {'W/m2K':>6} {'kW':>9} {'kW':>9} {'':>7}")
+    print(f"  {'':<34} {'m^3':>9} {'1/m':>6} {'W/m2K':>6} {'kW':>9} {'kW':>9} {'':>7} {'':>11}")
     worst = EXIT_OK
     for scale in answer["scales"]:
         name = f"{scale['volume']:.3g} m^3 similar" if scale["generated"] else scale["name"][:34]
@@ -99,7 +106,10 @@ def _scale_up(args: argparse.Namespace) -> int:
         verdict = "adequate" if scale["adequate"] else "NOT ADEQUATE"
         print(f"  {name:<34} {scale['volume']:>9.4g} {scale['area_per_volume']:>6.3g} "
               f"{scale['overall_coefficient']:>6.0f} {scale['heat_load']['total'] / 1e3:>9.4g} "
-              f"{scale['cooling_capacity'] / 1e3:>9.4g} {margin:>7}  {verdict}")
+              f"{scale['cooling_capacity'] / 1e3:>9.4g} {margin:>7} {_band(scale):>11}  {verdict}")
+        band = scale.get("margin_band") or {}
+        if band.get("holds_across_band") is False:
+            print(f"    {band['statement']}")
         if not scale["adequate"]:
             worst = EXIT_INADEQUATE
     largest = answer["largest_adequate_volume"]

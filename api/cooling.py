@@ -50,6 +50,13 @@ def scale_up_chart(payload: dict, fmt: str) -> bytes:
     top.set_yscale("log")
     top.set_ylabel("kW")
     margins = [s["margin"] if s["margin"] is not None else float("nan") for s in scales]
+    bands = [s.get("margin_band") or {} for s in scales]
+    lows = [b.get("low") if b.get("low") is not None else m for b, m in zip(bands, margins)]
+    highs = [b.get("high") if b.get("high") is not None else m for b, m in zip(bands, margins)]
+    bottom.errorbar(volumes, margins, yerr=[[m - lo for m, lo in zip(margins, lows)],
+                                            [hi - m for m, hi in zip(margins, highs)]],
+                    fmt="none", ecolor="#777777", elinewidth=1.0, capsize=3, zorder=2,
+                    label="margin band (published alternatives)")
     # adequate: filled teal circles; not adequate: open amber triangles, and the label says so
     for adequate, marker, colour, face, legend in ((True, "o", charts.TEAL, charts.TEAL, "adequate"),
                                                    (False, "v", charts.AMBER, "white", "NOT adequate")):
@@ -85,4 +92,5 @@ def scale_up_chart(payload: dict, fmt: str) -> bytes:
 @bp.route("/scale-up", methods=["GET", "POST"])
 def scale_up():
     return calculate(_scale_request, _scale_up, _scale_result, batch=True, rows="scales", chart=scale_up_chart,
-                     lead=("name", "volume", "charge_volume", "scale_factor", "generated", "adequate", "margin"))
+                     lead=("name", "volume", "charge_volume", "scale_factor", "generated", "adequate", "margin",
+                           "margin_band.low", "margin_band.high"))

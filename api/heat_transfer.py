@@ -1,11 +1,13 @@
-"""Heat transfer: ``/v1/heat-transfer``, ``/v1/coolant-balance`` and the wall library ``/v1/materials``."""
+"""Heat transfer: ``/v1/heat-transfer``, ``/v1/coolant-balance``, the wall library ``/v1/materials`` and
+the correlation alternatives ``/v1/correlations``."""
 from flask import Blueprint
 
-from calc.films import wall
+from calc.films import selection, wall
 from calc.network import heat_transfer
 from calc.network.coolant_balance import CoolantBalance
 from schemas.heat_transfer import (CoolantBalanceRequestSchema, CoolantBalanceResultSchema,
-                                   HeatTransferRequestSchema, HeatTransferResultSchema, MaterialSchema)
+                                   CorrelationAlternativeSchema, HeatTransferRequestSchema,
+                                   HeatTransferResultSchema, MaterialSchema)
 
 from .http import calculate, list_response
 
@@ -13,6 +15,7 @@ bp = Blueprint("heat_transfer", __name__, url_prefix="/v1")
 _request, _result = HeatTransferRequestSchema(), HeatTransferResultSchema()
 _balance_request, _balance_result = CoolantBalanceRequestSchema(), CoolantBalanceResultSchema()
 _material = MaterialSchema()
+_alternative = CorrelationAlternativeSchema()
 
 
 def _network(args: dict) -> heat_transfer.HeatTransferResult:
@@ -36,3 +39,8 @@ def coolant_balance():
 @bp.get("/materials")
 def material_library():
     return list_response(wall.library(), _material)
+
+
+@bp.get("/correlations")
+def correlation_library():
+    return list_response(selection.alternatives(), _alternative)

@@ -43,3 +43,11 @@ DYNAMICS = ("Screening estimate: confirm with reaction calorimetry and plant dat
 
 #: The line under every chart.
 CHART = "Screening estimate - confirm with reaction calorimetry and plant data."
+
+#: Fits of plant data (a logged run's UA, a Wilson plot): what a fit describes, and what governs.
+FITS = (
+    "A fit describes the vessel as it was run: at the logged coolant flow, speed, fill and fouling. Carry it to "
+    "other conditions only through the correlations it calibrates, and re-measure after changes.",
+    "Screening estimate: confirm with plant data and reaction calorimetry; local codes and a licensed "
+    "engineer's review govern.",
+)

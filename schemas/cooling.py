@@ -8,7 +8,8 @@ from calc.checks import scaleup
 
 from .base import StrictSchema, finite_float
 from .candidates import SizedDesignSchema
-from .heat_transfer import HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema
+from .heat_transfer import (HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema,
+                            with_correlations)
 from .units import Quantity, absolute_temperature
 from .vessel import CoolantSchema, VesselSchema, require_agitator
 
@@ -97,6 +98,8 @@ class ScaleUpRequestSchema(StrictSchema):
     process_temperature = HeatTransferRequestSchema._declared_fields["process_temperature"]
     heat_release = fields.Nested(HeatReleaseSchema, required=True)
     safety_factor = CoolingCheckRequestSchema._declared_fields["safety_factor"]
+    correlations = HeatTransferRequestSchema._declared_fields["correlations"]
+    calibration = HeatTransferRequestSchema._declared_fields["calibration"]
     size_jacket = fields.Boolean(load_default=False,
                                  metadata={"description": "design the smallest feasible jacket or coil for each "
                                                           "generated scale (as /v1/jacket-sizing with its defaults)"})
@@ -108,6 +111,21 @@ class ScaleUpRequestSchema(StrictSchema):
     @validates_schema
     def _agitator(self, data, **kwargs):
         require_agitator(data.get("reference"), "reference")
+
+    @post_load
+    def _choose(self, data, **kwargs):
+        """The correlation choice holds at every scale: on the reference and on explicit targets."""
+        choice, calibration = data.pop("correlations", None), data.pop("calibration", None)
+        data["reference"] = with_correlations(data["reference"], choice, calibration)
+        targets = []
+        for target in data["targets"]:  # the calibrated process constant carries; the remaining resistance not
+            if isinstance(target, tuple):
+                target = (with_correlations(target[0], choice, calibration, remaining=False), target[1])
+            elif not isinstance(target, (int, float)):
+                target = with_correlations(target, choice, calibration, remaining=False)
+            targets.append(target)
+        data["targets"] = targets
+        return data
 
 
 # ---------------------------------------------------------------- results
@@ -128,8 +146,31 @@ class LimitsSchema(StrictSchema):
     required_coolant_flow_note = fields.String()
 
 
+class BandMemberSchema(StrictSchema):
+    resistance = fields.String(metadata={"description": "the resistance whose correlation this member replaces "
+                                                        "(a field of correlations), calibration, or joint"})
+    alternative = fields.String()
+    margin = fields.Float(allow_none=True)
+
+
+class MarginBandSchema(StrictSchema):
+    low = fields.Float(allow_none=True, metadata={"description": "lowest margin over the members and the nominal"})
+    high = fields.Float(allow_none=True, metadata={"description": "highest margin over the members and the nominal"})
+    basis = fields.String(metadata={"description": "published_alternatives, or calibration (the fit's intervals)"})
+    low_set_by = fields.String(metadata={"description": "the alternative that gives the low end"})
+    high_set_by = fields.String(metadata={"description": "the alternative that gives the high end"})
+    holds_across_band = fields.Boolean(metadata={"description": "the verdict is the same at every member"})
+    statement = fields.String()
+    members = fields.List(fields.Nested(BandMemberSchema))
+
+
 class CoolingCheckResultSchema(StrictSchema):
     adequate = fields.Boolean()
+    calibrated = fields.Boolean(metadata={"description": "the heat transfer uses the vessel's own measured "
+                                                         "constants (a calibration), not only published ones"})
+    margin_band = fields.Nested(MarginBandSchema, allow_none=True, metadata={
+        "description": "the margin recomputed over the published alternatives of each resistance (or the "
+                       "calibration's intervals); the verdict stays nominal margin >= safety_factor"})
     margin = fields.Float(allow_none=True, metadata={"description": "cooling capacity / heat load; null when "
                                                                      "there is no load to remove"})
     safety_factor = fields.Float()

@@ -1,9 +1,14 @@
 """Schemas of /v1/geometry, /v1/agitation, /v1/heat-transfer, /v1/coolant-balance and the libraries."""
 from __future__ import annotations
 
-from marshmallow import ValidationError, fields, validates_schema
+from dataclasses import replace
 
-from .base import StrictSchema
+from marshmallow import ValidationError, fields, post_load, pre_dump, validate, validates_schema
+
+from calc.films import coil_side, jacket_side, process_side
+from calc.films.selection import Calibration, CorrelationChoice
+
+from .base import StrictSchema, finite_float
 from .units import Quantity, absolute_temperature
 from .vessel import ChargeSchema, CoolantSchema, VesselSchema, require_agitator
 
@@ -50,8 +55,69 @@ class AgitationRequestSchema(_AgitatedVesselSchema):
     pass
 
 
+class CorrelationsSchema(StrictSchema):
+    """The correlation of each resistance (GET /v1/correlations lists the options); defaults: the library's."""
+
+    process_wall = fields.String(load_default="default", validate=validate.Length(min=1, max=60), metadata={
+        "description": "wall constant set of the impeller: an id of /v1/impellers wall_alternatives"})
+    annular_jacket = fields.String(load_default="lehrer_1970",
+                                   validate=validate.OneOf(jacket_side.ANNULAR_CORRELATIONS),
+                                   metadata={"description": "plain annular jacket film"})
+    channel = fields.String(load_default="curved", validate=validate.OneOf(jacket_side.CHANNEL_TREATMENTS),
+                            metadata={"description": "half-pipe and spiral-baffle channels: curved (coil-tube "
+                                                     "treatment) or straight (with curvature factor)"})
+    coil_tube = fields.String(load_default="schmidt_1967", validate=validate.OneOf(coil_side.COIL_CORRELATIONS),
+                              metadata={"description": "turbulent film inside coil tubes (and curved channels)"})
+
+    @post_load
+    def _build(self, data, **kwargs):
+        return CorrelationChoice(**data)
+
+
+class CalibrationSchema(StrictSchema):
+    """A vessel's own measured constants: paste the calibration object of /v1/wilson-plot."""
+
+    process_constant = finite_float(required=True, validate=validate.Range(0, 100, min_inclusive=False),
+                                    metadata={"description": "a of Nu = a Re^b Pr^c (mu/mu_w)^0.14 at the wall"})
+    process_constant_interval = fields.List(finite_float(allow_none=True), load_default=None,
+                                            validate=validate.Length(equal=2))
+    exponent = finite_float(load_default=2.0 / 3.0, validate=validate.Range(0.3, 1.0))
+    prandtl_exponent = finite_float(load_default=1.0 / 3.0, validate=validate.Range(0.2, 0.5))
+    remaining_resistance = Quantity("fouling resistance", load_default=None, minimum=0,
+                                    description="measured wall + fouling + coolant film of the jacket")
+    remaining_resistance_interval = fields.List(Quantity("fouling resistance"), load_default=None,
+                                                validate=validate.Length(equal=2))
+
+    @post_load
+    def _build(self, data, **kwargs):
+        interval = data["process_constant_interval"]
+        if interval is not None:
+            interval = tuple(float("inf") if v is None else v for v in interval)
+        remaining = data["remaining_resistance_interval"]
+        return Calibration(data["process_constant"], interval, data["exponent"], data["prandtl_exponent"],
+                           data["remaining_resistance"], None if remaining is None else tuple(remaining))
+
+
+def with_correlations(vessel, choice, calibration=None, remaining=True):
+    """The vessel carrying the request's correlation choice and calibration (kept by scale-up's similar vessels)."""
+    if vessel is None or (choice is None and calibration is None):
+        return vessel
+    choice = (choice or vessel.correlations).calibrated(calibration, remaining)
+    return replace(vessel, correlations=choice)
+
+
 class HeatTransferRequestSchema(_AgitatedVesselSchema):
     coolant = fields.Nested(CoolantSchema, required=True)
+    correlations = fields.Nested(CorrelationsSchema, load_default=None)
+    calibration = fields.Nested(CalibrationSchema, load_default=None, metadata={
+        "description": "the vessel's own measured constants (from /v1/wilson-plot): results say calibrated and "
+                       "the margin band spans the fit's intervals"})
+
+    @post_load
+    def _choose(self, data, **kwargs):
+        data["vessel"] = with_correlations(data["vessel"], data.pop("correlations", None),
+                                           data.pop("calibration", None))
+        return data
 
 
 class CoolantBalanceRequestSchema(StrictSchema):
@@ -168,13 +234,35 @@ class CoolantBalanceResultSchema(StrictSchema):
 
 class FilmConstantsSchema(StrictSchema):
     correlation = fields.String()
+    equation = fields.String(metadata={"description": "the equation with every factor applied"})
     a = fields.Float()
     b = fields.Float()
     c = fields.Float()
     d = fields.Float()
+    e = fields.Float(attribute="height_exponent",
+                     metadata={"description": "exponent on the liquid height over tank diameter H/T"})
     re_low = fields.Float(allow_none=True)
     re_high = fields.Float(allow_none=True)
+    baffled = fields.Boolean(allow_none=True, metadata={"description": "basis of the fit; null: either"})
     source = fields.String()
+
+    @pre_dump
+    def _equation(self, constants, **kwargs):
+        shaped = {name: getattr(constants, name) for name in (
+            "correlation", "a", "b", "c", "d", "height_exponent", "re_low", "re_high", "baffled", "source")}
+        return shaped | {"equation": process_side.CORRELATIONS[constants.correlation].equation}
+
+
+class TransitionSchema(StrictSchema):
+    re_from = fields.Float()
+    re_to = fields.Float()
+    rule = fields.String()
+
+
+class WallAlternativeSchema(StrictSchema):
+    id = fields.String(metadata={"description": "what correlations.process_wall takes"})
+    constants = fields.List(fields.Nested(FilmConstantsSchema))
+    transitions = fields.List(fields.Nested(TransitionSchema))
 
 
 class ImpellerSchema(StrictSchema):
@@ -187,9 +275,37 @@ class ImpellerSchema(StrictSchema):
     laminar_constant = fields.Float()
     laminar_constant_source = fields.String()
     wall = fields.List(fields.Nested(FilmConstantsSchema))
+    wall_transitions = fields.List(fields.Nested(TransitionSchema),
+                                   metadata={"description": "how one wall constant set hands over to the next"})
+    wall_alternatives = fields.List(fields.Nested(WallAlternativeSchema), metadata={
+        "description": "every published wall constant set ('default' is the wall's); correlations.process_wall "
+                       "chooses one"})
     bottom_head = fields.List(fields.Nested(FilmConstantsSchema))
     coil = fields.List(fields.Nested(FilmConstantsSchema))
     source = fields.String(attribute="wall_source")
+
+    @pre_dump
+    def _alternatives(self, info, **kwargs):
+        shaped = {name: getattr(info, name) for name in (
+            "id", "name", "power_number", "power_number_source", "unbaffled_power_number",
+            "unbaffled_power_number_source", "laminar_constant", "laminar_constant_source", "wall",
+            "bottom_head", "coil", "wall_source")}
+        return shaped | {
+            "wall_transitions": process_side.transitions(info.wall),
+            "wall_alternatives": [{"id": key, "constants": bands, "transitions": process_side.transitions(bands)}
+                                  for key, bands in process_side.wall_alternatives(info.id).items()]}
+
+
+class CorrelationAlternativeSchema(StrictSchema):
+    resistance = fields.String(metadata={"description": "the field of the request's correlations object"})
+    id = fields.String(metadata={"description": "what that field takes"})
+    name = fields.String()
+    default = fields.Boolean()
+    applies_to = fields.String()
+    source = fields.String()
+    validity = fields.Dict(keys=fields.String(), values=fields.Raw(),
+                           metadata={"description": "published range per quantity, [low, high] (null = open)"})
+    constants = fields.Dict(keys=fields.String(), values=fields.Raw(), metadata={"description": "constants used"})
 
 
 class MaterialSchema(StrictSchema):

@@ -61,6 +61,8 @@ def _field(field: fields.Field, refs: dict[str, type], response: bool = False, r
         out = {"type": "integer"}
     elif isinstance(field, (fields.Float, fields.Number)):
         out = {"type": "number"}
+    elif type(field) is fields.Raw:  # any JSON value
+        out = {}
     else:
         out = {"type": "string"}
     for validator in getattr(field, "validators", []):
@@ -251,13 +253,18 @@ def paths() -> dict:
         if calc.example is not None:
             body_media["examples"] = {"demo": {"summary": "the demo scenario (examples/)",
                                                "value": json.loads((EXAMPLES / calc.example).read_text())}}
+        body_content = {"application/json": body_media}
+        if calc.csv_upload:
+            body_content["text/csv"] = {"schema": {"type": "string", "description": (
+                "the series as CSV: a header naming each column and its unit in brackets, other fields as "
+                "query parameters")}}
         out[calc.path] = {
             "get": common | {"operationId": "get" + operation_id,
                              "parameters": params + required_query(calc.request) + [_QUERY_OBJECT],
                              "responses": with_common_problems({"200": _ok(calc.response, calc.media),
                                                                 "401": _PROBLEM, "422": _PROBLEM})},
             "post": common | {"operationId": "post" + operation_id, "parameters": params,
-                              "requestBody": {"required": True, "content": {"application/json": body_media}},
+                              "requestBody": {"required": True, "content": body_content},
                               "responses": with_common_problems({"200": ok, "400": _PROBLEM, "401": _PROBLEM,
                                                                  "413": _PROBLEM, "415": _PROBLEM,
                                                                  "422": _PROBLEM})},

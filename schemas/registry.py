@@ -7,9 +7,11 @@ from dataclasses import dataclass
 
 from .heat_transfer import (AgitationRequestSchema, AgitationResultSchema, CoolantBalanceRequestSchema,
                             CoolantBalanceResultSchema, GeometryRequestSchema, GeometryResultSchema,
-                            HeatTransferRequestSchema, HeatTransferResultSchema, ImpellerSchema, MaterialSchema)
+                            HeatTransferRequestSchema, HeatTransferResultSchema, ImpellerSchema, MaterialSchema,
+                            CorrelationAlternativeSchema)
 from .cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
                       ScaleUpResultSchema)
+from .fits import UAFitRequestSchema, UAFitResultSchema, WilsonRequestSchema, WilsonResultSchema
 from .properties import FluidSchema, PropertiesQuerySchema, PropertiesResultSchema
 from .records import RecordListSchema, RecordSchema, StepRecordSchema, UtilityRecordSchema, VesselRecordSchema
 from .screening import ScreeningListSchema, ScreeningRequestSchema, ScreeningResultSchema
@@ -32,6 +34,7 @@ class Calculation:
     media: tuple = ("text/csv", "text/plain")  # besides application/json
     batch: bool = False
     example: str | None = None  # a request file in examples/, shown in the contract
+    csv_upload: bool = False  # POST also takes the series as text/csv (header: column [unit])
 
 
 @dataclass(frozen=True)
@@ -128,11 +131,32 @@ CALCULATIONS = [
                 "calorimetry and plant data; local codes and a licensed engineer's review govern.",
                 CSTRRequestSchema, CSTRResultSchema, media=("text/csv", "text/plain", "image/svg+xml", "image/png"),
                 example="cstr_steady_states.json"),
+    Calculation("/v1/ua-fit", "plant data", "UA of a vessel from a logged heat-up or cool-down",
+                "Least squares on the batch energy balance M c_p dT/dt = -UA_eff (T - T_in) + shaft power - heat "
+                "loss (solve_ivp between the logged coolant inlet temperatures), with the coolant-side balance "
+                "when the outlet and flow are logged: UA with its 95 % interval, the fit's time constant, "
+                "residuals; format=svg or png draws data, fit and residuals. The series are JSON arrays (any "
+                "unit per field) or, POSTed as text/csv, a log whose header names each column and its unit "
+                "(time [min],contents_temperature [degC],coolant_inlet_temperature [degC]) with the other fields "
+                "as query parameters. A series that cannot determine UA (too short, a clock that does not "
+                "increase, no driving force) is a 422 saying why.",
+                UAFitRequestSchema, UAFitResultSchema, media=("text/csv", "text/plain", "image/svg+xml", "image/png"),
+                example="ua_fit_water_run.json", csv_upload=True),
+    Calculation("/v1/wilson-plot", "plant data", "The vessel's own process-side constant from runs at several speeds",
+                "Wilson (1915): 1/U = R_rem + (T/(a k Pr^c)) Re^-b over runs that differ only in agitator speed; "
+                "least squares gives the process constant a of Nu = a Re^b Pr^c (mu/mu_w)^0.14 and the remaining "
+                "resistance (wall + fouling + service film), each with its 95 % interval, and a calibration "
+                "object ready for a cooling check or scale-up. Runs give U, UA or a logged series (fitted as in "
+                "/v1/ua-fit). format=svg or png draws 1/U against Re^-b.",
+                WilsonRequestSchema, WilsonResultSchema, media=("text/csv", "text/plain", "image/svg+xml", "image/png"),
+                example="wilson_plot_runs.json"),
 ]
 LIBRARIES = [
     Library("/v1/impellers", "libraries", "The impeller library with power numbers, film constants and sources",
             ImpellerSchema),
     Library("/v1/materials", "libraries", "The wall-material library with conductivities and sources", MaterialSchema),
+    Library("/v1/correlations", "libraries", "Every published alternative of each resistance, with source, validity "
+            "range and constants (what the correlations object of a request chooses)", CorrelationAlternativeSchema),
 ]
 
 

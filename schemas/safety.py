@@ -19,6 +19,7 @@ from .base import StrictSchema, finite_float, whole_number
 from .heat_transfer import warning_list
 from .units import Quantity, absolute_temperature, non_negative, positive
 from .vessel import CoolantSchema, VesselSchema, _LiquidFields, require_agitator
+from .heat_transfer import CalibrationSchema, CorrelationsSchema, with_correlations
 
 MAX_SPECIES = 20
 MAX_REACTIONS = 20
@@ -254,10 +255,19 @@ class SimulationVesselSchema(StrictSchema):
     vessel = fields.Nested(VesselSchema, required=True)
     contents = fields.Nested(ContentsSchema, required=True)
     coolant = fields.Nested(CoolantSchema, required=True)
+    correlations = fields.Nested(CorrelationsSchema, load_default=None)
+    calibration = fields.Nested(CalibrationSchema, load_default=None, metadata={
+        "description": "the vessel's own measured constants (from /v1/wilson-plot); the run's UA uses them"})
 
     @validates_schema
     def _agitator(self, data, **kwargs):
         require_agitator(data.get("vessel"), "vessel", "required for the vessel's films and shaft power")
+
+    @post_load
+    def _choose(self, data, **kwargs):
+        data["vessel"] = with_correlations(data["vessel"], data.pop("correlations", None),
+                                           data.pop("calibration", None))
+        return data
 
 
 class SimulationRequestSchema(StrictSchema):

@@ -39,7 +39,8 @@ from serving import ROOT
 # Examples per operation in the fuzzing phase; total time grows linearly with this and the number of operations.
 MAX_EXAMPLES = 25
 # s for all the calls together, so `make test` stays fast as the contract grows. The catalogue's 30 operations added
-# about 60 s of calls on a machine shared by several test runs (the calculations took about 140 s there).
+# about 60 s of calls on a machine shared by several test runs (the calculations took about 140 s there;
+# the margin band adds about 30 % per cooling check).
 FUZZ_BUDGET = 300.0
 # s for one operation: past it, its remaining cases are not sent (a jacket sizing evaluates ~100 designs per
 # valid request, ~0.5 s; the coverage phase sends many valid variants of the example)

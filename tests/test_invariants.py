@@ -97,13 +97,14 @@ def test_more_coolant_flow_never_removes_less(case, more):
 def test_colder_coolant_never_removes_less_in_turbulent_flow(case, colder):
     # Restricted to turbulent coolant flow: in transitional flow a colder, more viscous coolant can lose
     # more film coefficient than it gains driving force, and the correlations say so (found by this suite).
+    # Coils and curved jacket channels are transitional up to Re = 2.2e4 (Schmidt 1967; VDI Heat Atlas Gc).
     vessel, charge, coolant, process, _ = case
     base = _network(case)
     low, _ = coolant.liquid.liquid_range()
     cold_inlet = max(coolant.inlet_temperature - colder, low + 0.5)
     assume(cold_inlet < coolant.inlet_temperature)
     cooler = heat_transfer(vessel, charge, replace(coolant, inlet_temperature=cold_inlet), process)
-    assume(min(_service_reynolds(base), _service_reynolds(cooler)) >= 1e4)
+    assume(min(_service_reynolds(base), _service_reynolds(cooler)) >= 2.2e4)
     assert cooler.duty > base.duty
 
 

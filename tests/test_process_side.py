@@ -31,12 +31,35 @@ def test_rushton_wall_film_hand_calculation():
     assert not film.warnings
 
 
-def test_rushton_low_reynolds_band():
-    # Coker (2001) Table 7-14: a = 0.54 below Re = 400, 0.74 above (same exponents): ratio 0.74/0.54.
-    below = process_film_jacket("rushton_turbine", 399.0, WATER_30C, WATER_30C.viscosity, 1.8, 1.8)
-    above = process_film_jacket("rushton_turbine", 401.0, WATER_30C, WATER_30C.viscosity, 1.8, 1.8)
+def test_rushton_published_values_kept_outside_the_blend():
+    # Coker (2001) Table 7-14: a = 0.54 below Re = 400, 0.74 above (same exponents). Outside the blend
+    # band (one decade centred on 400: 126.5 to 1265) each published value stands exactly.
+    low, high = process_side.blend_range(400.0)
+    assert (low, high) == pytest.approx((400 / 10 ** 0.5, 400 * 10 ** 0.5))
+    below = process_film_jacket("rushton_turbine", 120.0, WATER_30C, WATER_30C.viscosity, 1.8, 1.8)
+    above = process_film_jacket("rushton_turbine", 1300.0, WATER_30C, WATER_30C.viscosity, 1.8, 1.8)
     assert below.constant_a == 0.54 and above.constant_a == 0.74
-    assert above.nusselt / below.nusselt == pytest.approx(0.74 / 0.54 * (401 / 399) ** 0.67, rel=1e-12)
+    assert below.nusselt == pytest.approx(0.54 * 120 ** 0.67 * WATER_30C.prandtl ** 0.33, rel=1e-12)
+    middle = process_film_jacket("rushton_turbine", 400.0, WATER_30C, WATER_30C.viscosity, 1.8, 1.8)
+    assert middle.constant_a == pytest.approx(0.5 * (0.54 + 0.74), rel=1e-12)  # w = 1/2 at the switch
+
+
+def test_rushton_film_smooth_in_speed_across_the_switch():
+    # Issue found by an independent check: h jumped +37 % between Re 398 and 401. Scan the agitator speed
+    # finely across the whole blend (Re 100-2000): h must rise with speed and no step may exceed what
+    # the Re^0.67 power law alone gives plus a small allowance (the blend's slope), i.e. no jump.
+    import numpy as np
+    speeds = np.geomspace(0.5, 25.0, 3000)  # rev/s; 0.3 m impeller in a viscous liquid (0.9 Pa s)
+    props = LiquidProperties(303.15, 1000.0, 2000.0, 0.9, 0.15)
+    res = [1000.0 * n * 0.09 / 0.9 for n in speeds]
+    assert res[0] < 100 and res[-1] > 1500
+    h = np.array([process_film_jacket("rushton_turbine", Re, props, 0.9, 1.0, 1.0).h for Re in res])
+    ratio = h[1:] / h[:-1]
+    step = speeds[1] / speeds[0]
+    assert np.all(ratio > 1.0)
+    # power law alone: step**0.67; the blend adds about ln(0.74/0.54) * max dw/dlog10(Re) (1.5) per decade;
+    # allow 2 (a jump of 37 % at one step would exceed this by orders of magnitude)
+    assert ratio.max() < step ** 0.67 * (0.74 / 0.54) ** (2.0 * np.log10(step)) * (1 + 1e-9)
 
 
 def test_pitched_blade_height_factor():
@@ -196,3 +219,12 @@ def test_coil_film_rises_with_reynolds(impeller, re1, re2):
     h = [process_film_coil(impeller, Re, WATER_30C, WATER_30C.viscosity, 1.8, 1.8, 0.05, 0.6).h
          for Re in (low, high)]
     assert h[1] > h[0]
+
+
+def test_every_published_constant_set_hands_over_without_a_jump():
+    # Every library and alternative wall set of every impeller either meets its neighbour (different Re
+    # exponents) or differs from it only in a (blended): checked by switch_reynolds for the whole library.
+    for impeller in IMPELLERS:
+        for bands in process_side.wall_alternatives(impeller).values():
+            for transition in process_side.transitions(bands):
+                assert transition["re_from"] <= transition["re_to"]

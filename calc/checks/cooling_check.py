@@ -44,6 +44,7 @@ from calc.cautions import COOLING_CHECK, DOSING, ENDOTHERMIC
 from calc.deadline import NEVER, Deadline
 from calc.network import coolant_balance, vectorised
 from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
+from calc.checks.margin_band import MarginBand, margin_band
 from calc.network.flow_limit import FlowLimit, flow_limit
 from calc.network.heat_transfer import HeatTransferResult, Network, assemble, heat_transfer, solve
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings
@@ -133,6 +134,8 @@ class CoolingCheck:
     limits: Limits | None
     warnings: Warnings = field(default_factory=Warnings)
     cautions: tuple[str, ...] = COOLING_CHECK
+    margin_band: MarginBand | None = None  # the margin over the published alternatives (calc.checks.margin_band)
+    calibrated: bool = False
 
     @property
     def limit_values(self) -> LimitValues:
@@ -420,12 +423,12 @@ def _solve_limits(network: Network, result: HeatTransferResult, target: float, l
 
 def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
                   heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
-                  limits: bool = True, deadline: Deadline = NEVER) -> CoolingCheck:
+                  limits: bool = True, deadline: Deadline = NEVER, band: bool = True) -> CoolingCheck:
     """Compare the cooling capacity at ``process_temperature`` (K) with the heat load.
 
-    ``limits=False`` skips the three solved limits (``CoolingCheck.limits`` is then None), for
-    callers that need only the verdict. The limit searches stop with :class:`calc.deadline.OutOfTime`
-    once ``deadline`` has passed.
+    ``limits=False`` skips the three solved limits (``CoolingCheck.limits`` is then None), and
+    ``band=False`` the margin band, for callers that need only the verdict. The limit searches stop with
+    :class:`calc.deadline.OutOfTime` once ``deadline`` has passed.
     """
     safety_factor = _check_safety_factor(safety_factor)
     network = assemble(vessel, charge, coolant, process_temperature)
@@ -462,5 +465,18 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         else:
             warmest, needed = _solve_limits(network, result, target, limit, deadline)
         solved = Limits(dosing, warmest, needed)
+    spread = None
+    if band:
+        spread = margin_band(vessel, charge, coolant, process_temperature, result, load.total, margin, safety_factor)
+        if not spread.holds_across_band:
+            warnings.add(CalcWarning("verdict_not_robust", spread.statement))
+    cal = vessel.correlations.calibration
+    calibrated = cal is not None
+    if cal is not None:
+        warnings.add(CalcWarning("calibrated", f"calibrated: the process film uses the vessel's own constant a = "
+                                               f"{cal.process_constant:.4g}" + (
+            "" if vessel.correlations.remaining_resistance is None else
+            f" and the measured remaining resistance {vessel.correlations.remaining_resistance:.4g} m2 K/W")
+            + "; the margin band spans the fit's 95 % intervals"))
     return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings,
-                        check_cautions(heat_release))
+                        check_cautions(heat_release), spread, calibrated)

@@ -380,6 +380,13 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
     targets = _check_targets(targets, max_targets)
     warnings = Warnings()
 
+    calibration = reference.correlations.calibration
+    if calibration is not None:
+        warnings.add(CalcWarning(
+            "calibration_carried",
+            f"the reference vessel's calibrated process constant a = {calibration.process_constant:.4g} (its own "
+            "Wilson plot) is carried to the larger similar vessels, which share impeller and geometry ratios; their "
+            "wall, fouling and coolant film are computed from the published correlations"))
     with fields_renamed({"vessel": "reference"}):
         first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits,
                               deadline)

@@ -1,8 +1,12 @@
-"""Coolant-side film coefficients inside helical coils (tube side), curvature-corrected.
+"""Coolant-side film coefficients in curved channels: inside helical coils (tube side), and the
+half-pipe and spiral-baffle jacket channels when treated as curved (``channel="curved"``).
 
-Laminar below Schmidt's critical Reynolds number, turbulent above it (Schmidt 1967, or Mori &
-Nakayama 1967), each registered with its source and validity range in :data:`CORRELATIONS`. The
-result is the jackets' :class:`calc.films.jacket_side.CoolantFilm`.
+Laminar below Schmidt's critical Reynolds number, fully turbulent above Re = 2.2e4 (Schmidt 1967, or
+Mori & Nakayama 1967), and in between the linear interpolation of Gnielinski's method for helically
+coiled tubes (VDI Heat Atlas, chapter Gc; from memory): Schmidt's own transitional formula starts
+30-50 % above his laminar one at Re_crit, a jump this rule avoids. Each correlation is registered with
+its source and validity range in :data:`CORRELATIONS`. The result is the jackets'
+:class:`calc.films.jacket_side.CoolantFilm`.
 """
 from __future__ import annotations
 
@@ -87,7 +91,8 @@ def Nu_coil_turbulent_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
     ----------
     Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
     """
-    return arrays.where(Re <= 2.2e4,
+    return arrays.where(Re < 2.2e4,  # the second range from 2.2e4 on (meets the transition)
+
                         0.023 * (1 + 14.8 * (1 + r) * r ** (1 / 3)) * Re ** (0.8 - 0.22 * r ** 0.1) * Pr ** (1 / 3),
                         0.023 * (1 + 3.6 * (1 - r) * r ** 0.8) * Re ** 0.8 * Pr ** (1 / 3))
 
@@ -131,7 +136,61 @@ def Nu_coil_turbulent_Mori_Nakayama_1967(Re: float, Pr: float, r: float) -> floa
                         Pr ** 0.4 / 41 * Re ** (5 / 6) * r ** (1 / 12) * (1 + 0.061 / (Re * r ** 2.5) ** (1 / 6)))
 
 
+
+
+#: Fully turbulent flow in a helical coil above this Reynolds number (Schmidt 1967; VDI Heat Atlas Gc).
+COIL_TURBULENT_REYNOLDS = 2.2e4
+
+
+def Nu_coil_transition_Gnielinski_1986(Re: float, Pr: float, r: float, turbulent=Nu_coil_turbulent_Schmidt_1967) -> float:
+    """Transitional flow in a helical coil: linear interpolation in Re, Gnielinski's rule for coiled tubes.
+
+    Nu = g Nu_lam(Re_crit) + (1 - g) Nu_turb(2.2e4),  g = (2.2e4 - Re)/(2.2e4 - Re_crit),
+    Re_crit = 2300 (1 + 8.6 r^0.45); Nu_lam is Schmidt's laminar form, Nu_turb the chosen turbulent one.
+
+    Parameters
+    ----------
+    Re : float
+        Reynolds number on the tube inside (or channel equivalent) diameter, [-]
+    Pr : float
+        Prandtl number, [-]
+    r : float
+        Diameter over curvature diameter, [-]
+    turbulent : callable
+        Turbulent correlation Nu(Re, Pr, r), [-]
+
+    Returns
+    -------
+    Nu : float
+        Nusselt number, [-]
+
+    Notes
+    -----
+    Re_crit <= Re <= 2.2e4. Continuous with both neighbours by construction.
+
+    Examples
+    --------
+    >>> Re_crit = coil_critical_reynolds_Schmidt_1967(0.05)
+    >>> Nu_coil_transition_Gnielinski_1986(Re_crit, 5.0, 0.05) == Nu_coil_laminar_Schmidt_1967(Re_crit, 5.0, 0.05)
+    True
+
+    References
+    ----------
+    Gnielinski, V. "Heat transfer and pressure drop in helically coiled tubes". Proc. 8th Int. Heat
+    Transfer Conf., San Francisco, vol. 6, 2847-2854 (1986) (from memory); VDI Heat Atlas, 2nd ed., Springer
+    2010, chapter Gc.
+    """
+    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
+    weight = arrays.clip((COIL_TURBULENT_REYNOLDS - Re) / (COIL_TURBULENT_REYNOLDS - Re_crit), 0.0, 1.0)
+    return (weight * Nu_coil_laminar_Schmidt_1967(Re_crit, Pr, r)
+            + (1.0 - weight) * turbulent(COIL_TURBULENT_REYNOLDS, Pr, r))
+
+
 CORRELATIONS: dict[str, Correlation] = {
+    "gnielinski_coil_transition": Correlation(
+        "Gnielinski (1986), coiled-tube transition interpolation", Nu_coil_transition_Gnielinski_1986,
+        "Gnielinski, 8th Int. Heat Transfer Conf. (1986), as in the " + VDI_HEAT_ATLAS + ", chapter Gc (from memory)",
+        {"Re": (None, 2.2e4)}),
     "schmidt_1967_laminar": Correlation(
         "Schmidt (1967), laminar", Nu_coil_laminar_Schmidt_1967,
         "Schmidt, Chem. Ing. Tech. 39, 781 (1967); " + VDI_HEAT_ATLAS, {"Re": (100.0, None)}),
@@ -146,12 +205,19 @@ CORRELATIONS: dict[str, Correlation] = {
 COIL_CORRELATIONS = ("schmidt_1967", "mori_nakayama_1967")
 
 
+def _check_correlation(correlation: str) -> None:
+    if correlation not in COIL_CORRELATIONS:
+        raise InputError("correlations.coil_tube", f"unknown option {correlation!r}; known: "
+                                                   f"{', '.join(COIL_CORRELATIONS)}")
+
+
 def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant_props: LiquidProperties,
                       mass_flow: float, mu_wall: float, pitch: float | None = None, parallel_tubes: int = 1,
                       correlation: str = "schmidt_1967") -> CoolantFilm:
     """Coolant film coefficient inside a helical coil, on the tube inside area.
 
-    Laminar below Re_crit (Schmidt 1967, VDI form), turbulent above (``correlation``); both times
+    Laminar below Re_crit (Schmidt 1967, VDI form), turbulent above 2.2e4 (``correlation``), interpolated
+    between (:func:`Nu_coil_transition_Gnielinski_1986`); all times
     (mu/mu_w)^0.14 (Sieder & Tate's viscosity correction, common practice). With a pitch, the curvature
     diameter is D_c [1 + (p/(pi D_c))^2] (VDI Heat Atlas, Gc).
 
@@ -202,27 +268,50 @@ class _CoilFlow(NamedTuple):
     critical_reynolds: float
 
 
-def coil_flow(props, mass_flow, mu_wall, rho_wall, d, D_c, correlation, beta=None, dT=None,
+def coil_flow(props, mass_flow, mu_wall, rho_wall, d, D_c, correlation, area=None, beta=None, dT=None,
               warnings=None) -> _CoilFlow:
-    """Film inside a helical coil tube at a coolant state (floats or arrays): laminar below Re_crit, else
-    the turbulent ``correlation``; both times (mu/mu_w)^0.14."""
-    velocity = mass_flow / (props.density * math.pi / 4 * d * d)
+    """Film in a coil tube or curved channel at a coolant state (floats or arrays): Schmidt laminar below
+    Re_crit, Gnielinski's interpolation to 2.2e4, the turbulent ``correlation`` above; times (mu/mu_w)^0.14.
+    ``d`` is the (equivalent) diameter, ``area`` the flow area (default the tube's pi d^2/4)."""
+    area = math.pi / 4 * d * d if area is None else area
+    velocity = mass_flow / (props.density * area)
     Re = props.density * velocity * d / props.viscosity
     Pr = props.prandtl
     r = d / D_c
     Re_crit = coil_critical_reynolds_Schmidt_1967(r)
+    turbulent = CORRELATIONS[correlation].function
     Nu = arrays.where(Re < Re_crit, Nu_coil_laminar_Schmidt_1967(Re, Pr, r),
-                      CORRELATIONS[correlation].function(Re, Pr, r))
+                      arrays.where(Re < COIL_TURBULENT_REYNOLDS, Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent),
+                                   turbulent(Re, Pr, r)))
     Nu = Nu * (props.viscosity / mu_wall) ** 0.14
     return _CoilFlow(Nu * props.thermal_conductivity / d, Re, velocity, Nu, Re_crit)
+
+
+def _describer(d: float, D_c: float, correlation: str):
+    def describe(props, flow: _CoilFlow, warnings: Warnings) -> CoolantFilm:
+        Re, r = flow.reynolds, d / D_c
+        key = ("schmidt_1967_laminar" if Re < flow.critical_reynolds else
+               "gnielinski_coil_transition" if Re < COIL_TURBULENT_REYNOLDS else correlation)
+        entry = CORRELATIONS[key]
+        entry.check(warnings, Re=Re, **{"Re r^2": Re * r * r})
+        regime = flow_warnings(warnings, Re, flow.velocity, flow.critical_reynolds, entry.name)
+        if regime != "laminar":
+            regime = "turbulent" if Re >= COIL_TURBULENT_REYNOLDS else "transitional"
+        return CoolantFilm(flow.h, Re, flow.velocity, entry.name, flow.nusselt, props.prandtl, d, regime, warnings)
+    return describe
+
+
+def curved_formula(d_e: float, d_curve: float, area: float, share: float, correlation: str) -> FilmFormula:
+    """A curved jacket channel (half pipe, spiral baffle) treated as a coil tube of diameter De, curvature De/D_c."""
+    _check_correlation(correlation)
+    return FilmFormula(coil_flow, {"d": d_e, "D_c": d_curve, "correlation": correlation, "area": area}, share,
+                       _describer(d_e, d_curve, correlation))
 
 
 def coil_film_formula(tube_inner_diameter: float, helix_diameter: float, pitch: float | None = None,
                       parallel_tubes: int = 1, correlation: str = "schmidt_1967") -> FilmFormula:
     """The coil's coolant film as a :class:`~calc.films.jacket_side.FilmFormula` (geometry checked once)."""
-    if correlation not in COIL_CORRELATIONS:
-        raise InputError("vessel.coils.correlation", f"unknown option {correlation!r}; known: "
-                                                     f"{', '.join(COIL_CORRELATIONS)}")
+    _check_correlation(correlation)
     d = require_positive("vessel.coils.tube_wall", tube_inner_diameter)  # the bore left by the wall
     D_c = require_positive("vessel.coils.helix_diameter", helix_diameter)
     if D_c <= d:
@@ -232,13 +321,5 @@ def coil_film_formula(tube_inner_diameter: float, helix_diameter: float, pitch: 
     if pitch is not None:
         D_c *= 1 + (require_positive("vessel.coils.pitch", pitch) / (math.pi * D_c)) ** 2
 
-    def describe(props, flow: _CoilFlow, warnings: Warnings) -> CoolantFilm:
-        Re, r = flow.reynolds, d / D_c
-        entry = CORRELATIONS["schmidt_1967_laminar" if Re < flow.critical_reynolds else correlation]
-        entry.check(warnings, Re=Re, **{"Re r^2": Re * r * r})
-        regime = flow_warnings(warnings, Re, flow.velocity, flow.critical_reynolds, entry.name)
-        if regime != "laminar":
-            regime = "turbulent" if Re >= 2.2e4 else "transitional"
-        return CoolantFilm(flow.h, Re, flow.velocity, entry.name, flow.nusselt, props.prandtl, d, regime, warnings)
-
-    return FilmFormula(coil_flow, {"d": d, "D_c": D_c, "correlation": correlation}, 1.0 / parallel_tubes, describe)
+    return FilmFormula(coil_flow, {"d": d, "D_c": D_c, "correlation": correlation, "area": math.pi / 4 * d * d},
+                       1.0 / parallel_tubes, _describer(d, D_c, correlation))

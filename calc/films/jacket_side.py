@@ -15,8 +15,19 @@ Jacket types (``JacketSpec.type``):
 - ``none``: no jacket; asking for its film is an input error.
 
 ``passes`` splits the flow into that many equal zones fed in parallel (each with 1/passes of the flow and
-1/passes of the jacket height). The spiral-baffle and half-pipe channels share one set of tube
-correlations (laminar, transitional, turbulent with the curvature factor 1 + 3.5 De/D_c).
+1/passes of the jacket height). The spiral-baffle and half-pipe channels are coiled channels; two
+treatments are offered (``JacketSpec.channel``):
+
+- ``curved`` (default): the treatment of helical coil tubes (:mod:`calc.films.coil_side`) on the
+  channel's equivalent diameter with r = De/D_c: Schmidt's (1967) laminar correlation up to his
+  critical Reynolds number 2300 (1 + 8.6 r^0.45), Gnielinski's interpolation up to 2.2e4, Schmidt (or
+  Mori & Nakayama) above. Curvature delays the transition (Re_crit about 8000 for a half pipe of
+  De/D_c = 0.08) and raises laminar heat transfer through secondary (Dean) flow, which a coiled
+  channel has as much as a coiled tube; so the coil's treatment applies.
+- ``straight``: straight-tube correlations (Sieder & Tate laminar below 2100, Gnielinski's 2013
+  interpolation, Sieder & Tate turbulent above 1e4 with the curvature factor 1 + 3.5 De/D_c), as in the
+  half-pipe method usually attributed to Garvin (CEP 1999, from memory). It gives about a third of
+  the curved value in laminar glycol flow; the margin band shows both.
 """
 from __future__ import annotations
 
@@ -430,6 +441,8 @@ CORRELATIONS: dict[str, Correlation] = {
 }
 #: Options of ``JacketSpec.correlation`` for plain annular jackets.
 ANNULAR_CORRELATIONS = ("lehrer_1970", "stein_schmidt_1993")
+#: Options of ``JacketSpec.channel`` for half-pipe and spiral-baffle channels (see the module notes).
+CHANNEL_TREATMENTS = ("curved", "straight")
 
 
 # ---------------------------------------------------------------- inputs and results
@@ -452,6 +465,8 @@ class JacketSpec:
     correlation: str = "lehrer_1970"  # annular only: one of ANNULAR_CORRELATIONS
     pipe_section_angle: float = math.pi  # half pipe: pi for 180 degree, 2 pi/3 for 120 degree
     roughness: float = 0.0  # wall roughness, m
+    channel: str = "curved"  # half pipe, spiral baffle: one of CHANNEL_TREATMENTS
+    channel_turbulent: str = "schmidt_1967"  # curved channels: the coil-tube turbulent correlation
 
 
 @dataclass(frozen=True)
@@ -561,7 +576,15 @@ def _describe_channel(props, flow: _ChannelFlow, warnings: Warnings, d_e: float)
                       warnings)
 
 
-def _channel_formula(area, d_e, length, d_curve, share) -> FilmFormula:
+def _channel_formula(area, d_e, length, d_curve, share, jacket) -> FilmFormula:
+    """The channel's film: the curved (coil-tube) treatment on De and De/D_c, or the straight one."""
+    if jacket.channel not in CHANNEL_TREATMENTS:
+        raise InputError("correlations.channel", f"unknown option {jacket.channel!r}; known: "
+                                                 f"{', '.join(CHANNEL_TREATMENTS)}")
+    if jacket.channel == "curved":
+        from calc.films import coil_side  # coil_side builds on this module's CoolantFilm and FilmFormula
+
+        return coil_side.curved_formula(d_e, d_curve, area, share, jacket.channel_turbulent)
     return FilmFormula(channel_flow, {"area": area, "d_e": d_e, "length": length, "d_curve": d_curve}, share,
                        lambda props, flow, warnings: _describe_channel(props, flow, warnings, d_e))
 
@@ -606,7 +629,7 @@ def _spiral_baffle(jacket, D_o, H, warnings) -> FilmFormula:
     d_curve = D_o + gap
     turns = H / pitch
     length = turns * math.hypot(math.pi * d_curve, pitch)
-    return _channel_formula(pitch * gap, 4.0 * gap, length, d_curve, 1.0 - bypass)
+    return _channel_formula(pitch * gap, 4.0 * gap, length, d_curve, 1.0 - bypass, jacket)
 
 
 def _half_pipe(jacket, D_o, H, warnings) -> FilmFormula:
@@ -622,7 +645,7 @@ def _half_pipe(jacket, D_o, H, warnings) -> FilmFormula:
     area = d * d / 8.0 * (theta - math.sin(theta))  # circular segment
     d_e = 4.0 * area / chord  # heat-transfer equivalent diameter (pi d/2 for 180 degrees)
     length = H / pitch * math.hypot(math.pi * D_o, pitch)
-    return _channel_formula(area, d_e, length, D_o, 1.0)
+    return _channel_formula(area, d_e, length, D_o, 1.0, jacket)
 
 
 def _no_jacket(*_args) -> FilmFormula:

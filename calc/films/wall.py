@@ -309,6 +309,29 @@ def overall_from_layers(h_process, h_service, layers: WallLayers, warnings: Warn
                          warnings)
 
 
+def with_remaining_resistance(result: OverallResult, remaining: float) -> OverallResult:
+    """``result`` with the resistances beyond the process film set to a measured total ``remaining`` (m2 K/W).
+
+    A calibration measures the sum only; it is shared over process fouling, lining, wall, service fouling
+    and service film in the proportions the published values give, so the wall temperatures stay
+    plausible. 1/U = 1/h_process + remaining.
+    """
+    others = {k: v for k, v in result.resistances.items() if k != "process_film"}
+    total = sum(others.values())
+    if arrays.is_array(remaining, total):  # many states: NaN marks the surfaces without a calibration
+        import numpy as np
+
+        scale = np.where(np.isnan(remaining), 1.0, remaining / total)
+        share = {k: v * scale for k, v in others.items()}
+    else:
+        share = {k: (v / total * remaining if total > 0 else (remaining if k == "wall" else 0.0))
+                 for k, v in others.items()}
+    resistances = {"process_film": result.resistances["process_film"]} | share
+    controlling = "" if arrays.is_array(remaining, total) else max(resistances, key=lambda k: float(resistances[k]))
+    return OverallResult(1.0 / sum(resistances.values()), resistances, controlling, result.reference_radius,
+                         result.service_radius, result.warnings)
+
+
 def interface_temperatures(result: OverallResult, process_temperature: float,
                            coolant_temperature: float) -> WallTemperatures:
     """Temperatures at each interface for bulk process and coolant temperatures (steady series conduction).

@@ -236,6 +236,7 @@ class _SurfaceModel:
     process_film: Callable[..., ProcessFilm]  # mu_wall -> process film
     service_film: Callable[..., CoolantFilm]  # props, mu_wall, rho_wall -> coolant film
     service_formula: jacket_side.FilmFormula  # the same coolant film, for arrays of states (vectorised network)
+    remaining_resistance: float | None = None  # m2 K/W measured beyond the process film (calibration)
 
 
 @dataclass(frozen=True)
@@ -320,6 +321,8 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
             service_film = model.service_film(state, service_wall_state.viscosity, service_wall_state.density)
             overall = wall.overall_coefficient(process_film.h, service_film.h, model.wall, fouling,
                                                process_radius=model.process_radius, process_side=model.process_side)
+            if model.remaining_resistance is not None:
+                overall = wall.with_remaining_resistance(overall, model.remaining_resistance)
             surfaces.append(Surface(model.name, model.area, process_film, service_film, overall,
                                     process_wall, service_wall))
         ua = sum(s.ua for s in surfaces)
@@ -380,6 +383,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
     stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
     warnings.extend_unique(stirred.warnings)
     shape, agitator, level = vessel.shape, vessel.agitator, filled.liquid_level
+    choice = vessel.correlations.validate(agitator.impeller)
     streams: list[StreamModel] = []
 
     jacket = vessel.jacket
@@ -395,10 +399,12 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         jacket_height = top if vessel.coverage.covers_bottom_head else top - geometry.head_depth(shape)
         outer = _outer_diameter(vessel)
 
-        def service(props_c, mu_w, rho_w, _jacket=vessel.jacket):
+        chosen_jacket = choice.jacket(jacket)
+
+        def service(props_c, mu_w, rho_w, _jacket=chosen_jacket):
             return jacket_side.service_film_jacket(_jacket, props_c, coolant.mass_flow(), mu_w, outer,
                                                     max(jacket_height, 1e-3), rho_wall=rho_w)
-        jacket_formula, _ = jacket_side.jacket_film_formula(jacket, outer, max(jacket_height, 1e-3))
+        jacket_formula, _ = jacket_side.jacket_film_formula(chosen_jacket, outer, max(jacket_height, 1e-3))
 
         models = []
         for name, area, surface, radius in (("jacket_shell", shell_area, "wall", shape.diameter / 2.0),
@@ -409,8 +415,9 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
                 name, area, vessel.wall, radius, "inside",
                 lambda mu_w, _surface=surface: process_side.process_film_jacket(
                     agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
-                    baffled=agitator.baffled, surface=_surface),
-                service, jacket_formula))
+                    baffled=agitator.baffled, surface=_surface, alternative=choice.process_wall,
+                    factor=choice.process_factor, constants=choice.process_constants),
+                service, jacket_formula, choice.remaining_resistance))
         streams.append(StreamModel("jacket", coolant.mass_flow(), tuple(models),
                                    paths.jacket_path(vessel.jacket, outer, max(jacket_height, 1e-3))))
     elif vessel.jacket is not None:
@@ -426,15 +433,17 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         if wall.material(coil_wall.material).lining_thickness:  # a glass-lined vessel's coils are alloy
             coil_wall = replace(coil_wall, material="stainless_316l")
         with fields_renamed({"vessel.coils": f"vessel.coils[{index}]"}):
-            formula = coil_side.coil_film_formula(coil.tube_inner_diameter, coil.helix_diameter, pitch=coil.pitch)
+            formula = coil_side.coil_film_formula(coil.tube_inner_diameter, coil.helix_diameter, pitch=coil.pitch,
+                                                  correlation=choice.coil_tube)
         model = _SurfaceModel(
             f"coil_{index}", area, coil_wall, coil.tube_outer_diameter / 2.0, "outside",
             lambda mu_w, _coil=coil: process_side.process_film_coil(
                 agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
-                _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled),
+                _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled,
+                factor=choice.coil_process_factor),
             lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
                 _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
-                pitch=_coil.pitch),
+                pitch=_coil.pitch, correlation=choice.coil_tube),
             formula)
         streams.append(StreamModel(f"coil_{index}", coolant.coil_mass_flow(), (model,), paths.coil_path(coil)))
     if not streams:
@@ -514,6 +523,9 @@ def lumped_exchange(vessel: Vessel, charge: Charge, coolant: Coolant, process_te
     warnings.add(CalcWarning("ua_held_constant",
                              f"UA = {result.ua:.4g} W/K from the heat-transfer network at "
                              f"{process_temperature - 273.15:.2f} degC is held constant over the simulation"))
+    if vessel.correlations.calibration is not None:
+        warnings.add(CalcWarning("calibrated", "calibrated: UA uses the vessel's own measured process constant "
+                                               f"a = {vessel.correlations.calibration.process_constant:.4g}"))
     main = result.stream("jacket") or (result.streams[0] if result.streams else None)
     if main is None:
         return LumpedExchange(0.0, coolant.mass_flow(), coolant.liquid.at(coolant.inlet_temperature).heat_capacity,

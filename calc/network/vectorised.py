@@ -131,7 +131,8 @@ class Prepared:
         charge_liquids: list = []
         coolant_liquids: list = []
         streams_t: list[tuple] = []  # (flow, per volume?, coolant liquid index, process temperature)
-        surfaces_t: list[tuple] = []  # (stream template, area, charge liquid, bulk props, film, formula, layers)
+        surfaces_t: list[tuple] = []  # (stream template, area, charge liquid, bulk props, film, formula, layers,
+        #                               remaining resistance of a calibration or None)
         self.network_streams: list[np.ndarray] = []
         self.network_surfaces: list[np.ndarray] = []
         self.network_local: list[np.ndarray] = []
@@ -155,7 +156,8 @@ class Prepared:
                     layer, _ = wall.wall_layers(model.wall, network.vessel.fouling, model.process_radius,
                                                 model.process_side)
                     surfaces.append(len(surfaces_t))
-                    surfaces_t.append((streams[-1], model.area, charge_i, props, film, model.service_formula, layer))
+                    surfaces_t.append((streams[-1], model.area, charge_i, props, film, model.service_formula, layer,
+                                       model.remaining_resistance))
             self.network_streams.append(np.array(streams, dtype=int))
             self.network_surfaces.append(np.array(surfaces, dtype=int))
             self.network_local.append(np.searchsorted(streams, [surfaces_t[t][0] for t in surfaces]).astype(int))
@@ -172,6 +174,9 @@ class Prepared:
         self.k_bulk = np.array([t[3].thermal_conductivity / t[4].length for t in surfaces_t])
         self.share = np.array([t[5].flow_share for t in surfaces_t])
         self.layers = wall.WallLayers(*(np.array(column) for column in zip(*(t[6] for t in surfaces_t))))
+        # calibration: the measured resistance beyond the process film; NaN where the surface has none
+        self.remaining = np.array([np.nan if t[7] is None else t[7] for t in surfaces_t], dtype=float)
+        self.calibrated = bool(np.isfinite(self.remaining).any())
         # correlation groups: one array call per correlation (and per option string) for all rows using it
         self.process_group = np.empty(len(surfaces_t), dtype=int)
         self.process_position = np.empty(len(surfaces_t), dtype=int)
@@ -284,6 +289,7 @@ class Prepared:
         k_bulk = self.k_bulk[tsurface]
         flow_rows = m[sid] * self.share[tsurface]
         layers = wall.WallLayers(*(column[tsurface] for column in self.layers))
+        remaining = self.remaining[tsurface] if self.calibrated else None
         process = []
         for g, (function, stacked) in enumerate(self.process_groups):
             rows = np.flatnonzero(self.process_group[tsurface] == g) if len(self.process_groups) > 1 else None
@@ -335,6 +341,8 @@ class Prepared:
                     h_service[rows] = function(_take(bulk, rows), flow_rows[rows], at_wall.viscosity[rows],
                                                at_wall.density[rows], **fixed)[0]
             overall = wall.overall_from_layers(h_process, h_service, layers)
+            if remaining is not None:
+                overall = wall.with_remaining_resistance(overall, remaining)
             new_ua = np.bincount(sid, overall.U * area, minlength=n_streams)
             new_outlet, new_duty, _, _ = single_pass(t_r, t_in, new_ua, m * state.heat_capacity)
             new_mean = 0.5 * (t_in + new_outlet)

@@ -14,6 +14,7 @@ from calc.vessel.agitation import Agitator, AgitationResult, agitation
 from calc.properties import Liquid
 from calc.validity import InputError
 from calc.films.jacket_side import JacketSpec
+from calc.films.selection import CorrelationChoice
 from calc.films.wall import Fouling, WallSpec
 
 
@@ -32,6 +33,7 @@ class Vessel:
     coils: tuple[geometry.HelicalCoil, ...] = ()
     fouling: Fouling = field(default_factory=Fouling)
     name: str = "vessel"
+    correlations: CorrelationChoice = field(default_factory=CorrelationChoice)
 
     def scaled(self, factor: float, agitator_speed: float | None = None, name: str | None = None) -> "Vessel":
         """A geometrically similar vessel: every length times ``factor``, wall thickness and fouling kept.
@@ -48,8 +50,12 @@ class Vessel:
             lengths = {name: getattr(jacket, name) * factor for name in _JACKET_LENGTHS
                        if getattr(jacket, name, None) is not None}
             jacket = replace(jacket, **lengths)
+        # A calibrated process constant carries to similar vessels (same impeller and geometry ratios); the
+        # measured remaining resistance (wall, fouling, coolant film) belongs to the measured vessel only.
+        correlations = replace(self.correlations, remaining_resistance=None)
         return replace(
             self,
+            correlations=correlations,
             jacket=jacket,
             shape=geometry.scale_shape(self.shape, factor),
             coverage=geometry.scale_jacket(self.coverage, factor),

@@ -1,0 +1,1 @@
+"""Fitting measured plant data: the UA of a logged heat-up or cool-down, and the Wilson plot."""

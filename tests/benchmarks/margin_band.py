@@ -1,0 +1,104 @@
+"""Margin band and plant-data fits, measured: ``.venv/bin/python -m tests.benchmarks.margin_band``.
+
+Prints, in one run: the band's width on the demo check and on three vessels of our own (invented
+scenarios), the cost of the band relative to the plain check (with and without the solved limits),
+and the UA fit's accuracy against the noise on the logged temperatures (seeded, closed-form logs).
+Not a test: the numbers are for the record (issue 12), nothing asserts on timings.
+"""
+from __future__ import annotations
+
+import copy
+import json
+import statistics
+import time
+from pathlib import Path
+
+import numpy as np
+
+from calc.checks.cooling_check import cooling_check
+from calc.fits.ua_fit import fit_ua
+from schemas.cooling import CoolingCheckRequestSchema
+
+EXAMPLES = Path(__file__).resolve().parents[2] / "examples"
+
+
+def cases() -> dict[str, dict]:
+    """The demo production check and three invented vessels (demo data only, not references)."""
+    demo = json.loads((EXAMPLES / "cooling_check_production.json").read_text())
+    annular = copy.deepcopy(demo)  # R-250A: 2.5 m3 disc turbine, annular jacket and a coil, cooling water
+    annular["vessel"].update(name="R-250A annular, coil", diameter="1.4 m", straight_side="1.5 m")
+    annular["vessel"]["jacket"] = {"type": "annular", "gap": "40 mm", "inlet_diameter": "50 mm"}
+    annular["vessel"]["agitator"] = {"impeller": "rushton_turbine", "diameter": "0.47 m", "speed": "110 rpm"}
+    annular["vessel"]["coils"] = [{"tube_outer_diameter": "42 mm", "tube_wall": "3 mm", "helix_diameter": "1.1 m",
+                                   "turns": 6, "pitch": "90 mm", "elevation": "0.3 m"}]
+    annular["charge"]["volume"] = "2.0 m^3"
+    annular["coolant"] = {"fluid": "water", "inlet_temperature": "18 degC", "flow": "12 m^3/h"}
+    brine = copy.deepcopy(demo)  # R-1600: 16 m3 half pipe, cold glycol brine in laminar flow
+    brine["vessel"].update(name="R-1600 half pipe, brine", diameter="2.6 m", straight_side="2.8 m")
+    brine["vessel"]["agitator"] = {"impeller": "hydrofoil", "diameter": "1.1 m", "speed": "60 rpm"}
+    brine["charge"]["volume"] = "14 m^3"
+    brine["coolant"] = {"fluid": "ethylene_glycol", "mass_fraction": 0.4, "inlet_temperature": "-15 degC",
+                        "flow": "6 m^3/h"}
+    glass = copy.deepcopy(demo)  # G-400: 0.4 m3 glass-lined, retreat curve, annular jacket
+    glass["vessel"].update(name="G-400 glass-lined", diameter="0.8 m", straight_side="0.7 m",
+                           wall={"material": "glass_lined_steel", "thickness": "10 mm"})
+    glass["vessel"]["jacket"] = {"type": "annular", "gap": "30 mm", "inlet_diameter": "32 mm"}
+    glass["vessel"]["agitator"] = {"impeller": "retreat_curve", "diameter": "0.5 m", "speed": "120 rpm"}
+    glass["charge"]["volume"] = "0.32 m^3"
+    glass["coolant"] = {"fluid": "water", "inlet_temperature": "10 degC", "flow": "3 m^3/h"}
+    for body in (annular, brine, glass):
+        body["heat_release"] = {"model": "specific_power", "power_per_mass": 15.0}
+    return {"demo R-201 (cooling_check_production.json)": demo, "R-250A annular + coil": annular,
+            "R-1600 half pipe, laminar brine": brine, "G-400 glass-lined": glass}
+
+
+def timed(function, repeats: int = 5) -> float:
+    samples = []
+    for _ in range(repeats):
+        start = time.perf_counter()
+        function()
+        samples.append(time.perf_counter() - start)
+    return statistics.median(samples)
+
+
+def main() -> None:
+    print("margin band: width and cost (median of 5 runs each, one process)")
+    print(f"  {'case':<44} {'margin':>7} {'low':>7} {'high':>7} {'width':>7} {'members':>7} "
+          f"{'cost, limits':>13} {'cost, verdict':>14}")
+    for name, body in cases().items():
+        args = CoolingCheckRequestSchema().load(body)
+        call = (args["vessel"], args["charge"], args["coolant"], args["process_temperature"], args["heat_release"],
+                args["safety_factor"])
+        check = cooling_check(*call)
+        band = check.margin_band
+        plain_limits = timed(lambda call=call: cooling_check(*call, band=False))
+        band_limits = timed(lambda call=call: cooling_check(*call))
+        plain = timed(lambda call=call: cooling_check(*call, limits=False, band=False))
+        banded = timed(lambda call=call: cooling_check(*call, limits=False))
+        print(f"  {name:<44} {check.margin:>7.3g} {band.low:>7.3g} {band.high:>7.3g} "
+              f"{(band.high - band.low) / check.margin:>6.0%} {len(band.members):>7} "
+              f"{band_limits / plain_limits - 1:>+12.0%} {banded / plain - 1:>+13.0%}")
+        print(f"      low: {band.low_set_by}; high: {band.high_set_by}")
+    print("  cost = extra time of the check with the band over the same check without it")
+
+    print("\nUA fit against noise (closed-form cool-down, UA = 900 W/K, M c_p = 12.5 MJ/K, 120 points over 3 h;"
+          " 20 seeds each)")
+    print(f"  {'noise, K':>9} {'median |error|':>15} {'worst |error|':>14} {'median 95 % half-width':>23} "
+          f"{'covered':>8}")
+    t = np.linspace(0.0, 3 * 3600.0, 120)
+    true = 900.0
+    T = 288.15 + 57.0 * np.exp(-true * t / (3000.0 * 4180.0))
+    for noise in (0.02, 0.1, 0.3, 1.0):
+        errors, halves, covered = [], [], 0
+        for seed in range(20):
+            rng = np.random.default_rng(seed)
+            fit = fit_ua(t, T + rng.normal(0, noise, t.size), np.full(t.size, 288.15), 3000.0, 4180.0)
+            errors.append(abs(fit.ua / true - 1))
+            halves.append((fit.ua_interval[1] - fit.ua_interval[0]) / 2 / true)
+            covered += fit.ua_interval[0] <= true <= fit.ua_interval[1]
+        print(f"  {noise:>9g} {statistics.median(errors):>15.3%} {max(errors):>14.3%} "
+              f"{statistics.median(halves):>23.3%} {covered:>5}/20")
+
+
+if __name__ == "__main__":
+    main()
