@@ -20,6 +20,7 @@ from schemas.records import RECORD_SCHEMAS, RecordListSchema, RecordQuerySchema,
 from . import bulk, security
 from .errors import ProblemError
 from .http import request_object, requested_format, to_csv
+from .references import MAX_REVISION
 from .storage import Catalogue, RevisionView, Stale, Unavailable
 
 log = logging.getLogger("coolmargin")
@@ -141,8 +142,9 @@ def _change(kind: str, key: str, new_content) -> Response:
     require_write()
     catalogue = store()
     current = catalogue.get(kind, key)
-    expected = _if_match(current)
+    # the content is checked first: an invalid body is a 422 whatever its precondition says
     content, index = validated(kind, new_content(current.body))
+    expected = _if_match(current)
     revision = catalogue.revise(kind, current.record_id, expected, security.author(), tag=content["tag"],
                                 body=content, index=index)
     return _answer(revision)
@@ -188,6 +190,8 @@ def _revisions(kind: str, key: str):
 
 
 def _revision(kind: str, key: str, number: int):
+    if number > MAX_REVISION:  # no such revision, and more than a database integer holds
+        raise ProblemError(404, f"{kind} {key!r} has no revision {number}")
     return _answer(store().get(kind, key, number))
 
 

@@ -46,14 +46,19 @@ def _contains_ref(value: Any, depth: int = 0) -> bool:
     return False
 
 
+#: The largest revision number a reference may name (a 32-bit column holds it on every database).
+MAX_REVISION = 2_147_483_647
+
+
 def _fetch(kind: str, ref: dict, field: str) -> RevisionView:
     from .records import store
 
     key, number = ref["ref"], ref.get("revision")
     if not isinstance(key, str) or not key or len(key) > 64:
         raise ValidationError({f"{field}.ref": ["must be the id or tag of a stored record (1-64 characters)"]})
-    if number is not None and (isinstance(number, bool) or not isinstance(number, int) or number < 1):
-        raise ValidationError({f"{field}.revision": ["must be a revision number (1, 2, ...)"]})
+    if number is not None and (isinstance(number, bool) or not isinstance(number, int)
+                               or not 1 <= number <= MAX_REVISION):
+        raise ValidationError({f"{field}.revision": [f"must be a revision number (1, 2, ... {MAX_REVISION})"]})
     try:
         return store().get(kind, key, number)
     except NotFound as exc:

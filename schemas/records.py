@@ -152,7 +152,7 @@ class RecordRefSchema(StrictSchema):
 
     ref = fields.String(required=True, validate=validate.Length(min=1, max=64),
                         metadata={"description": "id or tag of a stored record; its current revision is used"})
-    revision = fields.Integer(validate=validate.Range(min=1),
+    revision = fields.Integer(validate=validate.Range(min=1, max=2_147_483_647),
                               metadata={"description": "use this revision instead of the current one"})
 
 
