@@ -39,3 +39,14 @@ def render(fig, fmt: str) -> bytes:
 def footnote(fig) -> None:
     fig.text(0.01, 0.003, "Screening estimate - confirm with reaction calorimetry and plant data.",
              fontsize=7, color="#777777")
+
+
+# Default API units too small to read on an axis, and the unit drawn instead (a request's output units
+# replace the default, and are drawn as asked).
+_READABLE = {"W": ("kW", 1e-3), "s": ("h", 1 / 3600.0)}
+
+
+def readable(values, unit: str) -> tuple[list, str]:
+    """``values`` (None kept) and their axis unit: watts drawn as kW and seconds as hours, else as given."""
+    shown, factor = _READABLE.get(unit, (unit, 1.0))
+    return [None if v is None else v * factor for v in values], shown

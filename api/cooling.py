@@ -39,13 +39,14 @@ def _scale_up(args: dict) -> dict:
     return scale_up_dict(result)
 
 
-def scale_up_chart(payload: dict, fmt: str) -> bytes:
+def scale_up_chart(payload: dict, fmt: str, units: dict) -> bytes:
     """Heat load and cooling capacity against volume (log axes), and the margin of each scale."""
     fig, (top, bottom) = charts.figure(2)
     scales = sorted(payload["scales"], key=lambda s: s["volume"])
     volumes = [s["volume"] for s in scales]
-    load = [s["heat_load"]["total"] / 1e3 for s in scales]
-    capacity = [s["cooling_capacity"] / 1e3 for s in scales]
+    volume_unit = units["scales.volume"]
+    load, power_unit = charts.readable([s["heat_load"]["total"] for s in scales], units["scales.heat_load.total"])
+    capacity, _ = charts.readable([s["cooling_capacity"] for s in scales], units["scales.cooling_capacity"])
     factor = payload["safety_factor"]
     top.plot(volumes, load, marker="o", label="heat load")
     top.plot(volumes, capacity, marker="s", label="cooling capacity")
@@ -53,26 +54,26 @@ def scale_up_chart(payload: dict, fmt: str) -> bytes:
              label=f"capacity / safety factor {factor:g}")
     top.set_xscale("log")
     top.set_yscale("log")
-    top.set_ylabel("kW")
+    top.set_ylabel(power_unit)
     margins = [s["margin"] if s["margin"] is not None else float("nan") for s in scales]
     colours = [charts.COLOURS[2] if s["adequate"] else charts.COLOURS[1] for s in scales]
     bottom.scatter(volumes, margins, c=colours, zorder=3)
     for volume, margin, scale in zip(volumes, margins, scales):
-        label = f"{volume:.3g} m^3" if scale["generated"] else scale["name"].split(",")[0][:24]
+        label = f"{volume:.3g} {volume_unit}" if scale["generated"] else scale["name"].split(",")[0][:24]
         bottom.annotate(label, (volume, margin), textcoords="offset points", xytext=(4, 4), fontsize=7)
     bottom.axhline(factor, color="#555555", linestyle="--", linewidth=0.9, label="safety factor")
     bottom.set_xscale("log")
     bottom.set_yscale("log")
     bottom.set_ylabel("margin (capacity / load)")
-    bottom.set_xlabel("vessel volume, m^3")
+    bottom.set_xlabel(f"vessel volume, {volume_unit}")
     largest = payload.get("largest_adequate_volume")
     if largest is not None:
         for axis in (top, bottom):
             axis.axvline(largest, color=charts.COLOURS[3], linewidth=1.0, linestyle=":")
         text = ("similar vessels adequate beyond" if payload.get("adequate_beyond_search")
                 else "largest adequate similar vessel")
-        top.annotate(f"{text} {largest:.3g} m^3", (largest, min(load)), fontsize=7, ha="right",
-                     textcoords="offset points", xytext=(-4, 0))
+        top.annotate(f"{text} {largest:.3g} {units['largest_adequate_volume']}", (largest, min(load)), fontsize=7,
+                     ha="right", textcoords="offset points", xytext=(-4, 0))
     top.legend(fontsize=7, frameon=False)
     bottom.legend(fontsize=7, frameon=False)
     top.set_title(f"Cooling margin along the scale-up ({payload['rule'].replace('_', ' ')})", fontsize=10)

@@ -3,6 +3,8 @@
 POST takes a JSON object; GET takes the same object flattened to dotted query parameters.
 Responses are JSON (with ``units``) by default, CSV with ``?format=csv`` or ``Accept: text/csv``,
 a single value as text/plain with ``?field=a.b``, and a chart where the resource draws one.
+Every format follows the presentation the query asks for: ``output_units`` (si, metric, us) and
+``unit.<field>`` overrides, ``digits`` (significant figures) and ``decimal=comma`` (CSV with ``;``).
 """
 from __future__ import annotations
 
@@ -10,18 +12,28 @@ import csv
 import io
 import json
 import math
+from dataclasses import dataclass, field as dataclass_field
 from typing import Any, Callable
 
 from flask import Response, current_app, request
 from marshmallow import Schema, ValidationError
 
-from schemas.base import clean, unflatten, unit_map
+from schemas import output_units
+from schemas.base import clean, kind_map, unflatten, unit_map
 
 from .errors import ProblemError
 
-RESERVED_PARAMETERS = {"format", "field"}
+RESERVED_PARAMETERS = {"format", "field", "output_units", "digits", "decimal"}
 FORMATS = {"json": "application/json", "csv": "text/csv", "svg": "image/svg+xml", "png": "image/png"}
 _UNIT_CACHE: dict[type, dict[str, str]] = {}
+_KIND_CACHE: dict[type, dict[str, str]] = {}
+TEXT_DIGITS = 12  # significant figures of numbers written as text: no float noise (24.99999999999909 -> 25)
+MAX_DIGITS = 15
+
+
+def reserved(name: str) -> bool:
+    """Query parameters that shape the answer rather than feed the calculation."""
+    return name in RESERVED_PARAMETERS or name.startswith(output_units.OVERRIDE_PREFIX)
 
 
 def _reject_constant(name: str):
@@ -41,7 +53,7 @@ def _depth(value: Any, limit: int, level: int = 0) -> int:
 def request_object() -> dict:
     """The request's input object: the JSON body (POST) or the unflattened query (GET)."""
     if request.method == "GET":
-        params = {k: v for k, v in request.args.items() if k not in RESERVED_PARAMETERS}
+        params = {k: v for k, v in request.args.items() if not reserved(k)}
         return unflatten(params)
     mimetype = request.mimetype or ""
     if not (mimetype == "application/json" or mimetype.endswith("+json")):
@@ -71,6 +83,61 @@ def units_of(schema: Schema) -> dict[str, str]:
     if key not in _UNIT_CACHE:
         _UNIT_CACHE[key] = unit_map(schema)
     return _UNIT_CACHE[key]
+
+
+def kinds_of(schema: Schema) -> dict[str, str]:
+    key = type(schema)
+    if key not in _KIND_CACHE:
+        _KIND_CACHE[key] = kind_map(schema)
+    return _KIND_CACHE[key]
+
+
+@dataclass(frozen=True)
+class Presentation:
+    """How the numbers of an answer are written: units, significant figures, decimal mark."""
+
+    conversions: dict = dataclass_field(default_factory=dict)
+    digits: int | None = None
+    decimal_comma: bool = False
+
+    def convert(self, payload: Any, units: dict[str, str]) -> tuple[Any, dict[str, str]]:
+        payload = output_units.apply(payload, self.conversions)
+        if self.digits is not None:
+            payload = _rounded(payload, self.digits)
+        return payload, output_units.units_after(units, self.conversions)
+
+    def text(self, value: float) -> str:
+        """A number as text: rounded to the significant figures asked for (12 by default)."""
+        written = f"{value:.{self.digits or TEXT_DIGITS}g}"
+        return written.replace(".", ",") if self.decimal_comma else written
+
+
+def _rounded(value: Any, digits: int) -> Any:
+    if isinstance(value, float):
+        return float(f"{value:.{digits}g}") if math.isfinite(value) else value
+    if isinstance(value, dict):
+        return {k: _rounded(v, digits) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_rounded(v, digits) for v in value]
+    return value
+
+
+def presentation(schema: Schema) -> Presentation:
+    """The presentation the query asks for; a bad option is a 422 naming the parameter."""
+    args = request.args
+    overrides = {k[len(output_units.OVERRIDE_PREFIX):]: v for k, v in args.items()
+                 if k.startswith(output_units.OVERRIDE_PREFIX)}
+    conversions = output_units.plan(kinds_of(schema), args.get("output_units"), overrides)
+    digits = args.get("digits")
+    if digits is not None:
+        if not digits.isdigit() or not 1 <= int(digits) <= MAX_DIGITS:
+            raise ProblemError(422, f"digits must be a whole number from 1 to {MAX_DIGITS}",
+                               [{"field": "digits", "message": f"must be a whole number from 1 to {MAX_DIGITS}"}])
+    decimal = args.get("decimal", "point")
+    if decimal not in ("point", "comma"):
+        raise ProblemError(422, "decimal must be point or comma",
+                           [{"field": "decimal", "message": "must be one of point, comma"}])
+    return Presentation(conversions, None if digits is None else int(digits), decimal == "comma")
 
 
 def requested_format() -> str:
@@ -128,11 +195,14 @@ def _unit_for(column: str, units: dict[str, str]) -> str | None:
     return None
 
 
-def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = ()) -> str:
+def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = (),
+           view: Presentation | None = None) -> str:
     """CSV with one row per item and the unit of each column in the header: ``density [kg/m^3]``.
 
-    Columns named in ``lead`` (those that say which row is which) come first.
+    Columns named in ``lead`` (those that say which row is which) come first. With a decimal comma
+    the separator is ``;``, as spreadsheets set up for a decimal comma expect.
     """
+    view = view or Presentation()
     flat_rows = []
     for row in rows:
         flat: dict = {}
@@ -147,52 +217,54 @@ def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = ()) 
         unit = _unit_for(column, units)
         header.append(f"{column} [{unit}]" if unit else column)
     buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\r\n")
+    writer = csv.writer(buffer, lineterminator="\r\n", delimiter=";" if view.decimal_comma else ",")
     writer.writerow(header)
     for flat in flat_rows:
-        writer.writerow([_csv_cell(flat.get(c)) for c in columns])
+        writer.writerow([text_value(flat.get(c), view) for c in columns])
     return buffer.getvalue()
 
 
-def _csv_cell(value: Any) -> Any:
+def text_value(value: Any, view: Presentation) -> str:
+    """One value as a spreadsheet reads it: TRUE/FALSE, numbers without float noise, empty for none."""
     if value is None:
         return ""
     if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, float):
-        return repr(value) if math.isfinite(value) else ""
-    return value
+        return "TRUE" if value else "FALSE"
+    if isinstance(value, (int, float)):
+        return view.text(float(value)) if math.isfinite(value) else ""
+    return str(value)
+
+
+def shaped(result: Any, schema: Schema) -> tuple[Any, dict[str, str], Presentation]:
+    """Dump ``result`` with ``schema`` in the units and figures the query asks for: (payload, units, view)."""
+    view = presentation(schema)
+    payload, units = view.convert(clean(schema.dump(result)), units_of(schema))
+    return payload, units, view
 
 
 def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple[str, ...] = (),
-            chart: Callable[[dict, str], bytes] | None = None, status: int = 200) -> Response:
+            chart: Callable[[dict, str, dict], bytes] | None = None, status: int = 200) -> Response:
     """Dump ``result`` with ``schema`` and answer in the negotiated format.
 
     ``rows`` names the list that becomes one CSV row per item (e.g. ``"scales"``), with the ``lead``
-    columns first; ``chart`` draws the dumped payload as SVG or PNG.
+    columns first; ``chart`` draws the dumped payload (with its units) as SVG or PNG.
     """
-    payload = clean(schema.dump(result))
-    units = units_of(schema)
+    payload, units, view = shaped(result, schema)
     field = request.args.get("field")
     if field:
         value = pick(payload, field)
-        if isinstance(value, (dict, list)):
-            text = json.dumps(value)
-        elif isinstance(value, bool):
-            text = "true" if value else "false"
-        else:
-            text = "" if value is None else str(value)
+        text = json.dumps(value) if isinstance(value, (dict, list)) else text_value(value, view)
         return Response(text + "\n", status=status, mimetype="text/plain")
     fmt = requested_format()
     if fmt == "csv":
         items = payload.get(rows, []) if rows else [payload]
         row_units = {k[len(rows) + 1:]: v for k, v in units.items() if rows and k.startswith(rows + ".")} if rows else units
-        return Response(to_csv(items, row_units, lead), status=status, mimetype="text/csv")
+        return Response(to_csv(items, row_units, lead, view), status=status, mimetype="text/csv")
     if fmt in ("svg", "png"):
         if chart is None:
             raise ProblemError(422, "this resource has no chart; use format json or csv",
                                [{"field": "format", "message": "no chart for this resource"}])
-        return Response(chart(payload, fmt), status=status, mimetype=FORMATS[fmt])
+        return Response(chart(payload, fmt, units), status=status, mimetype=FORMATS[fmt])
     body = dict(payload)
     body["units"] = units
     return Response(json.dumps(body, allow_nan=False), status=status, mimetype="application/json")
@@ -200,10 +272,11 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple
 
 def list_response(items: list[dict], schema: Schema) -> Response:
     """A library listing: ``{"items": [...]}`` as JSON, or CSV one row per item."""
-    dumped = clean(schema.dump(items, many=True))
+    view = presentation(schema)
+    dumped, units = view.convert(clean(schema.dump(items, many=True)), units_of(schema))
     if requested_format() == "csv":
-        return Response(to_csv(dumped, units_of(schema)), mimetype="text/csv")
-    return Response(json.dumps({"items": dumped, "units": units_of(schema)}), mimetype="application/json")
+        return Response(to_csv(dumped, units, view=view), mimetype="text/csv")
+    return Response(json.dumps({"items": dumped, "units": units}), mimetype="application/json")
 
 
 def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict], result_schema: Schema) -> Response:
@@ -215,12 +288,14 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
         raise ProblemError(422, "cases must be a non-empty list", [{"field": "cases", "message": "must be a non-empty list"}])
     if len(cases) > limit:
         raise ProblemError(413, f"at most {limit} cases per call", [{"field": "cases", "message": f"at most {limit} cases"}])
+    view = presentation(result_schema)
     results = []
     for index, case in enumerate(cases):
         try:
             if not isinstance(case, dict):
                 raise ValidationError(["must be an object"])
-            results.append({"status": 200, "result": clean(result_schema.dump(compute(schema.load(case))))})
+            result, _ = view.convert(clean(result_schema.dump(compute(schema.load(case)))), {})
+            results.append({"status": 200, "result": result})
         except Exception as exc:  # each case reports its own problem
             status, detail, errors, title = problem_for(exc)
             if status >= 500:
@@ -228,7 +303,7 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
             for error in errors:
                 error["field"] = f"cases[{index}].{error['field']}"
             results.append({"status": status, "problem": problem_body(status, detail, errors, title)})
-    body = {"cases": results, "units": units_of(result_schema)}
+    body = {"cases": results, "units": view.convert({}, units_of(result_schema))[1]}
     return Response(json.dumps(body, allow_nan=False), mimetype="application/json")
 
 

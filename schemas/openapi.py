@@ -117,6 +117,8 @@ def roots() -> tuple[list[type], list[type]]:
 
 
 _PROBLEM = {"$ref": "#/components/responses/Problem"}
+# Query parameters that shape an answer (hand-written under components/parameters).
+PRESENTATION_PARAMETERS = ("format", "field", "output_units", "digits", "decimal")
 EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 _QUERY_OBJECT = {
     "name": "query", "in": "query", "style": "form", "explode": True,
@@ -144,7 +146,7 @@ def paths() -> dict:
     for calc in registry.CALCULATIONS:
         operation_id = "".join(part.capitalize() for part in calc.path.split("/")[-1].split("-"))
         common = {"tags": [calc.tag], "summary": calc.summary, "description": calc.description}
-        params = [{"$ref": "#/components/parameters/format"}, {"$ref": "#/components/parameters/field"}]
+        params = [{"$ref": f"#/components/parameters/{name}"} for name in PRESENTATION_PARAMETERS]
         body_schema: dict = {"$ref": f"#/components/schemas/{_name(calc.request)}"}
         ok = _ok(calc.response, calc.media)
         if calc.batch:
@@ -169,7 +171,8 @@ def paths() -> dict:
         out[library.path] = {"get": {
             "tags": [library.tag], "summary": library.summary,
             "operationId": "list" + library.path.split("/")[-1].capitalize(),
-            "parameters": [{"$ref": "#/components/parameters/format"}],
+            "parameters": [{"$ref": f"#/components/parameters/{name}"} for name in PRESENTATION_PARAMETERS
+                           if name != "field"],
             "responses": {"200": {"description": "Library entries; the id is what requests use.", "content": {
                 "application/json": {"schema": {"type": "object", "required": ["items"], "properties": {
                     "items": {"type": "array", "items": item}, "units": {"$ref": "#/components/schemas/Units"}}}},

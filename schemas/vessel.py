@@ -16,7 +16,7 @@ from calc.films import wall
 from calc.vessel.model import Charge, Coolant, Vessel
 
 from .base import StrictSchema, finite_float
-from .units import Quantity, parse_quantity
+from .units import Quantity, hint_for, parse_quantity
 
 ABSOLUTE_ZERO_C = -273.15
 JACKET_TYPES = ["annular", "annular_spiral_baffle", "half_pipe", "none"]
@@ -214,7 +214,9 @@ class Flow(fields.Field):
             try:
                 kind, si = "volume", parse_quantity("volume flow", value)
             except ValidationError:
-                raise ValidationError("expected a mass flow (e.g. '2 kg/s') or a volume flow (e.g. '20 m^3/h')") from None
+                message = "expected a mass flow (e.g. '2 kg/s') or a volume flow (e.g. '20 m^3/h')"
+                hint = hint_for("volume flow", value)
+                raise ValidationError(f"{message}; {hint}" if hint else message) from None
         if si <= 0:
             raise ValidationError("must be greater than 0")
         return kind, si
