@@ -9,7 +9,7 @@ from importlib import metadata, resources
 
 from flask import Flask, g, request
 
-from . import errors, security
+from . import errors, runtime, security
 
 try:
     VERSION = metadata.version("coolmargin")
@@ -24,6 +24,8 @@ DEFAULTS = {
     "MAX_SERIES_POINTS": 2000,  # points in a returned time series
     "MAX_SIMULATION_HORIZON": 7 * 24 * 3600.0,  # s of simulated time
     "SIMULATION_WALL_TIME": 10.0,  # s of computing per simulation request
+    "REQUEST_BUDGET": 20.0,  # s a request (or a whole batch) may take; then what is done, or a 503
+    "CALCULATION_SLOTS": 1,  # calculations computing at once in one process
     "AUTH_TOKENS": "",  # comma-separated bearer tokens; empty means open
     "AUTH_TOKENS_FILE": "",
     "CORS_ORIGINS": "",  # comma-separated allow-list
@@ -88,6 +90,7 @@ def create_app(config: dict | None = None) -> Flask:
         return response
 
     security.register(app)  # after the request-id hook: refusals carry the request id
+    runtime.register(app)  # after authentication: a refused request reads no body and takes no slot
 
     from . import agitation, cooling, geometry, heat_transfer, properties, safety, service
 

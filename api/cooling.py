@@ -9,6 +9,7 @@ from schemas.cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema
 from . import charts
 from .errors import ProblemError
 from .http import calculate
+from .runtime import deadline
 
 bp = Blueprint("cooling", __name__, url_prefix="/v1")
 _request, _result = CoolingCheckRequestSchema(), CoolingCheckResultSchema()
@@ -16,7 +17,7 @@ _request, _result = CoolingCheckRequestSchema(), CoolingCheckResultSchema()
 
 def _check(args: dict) -> dict:
     check = cooling.cooling_check(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
-                                  args["heat_release"], args["safety_factor"])
+                                  args["heat_release"], args["safety_factor"], deadline=deadline())
     return cooling_check_dict(check)
 
 
@@ -35,7 +36,7 @@ def _scale_up(args: dict) -> dict:
                            [{"field": "targets", "message": f"at most {limit} targets"}])
     result = scaleup.scale_up(args["reference"], args["targets"], args["rule"], args["charge"], args["coolant"],
                               args["process_temperature"], args["heat_release"], args["safety_factor"],
-                              args["coolant_flow_rule"])
+                              args["coolant_flow_rule"], deadline=deadline())
     return scale_up_dict(result)
 
 

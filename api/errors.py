@@ -7,6 +7,7 @@ from flask import Flask, Response, g, json
 from marshmallow import ValidationError
 from werkzeug.exceptions import HTTPException
 
+from calc.deadline import OutOfTime
 from calc.validity import CalculationError, InputError
 from schemas.base import error_list
 
@@ -28,6 +29,8 @@ TITLES = {
     415: "Unsupported media type", 422: "Invalid input", 429: "Too many requests",
     500: "Internal error", 503: "Not ready",
 }
+OUT_OF_TIME = ("the calculation did not finish within the request's time budget "
+               "(COOLMARGIN_REQUEST_BUDGET); retry later, or split the work into smaller requests")
 
 
 def problem_body(status: int, detail: str, errors: list[dict] | None = None, title: str | None = None) -> dict:
@@ -64,6 +67,8 @@ def problem_for(exc: Exception) -> tuple[int, str, list[dict], str | None]:
         return 422, str(exc), [], "Calculation did not converge"
     if isinstance(exc, ProblemError):
         return exc.status, exc.detail, exc.errors, exc.title
+    if isinstance(exc, OutOfTime):
+        return 503, OUT_OF_TIME, [], "Time budget used up"
     if isinstance(exc, HTTPException):
         return exc.code or 500, exc.description or exc.name, [], None
     return 500, "The server could not complete the calculation; the error was logged with the request id.", [], None
@@ -78,4 +83,10 @@ def register(app: Flask) -> None:
         headers = {}
         if isinstance(exc, HTTPException) and status == 405 and exc.valid_methods:
             headers["Allow"] = ", ".join(exc.valid_methods)
+        if isinstance(exc, OutOfTime):
+            log.info("request stopped: %s", exc, extra={"request_id": g.get("request_id", "-")})
+        if status == 503:
+            from .runtime import retry_after
+
+            headers["Retry-After"] = retry_after()
         return problem(status, detail, errors, title, headers)

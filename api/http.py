@@ -21,7 +21,10 @@ from marshmallow import Schema, ValidationError
 from schemas import output_units
 from schemas.base import clean, kind_map, unflatten, unit_map
 
+from calc.deadline import OutOfTime
+
 from .errors import ProblemError
+from .runtime import deadline
 
 RESERVED_PARAMETERS = {"format", "field", "output_units", "digits", "decimal"}
 FORMATS = {"json": "application/json", "csv": "text/csv", "svg": "image/svg+xml", "png": "image/png"}
@@ -289,8 +292,12 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
     if len(cases) > limit:
         raise ProblemError(413, f"at most {limit} cases per call", [{"field": "cases", "message": f"at most {limit} cases"}])
     view = presentation(result_schema)
+    clock = deadline()
     results = []
     for index, case in enumerate(cases):
+        if clock.expired():  # what is done stays done; the rest is answered as not computed
+            results.extend(_not_computed(i, len(cases)) for i in range(index, len(cases)))
+            break
         try:
             if not isinstance(case, dict):
                 raise ValidationError(["must be an object"])
@@ -298,13 +305,20 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
             results.append({"status": 200, "result": result})
         except Exception as exc:  # each case reports its own problem
             status, detail, errors, title = problem_for(exc)
-            if status >= 500:
+            if status >= 500 and not isinstance(exc, OutOfTime):
                 log.exception("batch case %d failed", index)  # the request id rides on the log record
             for error in errors:
                 error["field"] = f"cases[{index}].{error['field']}"
             results.append({"status": status, "problem": problem_body(status, detail, errors, title)})
     body = {"cases": results, "units": view.convert({}, units_of(result_schema))[1]}
     return Response(json.dumps(body, allow_nan=False), mimetype="application/json")
+
+
+def _not_computed(index: int, total: int) -> dict:
+    from .errors import OUT_OF_TIME, problem_body
+
+    detail = f"case {index} of {total} was not computed: {OUT_OF_TIME}"
+    return {"status": 503, "problem": problem_body(503, detail, [], "Time budget used up")}
 
 
 def calculate(schema: Schema, compute: Callable[[dict], dict], result_schema: Schema, **respond_options) -> Response:

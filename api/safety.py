@@ -17,6 +17,7 @@ from schemas.safety import (CSTRRequestSchema, CSTRResultSchema, SimulationReque
 from .errors import ProblemError
 from .charts import figure as _figure, footnote as _footnote, readable, render as _render
 from .http import load, requested_format, respond, shaped, to_csv
+from .runtime import deadline
 
 bp = Blueprint("safety", __name__, url_prefix="/v1")
 _safety_request, _safety_result = ThermalSafetyRequestSchema(), ThermalSafetyResultSchema()
@@ -77,7 +78,7 @@ def simulations():
     budget = tank_model.Budget(horizon_limit=float(config["MAX_SIMULATION_HORIZON"]),
                              output_points=args["output_points"],
                              maximum_output_points=int(config["MAX_SERIES_POINTS"]),
-                             wall_time=float(config["SIMULATION_WALL_TIME"]))
+                             wall_time=float(config["SIMULATION_WALL_TIME"]), deadline=deadline())
     duty = None
     if args["vessel"] is not None:
         given = args["vessel"]

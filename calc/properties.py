@@ -12,6 +12,20 @@ range is an :class:`~calc.validity.InputError` naming the field and the valid ra
 
 Look-ups go through CoolProp's low-level ``AbstractState`` (one per fluid and composition, reused)
 and a bounded memo of recent states, because a cooling check evaluates the same few states many times.
+
+Calculations (``Liquid.at`` and ``Liquid.states``, used by the heat-transfer network) read a
+:class:`PropertyTable` instead: built on first use from CoolProp over the liquid's whole range, then
+interpolated linearly (density, heat capacity and conductivity in T; ln viscosity in -1/T, the Andrade
+form, so that viscosity is near-linear on the grid). The grid starts at 0.5 K and halves every interval
+whose midpoint, interpolated, differs from CoolProp by more than :data:`TABLE_TOLERANCE` (relative) in
+any of the four properties, so the table is accurate to about that everywhere (tests check 1e-4
+against CoolProp point by point). The same table serves one state or a numpy array of states, so the
+scalar and the vectorised network see identical properties. ``liquid_properties`` (the properties
+resource) still answers from CoolProp directly.
+
+Memory is bounded: a table holds at most :data:`TABLE_MAX_POINTS` temperatures (typically 300-1,500)
+x 6 float64 arrays, i.e. under 100 kB for a typical liquid, and at most :data:`TABLE_CACHE_SIZE`
+tables are kept (least recently used dropped), a few MB in all.
 """
 from __future__ import annotations
 
@@ -21,10 +35,22 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import CoolProp.CoolProp as CP
+import numpy as np
 
+from calc import arrays
 from calc.validity import InputError
 
 STANDARD_PRESSURE = 101325.0  # Pa
+#: Relative interpolation error allowed at every interval midpoint of a property table.
+TABLE_TOLERANCE = 1e-5
+#: Starting grid step of a property table, K.
+TABLE_STEP = 0.5
+#: Most temperatures one table may hold (bounds memory: 6 arrays of this many float64).
+TABLE_MAX_POINTS = 8192
+#: A state this close (K) beyond a table's first or last temperature takes the end value.
+TABLE_END_HOLD = 0.02
+#: Most tables kept at once (least recently used dropped).
+TABLE_CACHE_SIZE = 48
 GAS_CONSTANT = 8.314462618  # J/(mol K), CODATA 2018 exact value
 
 
@@ -150,6 +176,98 @@ def _check_state(info: FluidInfo, temperature: float, mass_fraction: float | Non
         )
 
 
+def _sample(state, pressure: float, temperature: float) -> tuple[float, float, float, float] | None:
+    """Density, heat capacity, viscosity, conductivity from CoolProp at (T, p); None where CoolProp refuses."""
+    try:
+        state.update(CP.PT_INPUTS, pressure, temperature)
+        return state.rhomass(), state.cpmass(), state.viscosity(), state.conductivity()
+    except ValueError:
+        return None
+
+
+def _between(t0: float, v0, t1: float, v1, t: float) -> tuple[float, float, float, float]:
+    """The table's interpolation between two neighbouring points, at ``t`` (the rule :class:`PropertyTable` uses)."""
+    w = (t - t0) / (t1 - t0)
+    u = (-1.0 / t + 1.0 / t0) / (-1.0 / t1 + 1.0 / t0)
+    return (v0[0] + w * (v1[0] - v0[0]), v0[1] + w * (v1[1] - v0[1]),
+            math.exp(math.log(v0[2]) + u * (math.log(v1[2]) - math.log(v0[2]))), v0[3] + w * (v1[3] - v0[3]))
+
+
+@dataclass(frozen=True, eq=False)
+class PropertyTable:
+    """Liquid properties tabulated over a temperature range, for interpolation (see the module notes)."""
+
+    temperature: np.ndarray  # K, increasing
+    density: np.ndarray  # kg/m3
+    heat_capacity: np.ndarray  # J/(kg K)
+    log_viscosity: np.ndarray  # ln(Pa s)
+    conductivity: np.ndarray  # W/(m K)
+    inverse_temperature: np.ndarray  # -1/T, 1/K, increasing (the abscissa of ln viscosity)
+
+    @property
+    def span(self) -> tuple[float, float]:
+        """First and last tabulated temperature, K."""
+        return float(self.temperature[0]), float(self.temperature[-1])
+
+    def states(self, temperature) -> LiquidProperties:
+        """Properties at an array of temperatures (K), as a :class:`LiquidProperties` of arrays.
+
+        Outside the span the end values are held (callers clamp or check first).
+        """
+        T = np.asarray(temperature, dtype=float)
+        return LiquidProperties(T, np.interp(T, self.temperature, self.density),
+                                np.interp(T, self.temperature, self.heat_capacity),
+                                np.exp(np.interp(-1.0 / T, self.inverse_temperature, self.log_viscosity)),
+                                np.interp(T, self.temperature, self.conductivity))
+
+    def state(self, temperature: float) -> LiquidProperties:
+        """Properties at one temperature (K), floats; the same numbers :meth:`states` gives for it."""
+        s = self.states(temperature)
+        return LiquidProperties(float(temperature), float(s.density), float(s.heat_capacity), float(s.viscosity),
+                                float(s.thermal_conductivity))
+
+
+@lru_cache(maxsize=TABLE_CACHE_SIZE)
+def property_table(fluid: str, mass_fraction: float | None = None,
+                   pressure: float = STANDARD_PRESSURE) -> PropertyTable:
+    """The table of a library liquid over its liquid range at ``pressure``, built from CoolProp on first use.
+
+    Starts on a :data:`TABLE_STEP` grid from just above the freezing point to just below the boiling
+    point, then halves each interval whose interpolated midpoint is off by more than
+    :data:`TABLE_TOLERANCE` (relative, any property), until none is or the table holds
+    :data:`TABLE_MAX_POINTS`. States CoolProp refuses (e.g. just above a triple point below the
+    melting line) are left out of the table.
+    """
+    info = fluid_info(fluid)
+    low, high = liquid_range(fluid, mass_fraction, pressure)
+    a, b = low + 1e-3, high - 1e-2
+    grid = np.linspace(a, b, max(int(math.ceil((b - a) / TABLE_STEP)), 1) + 1)
+    with _lock:
+        state = _state(info.backend, info.coolprop_name, mass_fraction)
+        points = {float(t): v for t in grid if (v := _sample(state, pressure, float(t))) is not None}
+        ordered = sorted(points)
+        pending = list(zip(ordered, ordered[1:]))
+        while pending and len(points) < TABLE_MAX_POINTS:
+            refine = []
+            for t0, t1 in pending:
+                mid = 0.5 * (t0 + t1)
+                exact = _sample(state, pressure, mid)
+                if exact is None or len(points) >= TABLE_MAX_POINTS:
+                    continue
+                guess = _between(t0, points[t0], t1, points[t1], mid)
+                points[mid] = exact
+                if max(abs(g / e - 1.0) for g, e in zip(guess, exact)) > TABLE_TOLERANCE:
+                    refine += [(t0, mid), (mid, t1)]
+            pending = refine
+    if len(points) < 2:  # pragma: no cover - every library liquid has a liquid range wider than a step
+        raise InputError("fluid", f"{info.name}: CoolProp gives no liquid states at {pressure / 1e5:.4g} bar")
+    T = np.array(sorted(points))
+    values = np.array([points[t] for t in T])
+    for array in (T, values):
+        array.flags.writeable = False
+    return PropertyTable(T, values[:, 0], values[:, 1], np.log(values[:, 2]), values[:, 3], -1.0 / T)
+
+
 @lru_cache(maxsize=65536)
 def _lookup(fluid: str, temperature: float, mass_fraction: float | None, pressure: float) -> LiquidProperties:
     info = FLUIDS[fluid]
@@ -201,11 +319,18 @@ def liquid_properties(fluid: str, temperature: float, mass_fraction: float | Non
 
 
 class Liquid:
-    """A liquid whose properties are known as a function of temperature (K)."""
+    """A liquid whose properties are known as a function of temperature (K).
+
+    ``at`` checks one state and answers with floats; ``states`` answers for an array of temperatures
+    already known to be valid (the vectorised network clamps them first), with the same numbers.
+    """
 
     name: str = "liquid"
 
     def at(self, temperature: float, field: str = "temperature") -> LiquidProperties:  # pragma: no cover
+        raise NotImplementedError
+
+    def states(self, temperature) -> LiquidProperties:  # pragma: no cover
         raise NotImplementedError
 
 
@@ -226,8 +351,25 @@ class LibraryLiquid(Liquid):
         return f"{info.name}, {100 * self.mass_fraction:g} % by mass"
 
     def at(self, temperature: float, field: str = "temperature") -> LiquidProperties:
-        return liquid_properties(self.fluid, temperature, self.mass_fraction, self.pressure,
-                                 field=field, fraction_field=self.fraction_field)
+        """Properties at one state from the liquid's :class:`PropertyTable` (checked against the liquid range)."""
+        info = fluid_info(self.fluid)
+        if not math.isfinite(temperature):
+            raise InputError(field, "must be a finite temperature")
+        _check_state(info, temperature, self.mass_fraction, self.pressure, field, self.fraction_field)
+        table = self.table()
+        low, high = table.span
+        # within TABLE_END_HOLD of its ends the table's end values stand (its ends sit 1e-3 K above the
+        # freezing and 1e-2 K below the boiling point); further out CoolProp itself gave no state
+        if not low - TABLE_END_HOLD <= temperature <= high + TABLE_END_HOLD:
+            raise InputError(field, f"{info.name}: no liquid properties at {temperature - 273.15:.2f} degC "
+                                    f"(CoolProp's liquid states span {low - 273.15:.2f} to {high - 273.15:.2f} degC)")
+        return table.state(temperature)
+
+    def states(self, temperature) -> LiquidProperties:
+        return self.table().states(temperature)
+
+    def table(self) -> PropertyTable:
+        return property_table(self.fluid, self.mass_fraction, self.pressure)
 
     def liquid_range(self) -> tuple[float, float]:
         return liquid_range(self.fluid, self.mass_fraction, self.pressure)
@@ -250,11 +392,18 @@ class ExplicitLiquid(Liquid):
     viscosity_temperature_coefficient: float = 0.0
     name: str = "liquid (given properties)"
 
-    def viscosity_at(self, temperature: float) -> float:
+    def viscosity_at(self, temperature):
+        """Viscosity at ``temperature`` (K; a float or an array), Pa s."""
         if self.reference_temperature is None or self.viscosity_temperature_coefficient == 0.0:
-            return self.viscosity
+            return self.viscosity + 0.0 * temperature
         exponent = self.viscosity_temperature_coefficient * (1.0 / temperature - 1.0 / self.reference_temperature)
-        return self.viscosity * math.exp(max(min(exponent, 50.0), -50.0))
+        return self.viscosity * arrays.exp(arrays.clip(exponent, -50.0, 50.0))
+
+    def states(self, temperature) -> LiquidProperties:
+        T = np.asarray(temperature, dtype=float)
+        constant = np.ones_like(T)
+        return LiquidProperties(T, self.density * constant, self.heat_capacity * constant, self.viscosity_at(T),
+                                self.thermal_conductivity * constant)
 
     def at(self, temperature: float, field: str = "temperature") -> LiquidProperties:
         if not (math.isfinite(temperature) and temperature > 0):

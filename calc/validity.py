@@ -104,3 +104,35 @@ class Correlation:
         for quantity, value in values.items():
             low, high = (self.validity or {}).get(quantity, (None, None))
             warnings.check(self.name, quantity, value, low, high)
+
+
+#: How the sign convention is explained wherever a reaction enthalpy is read.
+SIGN_CONVENTION = ("coolmargin's convention is the thermodynamic one: a reaction enthalpy is negative when the "
+                   "reaction releases heat (exothermic) and the heat released is -dH")
+
+
+def require_sign(field: str, enthalpy: float, endothermic: bool, flag_field: str) -> float:
+    """Check a reaction enthalpy [J/mol] against what the request says the step does.
+
+    Engineers quote heats of reaction with either sign, and a positive enthalpy read as "absorbs heat"
+    turns a runaway-prone step into one that needs no cooling. So a positive enthalpy is refused unless
+    the request says explicitly that the step absorbs heat (``flag_field`` true), and an explicit
+    endothermic step must then have a positive enthalpy. Raises :class:`InputError` naming ``field``.
+
+    >>> require_sign("heat_release.reaction_enthalpy", -120e3, False, "heat_release.endothermic")
+    -120000.0
+    >>> require_sign("heat_release.reaction_enthalpy", 120e3, False, "heat_release.endothermic")
+    Traceback (most recent call last):
+    ...
+    calc.validity.InputError: heat_release.reaction_enthalpy: is positive (120000 J/mol), ...
+    """
+    if isinstance(enthalpy, bool) or not isinstance(enthalpy, (int, float)) or not math.isfinite(enthalpy):
+        raise InputError(field, f"must be a finite number in J/mol, got {enthalpy!r}")
+    if enthalpy > 0.0 and not endothermic:
+        raise InputError(field, f"is positive ({enthalpy:.6g} J/mol), which would mean the step absorbs heat; "
+                                f"{SIGN_CONVENTION}. Give an exothermic enthalpy as a negative number, or set "
+                                f"{flag_field} to true if this step really absorbs heat")
+    if endothermic and enthalpy <= 0.0:
+        raise InputError(flag_field, f"is true, but {field} is {enthalpy:.6g} J/mol (not positive): "
+                                     f"{SIGN_CONVENTION}")
+    return float(enthalpy)

@@ -23,7 +23,11 @@ class HeatReleaseSchema(StrictSchema):
                               description="specific_power: heat release per kg of charge (e.g. a calorimeter peak)")
     power = Quantity("power", load_default=None, minimum=0, description="total_power: heat release")
     reaction_enthalpy = Quantity("molar enthalpy", load_default=None,
-                                 description="dosing: J per mol of dosed reagent, negative = exothermic")
+                                 description="dosing: J per mol of dosed reagent, negative = exothermic; a "
+                                             "positive value is refused unless endothermic is true")
+    endothermic = fields.Boolean(load_default=None,
+                                 metadata={"description": "dosing: true declares a step that absorbs heat "
+                                                          "(positive reaction_enthalpy); default false"})
     dosed_amount = Quantity("amount of substance", load_default=None, minimum=0, exclusive_minimum=True)
     dosing_time = Quantity("time", load_default=None, minimum=0, exclusive_minimum=True)
     feed_mass = Quantity("mass", load_default=None, minimum=0)
@@ -32,7 +36,7 @@ class HeatReleaseSchema(StrictSchema):
 
     _FIELDS = {"specific_power": ("power_per_mass",), "total_power": ("power",),
                "dosing": ("reaction_enthalpy", "dosed_amount", "dosing_time", "feed_mass", "feed_temperature",
-                          "feed_heat_capacity")}
+                          "feed_heat_capacity", "endothermic")}
     _REQUIRED = {"specific_power": ("power_per_mass",), "total_power": ("power",),
                  "dosing": ("reaction_enthalpy", "dosed_amount", "dosing_time")}
 

@@ -144,7 +144,11 @@ class ReactionSchema(StrictSchema):
                                                           "(mol/m^3)^(1 - sum of orders)/s"})
     reference_temperature = _temperature(required=True)
     activation_energy = _non_negative("activation energy", required=True)
-    enthalpy = Quantity("molar enthalpy", required=True, description="per mol of extent, negative = exothermic")
+    enthalpy = Quantity("molar enthalpy", required=True,
+                        description="per mol of extent, negative = exothermic; positive only with endothermic")
+    endothermic = fields.Boolean(load_default=False,
+                                 metadata={"description": "true declares a reaction that absorbs heat "
+                                                          "(positive enthalpy)"})
 
     @post_load
     def _make(self, data, **kwargs):
@@ -450,7 +454,11 @@ class CSTRRequestSchema(StrictSchema):
                                  metadata={"description": "k at reference_temperature, (mol/m^3)^(1-n)/s"})
     reference_temperature = _temperature(required=True)
     activation_energy = _non_negative("activation energy", required=True)
-    reaction_enthalpy = Quantity("molar enthalpy", required=True, description="negative = exothermic")
+    reaction_enthalpy = Quantity("molar enthalpy", required=True,
+                                 description="negative = exothermic; positive only with endothermic")
+    endothermic = fields.Boolean(load_default=False,
+                                 metadata={"description": "true declares a reaction that absorbs heat "
+                                                          "(positive reaction_enthalpy)"})
     ua = _non_negative("thermal conductance", required=True)
     coolant_temperature = _temperature(required=True)
     order = finite_float(load_default=1.0, validate=validate.Range(0.0, 5.0))

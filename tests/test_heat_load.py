@@ -43,13 +43,29 @@ def test_hot_feed_adds_heat_and_warns():
     assert [w.code for w in load.warnings] == ["feed_hotter_than_contents"]
 
 
-@pytest.mark.parametrize("enthalpy", [0.0, 40e3])
-def test_endothermic_or_zero_dosing_warns(enthalpy):
-    # definition: dH >= 0 releases no heat; the agitator power is then the whole load
-    load = heat_load(Dosing(enthalpy, 800.0, 3 * HOUR), 4300.0, K + 60, 280.0)
-    assert load.reaction == pytest.approx(-enthalpy * 800.0 / (3 * HOUR), abs=1e-12)
+def test_zero_enthalpy_dosing_warns():
+    # definition: dH = 0 releases no heat; the agitator power is then the whole load
+    load = heat_load(Dosing(0.0, 800.0, 3 * HOUR), 4300.0, K + 60, 280.0)
+    assert load.reaction == 0.0
     assert "no_reaction_heat" in [w.code for w in load.warnings]
-    assert load.total == pytest.approx(load.reaction + 280.0, rel=1e-12)
+    assert load.total == pytest.approx(280.0, rel=1e-12)
+
+
+def test_declared_endothermic_dosing_takes_up_heat_and_says_so():
+    # definition: Q_r = -dH n / t_dose is negative for dH > 0; the step was declared heat-absorbing
+    load = heat_load(Dosing(40e3, 800.0, 3 * HOUR, endothermic=True), 4300.0, K + 60, 280.0)
+    assert load.reaction == pytest.approx(-40e3 * 800.0 / (3 * HOUR), rel=1e-12)
+    assert [w.code for w in load.warnings] == ["endothermic_step"]
+
+
+def test_positive_enthalpy_without_the_declaration_is_refused():
+    # sign convention: thermodynamic, negative = exothermic (common practice, no source)
+    with pytest.raises(InputError) as error:
+        heat_load(Dosing(40e3, 800.0, 3 * HOUR), 4300.0, K + 60, 280.0)
+    assert error.value.field == "heat_release.reaction_enthalpy" and "negative" in error.value.message
+    with pytest.raises(InputError) as error:
+        heat_load(Dosing(-40e3, 800.0, 3 * HOUR, endothermic=True), 4300.0, K + 60, 280.0)
+    assert error.value.field == "heat_release.endothermic"
 
 
 def test_power_models():

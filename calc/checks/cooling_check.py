@@ -30,6 +30,7 @@ from dataclasses import dataclass, field, replace
 
 from scipy.optimize import brentq
 
+from calc.deadline import NEVER, Deadline
 from calc.network import coolant_balance
 from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
 from calc.network.heat_transfer import HeatTransferResult, heat_transfer
@@ -63,6 +64,9 @@ CAUTIONS = (
 DOSING_CAUTION = ("The dosing model assumes the feed reacts as it is added. Any unreacted feed that "
                   "accumulates releases more heat later and is not in this load: check accumulation "
                   "by calorimetry.")
+ENDOTHERMIC_CAUTION = ("This step was declared heat-absorbing (endothermic): 'adequate' here means only that "
+                       "the cooling does not limit it. Make sure the sign is right: an exothermic step entered "
+                       "with a positive enthalpy would be checked as if it needed no cooling.")
 
 
 @dataclass(frozen=True)
@@ -152,18 +156,20 @@ def _minimum_dosing_time(heat_release: Dosing, process_temperature: float, capac
 
 
 def _solve(residual, start: float, step: float, low: float, high: float, increasing: bool, what: str,
-           **tolerances) -> tuple[float | None, float]:
+           deadline: Deadline = NEVER, **tolerances) -> tuple[float | None, float]:
     """Root of a monotonic ``residual`` in [low, high], searched outward from the estimate ``start``.
 
     Steps of ``step``, doubling, go the way the residual's sign points until it changes; Brent's
     method then closes the bracket (calls are memoised, so its first two evaluations are free).
     Returns (root, residual there), or (None, residual at the bound reached) when the sign never
-    changes: the root lies beyond ``low`` or ``high``.
+    changes: the root lies beyond ``low`` or ``high``. Each new evaluation first checks ``deadline``
+    (:class:`calc.deadline.OutOfTime` when it has passed).
     """
     memo: dict[float, float] = {}
 
     def f(x: float) -> float:
         if x not in memo:
+            deadline.check()
             memo[x] = residual(x)
         return memo[x]
 
@@ -187,7 +193,7 @@ def _solve(residual, start: float, step: float, low: float, high: float, increas
 
 
 def _maximum_inlet_temperature(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
-                               target: float, capacity: float) -> Limit:
+                               target: float, capacity: float, deadline: Deadline = NEVER) -> Limit:
     if target <= 0.0:
         return Limit(process_temperature, True, "no net heat load: any coolant colder than the contents will do")
     liquid_range = getattr(coolant.liquid, "liquid_range", None)
@@ -213,7 +219,7 @@ def _maximum_inlet_temperature(vessel: Vessel, charge: Charge, coolant: Coolant,
     driving = process_temperature - given
     estimate = process_temperature - driving * target / capacity if capacity > 0.0 else low
     inlet, value = _solve(residual, estimate, 0.01 * driving, low, high, increasing=False,
-                          what="maximum coolant inlet temperature", xtol=1e-9, rtol=1e-11)
+                          what="maximum coolant inlet temperature", deadline=deadline, xtol=1e-9, rtol=1e-11)
     if inlet is None and value >= 0.0:
         return Limit(high, True, "every inlet temperature up to the process temperature (or the coolant's "
                                  "boiling point) removes the load with the safety factor", (value + 1.0) * target)
@@ -245,7 +251,7 @@ def _flow_estimate(result: HeatTransferResult, target: float) -> float:
 
 
 def _required_flow(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
-                   target: float, result: HeatTransferResult) -> Limit:
+                   target: float, result: HeatTransferResult, deadline: Deadline = NEVER) -> Limit:
     if target <= 0.0:
         return Limit(0.0, True, "no net heat load: no coolant flow is needed")
     given = coolant.mass_flow()
@@ -267,13 +273,14 @@ def _required_flow(vessel: Vessel, charge: Charge, coolant: Coolant, process_tem
     # network solved at the first one shows how far, and sets the first step of the search.
     step = math.log(1.2)
     if result.streams and estimate < high:
+        deadline.check()
         first = residual(estimate)
         if first != 0.0 and results.get(estimate) is not None and results[estimate].streams:
             again = math.log(_flow_estimate(results[estimate], target))
             step = min(max(1.5 * abs(again - estimate), math.log(1.01)), math.log(4.0))
     low = math.log(given) - 30.0 * math.log(10.0)
     log_flow, value = _solve(residual, estimate, step, low, high,
-                             increasing=True, what="required coolant flow", xtol=1e-10, rtol=1e-11)
+                             increasing=True, what="required coolant flow", deadline=deadline, xtol=1e-10, rtol=1e-11)
     if log_flow is None and value < 0.0:
         return Limit(None, False, "not reachable at any flow: the area and process film limit the capacity "
                                   f"(shown at {FLOW_SEARCH_CAP:g} times the given flow)", (value + 1.0) * target)
@@ -285,11 +292,12 @@ def _required_flow(vessel: Vessel, charge: Charge, coolant: Coolant, process_tem
 
 def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
                   heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
-                  limits: bool = True) -> CoolingCheck:
+                  limits: bool = True, deadline: Deadline = NEVER) -> CoolingCheck:
     """Compare the cooling capacity at ``process_temperature`` (K) with the heat load.
 
     ``limits=False`` skips the three solved limits (``CoolingCheck.limits`` is then None), for
-    callers that need only the verdict.
+    callers that need only the verdict. The limit searches stop with :class:`calc.deadline.OutOfTime`
+    once ``deadline`` has passed.
     """
     safety_factor = _check_safety_factor(safety_factor)
     result, load = evaluate(vessel, charge, coolant, process_temperature, heat_release)
@@ -312,7 +320,10 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         if isinstance(heat_release, Dosing):
             dosing = _minimum_dosing_time(heat_release, process_temperature, capacity, load.agitator, safety_factor)
         solved = Limits(dosing,
-                        _maximum_inlet_temperature(vessel, charge, coolant, process_temperature, target, capacity),
-                        _required_flow(vessel, charge, coolant, process_temperature, target, result))
+                        _maximum_inlet_temperature(vessel, charge, coolant, process_temperature, target, capacity,
+                                                   deadline),
+                        _required_flow(vessel, charge, coolant, process_temperature, target, result, deadline))
     cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ())
+    if getattr(heat_release, "endothermic", False):
+        cautions += (ENDOTHERMIC_CAUTION,)
     return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings, cautions)

@@ -31,7 +31,7 @@ from __future__ import annotations
 import math
 from dataclasses import MISSING, dataclass, field, fields, replace
 
-from calc.validity import CalcWarning, InputError, Warnings
+from calc.validity import CalcWarning, InputError, Warnings, require_sign
 
 
 def _finite(field_name: str, value) -> float:
@@ -104,6 +104,7 @@ class Dosing:
     ``reaction_enthalpy`` J/mol (negative = exothermic), ``dosed_amount`` mol, ``dosing_time`` s,
     ``feed_mass`` kg (0: the feed's sensible heat is ignored), ``feed_temperature`` K,
     ``feed_heat_capacity`` J/(kg K); the last two are needed only when ``feed_mass`` > 0.
+    A positive enthalpy is refused unless ``endothermic`` is true (see :func:`calc.validity.require_sign`).
     """
 
     reaction_enthalpy: float
@@ -112,10 +113,12 @@ class Dosing:
     feed_mass: float = 0.0
     feed_temperature: float | None = None
     feed_heat_capacity: float | None = None
+    endothermic: bool = False  # the request says explicitly that the step absorbs heat (dH > 0)
     model = "dosing"
 
     def validate(self) -> None:
-        _finite("heat_release.reaction_enthalpy", self.reaction_enthalpy)
+        require_sign("heat_release.reaction_enthalpy", self.reaction_enthalpy, self.endothermic,
+                     "heat_release.endothermic")
         _positive("heat_release.dosed_amount", self.dosed_amount)
         _positive("heat_release.dosing_time", self.dosing_time)
         if _nonnegative("heat_release.feed_mass", self.feed_mass) > 0.0:
@@ -220,7 +223,12 @@ def heat_load(model: HeatRelease, charge_mass: float, process_temperature: float
     warnings = Warnings()
     reaction = model.reaction_power(charge_mass)
     feed = model.feed_sensible(process_temperature)
-    if reaction <= 0.0:
+    if getattr(model, "endothermic", False):
+        warnings.add(CalcWarning("endothermic_step",
+                                 f"the request declares a heat-absorbing step (heat_release.endothermic = true): the "
+                                 f"reaction takes up {-reaction:.4g} W. The verdict only says that cooling does not "
+                                 "limit this step; heating needed to hold the process temperature is not checked"))
+    elif reaction <= 0.0:
         what = "is endothermic" if reaction < 0.0 else "releases no heat"
         warnings.add(CalcWarning("no_reaction_heat",
                                  f"the reaction {what} ({reaction:.4g} W): check the sign of the heat release "

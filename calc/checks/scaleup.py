@@ -35,6 +35,7 @@ from dataclasses import dataclass, field, replace
 
 from scipy.optimize import brentq
 
+from calc.deadline import NEVER, Deadline
 from calc.vessel import agitation as agitation_module
 from calc.vessel import geometry
 from calc.checks.cooling_check import CAUTIONS, DEFAULT_SAFETY_FACTOR, DOSING_CAUTION, CoolingCheck, _check_safety_factor, \
@@ -212,13 +213,14 @@ def _check_targets(targets) -> list:
 
 
 def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_factor: float, upper: float,
-                   reference_check: CoolingCheck, warnings: Warnings):
+                   reference_check: CoolingCheck, warnings: Warnings, deadline: Deadline = NEVER):
     """Largest adequate volume (Brent's method on log V) and controlling switches (scan, then bisection)."""
     memo: dict[float, tuple[float, str]] = {}
 
     def state(log_volume: float) -> tuple[float, str]:
         """(log(margin / SF), controlling resistance) of the similar vessel of volume exp(log_volume)."""
         if log_volume not in memo:
+            deadline.check()
             vessel, charge, _, coolant, heat_release, _ = _similar(reference, math.exp(log_volume), rule, coolant_rule)
             result, load = evaluate(vessel, charge, coolant, reference.process_temperature, heat_release)
             margin = margin_of(result.duty, load.total)
@@ -268,11 +270,14 @@ def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_f
 
 def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coolant, process_temperature: float,
              heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
-             coolant_flow_rule: str = "scale_with_area", limits: bool = True) -> ScaleUp:
+             coolant_flow_rule: str = "scale_with_area", limits: bool = True,
+             deadline: Deadline = NEVER) -> ScaleUp:
     """Cooling checks of the reference and each target, and the largest adequate similar vessel.
 
     ``charge``, ``coolant`` and ``heat_release`` describe the reference scale; see the module notes
     for how each is carried to the targets. ``limits`` is passed to each scale's cooling check.
+    Every scale and every step of the family search first checks ``deadline``
+    (:class:`calc.deadline.OutOfTime` once it has passed).
     """
     if rule not in RULES:
         raise InputError("rule", f"unknown scale-up rule {rule!r}; known rules: {', '.join(RULES)}")
@@ -283,7 +288,8 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
     targets = _check_targets(targets)
     warnings = Warnings()
 
-    first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits)
+    first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits,
+                          deadline)
     result = first.heat_transfer
     ref = _Reference(reference, charge, coolant, heat_release, process_temperature, result.fill.brim_volume,
                      result.fill.volume, result.fill.heat_transfer_area, result.process_properties,
@@ -294,6 +300,7 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
     scales = [ScaleResult(reference.name, ref.volume, ref.charge_volume, 1.0, False, reference.agitator.speed,
                           reference, coolant, first)]
     for i, target in enumerate(targets):
+        deadline.check()
         own_coolant = None
         if isinstance(target, tuple):  # (vessel, its own utility)
             target, own_coolant = target
@@ -309,7 +316,7 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
                 _similar(ref, volume, rule, coolant_flow_rule)
             generated = True
         check = cooling_check(vessel, scaled_charge, scaled_coolant, process_temperature, release,
-                              safety_factor, limits)
+                              safety_factor, limits, deadline)
         scales.append(ScaleResult(vessel.name, volume, charge_volume, factor, generated, vessel.agitator.speed,
                                   vessel, scaled_coolant, check))
 
@@ -317,7 +324,7 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
     upper = max(ref.volume * SEARCH_RATIO, 10.0 * largest_target)
     family_rule = "constant_speed" if rule == "as_given" else rule
     largest, beyond, message, switches = _family_search(ref, family_rule, coolant_flow_rule, safety_factor, upper,
-                                                        first, warnings)
+                                                        first, warnings, deadline)
     cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ())
     return ScaleUp(tuple(scales), largest, beyond, upper, message, switches, rule, coolant_flow_rule, safety_factor,
                    warnings, cautions)

@@ -23,7 +23,8 @@ import numpy as np
 from scipy.optimize import brentq
 
 from calc.properties import GAS_CONSTANT, STANDARD_PRESSURE, liquid_range
-from calc.validity import CalcWarning, CalculationError, Correlation, InputError, Warnings, require_positive
+from calc.validity import (SIGN_CONVENTION, CalcWarning, CalculationError, Correlation, InputError, Warnings,
+                           require_positive)
 
 SECONDS_PER_HOUR = 3600.0
 #: Adiabatic time to maximum rate that defines T_D24, s (Stoessel 2008: 24 h).
@@ -517,7 +518,8 @@ def _adiabatic_rise(inp: ThermalSafetyInput) -> float:
         if inp.reaction_enthalpy is not None:
             raise InputError("reaction_enthalpy", "give either reaction_energy or reaction_enthalpy, not both")
         if not (math.isfinite(inp.reaction_energy) and inp.reaction_energy > 0):
-            raise InputError("reaction_energy", f"must be a positive energy released per kg, got {inp.reaction_energy!r}")
+            raise InputError("reaction_energy", f"must be a positive energy released per kg, got "
+                                                f"{inp.reaction_energy!r} J/kg (heat released is positive here)")
         return adiabatic_temperature_rise_from_energy(inp.reaction_energy, inp.heat_capacity)
     if inp.reaction_enthalpy is None:
         raise InputError("reaction_energy", "give reaction_energy, or reaction_enthalpy with concentration and density")
@@ -525,7 +527,9 @@ def _adiabatic_rise(inp: ThermalSafetyInput) -> float:
         if getattr(inp, name) is None:
             raise InputError(name, "is required with reaction_enthalpy")
     if not (math.isfinite(inp.reaction_enthalpy) and inp.reaction_enthalpy < 0):
-        raise InputError("reaction_enthalpy", f"must be negative (exothermic), got {inp.reaction_enthalpy!r}")
+        raise InputError("reaction_enthalpy", f"must be negative (exothermic), got {inp.reaction_enthalpy!r} J/mol: "
+                                              f"{SIGN_CONVENTION}. A thermal-safety assessment is for a step that "
+                                              "releases heat; give the enthalpy as a negative number")
     return adiabatic_temperature_rise_from_enthalpy(inp.reaction_enthalpy, inp.concentration,
                                                     inp.density, inp.heat_capacity)
 

@@ -33,13 +33,13 @@ them, integrates them and searches the worst cooling-failure time.
 from __future__ import annotations
 
 import math
-import time
 from dataclasses import dataclass, field
 
 import numpy as np
 from scipy.integrate import OdeSolution
 from scipy.optimize import brentq, minimize_scalar
 
+from calc.deadline import NEVER, OutOfTime
 from calc.properties import GAS_CONSTANT
 from calc.safety.tank_model import (
     METHODS, MODES, CoolingFailure, LimitCrossing, Series, SimulationInput, SimulationResult, Summary,
@@ -50,15 +50,12 @@ from calc.validity import CalcWarning, InputError, Warnings
 MESSAGES = {
     0: "The horizon was reached.",
     1: "A terminal temperature limit was reached.",
-    2: "The wall-time budget was exhausted; the result covers the time simulated so far.",
+    2: ("The time budget (the run's wall time or the request's) was used up, or the caller went away; "
+        "the result covers the time simulated so far."),
     -1: "The integration failed",
 }
 
 N_SUMS = 6  # feed enthalpy, reaction heat, jacket heat, shaft work, outflow enthalpy, fed mass
-
-
-class _BudgetExhausted(Exception):
-    pass
 
 
 # ----------------------------------------------------------------------------- the model
@@ -130,7 +127,7 @@ class _Model:
         self.iS = k
         self.n_states = k + N_SUMS
         self.evaluations = 0
-        self.deadline = math.inf
+        self.deadline = NEVER
         # Initial state.
         y0 = np.zeros(self.n_states)
         ch = inp.charge
@@ -218,8 +215,7 @@ class _Model:
 
     def rhs(self, F: float, cooling: float):
         def fun(t, y):
-            if time.perf_counter() > self.deadline:
-                raise _BudgetExhausted
+            self.deadline.check()
             self.evaluations += 1 if y.ndim == 1 else y.shape[1]
             dy = self.terms(y, F, cooling)[0]
             return dy.reshape(y.shape)
@@ -312,7 +308,7 @@ def _integrate(model: _Model, track: _Track, points: list, failed: bool, stop_fe
                 if stop is not None:
                     track.status, track.message = 1, MESSAGES[1]
                     return
-        except _BudgetExhausted:
+        except OutOfTime:
             track.status, track.message = 2, MESSAGES[2]
             return
         except (ArithmeticError, ValueError, np.linalg.LinAlgError) as exc:
@@ -354,7 +350,7 @@ def _worst_failure(model: _Model, failure: CoolingFailure, limits: tuple):
             pre = _truncate(nominal, t_fail)
             post = _run(model, t_fail, pre.ys[-1], model.inp.horizon, True, failure.stop_feed, ())
             if post.status == 2:
-                raise _BudgetExhausted
+                raise OutOfTime
             runs[t_fail] = (max(y[model.iT] for y in post.ys), pre, post)
         return runs[t_fail][0]
 
@@ -367,7 +363,7 @@ def _worst_failure(model: _Model, failure: CoolingFailure, limits: tuple):
             a, b = float(grid[max(i - 1, 0)]), float(grid[min(i + 1, len(grid) - 1)])
             minimize_scalar(lambda t: -peak(float(t)), bounds=(a, b), method="bounded",
                             options={"xatol": 1e-4 * (high - low), "maxiter": 25})
-    except _BudgetExhausted:
+    except OutOfTime:
         exhausted = True
     if not runs:
         nominal.status, nominal.message = 2, MESSAGES[2]
@@ -490,7 +486,7 @@ def simulate(inp: SimulationInput) -> SimulationResult:
     """
     warnings = Warnings()
     model = _Model(inp, warnings)
-    model.deadline = time.perf_counter() + inp.budget.wall_time
+    model.deadline = inp.budget.deadline.within(inp.budget.wall_time)
     failure, search, t_fail = inp.failure, (), None
     if failure is None:
         track = _run(model, 0.0, model.y0, inp.horizon, False, False, inp.limits)

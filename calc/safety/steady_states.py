@@ -25,7 +25,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from calc.properties import GAS_CONSTANT
-from calc.validity import CalcWarning, Correlation, InputError, Warnings, require_positive
+from calc.validity import CalcWarning, Correlation, InputError, Warnings, require_positive, require_sign
 
 CAUTION = ("Screening estimate: confirm with reaction calorimetry and plant data, follow local codes "
            "and have a licensed engineer review the result.")
@@ -49,6 +49,7 @@ class CSTRInput:
     shaft_power: float = 0.0  # W
     temperature_range: tuple | None = None  # (low, high) K; default: every possible steady state
     grid_points: int = 4001
+    endothermic: bool = False  # the request declares a heat-absorbing reaction (reaction_enthalpy > 0 allowed)
 
 
 @dataclass(frozen=True)
@@ -149,9 +150,9 @@ def _validate(inp: CSTRInput) -> None:
         value = getattr(inp, name)
         if not (math.isfinite(value) and value >= 0):
             raise InputError(name, f"must be a finite number >= 0, got {value!r}")
-    for name in ("reaction_enthalpy", "shaft_power"):
-        if not math.isfinite(getattr(inp, name)):
-            raise InputError(name, "must be a finite number")
+    require_sign("reaction_enthalpy", inp.reaction_enthalpy, inp.endothermic, "endothermic")
+    if not math.isfinite(inp.shaft_power):
+        raise InputError("shaft_power", "must be a finite number")
     require_positive("coolant_temperature", inp.coolant_temperature)
     if not (isinstance(inp.grid_points, int) and 11 <= inp.grid_points <= 200001):
         raise InputError("grid_points", "must be an integer from 11 to 200001")

@@ -17,7 +17,8 @@ from typing import Callable
 import numpy as np
 from scipy.integrate import BDF, LSODA, Radau
 
-from calc.validity import CalcWarning, InputError, Warnings, require_positive
+from calc.deadline import NEVER, Deadline
+from calc.validity import CalcWarning, InputError, Warnings, require_positive, require_sign
 
 CAUTION = ("Screening estimate: confirm with reaction calorimetry and plant data, follow local codes "
            "and have a licensed engineer review the result.")
@@ -45,6 +46,7 @@ class Reaction:
     reference_temperature: float  # K
     activation_energy: float  # J/mol
     enthalpy: float  # J/mol of extent at the enthalpy reference temperature, negative = exothermic
+    endothermic: bool = False  # the request declares a heat-absorbing reaction (enthalpy > 0 allowed)
 
 
 @dataclass(frozen=True)
@@ -127,7 +129,8 @@ class Budget:
     horizon_limit: float = 30 * 86400.0  # s
     output_points: int = 201
     maximum_output_points: int = 20001
-    wall_time: float = 10.0  # s
+    wall_time: float = 10.0  # s of computing for this run
+    deadline: Deadline = NEVER  # the caller's clock (a request's budget); the run stops at the sooner of the two
 
 
 @dataclass(frozen=True)
@@ -333,7 +336,7 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
         _non_negative(f"{f}.rate_constant", r.rate_constant)
         require_positive(f"{f}.reference_temperature", r.reference_temperature)
         _non_negative(f"{f}.activation_energy", r.activation_energy)
-        _finite(f"{f}.enthalpy", r.enthalpy)
+        require_sign(f"{f}.enthalpy", r.enthalpy, r.endothermic, f"{f}.endothermic")
         imbalance = sum(v * molar_mass[k] for k, v in r.stoichiometry.items())
         scale = sum(abs(v) * molar_mass[k] for k, v in r.stoichiometry.items()) or 1.0
         if abs(imbalance) > 1e-6 * scale:

@@ -1,0 +1,130 @@
+"""How a serving process spends its time: each request's deadline, the calculation slots, and readiness.
+
+* Every request runs on a clock (``REQUEST_BUDGET`` seconds, counted from the moment its headers are
+  parsed): :func:`deadline` is the :class:`calc.deadline.Deadline` the calculations check. Under
+  gunicorn the deadline also notices a client that hung up (its socket reads end-of-file), so the
+  work stops where it can instead of computing an answer nobody reads.
+* Calculations take one of ``CALCULATION_SLOTS`` slots per process, after their body has been read.
+  Worker threads wait on slow clients and answer probes; the slots keep the CPU-bound work of one
+  process from being sliced between many threads (which stretches every request's latency). A
+  request that cannot get a slot within its budget is a 503 with ``Retry-After``.
+* :data:`SERVING` counts the requests in flight and knows the worker's thread count and whether the
+  worker is draining after SIGTERM (set by the gunicorn worker class in docker/gunicorn.conf.py);
+  ``/ready`` reads it.
+"""
+from __future__ import annotations
+
+import math
+import select
+import socket
+import threading
+from typing import Callable
+
+from flask import Flask, current_app, g, request
+
+from calc.deadline import NEVER, Deadline
+
+from .errors import ProblemError
+
+#: Paths whose work takes a calculation slot.
+CALCULATION_PREFIX = "/v1/"
+
+
+class ServingState:
+    """Per process: requests in flight, worker threads (None outside gunicorn), draining flag."""
+
+    def __init__(self):
+        self.threads: int | None = None
+        self.draining = threading.Event()
+        self._lock = threading.Lock()
+        self._active = 0
+
+    @property
+    def active(self) -> int:
+        return self._active
+
+    def enter(self) -> None:
+        with self._lock:
+            self._active += 1
+
+    def leave(self) -> None:
+        with self._lock:
+            self._active -= 1
+
+    def saturated(self) -> bool:
+        """Every worker thread is busy (the one asking included): a new request would wait in the queue."""
+        return self.threads is not None and self._active >= self.threads
+
+
+SERVING = ServingState()
+
+
+class CountingMiddleware:
+    """WSGI wrapper counting the requests in flight in this process (body reading included)."""
+
+    def __init__(self, wsgi_app):
+        self.wsgi_app = wsgi_app
+
+    def __call__(self, environ, start_response):
+        SERVING.enter()
+        try:
+            return self.wsgi_app(environ, start_response)
+        finally:
+            SERVING.leave()
+
+
+def hangup_probe(environ: dict) -> Callable[[], bool] | None:
+    """A function saying whether the client of this request has closed its connection (gunicorn only).
+
+    After the body is read, a socket that polls readable and peeks zero bytes has reached end-of-file:
+    the client hung up (a pipelined next request would peek as data, not as the end).
+    """
+    sock = environ.get("gunicorn.socket")
+    if not isinstance(sock, socket.socket):
+        return None
+
+    def gone() -> bool:
+        try:
+            readable, _, _ = select.select([sock], [], [], 0)
+            return bool(readable) and sock.recv(1, socket.MSG_PEEK | socket.MSG_DONTWAIT) == b""
+        except (BlockingIOError, InterruptedError):
+            return False
+        except (OSError, ValueError):  # reset or closed: the client is gone
+            return True
+
+    return gone
+
+
+def deadline() -> Deadline:
+    """The current request's deadline (no deadline outside a request)."""
+    return g.get("deadline", NEVER) if g else NEVER
+
+
+def retry_after() -> str:
+    """Seconds a client is asked to wait before retrying work that ran out of time or found no slot."""
+    return str(max(1, math.ceil(current_app.config["REQUEST_BUDGET"])))
+
+
+def register(app: Flask) -> None:
+    app.wsgi_app = CountingMiddleware(app.wsgi_app)
+    slots = threading.BoundedSemaphore(max(1, int(app.config["CALCULATION_SLOTS"])))
+
+    @app.before_request
+    def _clock():
+        g.deadline = Deadline.after(float(app.config["REQUEST_BUDGET"]), hangup_probe(request.environ))
+
+    @app.before_request
+    def _slot():
+        if not request.path.startswith(CALCULATION_PREFIX) or request.method == "OPTIONS":
+            return None
+        request.get_data(cache=True)  # a slow upload waits here, holding a thread but no slot
+        if not slots.acquire(timeout=max(0.0, g.deadline.remaining())):
+            raise ProblemError(503, "every calculation slot stayed busy for the whole time budget; retry later",
+                               title="Busy")
+        g.slot = True
+        return None
+
+    @app.teardown_request
+    def _free(_exc):
+        if g.pop("slot", False):
+            slots.release()
