@@ -6,7 +6,7 @@ from calc.checks import scaleup
 from schemas.cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
                              ScaleUpResultSchema, cooling_check_dict, scale_up_dict)
 
-from . import charts
+from . import charts, reports
 from .errors import ProblemError
 from .http import calculate
 from .runtime import deadline
@@ -21,9 +21,45 @@ def _check(args: dict) -> dict:
     return cooling_check_dict(check)
 
 
+def check_chart(payload: dict, fmt: str, units: dict) -> bytes:
+    """The heat balance of one check: each part of the load, the total, the capacity and what is required."""
+    fig, (axis,) = charts.figure(1)
+    fig.set_size_inches(7.5, 2.6)
+    load = payload["heat_load"]
+    parts = [("reaction", load["reaction"]), ("agitator", load["agitator"]),
+             ("cold feed (taken up)", -load["feed_sensible"]), ("heat load", load["total"]),
+             (f"load x safety factor {payload['safety_factor']:g}", load["total"] * payload["safety_factor"]),
+             ("cooling capacity", payload["cooling_capacity"])]
+    values, unit = charts.readable([value for _, value in parts], units["heat_load.total"])
+    colours = [charts.COLOURS[0]] * 3 + [charts.COLOURS[1], charts.COLOURS[4],
+                                         charts.COLOURS[2] if payload["adequate"] else charts.COLOURS[1]]
+    axis.barh([name for name, _ in parts][::-1], values[::-1], color=colours[::-1])
+    axis.axvline(0, color="#555555", linewidth=0.8)
+    axis.set_xlabel(f"heat flow, {unit}")
+    verdict = "adequate" if payload["adequate"] else "NOT adequate"
+    margin = "-" if payload["margin"] is None else f"{payload['margin']:.3g}"
+    axis.set_title(f"Heat balance: margin {margin}, {verdict}", fontsize=10)
+    charts.footnote(fig)
+    return charts.render(fig, fmt)
+
+
+def _units_note(view) -> str:
+    return "Numbers to {} significant figures; units as named beside each value.".format(
+        view.digits or reports.REPORT_DIGITS)
+
+
+def check_report(body: dict, payload: dict, units: dict, view) -> reports.Report:
+    vessel = body.get("vessel") if isinstance(body.get("vessel"), dict) else {}
+    name = vessel.get("name") or "the vessel"
+    chart = reports.chart(check_chart, payload, units, "Heat load, its parts and the cooling capacity")
+    page = reports.check_page(payload, units, f"Cooling check of {name}", digits=view.digits or reports.REPORT_DIGITS,
+                              chart=chart)
+    return reports.build("Cooling check", "POST /v1/cooling-check", body, payload, [page], _units_note(view))
+
+
 @bp.route("/cooling-check", methods=["GET", "POST"])
 def cooling_check():
-    return calculate(_request, _check, _result)
+    return calculate(_request, _check, _result, chart=check_chart, report=check_report)
 
 
 _scale_request, _scale_result = ScaleUpRequestSchema(), ScaleUpResultSchema()
@@ -59,9 +95,11 @@ def scale_up_chart(payload: dict, fmt: str, units: dict) -> bytes:
     margins = [s["margin"] if s["margin"] is not None else float("nan") for s in scales]
     colours = [charts.COLOURS[2] if s["adequate"] else charts.COLOURS[1] for s in scales]
     bottom.scatter(volumes, margins, c=colours, zorder=3)
-    for volume, margin, scale in zip(volumes, margins, scales):
+    for index, (volume, margin, scale) in enumerate(zip(volumes, margins, scales)):
         label = f"{volume:.3g} {volume_unit}" if scale["generated"] else scale["name"].split(",")[0][:24]
-        bottom.annotate(label, (volume, margin), textcoords="offset points", xytext=(4, 4), fontsize=7)
+        last = index == len(scales) - 1  # the largest scale is labelled to its left, inside the axes
+        bottom.annotate(label, (volume, margin), textcoords="offset points", xytext=(-4 if last else 4, 4),
+                        ha="right" if last else "left", fontsize=7)
     bottom.axhline(factor, color="#555555", linestyle="--", linewidth=0.9, label="safety factor")
     bottom.set_xscale("log")
     bottom.set_yscale("log")
@@ -82,7 +120,42 @@ def scale_up_chart(payload: dict, fmt: str, units: dict) -> bytes:
     return charts.render(fig, fmt)
 
 
+def scale_up_report(body: dict, payload: dict, units: dict, view) -> reports.Report:
+    """A summary page (every scale, the largest adequate volume, the chart), then one page per scale."""
+    digits = view.digits or reports.REPORT_DIGITS
+    number = reports.number
+    summary = [reports.Row(scale["name"], number(scale["volume"], digits), units["scales.volume"],
+                           f"margin {number(scale['margin'], 3)}: {'adequate' if scale['adequate'] else 'NOT ADEQUATE'}")
+               for scale in payload["scales"]]
+    overall = [reports.Row("largest adequate similar volume", number(payload["largest_adequate_volume"], digits),
+                           units["largest_adequate_volume"], payload.get("largest_adequate_volume_note", "")),
+               reports.Row("agitation rule", payload["rule"].replace("_", " ")),
+               reports.Row("coolant flow at each scale", payload["coolant_flow_rule"].replace("_", " ")),
+               reports.Row("required margin (safety factor)", number(payload["safety_factor"], 3))]
+    overall += [reports.Row("controlling resistance changes", number(switch["volume"], digits),
+                            units["controlling_switches.volume"], f"{switch['below']} -> {switch['above']}")
+                for switch in payload["controlling_switches"]]
+    warnings = [w.get("message", "") for w in payload.get("warnings") or []]
+    every = all(scale["adequate"] for scale in payload["scales"])
+    pages = [reports.Page("Scale-up path", [reports.Section("Scales (volume to the brim)", summary),
+                                            reports.Section("Along the path", overall),
+                                            reports.Section("Warnings", lines=warnings or ["none"])],
+                          "ADEQUATE at every scale" if every else "NOT ADEQUATE at one or more scales", every,
+                          reports.chart(scale_up_chart, payload, units, "Heat load and cooling capacity by volume"))]
+    for index, scale in enumerate(payload["scales"], start=1):
+        vessel = [reports.Row("vessel volume (to the brim)", number(scale["volume"], digits), units["scales.volume"]),
+                  reports.Row("liquid volume", number(scale["charge_volume"], digits), units["scales.charge_volume"]),
+                  reports.Row("length scale factor", number(scale["scale_factor"], digits)),
+                  reports.Row("inside diameter", number(scale["diameter"], digits), units["scales.diameter"]),
+                  reports.Row("agitator speed", number(scale["agitator_speed"], digits), units["scales.agitator_speed"]),
+                  reports.Row("generated similar vessel", "yes" if scale["generated"] else "no")]
+        pages.append(reports.check_page(scale, units, f"Scale {index}: {scale['name']}", prefix="scales.",
+                                        digits=digits, extra=vessel))
+    return reports.build("Scale-up cooling check", "POST /v1/scale-up", body, payload, pages, _units_note(view))
+
+
 @bp.route("/scale-up", methods=["GET", "POST"])
 def scale_up():
     return calculate(_scale_request, _scale_up, _scale_result, rows="scales", chart=scale_up_chart,
+                     report=scale_up_report,
                      lead=("name", "volume", "charge_volume", "scale_factor", "generated", "adequate", "margin"))

@@ -27,7 +27,8 @@ from .errors import ProblemError
 from .runtime import deadline
 
 RESERVED_PARAMETERS = {"format", "field", "output_units", "digits", "decimal"}
-FORMATS = {"json": "application/json", "csv": "text/csv", "svg": "image/svg+xml", "png": "image/png"}
+FORMATS = {"json": "application/json", "csv": "text/csv", "svg": "image/svg+xml", "png": "image/png",
+           "html": "text/html", "pdf": "application/pdf"}
 _UNIT_CACHE: dict[type, dict[str, str]] = {}
 _KIND_CACHE: dict[type, dict[str, str]] = {}
 TEXT_DIGITS = 12  # significant figures of numbers written as text: no float noise (24.99999999999909 -> 25)
@@ -150,8 +151,9 @@ def requested_format() -> str:
             raise ProblemError(422, f"unknown format {fmt!r}",
                                [{"field": "format", "message": f"must be one of {', '.join(FORMATS)}"}])
         return fmt
-    best = request.accept_mimetypes.best_match(["application/json", "text/csv", "image/svg+xml", "image/png"],
-                                               default="application/json")
+    # text/html only when asked with format=html: a browser's Accept header must not turn JSON into a report.
+    best = request.accept_mimetypes.best_match(["application/json", "text/csv", "image/svg+xml", "image/png",
+                                                "application/pdf"], default="application/json")
     return {v: k for k, v in FORMATS.items()}.get(best, "json")
 
 
@@ -246,11 +248,13 @@ def shaped(result: Any, schema: Schema) -> tuple[Any, dict[str, str], Presentati
 
 
 def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple[str, ...] = (),
-            chart: Callable[[dict, str, dict], bytes] | None = None, status: int = 200) -> Response:
+            chart: Callable[[dict, str, dict], bytes] | None = None,
+            report: Callable[[dict, dict, dict, Presentation], Any] | None = None, status: int = 200) -> Response:
     """Dump ``result`` with ``schema`` and answer in the negotiated format.
 
     ``rows`` names the list that becomes one CSV row per item (e.g. ``"scales"``), with the ``lead``
-    columns first; ``chart`` draws the dumped payload (with its units) as SVG or PNG.
+    columns first; ``chart`` draws the dumped payload (with its units) as SVG or PNG; ``report``
+    builds an :class:`api.reports.Report` from (request as given, payload, units, presentation).
     """
     payload, units, view = shaped(result, schema)
     field = request.args.get("field")
@@ -268,6 +272,18 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple
             raise ProblemError(422, "this resource has no chart; use format json or csv",
                                [{"field": "format", "message": "no chart for this resource"}])
         return Response(chart(payload, fmt, units), status=status, mimetype=FORMATS[fmt])
+    if fmt in ("html", "pdf"):
+        if report is None:
+            raise ProblemError(422, "this resource has no report; use format json or csv",
+                               [{"field": "format", "message": "no report for this resource"}])
+        from . import reports
+
+        document = report(request_object(), payload, units, view)
+        body, media = reports.render(document, fmt)
+        response = Response(body, status=status, mimetype=media)
+        name = f"coolmargin-{request.path.rsplit('/', 1)[-1]}-{document.request_hash[:12]}.{fmt}"
+        response.headers["Content-Disposition"] = f'inline; filename="{name}"'
+        return response
     body = dict(payload)
     body["units"] = units
     return Response(json.dumps(body, allow_nan=False), status=status, mimetype="application/json")
