@@ -59,3 +59,16 @@ def test_unreachable_server_and_retry_after_forms():
         Client(f"http://127.0.0.1:{free_port()}", timeout=(1, 1), retries=0).health()
     assert retry_delay("Wed, 21 Oct 2015 07:28:00 GMT", 5.0) == 0.0  # an HTTP date in the past: go now
     assert retry_delay("7", 1.0) == 7.0
+
+
+@pytest.mark.slow
+def test_cli_token_from_the_environment_against_the_live_server(server, monkeypatch, capsys):
+    from api import cli
+
+    path = str(ROOT / "examples" / "cooling_check_production.json")
+    monkeypatch.delenv("COOLMARGIN_TOKEN", raising=False)
+    assert cli.main(["check", path, "--url", server]) == cli.EXIT_SERVICE
+    assert "401" in capsys.readouterr().err
+    monkeypatch.setenv("COOLMARGIN_TOKEN", TOKEN)
+    assert cli.main(["check", path, "--url", server]) == cli.EXIT_OK
+    assert "ADEQUATE" in capsys.readouterr().out
