@@ -8,7 +8,7 @@ PORT ?= 8000
 CONSTRAINTS := docker/constraints.txt
 PIP := $(BIN)/python -m pip install --quiet -c $(CONSTRAINTS)
 
-.PHONY: install install-test run test bench lint load clean constraints
+.PHONY: install install-test nginx chromium run test bench lint load clean constraints
 
 $(BIN)/python:
 	$(PYTHON) -m venv $(VENV)
@@ -25,13 +25,27 @@ $(BIN)/.installed-test: $(BIN)/.installed
 install: $(BIN)/.installed
 install-test: $(BIN)/.installed-test
 
+# Debian's nginx, for the tests that run docker/nginx.conf natively (tests/test_proxy.py); needs root or sudo.
+nginx:
+	@command -v nginx >/dev/null 2>&1 || test -x /usr/sbin/nginx || { \
+	    SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); \
+	    apt-cache policy nginx nginx-light | grep -q 'Candidate: [0-9]' || $$SUDO apt-get update -q; \
+	    DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -q --no-install-recommends nginx; }
+
+# Debian's headless chromium, for the test that prints an HTML report in a real browser (tests/test_reports.py).
+chromium:
+	@command -v chromium >/dev/null 2>&1 || { \
+	    SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); \
+	    apt-cache policy chromium | grep -q 'Candidate: [0-9]' || $$SUDO apt-get update -q; \
+	    DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -q --no-install-recommends chromium; }
+
 run: install
 	@echo "coolmargin: http://$(HOST):$(PORT)  (reference /docs, contract /openapi.yaml, demo examples/README.md)"
 	@echo "  demo: curl -s -X POST 'http://$(HOST):$(PORT)/v1/scale-up?format=csv' -H 'Content-Type: application/json' -d @examples/scale_up_demo.json"
 	@echo "        $(BIN)/coolmargin scale-up examples/scale_up_demo.json"
 	COOLMARGIN_BIND=$(HOST):$(PORT) $(BIN)/gunicorn --config docker/gunicorn.conf.py 'api.wsgi:app'
 
-test: install-test
+test: install-test nginx chromium
 	$(BIN)/python -m pytest
 
 bench: install-test

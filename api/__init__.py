@@ -9,7 +9,7 @@ from importlib import metadata, resources
 
 from flask import Flask, g, request
 
-from . import errors, runtime, security
+from . import errors, limits, runtime, security
 
 try:
     VERSION = metadata.version("coolmargin")
@@ -29,6 +29,10 @@ DEFAULTS = {
     "AUTH_TOKENS": "",  # comma-separated bearer tokens; empty means open
     "AUTH_TOKENS_FILE": "",
     "CORS_ORIGINS": "",  # comma-separated allow-list
+    "RATE_LIMIT": "600 per minute",  # per client (token, else address); ';' between limits; empty: off
+    "RATE_LIMIT_STORAGE": "memory://",  # or a redis:// URL shared by every process and replica
+    "RATE_LIMIT_PREFIX": "coolmargin",  # key prefix in that storage
+    "TRUSTED_PROXIES": 0,  # proxies in front whose X-Forwarded-For names the client (1 behind docker/nginx.conf)
     # The contract ships inside the package (api/openapi.yaml links to the top-level file in a checkout).
     "OPENAPI_PATH": str(resources.files("api").joinpath("openapi.yaml")),
 }
@@ -89,6 +93,7 @@ def create_app(config: dict | None = None) -> Flask:
         response.headers.setdefault("X-Content-Type-Options", "nosniff")
         return response
 
+    limits.register(app)  # before authentication: floods of bad tokens are counted per address
     security.register(app)  # after the request-id hook: refusals carry the request id
     runtime.register(app)  # after authentication: a refused request reads no body and takes no slot
 

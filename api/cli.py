@@ -90,9 +90,9 @@ def _call(path: str, body: dict, args: argparse.Namespace, params: dict) -> tupl
                 response.mimetype)
     from .client import Client, ProblemError, ServiceUnreachable
 
-    client = Client(args.url, token=args.token, timeout=(args.connect_timeout, args.timeout))
     try:
-        response = client.request("POST", path, body, params)
+        with Client(args.url, token=args.token, timeout=(args.connect_timeout, args.timeout)) as client:
+            response = client.request("POST", path, body, params)
     except ServiceUnreachable:
         raise _Failure(EXIT_UNREACHABLE, f"coolmargin: cannot reach the service at {args.url} (is it running? "
                                          "check --url or COOLMARGIN_URL)") from None

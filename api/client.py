@@ -81,6 +81,15 @@ class Client:
         if token:
             self.session.headers["Authorization"] = f"Bearer {token}"
 
+    def close(self) -> None:
+        self.session.close()
+
+    def __enter__(self) -> "Client":
+        return self
+
+    def __exit__(self, *exc_info) -> None:
+        self.close()
+
     # ------------------------------------------------------------ transport
 
     def request(self, method: str, path: str, body: Mapping[str, Any] | None = None,

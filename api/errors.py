@@ -77,6 +77,8 @@ def problem_for(exc: Exception) -> tuple[int, str, list[dict], str | None]:
 def register(app: Flask) -> None:
     @app.errorhandler(Exception)
     def _any(exc: Exception):
+        if isinstance(exc, HTTPException) and exc.response is not None:
+            return exc.response  # already a full answer (the rate limiter's 429 problem)
         status, detail, errors, title = problem_for(exc)
         if status >= 500:
             log.exception("internal error", extra={"request_id": g.get("request_id", "-")})

@@ -6,8 +6,14 @@ as ``python:api.gunicorn_settings``; the tests that start a real server use the 
 import json
 import multiprocessing
 import os
+import re
+import tempfile
+import time
 
 from gunicorn import glogging
+from gunicorn.workers.gthread import ThreadWorker
+
+from api.runtime import SERVING
 
 
 def _int(name: str, default: int) -> int:
@@ -15,9 +21,57 @@ def _int(name: str, default: int) -> int:
 
 
 bind = os.environ.get("COOLMARGIN_BIND", "0.0.0.0:8000")
-# The work is CPU-bound (property look-ups, root finding, ODE integration): one worker per core.
+# gunicorn's control socket (for `gunicornc -s PATH -c "show workers"`, "reload", ...). Its default path is
+# one per user, and a second instance removes the first one's socket: each instance gets its own, named
+# after its bind address, unless COOLMARGIN_CONTROL_SOCKET names one.
+control_socket = os.environ.get("COOLMARGIN_CONTROL_SOCKET") or os.path.join(
+    os.environ.get("XDG_RUNTIME_DIR") or tempfile.gettempdir(),
+    f"coolmargin-{os.getuid()}", "gunicorn-" + re.sub(r"[^A-Za-z0-9.]+", "_", bind) + ".ctl")
+# The work is CPU-bound (property look-ups, root finding, ODE integration): one worker process per core.
 workers = _int("COOLMARGIN_WORKERS", multiprocessing.cpu_count())
-worker_class = "sync"
+# Each worker serves its connections from a pool of threads. A sync worker reads a request body in the
+# process that computes, so two clients sending a body slowly held both workers and /health stopped
+# answering; with threads, a slow upload holds one thread while the others keep answering (measured in
+# tests/test_serving.py: /health within 2 s with 8 slow uploads open). The GIL makes the threads of one
+# worker share a core, so threads add waiting room, not CPU; workers add CPU.
+threads = _int("COOLMARGIN_THREADS", 16)
+# After SIGTERM a worker keeps serving for this many seconds while /ready answers 503 (draining), so a
+# load balancer stops sending before the listener closes; then in-flight requests finish (graceful_timeout).
+drain_seconds = float(os.environ.get("COOLMARGIN_DRAIN_SECONDS", 5))
+
+
+class DrainingThreadWorker(ThreadWorker):
+    """gunicorn's threaded worker that tells /ready its thread count and drains before it stops."""
+
+    _stop_at = None
+
+    def init_process(self):
+        SERVING.threads = self.cfg.threads
+        super().init_process()
+
+    def handle_exit(self, sig, frame):
+        SERVING.draining.set()
+        if drain_seconds <= 0 or not self.alive:
+            return super().handle_exit(sig, frame)
+        self._stop_at = time.monotonic() + drain_seconds
+        return None
+
+    def notify(self):  # called by the worker's loop at least once a second
+        super().notify()
+        if self._stop_at is not None and time.monotonic() >= self._stop_at:
+            self._stop_at = None
+            super().handle_exit(None, None)
+
+
+# COOLMARGIN_WORKER_CLASS=sync brings back the old one-request-at-a-time workers (tests show what that costs;
+# gunicorn would quietly turn a sync worker with threads into a threaded one, so it gets one thread).
+if os.environ.get("COOLMARGIN_WORKER_CLASS", "gthread") == "gthread":
+    worker_class = DrainingThreadWorker
+else:
+    worker_class, threads = os.environ["COOLMARGIN_WORKER_CLASS"], 1
+# Connections one worker holds open at once (in a thread or kept alive between requests); more wait in the
+# listen backlog.
+worker_connections = _int("COOLMARGIN_WORKER_CONNECTIONS", 64)
 # A calculation has its own wall-time budget well below this; the timeout only catches a stuck worker.
 timeout = _int("COOLMARGIN_TIMEOUT", 60)
 graceful_timeout = _int("COOLMARGIN_GRACEFUL_TIMEOUT", 30)

@@ -12,14 +12,16 @@ import csv
 import io
 import json
 import math
+import re
 from dataclasses import dataclass, field as dataclass_field
 from typing import Any, Callable
 
 from flask import Response, current_app, request
 from marshmallow import Schema, ValidationError
 
+from calc.validity import finite_or_input_error
 from schemas import output_units
-from schemas.base import clean, kind_map, unflatten, unit_map
+from schemas.base import clean, kind_map, numeric_leaves, unflatten, unit_map
 
 from calc.deadline import OutOfTime
 
@@ -190,12 +192,20 @@ def _flatten(value: Any, prefix: str, row: dict) -> None:
 
 
 def _unit_for(column: str, units: dict[str, str]) -> str | None:
+    """The unit of a CSV column; list items (``streams[0].duty``) take their list's unit (``streams.duty``).
+
+    >>> _unit_for("heat_transfer.streams[1].duty", {"heat_transfer.streams.duty": "W"})
+    'W'
+    >>> _unit_for("concentrations.amine", {"concentrations.*": "mol/m^3"})
+    'mol/m^3'
+    """
     if column in units:
         return units[column]
-    generic = ".".join("*" if p.isdigit() else p for p in column.replace("]", "").replace("[", ".").split("."))
+    unindexed = re.sub(r"\[\d+\]", "", column)
+    if unindexed in units:
+        return units[unindexed]
     for key, unit in units.items():
-        pattern = key.replace("[]", "")
-        if pattern == generic or (pattern.endswith(".*") and generic.startswith(pattern[:-1])):
+        if key.endswith(".*") and unindexed.startswith(key[:-1]):
             return unit
     return None
 
@@ -229,15 +239,25 @@ def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = (),
     return buffer.getvalue()
 
 
+#: A spreadsheet reads a cell starting with one of these as a formula (OWASP, "CSV Injection").
+FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+
+
 def text_value(value: Any, view: Presentation) -> str:
-    """One value as a spreadsheet reads it: TRUE/FALSE, numbers without float noise, empty for none."""
+    """One value as a spreadsheet reads it: TRUE/FALSE, numbers without float noise, empty for none;
+    text that a spreadsheet would run as a formula is neutralised with a leading quote.
+
+    >>> print(text_value("=1+2", Presentation()), text_value(-5.0, Presentation()), text_value(True, Presentation()))
+    '=1+2 -5 TRUE
+    """
     if value is None:
         return ""
     if isinstance(value, bool):
         return "TRUE" if value else "FALSE"
     if isinstance(value, (int, float)):
         return view.text(float(value)) if math.isfinite(value) else ""
-    return str(value)
+    text = str(value)
+    return "'" + text if text.startswith(FORMULA_STARTS) else text
 
 
 def shaped(result: Any, schema: Schema) -> tuple[Any, dict[str, str], Presentation]:
@@ -312,12 +332,13 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
     results = []
     for index, case in enumerate(cases):
         if clock.expired():  # what is done stays done; the rest is answered as not computed
+            log.info("request stopped after %d of %d cases: %s", index, len(cases), OutOfTime(clock.gone()))
             results.extend(_not_computed(i, len(cases)) for i in range(index, len(cases)))
             break
         try:
             if not isinstance(case, dict):
                 raise ValidationError(["must be an object"])
-            result, _ = view.convert(clean(result_schema.dump(compute(schema.load(case)))), {})
+            result, _ = view.convert(clean(result_schema.dump(_run(compute, schema.load(case), case))), {})
             results.append({"status": 200, "result": result})
         except Exception as exc:  # each case reports its own problem
             status, detail, errors, title = problem_for(exc)
@@ -326,7 +347,31 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[dict], dict],
             for error in errors:
                 error["field"] = f"cases[{index}].{error['field']}"
             results.append({"status": status, "problem": problem_body(status, detail, errors, title)})
-    body = {"cases": results, "units": view.convert({}, units_of(result_schema))[1]}
+    return _batch_answer(results, view.convert({}, units_of(result_schema))[1], view)
+
+
+def _batch_answer(results: list[dict], units: dict[str, str], view: Presentation) -> Response:
+    """A batch in the negotiated format: JSON, CSV a row per case, or one value per line for ``field``."""
+    field = request.args.get("field")
+    if field:
+        lines = []
+        for case in results:
+            if case["status"] != 200:
+                lines.append(f"error {case['status']}: {case['problem']['detail']}".replace("\n", " "))
+                continue
+            value = pick(case["result"], field)
+            lines.append(json.dumps(value) if isinstance(value, (dict, list)) else text_value(value, view))
+        return Response("".join(line + "\n" for line in lines), mimetype="text/plain")
+    fmt = requested_format()
+    if fmt == "csv":
+        rows = [{"case": i, "status": case["status"], **(case.get("result") or {}),
+                 **({"problem": case["problem"]["detail"]} if "problem" in case else {})}
+                for i, case in enumerate(results)]
+        return Response(to_csv(rows, units, ("case", "status", "problem"), view), mimetype="text/csv")
+    if fmt != "json":
+        raise ProblemError(422, "a batch has no chart; use format json or csv",
+                           [{"field": "format", "message": "no chart for a batch"}])
+    body = {"cases": results, "units": units}
     return Response(json.dumps(body, allow_nan=False), mimetype="application/json")
 
 
@@ -345,4 +390,9 @@ def calculate(schema: Schema, compute: Callable[[dict], dict], result_schema: Sc
             raise ProblemError(422, "a batch body holds only 'cases'",
                                [{"field": sorted(set(data) - {"cases"})[0], "message": "not allowed beside cases"}])
         return batch_response(data["cases"], schema, compute, result_schema)
-    return respond(compute(schema.load(data)), result_schema, **respond_options)
+    return respond(_run(compute, schema.load(data), data), result_schema, **respond_options)
+
+
+def _run(compute: Callable[[dict], Any], args: dict, raw: dict) -> Any:
+    """Compute under calc's numerical guard, which names the request field most likely at fault."""
+    return finite_or_input_error(compute, args, numeric_leaves(raw))

@@ -18,6 +18,7 @@ import math
 import select
 import socket
 import threading
+from collections import deque
 from typing import Callable
 
 from flask import Flask, current_app, g, request
@@ -73,6 +74,42 @@ class CountingMiddleware:
             SERVING.leave()
 
 
+class Slots:
+    """A counting semaphore that serves waiters first come, first served.
+
+    ``threading.Semaphore`` lets a newly arriving thread take a freed slot before one that has waited,
+    which under load starves some requests (measured: p99 latency several times the sync worker's).
+    Here a released slot is handed to the longest waiter.
+    """
+
+    def __init__(self, count: int):
+        self._free = count
+        self._waiters: deque[threading.Event] = deque()
+        self._lock = threading.Lock()
+
+    def acquire(self, timeout: float) -> bool:
+        with self._lock:
+            if self._free > 0 and not self._waiters:
+                self._free -= 1
+                return True
+            turn = threading.Event()
+            self._waiters.append(turn)
+        if turn.wait(timeout):
+            return True
+        with self._lock:
+            if turn.is_set():  # handed over just as the wait timed out
+                return True
+            self._waiters.remove(turn)
+            return False
+
+    def release(self) -> None:
+        with self._lock:
+            if self._waiters:
+                self._waiters.popleft().set()
+            else:
+                self._free += 1
+
+
 def hangup_probe(environ: dict) -> Callable[[], bool] | None:
     """A function saying whether the client of this request has closed its connection (gunicorn only).
 
@@ -107,7 +144,7 @@ def retry_after() -> str:
 
 def register(app: Flask) -> None:
     app.wsgi_app = CountingMiddleware(app.wsgi_app)
-    slots = threading.BoundedSemaphore(max(1, int(app.config["CALCULATION_SLOTS"])))
+    slots = Slots(max(1, int(app.config["CALCULATION_SLOTS"])))
 
     @app.before_request
     def _clock():

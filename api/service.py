@@ -12,6 +12,7 @@ from calc import properties
 
 from . import VERSION
 from .errors import problem
+from .runtime import SERVING
 
 bp = Blueprint("service", __name__)
 
@@ -42,6 +43,15 @@ def health():
 
 @bp.get("/ready")
 def ready():
+    """Ready to take a calculation now: not draining, a worker thread free, the contract and properties load.
+
+    Each worker process answers for itself (the kernel hands a probe to one of them).
+    """
+    if SERVING.draining.is_set():
+        return problem(503, "not ready: draining after a stop signal; send new requests elsewhere")
+    if SERVING.saturated():
+        return problem(503, f"not ready: all {SERVING.threads} worker threads of this process are busy",
+                       headers={"Retry-After": "1"})
     try:
         spec()
         properties.liquid_properties("water", 293.15)

@@ -31,7 +31,8 @@ from __future__ import annotations
 
 import math
 import threading
-from dataclasses import dataclass
+from bisect import bisect_right
+from dataclasses import dataclass, field
 from functools import lru_cache
 
 import CoolProp.CoolProp as CP
@@ -129,7 +130,7 @@ def fluid_info(fluid: str, field: str = "fluid") -> FluidInfo:
 
 @lru_cache(maxsize=256)
 def liquid_range(fluid: str, mass_fraction: float | None = None,
-                 pressure: float = STANDARD_PRESSURE) -> tuple[float, float]:
+                 pressure: float = STANDARD_PRESSURE, pressure_field: str = "pressure") -> tuple[float, float]:
     """Temperatures (K) between which ``fluid`` is a liquid at ``pressure``: (freezing, boiling).
 
     For pure fluids the lower bound is the triple point and the upper the saturation temperature
@@ -139,18 +140,31 @@ def liquid_range(fluid: str, mass_fraction: float | None = None,
     info = fluid_info(fluid)
     with _lock:
         state = _state(info.backend, info.coolprop_name, mass_fraction)
-        if info.kind == "pure":
-            low = state.Ttriple()
-            if pressure >= state.p_critical():
-                high = state.T_critical()
+        try:
+            if info.kind == "pure":
+                low = state.Ttriple()
+                if pressure >= state.p_critical():
+                    high = state.T_critical()
+                else:
+                    state.update(CP.PQ_INPUTS, pressure, 0.0)
+                    high = state.T()
             else:
-                state.update(CP.PQ_INPUTS, pressure, 0.0)
-                high = state.T()
-        else:
-            state.update(CP.PT_INPUTS, pressure, 0.5 * (state.Tmin() + state.Tmax()))
-            low = max(state.keyed_output(CP.iT_freeze), state.Tmin())
-            high = state.Tmax()
+                # Probe at the table's upper end, which is liquid for every mass fraction (at the middle of
+                # the table, plain water (mass fraction 0) is already frozen).
+                state.update(CP.PT_INPUTS, pressure, state.Tmax())
+                low = max(state.keyed_output(CP.iT_freeze), state.Tmin())
+                high = state.Tmax()
+        except ValueError as exc:  # CoolProp: no saturation or table state at this pressure
+            raise InputError(pressure_field, f"{info.name} has no liquid range at {pressure:.6g} Pa ({exc})") from None
+    if not high > low:
+        raise InputError(pressure_field, f"{info.name} has no liquid at {pressure:.6g} Pa: it boils at "
+                                         f"{high - 273.15:.2f} degC, below its triple point ({low - 273.15:.2f} degC)")
     return low, high
+
+
+def _sibling(field: str, name: str) -> str:
+    """The request path of ``name`` beside ``field``: ``coolant.mass_fraction`` -> ``coolant.pressure``."""
+    return f"{field.rpartition('.')[0]}.{name}" if "." in field else name
 
 
 def _check_state(info: FluidInfo, temperature: float, mass_fraction: float | None, pressure: float,
@@ -164,9 +178,10 @@ def _check_state(info: FluidInfo, temperature: float, mass_fraction: float | Non
                              f"mass fraction {mass_fraction:g} is outside the table for {info.name}: {lo} to {hi}")
     elif mass_fraction is not None:
         raise InputError(fraction_field, f"{info.name} is a pure fluid; a mass fraction does not apply")
+    pressure_field = _sibling(fraction_field, "pressure")
     if not (math.isfinite(pressure) and pressure > 0):
-        raise InputError("pressure", f"must be a positive number, got {pressure!r}")
-    low, high = liquid_range(info.id, mass_fraction, pressure)
+        raise InputError(pressure_field, f"must be a positive number in Pa, got {pressure!r}")
+    low, high = liquid_range(info.id, mass_fraction, pressure, pressure_field)
     # The boiling point itself is excluded: CoolProp's PT flash is ill-posed on the saturation line.
     if not (low <= temperature < high - 1e-6):
         raise InputError(
@@ -203,6 +218,7 @@ class PropertyTable:
     log_viscosity: np.ndarray  # ln(Pa s)
     conductivity: np.ndarray  # W/(m K)
     inverse_temperature: np.ndarray  # -1/T, 1/K, increasing (the abscissa of ln viscosity)
+    _lists: tuple | None = field(default=None, repr=False)  # the arrays as lists, for one-state look-ups
 
     @property
     def span(self) -> tuple[float, float]:
@@ -221,10 +237,30 @@ class PropertyTable:
                                 np.interp(T, self.temperature, self.conductivity))
 
     def state(self, temperature: float) -> LiquidProperties:
-        """Properties at one temperature (K), floats; the same numbers :meth:`states` gives for it."""
-        s = self.states(temperature)
-        return LiquidProperties(float(temperature), float(s.density), float(s.heat_capacity), float(s.viscosity),
-                                float(s.thermal_conductivity))
+        """Properties at one temperature (K), floats: the arithmetic of ``numpy.interp`` (which :meth:`states`
+        uses) done in plain Python, which is several times faster for one value."""
+        T = float(temperature)
+        if self._lists is None:
+            object.__setattr__(self, "_lists", tuple(a.tolist() for a in (
+                self.temperature, self.density, self.heat_capacity, self.conductivity, self.inverse_temperature,
+                self.log_viscosity)))
+        grid, density, heat_capacity, conductivity, inverse, log_viscosity = self._lists
+        return LiquidProperties(T, _interp(T, grid, density), _interp(T, grid, heat_capacity),
+                                math.exp(_interp(-1.0 / T, inverse, log_viscosity)), _interp(T, grid, conductivity))
+
+
+def _interp(x: float, xp: list, fp: list) -> float:
+    """``numpy.interp(x, xp, fp)`` for one float x (same end rules, same formula)."""
+    if x <= xp[0]:
+        return fp[0]
+    last = len(xp) - 1
+    if x >= xp[last]:
+        return fp[last]
+    j = bisect_right(xp, x) - 1
+    if xp[j] == x:
+        return fp[j]
+    slope = (fp[j + 1] - fp[j]) / (xp[j + 1] - xp[j])
+    return slope * (x - xp[j]) + fp[j]
 
 
 @lru_cache(maxsize=TABLE_CACHE_SIZE)
@@ -372,7 +408,7 @@ class LibraryLiquid(Liquid):
         return property_table(self.fluid, self.mass_fraction, self.pressure)
 
     def liquid_range(self) -> tuple[float, float]:
-        return liquid_range(self.fluid, self.mass_fraction, self.pressure)
+        return liquid_range(self.fluid, self.mass_fraction, self.pressure, _sibling(self.fraction_field, "pressure"))
 
 
 @dataclass(frozen=True)

@@ -136,3 +136,35 @@ def require_sign(field: str, enthalpy: float, endothermic: bool, flag_field: str
         raise InputError(flag_field, f"is true, but {field} is {enthalpy:.6g} J/mol (not positive): "
                                      f"{SIGN_CONVENTION}")
     return float(enthalpy)
+
+
+def _extreme_input(inputs: dict[str, float]) -> tuple[str, float] | None:
+    """The input farthest from 1 in orders of magnitude: the likeliest cause of an overflow."""
+    scored = [(abs(math.log10(abs(v))), name, v) for name, v in inputs.items()
+              if isinstance(v, float) and math.isfinite(v) and v != 0.0]
+    if not scored:
+        return None
+    _, name, value = max(scored)
+    return name, value
+
+
+def finite_or_input_error(compute, argument, inputs: dict[str, float]):
+    """Run ``compute(argument)``; a numerical breakdown becomes an :class:`InputError` naming an input.
+
+    Every field is bounded at the API, yet products of bounded inputs (an exponential of an activation
+    energy over a low temperature, a huge flow through a tiny gap) can still overflow, divide by zero
+    or reach a library that refuses non-finite numbers. Those are faults of the input's combination,
+    not of the service: the error names the input farthest from ordinary magnitudes (``inputs`` maps
+    request field paths to their numbers) and says what broke. InputError and CalculationError pass
+    through unchanged.
+    """
+    try:
+        return compute(argument)
+    except (InputError, CalculationError):
+        raise
+    except (ArithmeticError, ValueError) as exc:  # overflow, 0/0, math domain, "array must not contain infs"
+        culprit = _extreme_input(inputs)
+        field, shown = ("(body)", "") if culprit is None else (culprit[0], f" (the most extreme input is "
+                                                                           f"{culprit[0]} = {culprit[1]:.4g})")
+        raise InputError(field, f"the calculation broke down numerically with these inputs{shown}: "
+                                f"{type(exc).__name__}: {exc}; check the values and units") from exc

@@ -10,6 +10,7 @@ from marshmallow import RAISE, Schema, ValidationError, fields
 from .units import Quantity
 
 MAX_QUERY_INDEX = 100
+MAX_QUERY_DEPTH = 12  # levels of a dotted query name; the deepest request field is 5 levels down
 
 
 class StrictSchema(Schema):
@@ -21,6 +22,19 @@ class StrictSchema(Schema):
 
 def finite_float(**kwargs) -> fields.Float:
     return fields.Float(allow_nan=False, **kwargs)
+
+
+class WholeNumber(fields.Integer):
+    """An integer field that refuses fractions (marshmallow's Integer would truncate 2.5 to 2)."""
+
+    def _validated(self, value):
+        if isinstance(value, float) and not value.is_integer():
+            raise ValidationError("must be a whole number, not a fraction")
+        return super()._validated(value)
+
+
+def whole_number(**kwargs) -> fields.Integer:
+    return WholeNumber(strict=False, **kwargs)
 
 
 _SEGMENT = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*)((?:\[\d+\])*)$")
@@ -35,6 +49,9 @@ def unflatten(pairs: dict[str, str]) -> dict[str, Any]:
     """
     root: dict[str, Any] = {}
     for key, value in pairs.items():
+        if key.count(".") + key.count("[") >= MAX_QUERY_DEPTH:
+            shown = key if len(key) <= 60 else key[:60] + "..."
+            raise ValidationError({shown: [f"is nested deeper than {MAX_QUERY_DEPTH} levels"]})
         parts: list[str | int] = []
         for segment in key.split("."):
             if segment.isdigit():
@@ -109,6 +126,34 @@ def error_list(messages: Any, prefix: str = "") -> list[dict[str, str]]:
                 out.append({"field": prefix or "(body)", "message": str(item)})
     else:
         out.append({"field": prefix or "(body)", "message": str(messages)})
+    return out
+
+
+_LEADING_NUMBER = re.compile(r"^ *([-+]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][-+]?[0-9]+)?)")
+
+
+def numeric_leaves(value: Any, prefix: str = "") -> dict[str, float]:
+    """Every number in a request object (a quantity text's number too), by the request's dotted path.
+
+    >>> numeric_leaves({"vessel": {"coils": [{"turns": 12}]}, "process_temperature": "45 degC"})
+    {'vessel.coils[0].turns': 12.0, 'process_temperature': 45.0}
+    """
+    out: dict[str, float] = {}
+    if isinstance(value, dict):
+        for key, item in value.items():
+            out.update(numeric_leaves(item, f"{prefix}.{key}" if prefix else str(key)))
+    elif isinstance(value, list):
+        for i, item in enumerate(value):
+            out.update(numeric_leaves(item, f"{prefix}[{i}]"))
+    elif isinstance(value, (int, float)) and not isinstance(value, bool):
+        try:
+            out[prefix] = float(value)
+        except OverflowError:
+            out[prefix] = math.inf
+    elif isinstance(value, str):
+        match = _LEADING_NUMBER.match(value)
+        if match:
+            out[prefix] = float(match.group(1))
     return out
 
 

@@ -10,7 +10,7 @@ from .heat_transfer import (AgitationRequestSchema, AgitationResultSchema, Coola
                             HeatTransferRequestSchema, HeatTransferResultSchema, ImpellerSchema, MaterialSchema)
 from .cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
                       ScaleUpResultSchema)
-from .properties import FluidSchema, PropertiesResultSchema
+from .properties import FluidSchema, PropertiesQuerySchema, PropertiesResultSchema
 from .safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
                      ThermalSafetyRequestSchema, ThermalSafetyResultSchema)
 
@@ -106,5 +106,5 @@ LIBRARIES = [
             ImpellerSchema),
     Library("/v1/materials", "libraries", "The wall-material library with conductivities and sources", MaterialSchema),
 ]
-REQUEST_SCHEMAS = [c.request for c in CALCULATIONS]
+REQUEST_SCHEMAS = [PropertiesQuerySchema] + [c.request for c in CALCULATIONS]
 RESPONSE_SCHEMAS = [PropertiesResultSchema, FluidSchema] + [c.response for c in CALCULATIONS] + [l.item for l in LIBRARIES]

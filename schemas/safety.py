@@ -15,7 +15,7 @@ from calc.safety import steady_states
 from calc.safety import tank_model
 from calc.properties import FLUIDS, STANDARD_PRESSURE
 
-from .base import StrictSchema, finite_float
+from .base import StrictSchema, finite_float, whole_number
 from .heat_transfer import WarningSchema, warning_dicts
 from .units import Quantity
 from .vessel import ABSOLUTE_ZERO_C, CoolantSchema, VesselSchema, _LiquidFields, require_agitator
@@ -46,7 +46,8 @@ def _warnings():
 def _amounts(description: str, **kwargs) -> fields.Dict:
     """Species name -> a plain number (mol/kg, coefficient or order)."""
     return fields.Dict(keys=fields.String(validate=validate.Length(min=1, max=40)),
-                       values=finite_float(), validate=validate.Length(max=MAX_SPECIES),
+                       values=finite_float(validate=validate.Range(-1e6, 1e6)),
+                       validate=validate.Length(max=MAX_SPECIES),
                        metadata={"description": description}, **kwargs)
 
 
@@ -139,9 +140,10 @@ class SpeciesSchema(StrictSchema):
 class ReactionSchema(StrictSchema):
     stoichiometry = _amounts("species -> coefficient, negative when consumed", required=True)
     orders = _amounts("species -> reaction order (>= 0)", required=True)
-    rate_constant = finite_float(required=True, validate=validate.Range(min=0),
+    rate_constant = finite_float(required=True, validate=validate.Range(0, 1e30),
                                  metadata={"description": "k at reference_temperature, SI: "
-                                                          "(mol/m^3)^(1 - sum of orders)/s"})
+                                                          "(mol/m^3)^(1 - sum of orders)/s; at most 1e30 (beyond "
+                                                          "any collision-limited rate)"})
     reference_temperature = _temperature(required=True)
     activation_energy = _non_negative("activation energy", required=True)
     enthalpy = Quantity("molar enthalpy", required=True,
@@ -221,8 +223,9 @@ class SimulationJacketSchema(StrictSchema):
 
 class ControllerSchema(StrictSchema):
     setpoint = _temperature(required=True)
-    gain = finite_float(required=True, validate=validate.Range(min=0),
-                        metadata={"description": "K of coolant inlet per K of error"})
+    gain = finite_float(required=True, validate=validate.Range(0, 1e6),
+                        metadata={"description": "K of coolant inlet per K of error; at most 1e6 (beyond any "
+                                                 "controller tuning)"})
     integral_time = _positive("time", required=True)
     minimum_inlet_temperature = _temperature(required=True)
     maximum_inlet_temperature = _temperature(required=True)
@@ -256,7 +259,7 @@ class LimitSchema(StrictSchema):
     name = fields.String(required=True, validate=validate.Length(min=1, max=40))
     temperature = _temperature(required=True)
     terminal = fields.Boolean(load_default=True)
-    direction = fields.Integer(load_default=1, validate=validate.OneOf([-1, 0, 1]))
+    direction = whole_number(load_default=1, validate=validate.OneOf([-1, 0, 1]))
 
     @post_load
     def _make(self, data, **kwargs):
@@ -306,8 +309,9 @@ class SimulationRequestSchema(StrictSchema):
     limiting_reagent = fields.String(load_default=None, validate=validate.Length(min=1, max=40))
     method = fields.String(load_default="BDF", validate=validate.OneOf(sorted(tank_model.METHODS)))
     horizon = _positive("time", required=True, description="simulated time")
-    output_points = fields.Integer(load_default=201, validate=validate.Range(min=2),
-                                   metadata={"description": "points in the returned series"})
+    output_points = whole_number(load_default=201, validate=validate.Range(min=2, max=100_000),
+                                   metadata={"description": "points in the returned series (the service's own cap, "
+                                                            "COOLMARGIN_MAX_SERIES_POINTS, may be lower)"})
 
     @validates_schema
     def _one_jacket(self, data, **kwargs):
@@ -450,8 +454,9 @@ class CSTRRequestSchema(StrictSchema):
     feed_temperature = _temperature(required=True)
     density = _positive("density", required=True)
     heat_capacity = _positive("heat capacity", required=True)
-    rate_constant = finite_float(required=True, validate=validate.Range(min=0),
-                                 metadata={"description": "k at reference_temperature, (mol/m^3)^(1-n)/s"})
+    rate_constant = finite_float(required=True, validate=validate.Range(0, 1e30),
+                                 metadata={"description": "k at reference_temperature, (mol/m^3)^(1-n)/s; at most "
+                                                          "1e30 (beyond any collision-limited rate)"})
     reference_temperature = _temperature(required=True)
     activation_energy = _non_negative("activation energy", required=True)
     reaction_enthalpy = Quantity("molar enthalpy", required=True,
@@ -465,7 +470,7 @@ class CSTRRequestSchema(StrictSchema):
     shaft_power = _non_negative("power", load_default=0.0)
     minimum_temperature = _temperature(load_default=None, description="lower end of the scan; with maximum")
     maximum_temperature = _temperature(load_default=None, description="upper end of the scan; with minimum")
-    grid_points = fields.Integer(load_default=4001, validate=validate.Range(11, 20001))
+    grid_points = whole_number(load_default=4001, validate=validate.Range(11, 20001))
 
     @validates_schema
     def _range(self, data, **kwargs):

@@ -16,8 +16,17 @@ import pint
 from marshmallow import ValidationError, fields
 
 UREG = pint.UnitRegistry()
-_NUMBER_THEN_UNIT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
-_MAX_TEXT = 80
+# ASCII digits only: Python's \d also matches other scripts' digits, which float() would accept.
+NUMBER_TEXT = r"[-+]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][-+]?[0-9]+)?"
+UNIT_CHARACTERS = r"A-Za-z0-9_ */^().%+-"
+#: The contract's pattern for quantity text: a number, then an optional unit of the allowed characters.
+QUANTITY_PATTERN = rf"^ *{NUMBER_TEXT} *[{UNIT_CHARACTERS}]*$"
+_NUMBER_THEN_UNIT = re.compile(rf"^ *({NUMBER_TEXT}) *([{UNIT_CHARACTERS}]*?) *$")
+MAX_TEXT = 80
+MAX_EXPONENT = 6  # m^3, s^-1, W/(m^2*K): no unit a process engineer writes needs more
+MAX_NESTING = 3  # parentheses inside parentheses
+MAX_TOKENS = 24
+_TOKEN = re.compile(r"\s+|\*\*|[*/^()]|[A-Za-z_%][A-Za-z0-9_]*|[0-9]+(?:\.[0-9]+)?|[-+]")
 
 
 @dataclass(frozen=True)
@@ -74,6 +83,60 @@ KINDS: dict[str, Kind] = {k.name: k for k in [
     Kind("area per volume", "1/m", "1/m"),
     Kind("dimensionless", "", ""),
 ]}
+
+
+@dataclass(frozen=True)
+class Bounds:
+    """The physical range of a quantity kind at the API, in its default unit.
+
+    ``largest`` caps the magnitude of any value; ``smallest`` is the lower end for a field that must
+    be positive (below it, no plant, laboratory or property table has a meaning, and floating point
+    loses its precision). Each comes with the reason a client sees. Orders of magnitude beyond the
+    trade's range, so no real input is refused (common practice, no source).
+    """
+
+    largest: float
+    smallest: float
+    reason: str
+
+
+BOUNDS: dict[str, Bounds] = {
+    "length": Bounds(1e3, 1e-9, "from a nanometre (below any wall, gap or deposit) to a kilometre (beyond any plant "
+                                "vessel or pipe)"),
+    "area": Bounds(1e6, 1e-12, "up to a square kilometre, beyond any heat-transfer surface"),
+    "volume": Bounds(1e6, 1e-12, "from a nanolitre to a million cubic metres, beyond any reactor or tank"),
+    "mass": Bounds(1e9, 1e-9, "from a microgram to a million tonnes"),
+    "time": Bounds(1e9, 1e-6, "from a microsecond to about 30 years"),
+    "mass flow": Bounds(1e5, 1e-12, "up to 100 t/s, beyond any cooling-water main"),
+    "volume flow": Bounds(1e2, 1e-15, "up to 100 m^3/s, beyond any cooling-water main"),
+    "density": Bounds(3e4, 1e-3, "from a rarefied gas to above the densest metal (osmium, 22,600 kg/m^3)"),
+    "heat capacity": Bounds(1e6, 1.0, "from 1 J/(kg K) to 1 MJ/(kg K), beyond hydrogen's 14 kJ/(kg K)"),
+    "temperature": Bounds(1e4, 0.0, "above absolute zero and below 10,000 degC, beyond any process"),
+    "temperature difference": Bounds(1e4, 1e-9, "up to 10,000 K"),
+    "agitator speed": Bounds(1e5, 1e-6, "up to 100,000 rpm, beyond any agitator or pump"),
+    "power": Bounds(1e11, 1e-9, "up to 100 GW, beyond any plant"),
+    "heat-transfer coefficient": Bounds(1e7, 1e-6, "up to 10 MW/(m^2 K), beyond condensing steam films"),
+    "thermal conductance": Bounds(1e10, 1e-9, "up to 10 GW/K"),
+    "fouling resistance": Bounds(10.0, 1e-12, "up to 10 m^2 K/W, far above any fouling (TEMA tables stay "
+                                              "below 0.002)"),
+    "viscosity": Bounds(1e6, 1e-7, "from a rarefied gas (1e-7 Pa s) to 1e6 Pa s, beyond polymer melts"),
+    "thermal conductivity": Bounds(1e4, 1e-4, "from 1e-4 W/(m K) to 1e4 W/(m K), beyond diamond"),
+    "molar enthalpy": Bounds(1e8, 1e-3, "magnitude up to 100 MJ/mol, beyond any reaction or combustion"),
+    "activation energy": Bounds(1e7, 1e-3, "up to 10 MJ/mol, far beyond any chemical reaction"),
+    "specific energy": Bounds(1e9, 1e-3, "magnitude up to 1 GJ/kg, beyond any chemical energy"),
+    "specific power": Bounds(1e8, 1e-9, "magnitude up to 100 MW/kg"),
+    "power per volume": Bounds(1e11, 1e-9, "magnitude up to 100 GW/m^3"),
+    "pressure": Bounds(1e9, 1.0, "from 1 Pa to 1 GPa (10,000 bar), beyond any reactor"),
+    "velocity": Bounds(1e3, 1e-9, "up to 1 km/s, beyond any liquid flow"),
+    "angle": Bounds(360.0, 1e-6, "a full turn at most"),
+    "amount of substance": Bounds(1e12, 1e-12, "magnitude up to 1e12 mol"),
+    "concentration": Bounds(1e6, 1e-12, "up to 1e6 mol/m^3, beyond any pure liquid (water: 55,000 mol/m^3)"),
+    "molar mass": Bounds(1e4, 1e-4, "from 0.1 g/mol to 10,000 kg/mol, hydrogen to the largest polymers"),
+    "molar flow": Bounds(1e8, 1e-12, "magnitude up to 1e8 mol/s"),
+    "frequency": Bounds(1e15, 1e-15, "magnitude up to 1e15 1/s"),
+    "area per volume": Bounds(1e7, 1e-9, "up to 1e7 1/m"),
+    "dimensionless": Bounds(1e9, 1e-12, "magnitude up to 1e9"),
+}
 _FACTORS = {name: kind.factor_offset() for name, kind in KINDS.items()}
 _OFFSET_UNITS = {"degree_Celsius": "delta_degree_Celsius", "degree_Fahrenheit": "delta_degree_Fahrenheit"}
 
@@ -104,34 +167,117 @@ def parse_quantity(kind_name: str, raw) -> float:
     if isinstance(raw, bool):
         raise ValidationError(f"expected a {kind.name} (a number or a string such as '{_example(kind)}')")
     if isinstance(raw, (int, float)):
-        value = float(raw)
+        try:
+            value = float(raw)
+        except OverflowError:  # a JSON integer with hundreds of digits
+            raise ValidationError("must be a finite number (this integer is too large)") from None
         if not math.isfinite(value):
             raise ValidationError("must be a finite number")
         return to_si(kind_name, value)
     if not isinstance(raw, str):
         raise ValidationError(f"expected a {kind.name} (a number or a string such as '{_example(kind)}')")
-    if len(raw) > _MAX_TEXT:
-        raise ValidationError(f"quantity text is longer than {_MAX_TEXT} characters")
+    if len(raw) > MAX_TEXT:
+        raise ValidationError(f"quantity text is longer than {MAX_TEXT} characters")
+    if not raw.isascii():
+        degrees = "; write degC or degF for degrees" if "\u00b0" in raw else ""
+        raise ValidationError("quantity text must be plain ASCII (digits 0-9, unit names such as 'degC', 'm^3/h')"
+                              + degrees)
     match = _NUMBER_THEN_UNIT.match(raw)
     if match is None:
-        raise ValidationError(f"expected a number with an optional unit, e.g. '{_example(kind)}'; got {raw!r}")
+        raise ValidationError(decimal_comma_hint(raw) or
+                              f"expected a number with an optional unit, e.g. '{_example(kind)}'; got {raw!r}")
     number, unit = float(match.group(1)), match.group(2)
     if not math.isfinite(number):
         raise ValidationError("must be a finite number")
     if unit == "":
         return to_si(kind_name, number)
     try:
+        check_unit_text(unit)  # bounded grammar first; its refusals get the same hints
         factor, offset = _conversion(kind_name, unit)
     except ValidationError as error:
         hint = habit_hint(kind, match.group(1), unit)
         if hint is None:
             raise
-        # A decimal comma leaves the parser a nonsense unit (',8 m'): the hint alone says what happened.
-        raise ValidationError(hint if unit.startswith(",") else f"{error.messages[0]}; {hint}") from None
+        raise ValidationError(f"{error.messages[0]}; {hint}") from None
     value = number * factor + offset
     if not math.isfinite(value):
         raise ValidationError("must be a finite number")
     return value
+
+
+def check_unit_text(unit: str) -> None:
+    """Refuse unit text outside a small grammar before pint parses it, so parsing stays bounded.
+
+    pint evaluates exponents as Python numbers, so ``K**9**9**9`` would take minutes and all memory.
+    Allowed: unit names, ``*``, ``/``, spaces, one exponent per factor (``^`` or ``**``, a number of at
+    most two digits and magnitude at most MAX_EXPONENT, optionally signed or in parentheses),
+    parentheses nested at most MAX_NESTING deep, and a bare ``1`` as in ``1/s``.
+
+    >>> check_unit_text("W/(m^2*K)")
+    >>> check_unit_text("K**2**3")
+    Traceback (most recent call last):
+    ...
+    marshmallow.exceptions.ValidationError: unit text may not chain exponents (K**2**3)
+    """
+    tokens = [t for t in _TOKEN.findall(unit)]
+    if "".join(tokens) != unit:
+        raise ValidationError(f"unit text {unit!r} has characters outside unit names, digits, * / ^ ( ) and spaces")
+    if re.search(r"[0-9][A-Za-z_]", unit):
+        raise ValidationError(f"a number in unit text {unit!r} must stand apart from unit names")
+    tokens = [t for t in tokens if not t.isspace()]
+    if len(tokens) > MAX_TOKENS:
+        raise ValidationError(f"unit text has more than {MAX_TOKENS} parts")
+    depth, i, previous_was_exponent = 0, 0, False
+    while i < len(tokens):
+        token = tokens[i]
+        if token in ("^", "**"):
+            if previous_was_exponent:
+                raise ValidationError(f"unit text may not chain exponents ({unit})")
+            j = i + 1
+            opened = j < len(tokens) and tokens[j] == "("
+            j += opened
+            if j < len(tokens) and tokens[j] in "+-":
+                j += 1
+            if j >= len(tokens) or not tokens[j][0].isdigit():
+                raise ValidationError(f"an exponent in {unit!r} must be a number")
+            number = tokens[j]
+            if len(number.split(".")[0]) > 2 or float(number) > MAX_EXPONENT:
+                raise ValidationError(f"exponents in unit text are limited to {MAX_EXPONENT} ({unit})")
+            if opened:
+                if j + 1 >= len(tokens) or tokens[j + 1] != ")":
+                    raise ValidationError(f"an exponent in parentheses in {unit!r} must be closed")
+                j += 1
+            i, previous_was_exponent = j + 1, True
+            continue
+        previous_was_exponent = False
+        if token == "(":
+            depth += 1
+            if depth > MAX_NESTING:
+                raise ValidationError(f"unit text is nested deeper than {MAX_NESTING} parentheses")
+        elif token == ")":
+            depth -= 1
+            if depth < 0:
+                raise ValidationError(f"unbalanced parentheses in unit text {unit!r}")
+        elif token[0].isdigit() and token != "1":
+            raise ValidationError(f"a number inside unit text {unit!r} may only be the 1 of '1/s'")
+        elif token in "+-":
+            raise ValidationError(f"a sign inside unit text {unit!r} belongs to an exponent only")
+        i += 1
+    if depth != 0:
+        raise ValidationError(f"unbalanced parentheses in unit text {unit!r}")
+
+
+#: Entries pint may keep in each of its registry caches before they are reset to the start-up state;
+#: without a bound, every distinct unit text a client sends would stay in memory for the process's life.
+PINT_CACHE_LIMIT = 4096
+_PINT_BASELINE = {name: dict(value) for name, value in vars(UREG._cache).items() if isinstance(value, dict)}
+
+
+def _bound_pint_caches() -> None:
+    cache = UREG._cache
+    for name, baseline in _PINT_BASELINE.items():
+        if len(getattr(cache, name)) > PINT_CACHE_LIMIT:
+            setattr(cache, name, dict(baseline))
 
 
 @lru_cache(maxsize=1024)
@@ -142,6 +288,7 @@ def _conversion(kind_name: str, unit: str) -> tuple[float, float]:
     ValidationError for an unknown unit or a wrong dimension (errors are not cached).
     """
     kind = KINDS[kind_name]
+    _bound_pint_caches()
     try:
         units = UREG.parse_units(unit)
     except Exception:  # pint's parser raises assorted errors (even AssertionError) on garbage text
@@ -180,9 +327,6 @@ def habit_hint(kind: Kind, number: str, unit: str) -> str | None:
     if kind.name.startswith("temperature") and bare in _BARE_DEGREES:
         meaning = {"c": " ('C' is the coulomb)", "f": " ('F' is the farad)"}.get(bare, "")
         return f"did you mean '{number} {_BARE_DEGREES[bare]}'{meaning}?"
-    if re.match(r"^,\d", unit):
-        return (f"'{number}{unit}' has a decimal comma: write '{number}.{unit[1:]}' (a comma is read neither "
-                "as a decimal mark nor as a thousands separator)")
     gauge = _GAUGE.match(unit.strip())
     if gauge:
         base = gauge.group(1)
@@ -204,9 +348,26 @@ def habit_hint(kind: Kind, number: str, unit: str) -> str | None:
     return None
 
 
+_DECIMAL_COMMA = re.compile(r"^ *[-+]?[0-9]+,[0-9]")
+
+
+def decimal_comma_hint(raw: str) -> str | None:
+    """A message for a number written with a decimal comma ("1,8 m"), or None.
+
+    >>> decimal_comma_hint("1,8 m")
+    "'1,8 m' has a decimal comma: write '1.8 m' (a comma is read neither as a decimal mark nor as a thousands separator)"
+    """
+    if not _DECIMAL_COMMA.match(raw):
+        return None
+    return (f"{raw.strip()!r} has a decimal comma: write {raw.strip().replace(',', '.', 1)!r} (a comma is read neither "
+            "as a decimal mark nor as a thousands separator)")
+
+
 def hint_for(kind_name: str, raw) -> str | None:
     """The habit hint for quantity text ``raw`` read as ``kind_name``, or None."""
-    match = _NUMBER_THEN_UNIT.match(raw) if isinstance(raw, str) and len(raw) <= _MAX_TEXT else None
+    if isinstance(raw, str) and decimal_comma_hint(raw):
+        return decimal_comma_hint(raw)
+    match = _NUMBER_THEN_UNIT.match(raw) if isinstance(raw, str) and len(raw) <= MAX_TEXT else None
     return habit_hint(KINDS[kind_name], match.group(1), match.group(2)) if match and match.group(2) else None
 
 
@@ -225,22 +386,31 @@ class Quantity(fields.Field):
         if kind not in KINDS:
             raise KeyError(kind)
         self.kind = kind
+        bounds = BOUNDS[kind]
+        if minimum is not None and minimum == 0 and exclusive_minimum and bounds.smallest > 0:
+            minimum, exclusive_minimum = bounds.smallest, False  # positive: from the kind's smallest value
+        elif minimum is None and kind == "temperature":
+            minimum, exclusive_minimum = -273.15, True  # absolute zero
+        elif minimum is None:
+            minimum = -bounds.largest
+        maximum = bounds.largest if maximum is None else min(maximum, bounds.largest)
         self.minimum, self.maximum, self.exclusive_minimum = minimum, maximum, exclusive_minimum
         metadata = dict(kwargs.pop("metadata", {}))
-        metadata.update(unit=KINDS[kind].api_unit, kind=kind, description=description)
+        metadata.update(unit=KINDS[kind].api_unit, kind=kind, description=description,
+                        bounds_reason=bounds.reason)
         super().__init__(metadata=metadata, **kwargs)
 
     def _deserialize(self, value, attr, data, **kwargs) -> float:
         si = parse_quantity(self.kind, value)
         api = from_si(self.kind, si)
         unit = KINDS[self.kind].api_unit
-        if self.minimum is not None:
-            too_low = api <= self.minimum if self.exclusive_minimum else api < self.minimum
-            if too_low:
-                relation = "greater than" if self.exclusive_minimum else "at least"
-                raise ValidationError(f"must be {relation} {self.minimum:g} {unit}".rstrip())
-        if self.maximum is not None and api > self.maximum:
-            raise ValidationError(f"must be at most {self.maximum:g} {unit}".rstrip())
+        reason = BOUNDS[self.kind].reason
+        too_low = api <= self.minimum if self.exclusive_minimum else api < self.minimum
+        if too_low:
+            relation = "greater than" if self.exclusive_minimum else "at least"
+            raise ValidationError(f"must be {relation} {self.minimum:g} {unit}".rstrip() + f" ({reason})")
+        if api > self.maximum:
+            raise ValidationError(f"must be at most {self.maximum:g} {unit}".rstrip() + f" ({reason})")
         return si
 
     def _serialize(self, value, attr, obj, **kwargs):

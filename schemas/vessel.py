@@ -15,8 +15,8 @@ from calc.films import jacket_side as service_side
 from calc.films import wall
 from calc.vessel.model import Charge, Coolant, Vessel
 
-from .base import StrictSchema, finite_float
-from .units import Quantity, hint_for, parse_quantity
+from .base import StrictSchema, finite_float, whole_number
+from .units import BOUNDS, Quantity, hint_for, parse_quantity
 
 ABSOLUTE_ZERO_C = -273.15
 JACKET_TYPES = ["annular", "annular_spiral_baffle", "half_pipe", "none"]
@@ -50,7 +50,7 @@ class JacketSchema(StrictSchema):
     baffle_pitch = _length("pitch of the spiral baffle", load_default=None)
     pipe_diameter = _length("inside diameter of the half-pipe", load_default=None)
     pipe_pitch = _length("centre-to-centre pitch of the half-pipe turns", load_default=None)
-    passes = fields.Integer(load_default=1, validate=validate.Range(1, 50),
+    passes = whole_number(load_default=1, validate=validate.Range(1, 50),
                             metadata={"description": "parallel zones/passes sharing the coolant flow"})
     inlet_diameter = _length("coolant inlet nozzle diameter", load_default=None)
     bypass_fraction = finite_float(load_default=None, validate=validate.Range(0, 0.9),
@@ -83,7 +83,7 @@ class AgitatorSchema(StrictSchema):
                              metadata={"description": "impeller id from /v1/impellers"})
     diameter = _length("impeller diameter", required=True)
     speed = Quantity("agitator speed", required=True, minimum=0, exclusive_minimum=True)
-    count = fields.Integer(load_default=1, validate=validate.Range(1, 6))
+    count = whole_number(load_default=1, validate=validate.Range(1, 6))
     baffles = fields.Boolean(load_default=True, metadata={"description": "fully baffled vessel"})
     power_number = finite_float(load_default=None, validate=validate.Range(0, 100, min_inclusive=False),
                                 metadata={"description": "turbulent power number overriding the library"})
@@ -201,24 +201,31 @@ class ChargeSchema(_LiquidFields):
 class Flow(fields.Field):
     """A coolant flow: mass/time (default kg/s) or volume/time ("20 m^3/h"), kept with its kind."""
 
+    minimum = BOUNDS["mass flow"].smallest
+    maximum = BOUNDS["mass flow"].largest
+
     def __init__(self, **kwargs):
         metadata = dict(kwargs.pop("metadata", {}))
-        metadata.update(unit="kg/s", kind="mass flow",
+        metadata.update(unit="kg/s", kind="mass flow", bounds_reason=BOUNDS["mass flow"].reason,
                         description="mass flow (kg/s by default) or a volume flow with its unit, e.g. '20 m^3/h'")
         super().__init__(metadata=metadata, **kwargs)
 
     def _deserialize(self, value, attr, data, **kwargs):
         try:
             kind, si = "mass", parse_quantity("mass flow", value)
-        except ValidationError:
+        except ValidationError as mass_error:
+            if not isinstance(value, str):
+                raise mass_error
             try:
                 kind, si = "volume", parse_quantity("volume flow", value)
             except ValidationError:
                 message = "expected a mass flow (e.g. '2 kg/s') or a volume flow (e.g. '20 m^3/h')"
                 hint = hint_for("volume flow", value)
                 raise ValidationError(f"{message}; {hint}" if hint else message) from None
-        if si <= 0:
-            raise ValidationError("must be greater than 0")
+        bounds = BOUNDS[f"{kind} flow"]
+        unit = "kg/s" if kind == "mass" else "m^3/s"
+        if not bounds.smallest <= si <= bounds.largest:
+            raise ValidationError(f"must be from {bounds.smallest:g} to {bounds.largest:g} {unit} ({bounds.reason})")
         return kind, si
 
 

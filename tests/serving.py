@@ -8,10 +8,13 @@ import subprocess
 import sys
 import tempfile
 import time
+import urllib.error
 import urllib.request
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
+#: A rate limit that load tests and benchmarks (all from one address) never reach; the limiter still runs.
+UNLIMITED = "1000000 per minute"
 
 
 def free_port() -> int:
@@ -32,24 +35,41 @@ def wait_until_up(base_url: str, timeout: float = 60.0) -> None:
     raise TimeoutError(f"{base_url} did not answer /health within {timeout} s")
 
 
+class Server(str):
+    """The base URL of a running server, with its process and its combined log."""
+
+    process: subprocess.Popen
+    log: "tempfile._TemporaryFileWrapper"
+
+    def log_text(self) -> str:
+        self.log.flush()
+        self.log.seek(0)
+        return self.log.read().decode(errors="replace")
+
+
 @contextlib.contextmanager
 def gunicorn(command: list[str] | None = None, env: dict | None = None, workers: int = 2):
-    """Yield the base URL of a gunicorn started with docker/gunicorn.conf.py on 127.0.0.1."""
+    """Yield the base URL (a :class:`Server`) of a gunicorn started with docker/gunicorn.conf.py on 127.0.0.1.
+
+    Test servers stop at once on SIGTERM (no drain period) unless ``env`` sets COOLMARGIN_DRAIN_SECONDS.
+    """
     port = free_port()
     environment = dict(os.environ)
+    environment.setdefault("COOLMARGIN_DRAIN_SECONDS", "0")
+    environment.setdefault("COOLMARGIN_RATE_LIMIT", UNLIMITED)  # load tests come from one address
     environment.update(env or {})
     environment.update(COOLMARGIN_BIND=f"127.0.0.1:{port}", COOLMARGIN_WORKERS=str(workers),
                        COOLMARGIN_ACCESS_LOG=environment.get("COOLMARGIN_ACCESS_LOG", "/dev/null"))
     command = command or [sys.executable, "-m", "gunicorn", "--config", "docker/gunicorn.conf.py", "api.wsgi:app"]
     log = tempfile.TemporaryFile()
     process = subprocess.Popen(command, cwd=ROOT, env=environment, stdout=log, stderr=subprocess.STDOUT)
-    base = f"http://127.0.0.1:{port}"
+    base = Server(f"http://127.0.0.1:{port}")
+    base.process, base.log = process, log
     try:
         try:
             wait_until_up(base)
         except TimeoutError:
-            log.seek(0)
-            raise TimeoutError(log.read().decode(errors="replace")[-3000:]) from None
+            raise TimeoutError(base.log_text()[-3000:]) from None
         yield base
     finally:
         log.close()
@@ -59,3 +79,36 @@ def gunicorn(command: list[str] | None = None, env: dict | None = None, workers:
         except subprocess.TimeoutExpired:
             process.kill()
             process.wait()
+
+
+@contextlib.contextmanager
+def slow_uploads(base_url: str, count: int, path: str = "/v1/properties", length: int = 100_000):
+    """Open ``count`` connections that announce a ``length``-byte JSON body and send only its first byte.
+
+    They stay open (holding whatever reads their bodies) until the block ends. Loopback only.
+    """
+    host, port = base_url.rsplit("//", 1)[1].rsplit(":", 1)
+    assert host == "127.0.0.1"
+    head = (f"POST {path} HTTP/1.1\r\nHost: {host}\r\nContent-Type: application/json\r\n"
+            f"Content-Length: {length}\r\n\r\n{{").encode()
+    sockets = []
+    try:
+        for _ in range(count):
+            sock = socket.create_connection((host, int(port)), timeout=5)
+            sock.sendall(head)
+            sockets.append(sock)
+        time.sleep(0.3)  # let the server take them up
+        yield sockets
+    finally:
+        for sock in sockets:
+            sock.close()
+
+
+def timed_get(url: str, timeout: float = 10.0) -> tuple[int, float, bytes, dict]:
+    """(status, seconds, body, headers) of one GET; an HTTP error status is returned, not raised."""
+    started = time.monotonic()
+    try:
+        with urllib.request.urlopen(url, timeout=timeout) as response:
+            return response.status, time.monotonic() - started, response.read(), dict(response.headers)
+    except urllib.error.HTTPError as error:
+        return error.code, time.monotonic() - started, error.read(), dict(error.headers)

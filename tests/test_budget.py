@@ -94,3 +94,29 @@ def test_a_batch_past_its_budget_keeps_the_cases_it_finished():
     missing = response.json["cases"][-1]["problem"]
     assert missing["status"] == 503 and "not computed" in missing["detail"]
     assert elapsed < 6 * took  # the rest was not computed
+
+
+def test_calculation_slots_are_handed_to_the_longest_waiter():
+    import threading
+
+    from api.runtime import Slots
+
+    slots, order = Slots(1), []
+    assert slots.acquire(timeout=0)
+
+    def wait(name):
+        if slots.acquire(timeout=10):
+            order.append(name)
+            slots.release()
+
+    threads = []
+    for name in "abc":
+        threads.append(threading.Thread(target=wait, args=(name,)))
+        threads[-1].start()
+        time.sleep(0.05)  # a, b, c queue in that order
+    assert not slots.acquire(timeout=0)  # a newcomer does not jump the queue
+    slots.release()
+    for thread in threads:
+        thread.join(10)
+    assert order == ["a", "b", "c"]
+    assert slots.acquire(timeout=0)  # and the slot is free again afterwards

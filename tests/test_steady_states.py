@@ -85,7 +85,7 @@ def _dynamic_run(p, T_start, c_start, hours):
     feed = Feed.constant(p["feed_temperature"], {"A": p["feed_concentration"] / rho}, rho * p["flow"])
     jacket = Jacket(p["ua"], 1e9, 4180.0, p["coolant_temperature"])
     return simulate(SimulationInput("continuous", sp, rx, charge, hours * 3600.0, feed=feed, jacket=jacket,
-                                    rtol=1e-9, budget=Budget(output_points=2001)))
+                                    rtol=1e-9, budget=Budget(output_points=2001, wall_time=300.0)))
 
 
 def test_transient_runs_settle_on_the_stable_states():

@@ -39,7 +39,8 @@ def test_bare_numbers_are_in_the_default_unit():
 @pytest.mark.parametrize("kind, text, message", [
     ("length", "3 kg", "expected a length, got 'kg'"),
     ("temperature", "5 m", "expected a temperature, got 'm'"),
-    ("length", "3 furlongs-ish", "unknown unit 'furlongs-ish'"),
+    ("length", "3 wiggles", "unknown unit 'wiggles'"),
+    ("length", "3 furlongs-ish", "a sign inside unit text 'furlongs-ish' belongs to an exponent only"),
 ])
 def test_wrong_units_are_refused_with_a_clear_message(kind, text, message):
     with pytest.raises(ValidationError) as err:

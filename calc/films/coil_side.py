@@ -8,8 +8,11 @@ from __future__ import annotations
 
 import math
 
+from typing import NamedTuple
+
+from calc import arrays
+from calc.films.jacket_side import VDI_HEAT_ATLAS, FilmFormula, FilmResult, flow_warnings
 from calc.properties import LiquidProperties
-from calc.films.jacket_side import VDI_HEAT_ATLAS, FilmResult, flow_warnings
 from calc.validity import Correlation, InputError, Warnings, require_positive
 
 
@@ -83,9 +86,9 @@ def Nu_coil_turbulent_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
     ----------
     Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
     """
-    if Re <= 2.2e4:
-        return 0.023 * (1 + 14.8 * (1 + r) * r ** (1 / 3)) * Re ** (0.8 - 0.22 * r ** 0.1) * Pr ** (1 / 3)
-    return 0.023 * (1 + 3.6 * (1 - r) * r ** 0.8) * Re ** 0.8 * Pr ** (1 / 3)
+    return arrays.where(Re <= 2.2e4,
+                        0.023 * (1 + 14.8 * (1 + r) * r ** (1 / 3)) * Re ** (0.8 - 0.22 * r ** 0.1) * Pr ** (1 / 3),
+                        0.023 * (1 + 3.6 * (1 - r) * r ** 0.8) * Re ** 0.8 * Pr ** (1 / 3))
 
 
 def Nu_coil_turbulent_Mori_Nakayama_1967(Re: float, Pr: float, r: float) -> float:
@@ -122,9 +125,9 @@ def Nu_coil_turbulent_Mori_Nakayama_1967(Re: float, Pr: float, r: float) -> floa
     Mori, Y.; Nakayama, W. "Study on Forced Convective Heat Transfer in Curved Pipes". Int. J. Heat Mass
     Transfer 10, 681-695 (1967), doi:10.1016/0017-9310(67)90113-5.
     """
-    if Pr < 1:
-        return Pr / (26.2 * (Pr ** (2 / 3) - 0.074)) * Re ** 0.8 * r ** 0.1 * (1 + 0.098 * (Re * r * r) ** -0.2)
-    return Pr ** 0.4 / 41 * Re ** (5 / 6) * r ** (1 / 12) * (1 + 0.061 / (Re * r ** 2.5) ** (1 / 6))
+    return arrays.where(Pr < 1,
+                        Pr / (26.2 * (Pr ** (2 / 3) - 0.074)) * Re ** 0.8 * r ** 0.1 * (1 + 0.098 * (Re * r * r) ** -0.2),
+                        Pr ** 0.4 / 41 * Re ** (5 / 6) * r ** (1 / 12) * (1 + 0.061 / (Re * r ** 2.5) ** (1 / 6)))
 
 
 CORRELATIONS: dict[str, Correlation] = {
@@ -207,6 +210,40 @@ def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant
     >>> r.regime, round(r.reynolds)
     ('turbulent', 50848)
     """
+    require_positive("coolant.flow", mass_flow)
+    require_positive("coolant.viscosity_at_wall", mu_wall)
+    formula = coil_film_formula(tube_inner_diameter, helix_diameter, pitch, parallel_tubes, correlation)
+    warnings = Warnings()
+    flow = formula.function(coolant_props, mass_flow * formula.flow_share, mu_wall, None, **formula.fixed)
+    return formula.describe(coolant_props, flow, warnings)
+
+
+class _CoilFlow(NamedTuple):
+    h: float
+    reynolds: float
+    velocity: float
+    nusselt: float
+    critical_reynolds: float
+
+
+def coil_flow(props, mass_flow, mu_wall, rho_wall, d, D_c, correlation, beta=None, dT=None,
+              warnings=None) -> _CoilFlow:
+    """Film inside a helical coil tube at a coolant state (floats or arrays): laminar below Re_crit, else
+    the turbulent ``correlation``; both times (mu/mu_w)^0.14."""
+    velocity = mass_flow / (props.density * math.pi / 4 * d * d)
+    Re = props.density * velocity * d / props.viscosity
+    Pr = props.prandtl
+    r = d / D_c
+    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
+    Nu = arrays.where(Re < Re_crit, Nu_coil_laminar_Schmidt_1967(Re, Pr, r),
+                      CORRELATIONS[correlation].function(Re, Pr, r))
+    Nu = Nu * (props.viscosity / mu_wall) ** 0.14
+    return _CoilFlow(Nu * props.thermal_conductivity / d, Re, velocity, Nu, Re_crit)
+
+
+def coil_film_formula(tube_inner_diameter: float, helix_diameter: float, pitch: float | None = None,
+                      parallel_tubes: int = 1, correlation: str = "schmidt_1967") -> FilmFormula:
+    """The coil's coolant film as a :class:`~calc.films.jacket_side.FilmFormula` (geometry checked once)."""
     if correlation not in COIL_CORRELATIONS:
         raise InputError("vessel.coils.correlation", f"unknown option {correlation!r}; known: "
                                                      f"{', '.join(COIL_CORRELATIONS)}")
@@ -214,25 +251,18 @@ def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant
     D_c = require_positive("vessel.coils.helix_diameter", helix_diameter)
     if D_c <= d:
         raise InputError("vessel.coils.helix_diameter", "must exceed the tube diameter")
-    require_positive("coolant.flow", mass_flow)
-    require_positive("coolant.viscosity_at_wall", mu_wall)
     if not (isinstance(parallel_tubes, int) and parallel_tubes >= 1):
         raise InputError("vessel.coils.parallel_tubes", f"must be a whole number >= 1, got {parallel_tubes!r}")
     if pitch is not None:
         D_c *= 1 + (require_positive("vessel.coils.pitch", pitch) / (math.pi * D_c)) ** 2
-    warnings = Warnings()
-    props = coolant_props
-    m_tube = mass_flow / parallel_tubes
-    velocity = m_tube / (props.density * math.pi / 4 * d * d)
-    Re = props.density * velocity * d / props.viscosity
-    Pr = props.prandtl
-    r = d / D_c
-    Re_crit = coil_critical_reynolds_Schmidt_1967(r)
-    key = "schmidt_1967_laminar" if Re < Re_crit else correlation
-    entry = CORRELATIONS[key]
-    Nu = entry.function(Re, Pr, r) * (props.viscosity / mu_wall) ** 0.14
-    entry.check(warnings, Re=Re, **{"Re r^2": Re * r * r})
-    regime = flow_warnings(warnings, Re, velocity, Re_crit, entry.name)
-    if regime != "laminar":
-        regime = "turbulent" if Re >= 2.2e4 else "transitional"
-    return FilmResult(Nu * props.thermal_conductivity / d, Re, velocity, entry.name, Nu, Pr, d, regime, warnings)
+
+    def describe(props, flow: _CoilFlow, warnings: Warnings) -> FilmResult:
+        Re, r = flow.reynolds, d / D_c
+        entry = CORRELATIONS["schmidt_1967_laminar" if Re < flow.critical_reynolds else correlation]
+        entry.check(warnings, Re=Re, **{"Re r^2": Re * r * r})
+        regime = flow_warnings(warnings, Re, flow.velocity, flow.critical_reynolds, entry.name)
+        if regime != "laminar":
+            regime = "turbulent" if Re >= 2.2e4 else "transitional"
+        return FilmResult(flow.h, Re, flow.velocity, entry.name, flow.nusselt, props.prandtl, d, regime, warnings)
+
+    return FilmFormula(coil_flow, {"d": d, "D_c": D_c, "correlation": correlation}, 1.0 / parallel_tubes, describe)

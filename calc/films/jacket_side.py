@@ -21,12 +21,14 @@ correlations (laminar, transitional, turbulent with the curvature factor 1 + 3.5
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import NamedTuple
 
+import numpy as np
 from scipy.constants import g
 from scipy.special import wrightomega
 
+from calc import arrays
 from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, Correlation, InputError, Warnings, require_positive
 
@@ -167,8 +169,9 @@ def h_jacket_Lehrer_1970(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet
     Pr = cp * mu / k
     v_in = Q / (math.pi / 4 * d_inlet ** 2)
     v_s = Q / (H * gap)
-    forced = math.sqrt(v_s * v_in)
+    forced = arrays.sqrt(v_s * v_in)
     v_a = 0.0
+    # the buoyancy term needs beta and dT, which only a single state gives (the network passes neither)
     if inlet_type == "radial" and beta is not None and dT is not None and dT != 0.0:
         magnitude = 0.5 * math.sqrt(2 * g * H * abs(beta * dT))
         assists = (dT > 0) == (inlet_location == "bottom")
@@ -241,6 +244,10 @@ def h_jacket_Stein_Schmidt_1993(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w
     einfachen Mantel". Forsch. Ingenieurwes. 59, 73-90 (1993), doi:10.1007/BF02561203.
     VDI Heat Atlas, 2nd ed., Springer 2010 (worked example).
     """
+    if arrays.is_array(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, rho_w,
+                       roughness):
+        return _Stein_Schmidt_elementwise(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type,
+                                          inlet_location, rho_w, roughness)
     Q = m / rho
     Pr = cp * mu / k
     d_ch = 2.0 * gap
@@ -285,6 +292,23 @@ def h_jacket_Stein_Schmidt_1993(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w
     return _Flow(Nu * k / d_ch, Re, v_ch, Nu, d_ch)
 
 
+def _Stein_Schmidt_elementwise(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type, inlet_location,
+                               rho_w, roughness) -> _Flow:
+    """:func:`h_jacket_Stein_Schmidt_1993` over arrays of states, one element at a time.
+
+    Its tangential-inlet velocity is itself a fixed-point iteration on the friction factor, with a
+    branch per element; it is evaluated state by state (the one correlation of this module that is
+    not vectorised; Lehrer's, the default, is).
+    """
+    values = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in
+                                   (m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, rho if rho_w is None else rho_w,
+                                    roughness)))
+    rows = [h_jacket_Stein_Schmidt_1993(*(float(a.flat[i]) for a in values[:10]), inlet_type=inlet_type,
+                                        inlet_location=inlet_location, rho_w=float(values[10].flat[i]),
+                                        roughness=float(values[11].flat[i])) for i in range(values[0].size)]
+    return _Flow(*(np.array(column).reshape(values[0].shape) for column in zip(*rows)))
+
+
 def Nu_laminar_Sieder_Tate_1936(Re: float, Pr: float, De_over_L: float) -> float:
     """Laminar flow in a channel, Sieder & Tate (1936), with the fully developed floor 3.66.
 
@@ -319,7 +343,7 @@ def Nu_laminar_Sieder_Tate_1936(Re: float, Pr: float, De_over_L: float) -> float
     Sieder, E. N.; Tate, G. E. "Heat Transfer and Pressure Drop of Liquids in Tubes". Ind. Eng. Chem. 28,
     1429-1435 (1936), doi:10.1021/ie50324a027.
     """
-    return max(1.86 * (Re * Pr * De_over_L) ** (1 / 3), 3.66)
+    return arrays.maximum(1.86 * (Re * Pr * De_over_L) ** (1 / 3), 3.66)
 
 
 def Nu_transition_Gnielinski_2013(Re: float, Pr: float, De_over_L: float, De_over_Dc: float) -> float:
@@ -367,7 +391,7 @@ def Nu_transition_Gnielinski_2013(Re: float, Pr: float, De_over_L: float, De_ove
     Gnielinski, V. "On heat transfer in tubes". Int. J. Heat Mass Transfer 63, 134-140 (2013),
     doi:10.1016/j.ijheatmasstransfer.2013.04.015 (from memory); VDI Heat Atlas, 2nd ed., Springer 2010, G1.
     """
-    weight = min(max((Re - LAMINAR_LIMIT) / (TURBULENT_LIMIT - LAMINAR_LIMIT), 0.0), 1.0)
+    weight = arrays.clip((Re - LAMINAR_LIMIT) / (TURBULENT_LIMIT - LAMINAR_LIMIT), 0.0, 1.0)
     laminar = Nu_laminar_Sieder_Tate_1936(LAMINAR_LIMIT, Pr, De_over_L)
     turbulent = Nu_turbulent_Sieder_Tate_1936(TURBULENT_LIMIT, Pr, De_over_Dc)
     return (1.0 - weight) * laminar + weight * turbulent
@@ -493,7 +517,83 @@ def flow_warnings(warnings: Warnings, Re: float, velocity: float, laminar_below:
     return "turbulent" if Re >= TURBULENT_LIMIT else "transitional"
 
 
-def _annular(jacket, props, m, mu_wall, D_o, H, warnings, rho_wall, beta, dT) -> FilmResult:
+@dataclass(frozen=True)
+class FilmFormula:
+    """A coolant film as a function of what the network iterates: one formula for one state or many.
+
+    ``function(props, mass_flow, mu_wall, rho_wall, **fixed)`` gives a flow tuple whose first item is h,
+    [W/(m2 K)]; ``props`` (:class:`LiquidProperties`), ``mu_wall`` and ``rho_wall`` may hold floats or
+    numpy arrays, ``mass_flow`` is the flow through one channel (``flow_share`` of the stream's).
+    ``fixed`` holds the geometry, which stays put while the network iterates. ``describe(props, flow,
+    warnings)`` turns one state's flow tuple into a :class:`FilmResult` with its validity checks.
+    """
+
+    function: object
+    fixed: dict
+    flow_share: float
+    describe: object
+
+    def h(self, props: LiquidProperties, stream_mass_flow, mu_wall, rho_wall):
+        """Film coefficient for a stream mass flow (floats or arrays), [W/(m2 K)]."""
+        return self.function(props, stream_mass_flow * self.flow_share, mu_wall, rho_wall, **self.fixed)[0]
+
+
+def annular_flow(props, mass_flow, mu_wall, rho_wall, correlation, D_tank, gap, H, d_inlet, inlet_type,
+                 inlet_location, roughness, beta=None, dT=None, warnings=None) -> _Flow:
+    """The registered annular-jacket correlation ``correlation`` at a coolant state (floats or arrays)."""
+    return CORRELATIONS[correlation].function(
+        mass_flow, D_tank, gap, H, d_inlet, props.density, props.heat_capacity, props.thermal_conductivity,
+        props.viscosity, mu_wall, inlet_type=inlet_type, inlet_location=inlet_location, rho_w=rho_wall, beta=beta,
+        dT=dT, roughness=roughness, warnings=warnings)
+
+
+class _ChannelFlow(NamedTuple):
+    h: float
+    reynolds: float
+    velocity: float
+    nusselt: float
+    key: int  # index into _CHANNEL_KEYS: the correlation in force
+
+
+_CHANNEL_KEYS = ("sieder_tate_1936_laminar", "gnielinski_2013", "sieder_tate_1936_turbulent")
+
+
+def channel_flow(props, mass_flow, mu_wall, rho_wall, area, d_e, length, d_curve, beta=None, dT=None,
+                 warnings=None) -> _ChannelFlow:
+    """Film in a coiled channel (spiral baffle, half pipe): laminar, transitional or turbulent (floats or arrays).
+
+    Laminar below Re = 2100, Gnielinski's interpolation to Re = 10^4, turbulent above. Short channels:
+    the laminar entry value at a transitional Re can exceed the interpolation just above Re = 2100;
+    transitional flow never transfers less than laminar flow would (common practice, no source), so the
+    larger of the two stands and h stays monotonic in the flow across the regime boundary.
+    """
+    velocity = mass_flow / (props.density * area)
+    Re = props.density * velocity * d_e / props.viscosity
+    Pr = props.prandtl
+    laminar = Nu_laminar_Sieder_Tate_1936(Re, Pr, d_e / length)
+    transition = Nu_transition_Gnielinski_2013(Re, Pr, d_e / length, d_e / d_curve)
+    turbulent = Nu_turbulent_Sieder_Tate_1936(Re, Pr, d_e / d_curve)
+    entry_wins = laminar > transition
+    key = arrays.where(Re < LAMINAR_LIMIT, 0, arrays.where(Re < TURBULENT_LIMIT, arrays.where(entry_wins, 0, 1), 2))
+    Nu = arrays.where(key == 0, laminar, arrays.where(key == 1, transition, turbulent))
+    Nu = Nu * (props.viscosity / mu_wall) ** 0.14
+    return _ChannelFlow(Nu * props.thermal_conductivity / d_e, Re, velocity, Nu, key)
+
+
+def _describe_channel(props, flow: _ChannelFlow, warnings: Warnings, d_e: float) -> FilmResult:
+    entry = CORRELATIONS[_CHANNEL_KEYS[flow.key]]
+    entry.check(warnings, Re=flow.reynolds, Pr=props.prandtl)
+    regime = flow_warnings(warnings, flow.reynolds, flow.velocity, LAMINAR_LIMIT, entry.name)
+    return FilmResult(flow.h, flow.reynolds, flow.velocity, entry.name, flow.nusselt, props.prandtl, d_e, regime,
+                      warnings)
+
+
+def _channel_formula(area, d_e, length, d_curve, share) -> FilmFormula:
+    return FilmFormula(channel_flow, {"area": area, "d_e": d_e, "length": length, "d_curve": d_curve}, share,
+                       lambda props, flow, warnings: _describe_channel(props, flow, warnings, d_e))
+
+
+def _annular(jacket, D_o, H, warnings) -> FilmFormula:
     if jacket.correlation not in ANNULAR_CORRELATIONS:
         raise InputError("vessel.jacket.correlation", f"unknown option {jacket.correlation!r}; known: "
                                                       f"{', '.join(ANNULAR_CORRELATIONS)}")
@@ -509,41 +609,19 @@ def _annular(jacket, props, m, mu_wall, D_o, H, warnings, rho_wall, beta, dT) ->
         if value not in options:
             raise InputError(f"vessel.jacket.{name}", f"unknown option {value!r}; known: {', '.join(options)}")
     entry = CORRELATIONS[jacket.correlation]
-    flow = entry.function(m, D_o, gap, H, d_in, props.density, props.heat_capacity, props.thermal_conductivity,
-                          props.viscosity, mu_wall, inlet_type=jacket.inlet_type,
-                          inlet_location=jacket.inlet_location, rho_w=rho_wall, beta=beta, dT=dT,
-                          roughness=jacket.roughness, warnings=warnings)
-    entry.check(warnings, Re=flow.reynolds, Pr=props.prandtl, **{"H/D": H / D_o})
-    regime = flow_warnings(warnings, flow.reynolds, flow.velocity, 2300.0, entry.name)
-    return FilmResult(flow.h, flow.reynolds, flow.velocity, entry.name, flow.nusselt, props.prandtl,
-                      flow.length_scale, regime, warnings)
+
+    def describe(props, flow: _Flow, warnings: Warnings) -> FilmResult:
+        entry.check(warnings, Re=flow.reynolds, Pr=props.prandtl, **{"H/D": H / D_o})
+        regime = flow_warnings(warnings, flow.reynolds, flow.velocity, 2300.0, entry.name)
+        return FilmResult(flow.h, flow.reynolds, flow.velocity, entry.name, flow.nusselt, props.prandtl,
+                          flow.length_scale, regime, warnings)
+
+    fixed = {"correlation": jacket.correlation, "D_tank": D_o, "gap": gap, "H": H, "d_inlet": d_in,
+             "inlet_type": jacket.inlet_type, "inlet_location": jacket.inlet_location, "roughness": jacket.roughness}
+    return FilmFormula(annular_flow, fixed, 1.0, describe)
 
 
-def _channel(props, m_channel, area, d_e, length, d_curve, mu_wall, warnings) -> FilmResult:
-    """Film in a coiled channel (spiral baffle, half pipe): laminar, transitional or turbulent."""
-    velocity = m_channel / (props.density * area)
-    Re = props.density * velocity * d_e / props.viscosity
-    Pr = props.prandtl
-    if Re < LAMINAR_LIMIT:
-        key, args = "sieder_tate_1936_laminar", (Re, Pr, d_e / length)
-    elif Re < TURBULENT_LIMIT:
-        key, args = "gnielinski_2013", (Re, Pr, d_e / length, d_e / d_curve)
-        # Short channels: the laminar entry value at this Re can exceed the interpolation just above
-        # Re = 2100; transitional flow never transfers less than laminar flow would (common practice,
-        # no source), so h stays monotonic in the flow across the regime boundary.
-        if Nu_laminar_Sieder_Tate_1936(Re, Pr, d_e / length) > Nu_transition_Gnielinski_2013(*args):
-            key, args = "sieder_tate_1936_laminar", (Re, Pr, d_e / length)
-    else:
-        key, args = "sieder_tate_1936_turbulent", (Re, Pr, d_e / d_curve)
-    entry = CORRELATIONS[key]
-    Nu = entry.function(*args) * (props.viscosity / mu_wall) ** 0.14
-    entry.check(warnings, Re=Re, Pr=Pr)
-    regime = flow_warnings(warnings, Re, velocity, LAMINAR_LIMIT, entry.name)
-    return FilmResult(Nu * props.thermal_conductivity / d_e, Re, velocity, entry.name, Nu, Pr, d_e, regime,
-                      warnings)
-
-
-def _spiral_baffle(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> FilmResult:
+def _spiral_baffle(jacket, D_o, H, warnings) -> FilmFormula:
     gap = _positive("gap", jacket.gap, "a spiral-baffle jacket")
     pitch = _positive("baffle_pitch", jacket.baffle_pitch, "a spiral-baffle jacket")
     bypass = DEFAULT_BYPASS_FRACTION if jacket.bypass_fraction is None else jacket.bypass_fraction
@@ -555,10 +633,10 @@ def _spiral_baffle(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> FilmResul
     d_curve = D_o + gap
     turns = H / pitch
     length = turns * math.hypot(math.pi * d_curve, pitch)
-    return _channel(props, m * (1.0 - bypass), pitch * gap, 4.0 * gap, length, d_curve, mu_wall, warnings)
+    return _channel_formula(pitch * gap, 4.0 * gap, length, d_curve, 1.0 - bypass)
 
 
-def _half_pipe(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> FilmResult:
+def _half_pipe(jacket, D_o, H, warnings) -> FilmFormula:
     d = _positive("pipe_diameter", jacket.pipe_diameter, "a half-pipe jacket")
     pitch = _positive("pipe_pitch", jacket.pipe_pitch, "a half-pipe jacket")
     theta = jacket.pipe_section_angle
@@ -571,15 +649,38 @@ def _half_pipe(jacket, props, m, mu_wall, D_o, H, warnings, *_) -> FilmResult:
     area = d * d / 8.0 * (theta - math.sin(theta))  # circular segment
     d_e = 4.0 * area / chord  # heat-transfer equivalent diameter (pi d/2 for 180 degrees)
     length = H / pitch * math.hypot(math.pi * D_o, pitch)
-    return _channel(props, m, area, d_e, length, D_o, mu_wall, warnings)
+    return _channel_formula(area, d_e, length, D_o, 1.0)
 
 
-def _no_jacket(*_args) -> FilmResult:
+def _no_jacket(*_args) -> FilmFormula:
     raise InputError("vessel.jacket.type", "the vessel has no jacket (type 'none'): there is no jacket film")
 
 
 _JACKET_TYPES = {"annular": _annular, "annular_spiral_baffle": _spiral_baffle, "half_pipe": _half_pipe,
                  "none": _no_jacket}
+
+
+def jacket_film_formula(jacket: JacketSpec, vessel_outer_diameter: float, jacket_height: float
+                        ) -> tuple[FilmFormula, Warnings]:
+    """The jacket's coolant film as a :class:`FilmFormula` (geometry checked once), and the geometry's warnings.
+
+    ``passes`` zones in parallel: each takes 1/passes of the flow (``flow_share``) and of the height.
+    """
+    try:
+        handler = _JACKET_TYPES[jacket.type]
+    except KeyError:
+        raise InputError("vessel.jacket.type", f"unknown option {jacket.type!r}; known: "
+                                               f"{', '.join(_JACKET_TYPES)}") from None
+    require_positive("vessel.diameter", vessel_outer_diameter)
+    require_positive("vessel.jacket.top", jacket_height)
+    if not (isinstance(jacket.passes, int) and jacket.passes >= 1):
+        raise InputError("vessel.jacket.passes", f"must be a whole number >= 1, got {jacket.passes!r}")
+    if not (math.isfinite(jacket.roughness) and jacket.roughness >= 0):
+        raise InputError("vessel.jacket.roughness", f"must be a number >= 0, got {jacket.roughness!r}")
+    warnings = Warnings()
+    n = jacket.passes
+    formula = handler(jacket, vessel_outer_diameter, jacket_height / n, warnings)
+    return replace(formula, flow_share=formula.flow_share / n), warnings
 
 
 def service_film_jacket(jacket: JacketSpec, coolant_props: LiquidProperties, mass_flow: float, mu_wall: float,
@@ -622,20 +723,9 @@ def service_film_jacket(jacket: JacketSpec, coolant_props: LiquidProperties, mas
     >>> round(r.h), r.correlation
     (2922, 'Lehrer (1970)')
     """
-    try:
-        handler = _JACKET_TYPES[jacket.type]
-    except KeyError:
-        raise InputError("vessel.jacket.type", f"unknown option {jacket.type!r}; known: "
-                                               f"{', '.join(_JACKET_TYPES)}") from None
     require_positive("coolant.flow", mass_flow)
     require_positive("coolant.viscosity_at_wall", mu_wall)
-    require_positive("vessel.diameter", vessel_outer_diameter)
-    require_positive("vessel.jacket.top", jacket_height)
-    if not (isinstance(jacket.passes, int) and jacket.passes >= 1):
-        raise InputError("vessel.jacket.passes", f"must be a whole number >= 1, got {jacket.passes!r}")
-    if not (math.isfinite(jacket.roughness) and jacket.roughness >= 0):
-        raise InputError("vessel.jacket.roughness", f"must be a number >= 0, got {jacket.roughness!r}")
-    warnings = Warnings()
-    n = jacket.passes
-    return handler(jacket, coolant_props, mass_flow / n, mu_wall, vessel_outer_diameter, jacket_height / n,
-                   warnings, rho_wall, expansion_coefficient, temperature_rise)
+    formula, warnings = jacket_film_formula(jacket, vessel_outer_diameter, jacket_height)
+    flow = formula.function(coolant_props, mass_flow * formula.flow_share, mu_wall, rho_wall,
+                            beta=expansion_coefficient, dT=temperature_rise, warnings=warnings, **formula.fixed)
+    return formula.describe(coolant_props, flow, warnings)

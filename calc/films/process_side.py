@@ -155,6 +155,15 @@ class FilmResult:
     source: str  # where the constants come from
     constants: FilmConstants
     warnings: Warnings = field(default_factory=Warnings)
+    #: What the correlation was called with, but the viscosity ratio, and the length h = Nu k / length uses:
+    #: the vectorised network calls the same correlation with an array of wall viscosities.
+    arguments: dict = field(default_factory=dict, repr=False, compare=False)
+    length: float = field(default=1.0, repr=False, compare=False)
+
+    def h_at(self, viscosity_ratio, conductivity: float):
+        """h for other bulk-to-wall viscosity ratios (a float or an array) at the same bulk state, [W/(m2 K)]."""
+        function = CORRELATIONS[self.constants.correlation].function
+        return function(viscosity_ratio=viscosity_ratio, **self.arguments) * conductivity / self.length
 
 
 def _band(bands: tuple[FilmConstants, ...], Re: float) -> FilmConstants:
@@ -196,8 +205,11 @@ def _film(info: ImpellerInfo, bands: tuple[FilmConstants, ...], surface: str, Re
                      height_exponent=constants.height_exponent)
     arguments.update({name: geometry[name] for name in correlation.geometry})
     nusselt = correlation.function(**arguments)
-    h = nusselt * props.thermal_conductivity / lengths[correlation.length_scale]
-    return FilmResult(h, nusselt, correlation.name, constants.a, constants.source, constants, warnings)
+    length = lengths[correlation.length_scale]
+    h = nusselt * props.thermal_conductivity / length
+    del arguments["viscosity_ratio"]
+    return FilmResult(h, nusselt, correlation.name, constants.a, constants.source, constants, warnings,
+                      arguments, length)
 
 
 SURFACES = ("wall", "bottom_head")

@@ -11,7 +11,9 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import NamedTuple
 
+from calc import arrays
 from calc.validity import CalcWarning, InputError, Warnings, require_positive
 
 #: Order of the resistances from the process to the coolant.
@@ -227,6 +229,25 @@ def overall_coefficient(h_process: float, h_service: float, wall: WallSpec, foul
     """
     require_positive("process_film", h_process)
     require_positive("service_film", h_service)
+    layers, warnings = wall_layers(wall, fouling, process_radius, process_side, field_name)
+    return overall_from_layers(h_process, h_service, layers, warnings)
+
+
+class WallLayers(NamedTuple):
+    """What lies between the two films, each on the process-side area (m2 K/W); floats or arrays."""
+
+    process_fouling: float
+    lining: float
+    wall: float
+    service_fouling: float  # already times area_ratio
+    area_ratio: float  # process-side over service-side radius (1 for a flat wall)
+    reference_radius: float  # m
+    service_radius: float  # m
+
+
+def wall_layers(wall: WallSpec, fouling: Fouling | None = None, process_radius: float = math.inf,
+                process_side: str = "inside", field_name: str = "vessel.wall") -> tuple[WallLayers, Warnings]:
+    """The fixed resistances of :func:`overall_coefficient` (checked once), and the wall's warnings."""
     fouling = Fouling() if fouling is None else fouling
     for side, value in (("process", fouling.process), ("service", fouling.service)):
         if not (math.isfinite(value) and value >= 0):
@@ -251,22 +272,33 @@ def overall_coefficient(h_process: float, h_service: float, wall: WallSpec, foul
     else:
         raise InputError("process_side", f"unknown option {process_side!r}; known: inside, outside")
     area_ratio = 1.0 if math.isinf(r_p) else r_p / r_s  # service surface to process surface, per area
+    return WallLayers(fouling.process, lining, metal, fouling.service * area_ratio, area_ratio, r_p, r_s), warnings
 
+
+def overall_from_layers(h_process, h_service, layers: WallLayers, warnings: Warnings | None = None) -> OverallResult:
+    """U from the two films and the fixed layers: 1/U = the sum of the resistances in the order of LAYERS.
+
+    Takes floats (one surface) or arrays (many states at once, ``controlling`` then left empty).
+    """
+    warnings = Warnings() if warnings is None else warnings
     resistances = {
         "process_film": 1.0 / h_process,
-        "process_fouling": fouling.process,
-        "lining": lining,
-        "wall": metal,
-        "service_fouling": fouling.service * area_ratio,
-        "service_film": area_ratio / h_service,
+        "process_fouling": layers.process_fouling,
+        "lining": layers.lining,
+        "wall": layers.wall,
+        "service_fouling": layers.service_fouling,
+        "service_film": layers.area_ratio / h_service,
     }
     total = sum(resistances.values())
-    controlling = max(resistances, key=resistances.get)
-    if controlling in ("lining", "wall"):
-        warnings.add(CalcWarning("wall_controlling",
-                                 f"the {controlling} is the largest resistance: better films or colder coolant "
-                                 "gain little"))
-    return OverallResult(1.0 / total, resistances, controlling, r_p, r_s, warnings)
+    controlling = ""
+    if not arrays.is_array(total):
+        controlling = max(resistances, key=resistances.get)
+        if controlling in ("lining", "wall"):
+            warnings.add(CalcWarning("wall_controlling",
+                                     f"the {controlling} is the largest resistance: better films or colder coolant "
+                                     "gain little"))
+    return OverallResult(1.0 / total, resistances, controlling, layers.reference_radius, layers.service_radius,
+                         warnings)
 
 
 def interface_temperatures(result: OverallResult, process_temperature: float,
@@ -297,9 +329,11 @@ def interface_temperatures(result: OverallResult, process_temperature: float,
     >>> round(t.process_surface - 273.15, 2), round(t.service_surface - 273.15, 2)
     (51.93, 39.36)
     """
-    for name, value in (("process_temperature", process_temperature), ("coolant.temperature", coolant_temperature)):
-        if not (math.isfinite(value) and value > 0):
-            raise InputError(name, f"must be an absolute temperature above 0 K, got {value!r}")
+    if not arrays.is_array(process_temperature, coolant_temperature):  # arrays: states the network computed
+        for name, value in (("process_temperature", process_temperature),
+                            ("coolant.temperature", coolant_temperature)):
+            if not (math.isfinite(value) and value > 0):
+                raise InputError(name, f"must be an absolute temperature above 0 K, got {value!r}")
     flux = result.U * (process_temperature - coolant_temperature)
     crossed = 0.0
     interfaces = []

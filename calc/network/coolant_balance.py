@@ -21,6 +21,7 @@ from dataclasses import dataclass, field
 
 from scipy.special import lambertw
 
+from calc import arrays
 from calc.validity import CalcWarning, InputError, Warnings, require_positive
 
 #: Coolant inlet within this many kelvin of its freezing point draws a warning (common practice, no source).
@@ -194,11 +195,8 @@ def coolant_balance(process_temperature: float, inlet_temperature: float, ua: fl
     _freezing_warnings(warnings, inlet_temperature, freezing_temperature)
 
     capacity_rate = mass_flow * heat_capacity
-    ntu = ua / capacity_rate
+    outlet, duty, ntu, effectiveness = single_pass(process_temperature, inlet_temperature, ua, capacity_rate)
     driving_force = process_temperature - inlet_temperature
-    effectiveness = _effectiveness(ntu)
-    outlet = inlet_temperature + driving_force * effectiveness
-    duty = capacity_rate * driving_force * effectiveness
     lmtd = driving_force * _effectiveness_per_ntu(ntu)
 
     if driving_force == 0.0:
@@ -214,6 +212,20 @@ def coolant_balance(process_temperature: float, inlet_temperature: float, ua: fl
             f"temperature (NTU = {ntu:.3g}): the duty is limited by coolant flow, not by U A"))
     return CoolantBalance(process_temperature, inlet_temperature, outlet, duty, lmtd, ntu,
                           effectiveness, capacity_rate, warnings)
+
+
+def single_pass(process_temperature, inlet_temperature, ua, capacity_rate):
+    """Outlet temperature (K), duty (W), NTU and effectiveness of one pass; floats or arrays.
+
+    T_out = T_in + (T_r - T_in) eps,  Q = m_dot c_p (T_r - T_in) eps,  eps = 1 - exp(-U A / (m_dot c_p))
+    (the formula :func:`coolant_balance` applies after its checks; the vectorised network applies it to
+    many states at once).
+    """
+    ntu = ua / capacity_rate
+    driving_force = process_temperature - inlet_temperature
+    effectiveness = -arrays.expm1(-ntu)
+    return (inlet_temperature + driving_force * effectiveness, capacity_rate * driving_force * effectiveness,
+            ntu, effectiveness)
 
 
 def _ntu_for_fraction(q: float) -> float:

@@ -120,6 +120,36 @@ class _SurfaceModel:
     process_side: str
     process_film: Callable[[float], object]  # mu_wall -> process FilmResult
     service_film: Callable[[LiquidProperties, float, float], object]  # props, mu_wall, rho_wall -> FilmResult
+    service_formula: service_side.FilmFormula  # the same coolant film, for arrays of states (vectorised network)
+
+
+@dataclass(frozen=True)
+class StreamModel:
+    """One coolant circuit before solving: its surfaces and its mass flow at the coolant given."""
+
+    name: str
+    mass_flow: float  # kg/s
+    surfaces: tuple[_SurfaceModel, ...]
+
+
+@dataclass(frozen=True)
+class Network:
+    """The network of one vessel, charge and coolant at one process temperature, assembled but not solved.
+
+    Everything that does not depend on the iterated coolant and wall temperatures is here, checked
+    once: the contents' properties, fill, agitation and the streams with their surfaces.
+    ``calc.network.vectorised`` solves many of these (and many coolant states of each) at once.
+    """
+
+    vessel: Vessel
+    charge: Charge
+    coolant: Coolant
+    process_temperature: float  # K
+    process_properties: LiquidProperties
+    fill: geometry.FillGeometry
+    agitation: agitation.AgitationResult
+    streams: tuple[StreamModel, ...]
+    warnings: Warnings
 
 
 def _process_viscosity(charge: Charge, temperature: float, warnings: Warnings) -> float:
@@ -211,8 +241,8 @@ def _outer_diameter(vessel: Vessel) -> float:
     return vessel.shape.diameter + 2.0 * (spec.thickness + lining)
 
 
-def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> HeatTransferResult:
-    """Solve the vessel's heat-transfer network at the process temperature ``process_temperature`` (K)."""
+def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> Network:
+    """Check the inputs and set up the vessel's network at ``process_temperature`` (K), unsolved."""
     warnings = Warnings()
     if coolant.inlet_temperature >= process_temperature:
         raise InputError("coolant.inlet_temperature",
@@ -242,6 +272,7 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         def service(props_c, mu_w, rho_w, _jacket=vessel.jacket):
             return service_side.service_film_jacket(_jacket, props_c, coolant.mass_flow(), mu_w, outer,
                                                     max(jacket_height, 1e-3), rho_wall=rho_w)
+        jacket_formula, _ = service_side.jacket_film_formula(vessel.jacket, outer, max(jacket_height, 1e-3))
 
         models = []
         for name, area, surface, radius in (("jacket_shell", shell_area, "wall", shape.diameter / 2.0),
@@ -253,9 +284,8 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                 lambda mu_w, _surface=surface: process_side.process_film_jacket(
                     agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
                     baffled=agitator.baffled, surface=_surface),
-                service))
-        streams.append(_solve_stream("jacket", models, charge, coolant, coolant.mass_flow(), process_temperature,
-                                     vessel.fouling, warnings))
+                service, jacket_formula))
+        streams.append(StreamModel("jacket", coolant.mass_flow(), tuple(models)))
     elif vessel.jacket is not None:
         warnings.add(CalcWarning("jacket_not_wetted", "the liquid does not reach the jacket: no jacket heat transfer"))
 
@@ -275,12 +305,29 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                 _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled),
             lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
                 _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
-                pitch=_coil.pitch))
-        streams.append(_solve_stream(f"coil_{index}", [model], charge, coolant, coolant.coil_mass_flow(),
-                                     process_temperature, vessel.fouling, warnings))
+                pitch=_coil.pitch),
+            coil_side.coil_film_formula(coil.tube_inner_diameter, coil.helix_diameter, pitch=coil.pitch))
+        streams.append(StreamModel(f"coil_{index}", coolant.coil_mass_flow(), (model,)))
     if not streams:
         warnings.add(CalcWarning("no_cooling_surface", "no wetted jacket or coil area: the vessel cannot be cooled"))
-    return HeatTransferResult(process_temperature, props, filled, stirred, tuple(streams), warnings)
+    return Network(vessel, charge, coolant, process_temperature, props, filled, stirred, tuple(streams), warnings)
+
+
+def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> HeatTransferResult:
+    """Solve the vessel's heat-transfer network at the process temperature ``process_temperature`` (K).
+
+    The readable specification of the solution: one state, every film with its warnings. For many
+    states at once (grids, limits, candidates, fleets) see ``calc.network.vectorised``; a test keeps
+    the two in agreement.
+    """
+    network = assemble(vessel, charge, coolant, process_temperature)
+    warnings = Warnings(network.warnings)
+    streams = tuple(_solve_stream(stream.name, list(stream.surfaces), charge, coolant, stream.mass_flow,
+                                  process_temperature, vessel.fouling, warnings) for stream in network.streams)
+    return HeatTransferResult(process_temperature, network.process_properties, network.fill, network.agitation,
+                              streams, warnings)
+
+
 
 
 def coolant_balance_at_mean(coolant: Coolant, process_temperature: float, ua: float

@@ -26,7 +26,7 @@ if not __package__:  # run as a script: import from tests/ and the project, not 
 
 from benchmarks.load import run_load  # noqa: E402
 from benchmarks.requests import Example, available  # noqa: E402
-from serving import gunicorn  # noqa: E402
+from serving import UNLIMITED, gunicorn  # noqa: E402
 
 BASELINE = "/health"
 # route -> minimum throughput relative to /health (None: measured and shown, no target)
@@ -51,7 +51,7 @@ def in_process_median(example: Example, seconds: float, max_calls: int = 200) ->
     """Median wall time (s) of one request through the Flask test client, and how many calls were timed."""
     from api import create_app
 
-    client = create_app().test_client()
+    client = create_app({"RATE_LIMIT": UNLIMITED}).test_client()
 
     def call() -> None:
         response = client.open(example.path, method=example.method, json=example.body)
