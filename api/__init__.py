@@ -10,6 +10,7 @@ from importlib import metadata, resources
 from flask import Flask, g, request
 
 from . import errors, limits, runtime, security
+from .logs import JsonFormatter
 
 try:
     VERSION = metadata.version("coolmargin")
@@ -51,22 +52,11 @@ def _from_environment() -> dict:
     return settings
 
 
-class _RequestIdFilter(logging.Filter):
-    def filter(self, record: logging.LogRecord) -> bool:
-        if not hasattr(record, "request_id"):
-            try:
-                record.request_id = g.get("request_id", "-")
-            except RuntimeError:  # outside a request
-                record.request_id = "-"
-        return True
-
-
 def _configure_logging() -> None:
     logger = logging.getLogger("coolmargin")
     if not logger.handlers:
         handler = logging.StreamHandler()
-        handler.setFormatter(logging.Formatter("%(asctime)s %(levelname)s [%(request_id)s] %(name)s: %(message)s"))
-        handler.addFilter(_RequestIdFilter())
+        handler.setFormatter(JsonFormatter())  # JSON lines, like the access log, with the request id
         logger.addHandler(handler)
         logger.setLevel(logging.INFO)
         logger.propagate = False
@@ -97,8 +87,8 @@ def create_app(config: dict | None = None) -> Flask:
     security.register(app)  # after the request-id hook: refusals carry the request id
     runtime.register(app)  # after authentication: a refused request reads no body and takes no slot
 
-    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service
+    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service, sizing
 
-    for module in (service, properties, geometry, agitation, heat_transfer, cooling, safety):
+    for module in (service, properties, geometry, agitation, heat_transfer, cooling, sizing, safety):
         app.register_blueprint(module.bp)
     return app

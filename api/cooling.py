@@ -72,7 +72,7 @@ def _scale_up(args: dict) -> dict:
                            [{"field": "targets", "message": f"at most {limit} targets"}])
     result = scaleup.scale_up(args["reference"], args["targets"], args["rule"], args["charge"], args["coolant"],
                               args["process_temperature"], args["heat_release"], args["safety_factor"],
-                              args["coolant_flow_rule"], deadline=deadline())
+                              args["coolant_flow_rule"], deadline=deadline(), size_jacket=args["size_jacket"])
     return scale_up_dict(result)
 
 

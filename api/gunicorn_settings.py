@@ -10,9 +10,10 @@ import re
 import tempfile
 import time
 
-from gunicorn import glogging
+from gunicorn import glogging, util
 from gunicorn.workers.gthread import ThreadWorker
 
+from api.logs import JsonFormatter
 from api.runtime import SERVING
 
 
@@ -33,11 +34,25 @@ workers = _int("COOLMARGIN_WORKERS", multiprocessing.cpu_count())
 # process that computes, so two clients sending a body slowly held both workers and /health stopped
 # answering; with threads, a slow upload holds one thread while the others keep answering (measured in
 # tests/test_serving.py: /health within 2 s with 8 slow uploads open). The GIL makes the threads of one
-# worker share a core, so threads add waiting room, not CPU; workers add CPU.
+# worker share a core, so threads add waiting room, not CPU; workers add CPU. Calculations take one of
+# COOLMARGIN_CALCULATION_SLOTS per worker, first come, first served (api/runtime.py).
 threads = _int("COOLMARGIN_THREADS", 16)
 # After SIGTERM a worker keeps serving for this many seconds while /ready answers 503 (draining), so a
 # load balancer stops sending before the listener closes; then in-flight requests finish (graceful_timeout).
 drain_seconds = float(os.environ.get("COOLMARGIN_DRAIN_SECONDS", 5))
+
+
+def _write_problem(sock, status_int, reason, mesg):
+    """gunicorn's own refusals (malformed request, 414, 431, ...) as RFC 9457 problem+json, not HTML."""
+    body = json.dumps({"type": "about:blank", "title": reason, "status": status_int,
+                       "detail": mesg or reason, "errors": []}).encode()
+    head = (f"HTTP/1.1 {status_int} {reason}\r\nConnection: close\r\nContent-Type: application/problem+json\r\n"
+            f"X-Content-Type-Options: nosniff\r\nContent-Length: {len(body)}\r\n\r\n")
+    util.write_nonblock(sock, head.encode("latin-1") + body)
+
+
+# gunicorn writes these answers through this one function (gunicorn.workers.base.Worker.handle_error)
+util.write_error = _write_problem
 
 
 class DrainingThreadWorker(ThreadWorker):
@@ -98,7 +113,14 @@ class _JsonAtoms(glogging.SafeAtoms):
 
 
 class _JsonAccessLogger(glogging.Logger):
+    """Access log lines in access_log_format; gunicorn's error log as JSON lines too (api/logs.py)."""
+
     atoms_wrapper_class = _JsonAtoms
+
+    def setup(self, cfg):
+        super().setup(cfg)
+        for handler in self.error_log.handlers:
+            handler.setFormatter(JsonFormatter())
 
 
 logger_class = _JsonAccessLogger

@@ -14,12 +14,12 @@ from __future__ import annotations
 import math
 import time
 
-from flask import Flask, current_app, request
+from flask import Flask, request
 from flask_limiter import Limiter, RequestLimit
 from werkzeug.middleware.proxy_fix import ProxyFix
 
 from .errors import problem
-from .security import _digest, token_matches
+from .security import _digest, accepted_digests, token_matches
 
 EXEMPT_PATHS = frozenset({"/health", "/ready"})
 
@@ -28,7 +28,7 @@ def client_key() -> str:
     scheme, _, supplied = request.headers.get("Authorization", "").partition(" ")
     supplied = supplied.strip()
     if scheme.lower() == "bearer" and supplied:
-        digests = current_app.extensions["coolmargin.security"]["digests"]
+        digests = accepted_digests()
         if digests and token_matches(supplied, digests):
             return "token:" + _digest(supplied).hex()[:32]
     return "address:" + (request.remote_addr or "unknown")

@@ -2,6 +2,10 @@
 
 Configured by AUTH_TOKENS (comma-separated), AUTH_TOKENS_FILE (one token a line, '#' comments) and
 CORS_ORIGINS (comma-separated exact origins, or "*"). With no token configured the service is open.
+The token file is watched: each process re-reads it within TOKEN_RECHECK seconds of a change (its
+modification time, inode or size), so tokens rotate without a restart; a changed file that cannot be
+used (unreadable, empty, a token with whitespace) is refused with an error in the log, and the tokens
+in force stay.
 The liveness/readiness probes and the published contract (/docs, /openapi.yaml) stay open: the contract
 holds no plant data, and probes must work for the orchestrator without a secret.
 """
@@ -10,7 +14,10 @@ from __future__ import annotations
 import hashlib
 import hmac
 import logging
+import os
 import re
+import threading
+import time
 
 from flask import Flask, current_app, g, request
 
@@ -54,6 +61,57 @@ def load_tokens(inline: str, path: str) -> list[str]:
         if any(ch.isspace() for ch in token) or not token.isprintable():
             raise ConfigurationError("an auth token contains whitespace or control characters")
     return tokens
+
+
+#: Seconds between two looks at the token file's modification time, per process.
+TOKEN_RECHECK = 1.0
+
+
+class AcceptedTokens:
+    """The digests of the tokens in force: the inline ones and the file's, re-read when the file changes."""
+
+    def __init__(self, inline: str, path: str):
+        self.inline, self.path = inline, path
+        self._lock = threading.Lock()
+        self._next_check = 0.0
+        self._stamp = self._file_stamp()
+        tokens = load_tokens(inline, path)  # at start-up an unusable file stops the service
+        _SECRETS.update(tokens)
+        self._digests = [_digest(token) for token in tokens]
+
+    def _file_stamp(self):
+        try:
+            status = os.stat(self.path)
+        except OSError:
+            return None
+        return status.st_mtime_ns, status.st_ino, status.st_size
+
+    def digests(self) -> list[bytes]:
+        if self.path and time.monotonic() >= self._next_check:
+            with self._lock:
+                if time.monotonic() >= self._next_check:
+                    self._next_check = time.monotonic() + TOKEN_RECHECK
+                    self._reload_if_changed()
+        return self._digests
+
+    def _reload_if_changed(self) -> None:
+        stamp = self._file_stamp()
+        if stamp == self._stamp:
+            return
+        self._stamp = stamp
+        try:
+            tokens = load_tokens(self.inline, self.path)
+        except ConfigurationError as exc:
+            log.error("the token file changed but cannot be used (%s); the tokens in force stay", exc)
+            return
+        _SECRETS.update(tokens)
+        self._digests = [_digest(token) for token in tokens]
+        log.warning("token file re-read: %d token(s) now accepted", len(tokens))
+
+
+def accepted_digests() -> list[bytes]:
+    """Digests of the tokens this process accepts now (empty: authentication is off)."""
+    return current_app.extensions["coolmargin.security"]["tokens"].digests()
 
 
 def _digest(token: str) -> bytes:
@@ -114,7 +172,7 @@ def _allowed_origin(origin: str | None, allowed: frozenset[str]) -> bool:
 
 
 def _authenticate():
-    digests = current_app.extensions["coolmargin.security"]["digests"]
+    digests = accepted_digests()
     if not digests or request.method == "OPTIONS" or request.path in OPEN_PATHS:
         return None
     scheme, _, supplied = request.headers.get("Authorization", "").partition(" ")
@@ -168,15 +226,15 @@ def register(app: Flask) -> None:
 
     Call after the request-id hook is registered, so refusals carry the request id.
     """
-    tokens = load_tokens(app.config.get("AUTH_TOKENS", ""), app.config.get("AUTH_TOKENS_FILE", ""))
-    _SECRETS.update(tokens)
+    tokens = AcceptedTokens(app.config.get("AUTH_TOKENS", ""), app.config.get("AUTH_TOKENS_FILE", ""))
     _install_redaction()
     app.extensions["coolmargin.security"] = {
-        "digests": [_digest(token) for token in tokens],
+        "tokens": tokens,
         "origins": frozenset(_split(app.config.get("CORS_ORIGINS", ""))),
     }
     app.before_request(_preflight)
     app.before_request(_authenticate)
     app.after_request(_headers)
-    log.info("authentication %s; %d CORS origin(s) allowed", "required" if tokens else "off (no token configured)",
+    log.info("authentication %s; %d CORS origin(s) allowed",
+             "required" if tokens.digests() else "off (no token configured)",
              len(app.extensions["coolmargin.security"]["origins"]))

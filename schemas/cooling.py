@@ -8,6 +8,7 @@ from calc.checks import heat_load
 from calc.checks import scaleup
 
 from .base import StrictSchema, finite_float
+from .candidates import SizedDesignSchema
 from .heat_transfer import (HeatTransferRequestSchema, HeatTransferResultSchema, WarningSchema,
                             heat_transfer_dict, warning_dicts)
 from .units import Quantity
@@ -99,6 +100,9 @@ class ScaleUpRequestSchema(StrictSchema):
     process_temperature = HeatTransferRequestSchema._declared_fields["process_temperature"]
     heat_release = fields.Nested(HeatReleaseSchema, required=True)
     safety_factor = CoolingCheckRequestSchema._declared_fields["safety_factor"]
+    size_jacket = fields.Boolean(load_default=False,
+                                 metadata={"description": "design the smallest feasible jacket or coil for each "
+                                                          "generated scale (as /v1/jacket-sizing with its defaults)"})
     coolant_flow_rule = fields.String(load_default="scale_with_area",
                                       validate=validate.OneOf(["scale_with_area", "as_given"]),
                                       metadata={"description": "coolant flow at each scale: in proportion to the "
@@ -153,6 +157,8 @@ class ScaleSchema(CoolingCheckResultSchema):
     area_per_volume = Quantity("area per volume")
     overall_coefficient = Quantity("heat-transfer coefficient")
     controlling = fields.String()
+    jacket_design = fields.Nested(SizedDesignSchema, allow_none=True,
+                                  metadata={"description": "with size_jacket: the design sized for this scale"})
 
 
 class ControllingSwitchSchema(StrictSchema):
@@ -220,6 +226,7 @@ def scale_up_dict(result) -> dict:
             "diameter": scale.vessel.shape.diameter, "impeller_diameter": scale.vessel.agitator.diameter,
             "agitator_speed": scale.agitator_speed, "area_per_volume": heat.fill.area_per_volume,
             "overall_coefficient": heat.overall_coefficient, "controlling": heat.controlling,
+            "jacket_design": scale.jacket_design,
         })
     return {
         "rule": result.rule, "coolant_flow_rule": result.coolant_flow_rule, "safety_factor": result.safety_factor,

@@ -126,6 +126,11 @@ class StreamSchema(StrictSchema):
     log_mean_temperature_difference = Quantity("temperature difference")
     service_velocity = Quantity("velocity", allow_none=True)
     service_reynolds = fields.Float(allow_none=True)
+    pressure_drop = Quantity("pressure", allow_none=True,
+                             description="supply-to-return pressure drop of the circuit (one zone of a jacket "
+                                         "in parallel zones): channel friction plus nozzle and fitting losses")
+    velocity = Quantity("velocity", allow_none=True, description="mean coolant velocity in the channel")
+    path_length = Quantity("length", allow_none=True, description="length of the coolant's path through one zone")
 
 
 class HeatTransferResultSchema(StrictSchema):
@@ -247,6 +252,7 @@ def heat_transfer_dict(result) -> dict:
             "log_mean_temperature_difference": stream.balance.log_mean_temperature_difference,
             "service_velocity": None if first is None else first.velocity,
             "service_reynolds": None if first is None else first.reynolds,
+            "pressure_drop": stream.pressure_drop, "velocity": stream.velocity, "path_length": stream.path_length,
         })
     return {
         "process_temperature": result.process_temperature, "film_coefficients": films,

@@ -11,6 +11,7 @@ from .heat_transfer import (AgitationRequestSchema, AgitationResultSchema, Coola
 from .cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, ScaleUpRequestSchema,
                       ScaleUpResultSchema)
 from .properties import FluidSchema, PropertiesQuerySchema, PropertiesResultSchema
+from .sizing import JacketSizingRequestSchema, JacketSizingResultSchema
 from .safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
                      ThermalSafetyRequestSchema, ThermalSafetyResultSchema)
 
@@ -77,6 +78,20 @@ CALCULATIONS = [
                                                                   "image/png", "text/html", "application/pdf"),
                 batch=True,
                 example="scale_up_demo.json"),
+    Calculation("/v1/jacket-sizing", "cooling check", "Candidate jackets and coils for a vessel shell, ranked",
+                "Annular jackets over gaps (with and without a spiral baffle over pitches), half-pipe jackets over "
+                "standard pipe sizes (ASME B36.10M), pitches and parallel zones, internal helical coils (ASME "
+                "B36.19M tube) that fit between impeller and wall, and a jacket with a coil when no jacket alone "
+                "suffices; each evaluated like the cooling check at the utility's flow, cut back to what its "
+                "available pressure difference, maximum velocity and maximum flow allow, with area, U, capacity, "
+                "margin, flow, velocity and pressure drop. The smallest feasible design of each type and an overall "
+                "recommendation with its reasoning. format=csv gives one row per candidate; format=svg or png "
+                "plots capacity against pressure drop with the duty line. A screening estimate: confirm with "
+                "reaction calorimetry and plant data; the fabricator confirms the mechanical design under the "
+                "pressure-vessel code; local codes and a licensed engineer's review govern.",
+                JacketSizingRequestSchema, JacketSizingResultSchema,
+                media=("text/csv", "text/plain", "image/svg+xml", "image/png"), batch=True,
+                example="jacket_sizing_request.json"),
     Calculation("/v1/thermal-safety", "thermal safety", "Adiabatic rise, MTSR, T_D24, TMR_ad and criticality class",
                 "Cooling-failure scenario: MTSR = T_p + X_ac dT_ad (Stoessel 1993); T_D24 and the adiabatic time to "
                 "maximum rate at the MTSR from zero-order decomposition kinetics (Townsend & Tou 1980); MTT given or "

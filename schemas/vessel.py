@@ -233,6 +233,13 @@ class CoolantSchema(_LiquidFields):
     inlet_temperature = Quantity("temperature", required=True, minimum=ABSOLUTE_ZERO_C, exclusive_minimum=True)
     flow = Flow(required=True)
     coil_flow = Flow(load_default=None, metadata={"description": "flow through each coil; default the jacket flow"})
+    available_pressure_drop = Quantity("pressure", minimum=0, exclusive_minimum=True, load_default=None,
+                                       description="pressure difference between the utility's supply and return "
+                                                   "headers, seen by every circuit (jacket, each coil) in parallel")
+    maximum_velocity = Quantity("velocity", minimum=0, exclusive_minimum=True, load_default=None,
+                                description="largest coolant velocity allowed in any jacket or coil channel")
+    maximum_flow = Flow(load_default=None, metadata={"description": "largest flow the utility delivers to all "
+                                                                    "circuits together"})
 
     @validates_schema
     def _same_kind(self, data, **kwargs):
@@ -243,5 +250,7 @@ class CoolantSchema(_LiquidFields):
     def _build(self, data, **kwargs):
         kind, flow = data["flow"]
         coil = data.get("coil_flow")
+        maximum_kind, maximum = data.get("maximum_flow") or ("mass", None)
         return Coolant(self.liquid(data, "coolant"), data["inlet_temperature"], flow, kind,
-                       None if coil is None else coil[1])
+                       None if coil is None else coil[1], data.get("available_pressure_drop"),
+                       data.get("maximum_velocity"), maximum, maximum_kind)

@@ -13,7 +13,8 @@ from hypothesis import strategies as st
 from calc.properties import LiquidProperties
 from calc.films import coil_side
 from calc.films.coil_side import service_film_coil
-from calc.films.jacket_side import (CORRELATIONS, JacketSpec, friction_factor_Colebrook_1939, h_jacket_Lehrer_1970,
+from calc.hydraulics.friction import friction_factor_Colebrook_1939
+from calc.films.jacket_side import (CORRELATIONS, JacketSpec, h_jacket_Lehrer_1970,
                                h_jacket_Stein_Schmidt_1993, service_film_jacket)
 from calc.validity import InputError
 

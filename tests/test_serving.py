@@ -101,3 +101,31 @@ def _control_sockets():
 
     folder = Path(os.environ.get("XDG_RUNTIME_DIR") or tempfile.gettempdir()) / f"coolmargin-{os.getuid()}"
     return list(folder.glob("gunicorn-*.ctl"))
+
+
+def _raw(base: str, data: bytes) -> tuple[int, dict, bytes]:
+    host, port = base.rsplit("//", 1)[1].rsplit(":", 1)
+    with socket.create_connection((host, int(port)), timeout=10) as sock:
+        sock.sendall(data)
+        answer = b""
+        while chunk := sock.recv(65536):
+            answer += chunk
+    head, _, body = answer.partition(b"\r\n\r\n")
+    lines = head.decode("latin-1").split("\r\n")
+    return int(lines[0].split()[1]), dict(line.split(": ", 1) for line in lines[1:] if ": " in line), body
+
+
+def test_errors_gunicorn_answers_itself_are_problem_json():
+    # RFC 9110 15.5.1 (400), 15.5.15 (414); RFC 6585 section 5 (431)
+    with gunicorn(workers=1) as base:
+        cases = {
+            414: b"GET /v1/properties?" + b"a" * 9000 + b" HTTP/1.1\r\nHost: x\r\n\r\n",
+            431: b"GET /health HTTP/1.1\r\nHost: x\r\nX-Note: " + b"a" * 9000 + b"\r\n\r\n",
+            400: b"GET /health HTTP/1.1\r\nHost: x\r\nBad Header Name: 1\r\n\r\n",
+        }
+        for expected, request in cases.items():
+            status, headers, body = _raw(base, request)
+            assert status == expected, body
+            assert headers["Content-Type"] == "application/problem+json"
+            problem = json.loads(body)
+            assert problem["status"] == expected and problem["title"] and problem["detail"]

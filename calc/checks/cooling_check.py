@@ -21,7 +21,12 @@ heat-transfer network, because properties, films and U change with the quantity 
   the coolant's freezing point and T_r (the capacity falls to zero as the inlet approaches T_r).
 * ``required_coolant_flow``: Brent's method on log(jacket mass flow); coil flows change in
   proportion. The capacity rises with flow toward the limit set by the area and the process film;
-  the search stops at :data:`FLOW_SEARCH_CAP` times the given flow.
+  the search stops at the largest flow the utility can push (its available pressure difference,
+  maximum velocity and maximum flow: :mod:`calc.network.flow_limit`), or, when the utility gives no
+  limit, at :data:`FLOW_SEARCH_CAP` times the given flow (with a warning).
+
+When the given flow is beyond the utility's limits, the coolant-temperature limit is solved at the
+largest flow the utility allows, and the check warns (the capacity itself stays at the given flow).
 """
 from __future__ import annotations
 
@@ -33,15 +38,16 @@ from scipy.optimize import brentq
 from calc.deadline import NEVER, Deadline
 from calc.network import coolant_balance
 from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
+from calc.network.flow_limit import FlowLimit, flow_limit
 from calc.network.heat_transfer import HeatTransferResult, heat_transfer
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
 
 #: Safety factor on the heat load when none is given (common practice, no source).
 DEFAULT_SAFETY_FACTOR = 1.3
-#: The flow search stops at this multiple of the given coolant flow; the capacity there is reported as
-#: the limit set by the area and the process film (common practice, no source: a jacket's flow can
-#: rarely be raised by two orders of magnitude).
+#: Without utility limits the flow search stops at this multiple of the given coolant flow; the capacity
+#: there is reported as the limit set by the area and the process film (common practice, no source: a
+#: jacket's flow can rarely be raised by two orders of magnitude).
 FLOW_SEARCH_CAP = 100.0
 #: The inlet-temperature search starts this far above the coolant's freezing point, K.
 FREEZING_OFFSET = 0.1
@@ -193,7 +199,14 @@ def _solve(residual, start: float, step: float, low: float, high: float, increas
 
 
 def _maximum_inlet_temperature(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
-                               target: float, capacity: float, deadline: Deadline = NEVER) -> Limit:
+                               target: float, capacity: float, limit: FlowLimit,
+                               deadline: Deadline = NEVER) -> Limit:
+    at_flow = "at the given flow"
+    if limit.mass_flow is not None and limit.mass_flow < coolant.mass_flow():
+        coolant = coolant.with_mass_flow(limit.mass_flow)
+        capacity = _capacity(vessel, charge, coolant, process_temperature)
+        at_flow = (f"at {limit.mass_flow:.4g} kg/s, the largest flow within {limit.reason} "
+                   "(the given flow is beyond it)")
     if target <= 0.0:
         return Limit(process_temperature, True, "no net heat load: any coolant colder than the contents will do")
     liquid_range = getattr(coolant.liquid, "liquid_range", None)
@@ -225,9 +238,9 @@ def _maximum_inlet_temperature(vessel: Vessel, charge: Charge, coolant: Coolant,
                                  "boiling point) removes the load with the safety factor", (value + 1.0) * target)
     if inlet is None:
         return Limit(None, False, f"not reachable: even a coolant inlet just above {floor} does not remove "
-                                  "the load with the safety factor", (value + 1.0) * target)
+                                  f"the load with the safety factor {at_flow}", (value + 1.0) * target)
     return Limit(inlet, True, "warmest coolant inlet that removes the load with the safety factor "
-                              "at the given flow", (value + 1.0) * target)
+                              f"{at_flow}", (value + 1.0) * target)
 
 
 def _flow_estimate(result: HeatTransferResult, target: float) -> float:
@@ -251,7 +264,8 @@ def _flow_estimate(result: HeatTransferResult, target: float) -> float:
 
 
 def _required_flow(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
-                   target: float, result: HeatTransferResult, deadline: Deadline = NEVER) -> Limit:
+                   target: float, result: HeatTransferResult, limit: FlowLimit,
+                   deadline: Deadline = NEVER) -> Limit:
     if target <= 0.0:
         return Limit(0.0, True, "no net heat load: no coolant flow is needed")
     given = coolant.mass_flow()
@@ -268,7 +282,7 @@ def _required_flow(vessel: Vessel, charge: Charge, coolant: Coolant, process_tem
         return results[log_flow].duty / target - 1.0
 
     estimate = math.log(_flow_estimate(result, target)) if result.streams else math.log(given)
-    high = math.log(given * FLOW_SEARCH_CAP)
+    high = math.log(given * FLOW_SEARCH_CAP if limit.mass_flow is None else limit.mass_flow)
     # U A rises with the flow, so the fixed-U A estimate is off; one more closed-form estimate from the
     # network solved at the first one shows how far, and sets the first step of the search.
     step = math.log(1.2)
@@ -282,12 +296,19 @@ def _required_flow(vessel: Vessel, charge: Charge, coolant: Coolant, process_tem
     log_flow, value = _solve(residual, estimate, step, low, high,
                              increasing=True, what="required coolant flow", deadline=deadline, xtol=1e-10, rtol=1e-11)
     if log_flow is None and value < 0.0:
+        if limit.mass_flow is not None:
+            return Limit(None, False, f"not reachable within {limit.reason}: the largest flow it allows "
+                                      f"({limit.mass_flow:.4g} kg/s) does not remove the load with the safety factor "
+                                      "(capacity shown at that flow)", (value + 1.0) * target)
         return Limit(None, False, "not reachable at any flow: the area and process film limit the capacity "
-                                  f"(shown at {FLOW_SEARCH_CAP:g} times the given flow)", (value + 1.0) * target)
+                                  f"(shown at {FLOW_SEARCH_CAP:g} times the given flow; the utility gave no "
+                                  "available pressure difference, maximum velocity or maximum flow)",
+                     (value + 1.0) * target)
     if log_flow is None:  # pragma: no cover - capacity ~ m c_p (T_r - T_in) vanishes long before 1e-30 of the flow
         raise CalculationError("required coolant flow: no flow low enough to fall short of the load")
+    within = "" if limit.mass_flow is None else f", within {limit.reason} (at most {limit.mass_flow:.4g} kg/s)"
     return Limit(math.exp(log_flow), True, "jacket coolant mass flow that removes the load with the safety factor "
-                                           "(coil flows in proportion)", (value + 1.0) * target)
+                                           f"(coil flows in proportion){within}", (value + 1.0) * target)
 
 
 def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
@@ -313,16 +334,23 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                                  "is unbounded (reported as null)"))
     stream = result.stream("jacket") or (result.streams[0] if result.streams else None)
     outlet = stream.balance.outlet_temperature if stream is not None else None
+    total_flow = sum(s.mass_flow for s in result.streams)
+    maximum = coolant.maximum_mass_flow()
+    if maximum is not None and total_flow > maximum * (1 + 1e-9):
+        warnings.add(CalcWarning("flow_exceeds_maximum", f"the coolant flow to all circuits ({total_flow:.4g} kg/s) "
+                                                         f"exceeds the utility's maximum ({maximum:.4g} kg/s)"))
     solved = None
     if limits:
+        limit = flow_limit(result.streams, coolant)
         target = safety_factor * load.total
         dosing = None
         if isinstance(heat_release, Dosing):
             dosing = _minimum_dosing_time(heat_release, process_temperature, capacity, load.agitator, safety_factor)
         solved = Limits(dosing,
                         _maximum_inlet_temperature(vessel, charge, coolant, process_temperature, target, capacity,
-                                                   deadline),
-                        _required_flow(vessel, charge, coolant, process_temperature, target, result, deadline))
+                                                   limit, deadline),
+                        _required_flow(vessel, charge, coolant, process_temperature, target, result, limit,
+                                       deadline))
     cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ())
     if getattr(heat_release, "endothermic", False):
         cautions += (ENDOTHERMIC_CAUTION,)

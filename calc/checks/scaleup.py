@@ -42,6 +42,7 @@ from calc.checks.cooling_check import CAUTIONS, DEFAULT_SAFETY_FACTOR, DOSING_CA
     cooling_check, evaluate, margin_of
 from calc.checks.heat_load import Dosing, HeatRelease
 from calc.properties import LiquidProperties
+from calc.sizing.jacket_sizing import jacket_sizing
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
 
@@ -71,6 +72,7 @@ class ScaleResult:
     vessel: Vessel
     coolant: Coolant
     check: CoolingCheck
+    jacket_design: object | None = None  # calc.sizing.jacket_sizing.SizedDesign, when sizing was asked for
 
 
 @dataclass(frozen=True)
@@ -271,13 +273,16 @@ def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_f
 def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coolant, process_temperature: float,
              heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
              coolant_flow_rule: str = "scale_with_area", limits: bool = True,
-             deadline: Deadline = NEVER) -> ScaleUp:
+             deadline: Deadline = NEVER, size_jacket: bool = False) -> ScaleUp:
     """Cooling checks of the reference and each target, and the largest adequate similar vessel.
 
     ``charge``, ``coolant`` and ``heat_release`` describe the reference scale; see the module notes
     for how each is carried to the targets. ``limits`` is passed to each scale's cooling check.
     Every scale and every step of the family search first checks ``deadline``
     (:class:`calc.deadline.OutOfTime` once it has passed).
+    ``size_jacket``: each generated scale also gets the smallest feasible jacket or coil designed for it
+    (:func:`calc.sizing.jacket_sizing.jacket_sizing` on its shell, with its coolant and heat release, default
+    candidates), beside the check of the reference's jacket scaled by similarity.
     """
     if rule not in RULES:
         raise InputError("rule", f"unknown scale-up rule {rule!r}; known rules: {', '.join(RULES)}")
@@ -317,8 +322,12 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
             generated = True
         check = cooling_check(vessel, scaled_charge, scaled_coolant, process_temperature, release,
                               safety_factor, limits, deadline)
+        design = None
+        if size_jacket and generated:
+            design = jacket_sizing(vessel, scaled_charge, scaled_coolant, process_temperature, release,
+                                   safety_factor, deadline=deadline).recommended
         scales.append(ScaleResult(vessel.name, volume, charge_volume, factor, generated, vessel.agitator.speed,
-                                  vessel, scaled_coolant, check))
+                                  vessel, scaled_coolant, check, design))
 
     largest_target = max((s.volume for s in scales), default=ref.volume)
     upper = max(ref.volume * SEARCH_RATIO, 10.0 * largest_target)

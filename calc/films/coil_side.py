@@ -13,6 +13,7 @@ from typing import NamedTuple
 from calc import arrays
 from calc.films.jacket_side import VDI_HEAT_ATLAS, FilmFormula, FilmResult, flow_warnings
 from calc.properties import LiquidProperties
+from calc.hydraulics.friction import coil_critical_reynolds_Schmidt_1967
 from calc.validity import Correlation, InputError, Warnings, require_positive
 
 
@@ -143,31 +144,6 @@ CORRELATIONS: dict[str, Correlation] = {
 }
 #: Options of the coil's turbulent correlation.
 COIL_CORRELATIONS = ("schmidt_1967", "mori_nakayama_1967")
-
-
-def coil_critical_reynolds_Schmidt_1967(r: float) -> float:
-    """Laminar-turbulent transition inside a helical coil, Schmidt (1967): Re_crit = 2300 (1 + 8.6 r^0.45).
-
-    Parameters
-    ----------
-    r : float
-        Tube inside diameter over curvature diameter, [-]
-
-    Returns
-    -------
-    Re_crit : float
-        Critical Reynolds number, [-]
-
-    Examples
-    --------
-    >>> round(coil_critical_reynolds_Schmidt_1967(0.05))
-    7438
-
-    References
-    ----------
-    Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
-    """
-    return 2300.0 * (1 + 8.6 * r ** 0.45)
 
 
 def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant_props: LiquidProperties,

@@ -26,9 +26,9 @@ from typing import NamedTuple
 
 import numpy as np
 from scipy.constants import g
-from scipy.special import wrightomega
 
 from calc import arrays
+from calc.hydraulics.friction import friction_factor_Colebrook_1939
 from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, Correlation, InputError, Warnings, require_positive
 
@@ -58,45 +58,16 @@ class _Flow(NamedTuple):
 # ---------------------------------------------------------------- correlations
 
 
-def friction_factor_Colebrook_1939(Re: float, relative_roughness: float = 0.0) -> float:
-    """Darcy friction factor, Colebrook (1939), solved exactly with Wright's omega function.
+def friction_factor_Stein_Schmidt(Re: float, relative_roughness: float = 0.0) -> float:
+    """Darcy friction factor of the Stein & Schmidt tangential-inlet model: 64/Re below Re = 2040,
+    Colebrook (1939) above (:func:`calc.hydraulics.friction.friction_factor_Colebrook_1939`).
 
-    1/sqrt(f) = -2 log10(e/(3.7 D) + 2.51/(Re sqrt(f)));  with s = 2.51 (2/ln 10)/Re, c = e/(3.7 D):
-    1/sqrt(f) = -(2/ln 10) ln(y),  y = s omega(c/s - ln s).  Laminar f = 64/Re below Re = 2040.
-
-    Parameters
-    ----------
-    Re : float
-        Reynolds number, [-]
-    relative_roughness : float
-        Roughness over diameter e/D, [-]
-
-    Returns
-    -------
-    f : float
-        Darcy friction factor, [-]
-
-    Notes
-    -----
-    The omega form is the Lambert-W solution of Colebrook's equation (Keady, 1998), exact to rounding.
-
-    Examples
-    --------
-    >>> round(friction_factor_Colebrook_1939(1e5), 6)
-    0.01799
-
-    References
-    ----------
-    Colebrook, C. F. "Turbulent Flow in Pipes". J. Inst. Civ. Eng. 11, 133-156 (1939).
-    Keady, G. "Colebrook-White formula for pipe flows". J. Hydraul. Eng. 124, 96-97 (1998).
+    >>> round(friction_factor_Stein_Schmidt(1e5), 6), friction_factor_Stein_Schmidt(1000.0)
+    (0.01799, 0.064)
     """
     if Re < PIPE_TRANSITION:
         return 64.0 / Re
-    a = 2.0 / math.log(10.0)
-    s = a * 2.51 / Re
-    c = relative_roughness / 3.7
-    y = s * float(wrightomega(c / s - math.log(s)).real)
-    return 1.0 / (a * math.log(y)) ** 2
+    return friction_factor_Colebrook_1939(Re, relative_roughness)
 
 
 def h_jacket_Lehrer_1970(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type="tangential",
@@ -261,7 +232,7 @@ def h_jacket_Stein_Schmidt_1993(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w
         v_ch = Q / (2 * gap * b_mid) * shape
     else:
         v_z = Q / (math.pi * D_tank * gap)
-        f = friction_factor_Colebrook_1939(1e5, roughness / d_ch)
+        f = friction_factor_Stein_Schmidt(1e5, roughness / d_ch)
         v_ch = 0.0
         for _ in range(100):
             spread = f * D_tank * H / d_inlet ** 2
@@ -270,7 +241,7 @@ def h_jacket_Stein_Schmidt_1993(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w
             v_x0 = K3 + math.sqrt(K3 ** 2 + K4)
             v_x = v_in * math.log1p(spread * v_x0 / v_in) / spread
             previous, v_ch = v_ch, math.hypot(v_x, v_z)
-            f = friction_factor_Colebrook_1939(rho * v_ch * d_ch / mu, roughness / d_ch)
+            f = friction_factor_Stein_Schmidt(rho * v_ch * d_ch / mu, roughness / d_ch)
             if abs(v_ch - previous) <= 1e-13 * v_ch:
                 break
     Re = rho * v_ch * d_ch / mu

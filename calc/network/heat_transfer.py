@@ -26,6 +26,7 @@ from calc.vessel import geometry
 from calc.films import process_side
 from calc.films import jacket_side as service_side
 from calc.films import wall
+from calc.hydraulics import paths
 from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, InputError, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
@@ -61,10 +62,27 @@ class Stream:
     balance: coolant_balance_module.CoolantBalance
     mean_temperature: float  # K
     iterations: int
+    hydraulics: paths.Hydraulics | None = None  # pressure drop at the solved mean temperature
+    path: paths.FlowPath | None = None  # the coolant's route, for hydraulic limits
 
     @property
     def ua(self) -> float:
         return sum(s.ua for s in self.surfaces)
+
+    @property
+    def pressure_drop(self) -> float | None:
+        """Supply-to-return pressure drop, Pa."""
+        return None if self.hydraulics is None else self.hydraulics.pressure_drop
+
+    @property
+    def velocity(self) -> float | None:
+        """Mean coolant velocity in the channel, m/s."""
+        return None if self.hydraulics is None else self.hydraulics.velocity
+
+    @property
+    def path_length(self) -> float | None:
+        """Length of the coolant's path through one zone, m."""
+        return None if self.hydraulics is None else self.hydraulics.path_length
 
 
 @dataclass(frozen=True)
@@ -130,6 +148,7 @@ class StreamModel:
     name: str
     mass_flow: float  # kg/s
     surfaces: tuple[_SurfaceModel, ...]
+    path: paths.FlowPath | None = None  # the coolant's route, for its pressure drop
 
 
 @dataclass(frozen=True)
@@ -184,7 +203,8 @@ def _coolant_state(coolant: Coolant, temperature: float) -> LiquidProperties:
 
 
 def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolant: Coolant, mass_flow: float,
-                  process_temperature: float, fouling: wall.Fouling, warnings: Warnings) -> Stream:
+                  process_temperature: float, fouling: wall.Fouling, warnings: Warnings,
+                  path: paths.FlowPath | None = None) -> Stream:
     inlet = coolant.inlet_temperature
     freezing = None
     if hasattr(coolant.liquid, "liquid_range"):
@@ -229,7 +249,13 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
         warnings.extend_unique(CalcWarning(w.code, f"{surface.name.replace('_', ' ')}: {w.message}")
                                for w in surface.overall.warnings)
     warnings.extend_unique(balance.warnings)
-    return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations)
+    hydraulics = None
+    if path is not None:
+        hydraulics = paths.pressure_drop(path, mass_flow, _coolant_state(coolant, mean))
+        warnings.extend_unique(CalcWarning(w.code, f"{name} pressure drop: {w.message}") for w in hydraulics.warnings)
+        warnings.extend_unique(paths.limit_warnings(hydraulics, name, coolant.available_pressure_drop,
+                                                    coolant.maximum_velocity))
+    return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations, hydraulics, path)
 
 
 def _outer_diameter(vessel: Vessel) -> float:
@@ -285,7 +311,8 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
                     agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
                     baffled=agitator.baffled, surface=_surface),
                 service, jacket_formula))
-        streams.append(StreamModel("jacket", coolant.mass_flow(), tuple(models)))
+        streams.append(StreamModel("jacket", coolant.mass_flow(), tuple(models),
+                                   paths.jacket_path(vessel.jacket, outer, max(jacket_height, 1e-3))))
     elif vessel.jacket is not None:
         warnings.add(CalcWarning("jacket_not_wetted", "the liquid does not reach the jacket: no jacket heat transfer"))
 
@@ -307,7 +334,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
                 _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
                 pitch=_coil.pitch),
             coil_side.coil_film_formula(coil.tube_inner_diameter, coil.helix_diameter, pitch=coil.pitch))
-        streams.append(StreamModel(f"coil_{index}", coolant.coil_mass_flow(), (model,)))
+        streams.append(StreamModel(f"coil_{index}", coolant.coil_mass_flow(), (model,), paths.coil_path(coil)))
     if not streams:
         warnings.add(CalcWarning("no_cooling_surface", "no wetted jacket or coil area: the vessel cannot be cooled"))
     return Network(vessel, charge, coolant, process_temperature, props, filled, stirred, tuple(streams), warnings)
@@ -323,7 +350,8 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     network = assemble(vessel, charge, coolant, process_temperature)
     warnings = Warnings(network.warnings)
     streams = tuple(_solve_stream(stream.name, list(stream.surfaces), charge, coolant, stream.mass_flow,
-                                  process_temperature, vessel.fouling, warnings) for stream in network.streams)
+                                  process_temperature, vessel.fouling, warnings, stream.path)
+                    for stream in network.streams)
     return HeatTransferResult(process_temperature, network.process_properties, network.fill, network.agitation,
                               streams, warnings)
 

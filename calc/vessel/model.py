@@ -82,6 +82,10 @@ class Coolant:
     ``flow_kind`` is ``"mass"`` (kg/s) or ``"volume"`` (m3/s, converted with the density at the inlet).
     ``coil_flow`` is the flow through each internal coil, of the same kind; None means the same as
     the jacket flow (a separate supply of equal size).
+
+    What limits the utility (each optional): ``available_pressure_drop`` [Pa] between supply and return
+    headers, which every circuit (jacket, each coil) sees in parallel; ``maximum_velocity`` [m/s] in any
+    circuit's channel; ``maximum_flow`` [kg/s] the header delivers to all circuits together.
     """
 
     liquid: Liquid
@@ -89,6 +93,15 @@ class Coolant:
     flow: float
     flow_kind: str = "mass"
     coil_flow: float | None = None
+    available_pressure_drop: float | None = None  # Pa
+    maximum_velocity: float | None = None  # m/s
+    maximum_flow: float | None = None  # all circuits together, of ``maximum_flow_kind``
+    maximum_flow_kind: str = "mass"
+
+    @property
+    def limited(self) -> bool:
+        """Whether any hydraulic limit of the utility is given."""
+        return any(v is not None for v in (self.available_pressure_drop, self.maximum_velocity, self.maximum_flow))
 
     def _mass(self, value: float, field_name: str) -> float:
         if not (math.isfinite(value) and value > 0):
@@ -101,6 +114,12 @@ class Coolant:
     def mass_flow(self) -> float:
         """Jacket coolant mass flow, kg/s."""
         return self._mass(self.flow, "coolant.flow")
+
+    def maximum_mass_flow(self) -> float | None:
+        """The utility's largest total flow, kg/s, or None when it sets none."""
+        if self.maximum_flow is None:
+            return None
+        return replace(self, flow_kind=self.maximum_flow_kind)._mass(self.maximum_flow, "coolant.maximum_flow")
 
     def coil_mass_flow(self) -> float:
         """Coolant mass flow through each coil, kg/s."""

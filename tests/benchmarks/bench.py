@@ -35,7 +35,7 @@ THROUGHPUT_TARGETS: dict[str, float | None] = {
     "/v1/cooling-check": 0.5,
     "/v1/scale-up": 0.25,  # the example has 5 scales
 }
-IN_PROCESS = ["/v1/properties", "/v1/cooling-check", "/v1/scale-up"]
+IN_PROCESS = ["/v1/properties", "/v1/cooling-check", "/v1/scale-up", "/v1/jacket-sizing"]
 
 
 def throughput(base: str, example: Example, clients: int, seconds: float) -> tuple[float, int]:

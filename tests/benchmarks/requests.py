@@ -77,6 +77,7 @@ EXAMPLES: dict[str, Example | None] = {
     "/v1/simulations": Example("POST", "/v1/simulations", SEMI_BATCH),
     # The reference plus four similar targets: five scales.
     "/v1/scale-up": Example("POST", "/v1/scale-up", _example_file("scale_up_path.json")),
+    "/v1/jacket-sizing": Example("POST", "/v1/jacket-sizing", _example_file("jacket_sizing_request.json")),
     "/v1/geometry": Example("POST", "/v1/geometry", {"vessel": _HEAT["vessel"], "fill": {"volume": "4 m^3"}}),
     "/v1/agitation": Example("POST", "/v1/agitation",
                              {k: _HEAT[k] for k in ("vessel", "charge", "process_temperature")}),

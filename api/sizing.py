@@ -1,0 +1,58 @@
+"""``/v1/jacket-sizing``: candidate jackets and coils for a vessel shell, ranked, with a recommendation."""
+from flask import Blueprint
+
+from calc.sizing import jacket_sizing as sizing
+from schemas.sizing import JacketSizingRequestSchema, JacketSizingResultSchema, jacket_sizing_view
+
+from . import charts
+from .http import calculate
+from .runtime import deadline
+
+bp = Blueprint("sizing", __name__, url_prefix="/v1")
+_request, _result = JacketSizingRequestSchema(), JacketSizingResultSchema()
+MARKERS = {"annular": "o", "annular_spiral_baffle": "s", "half_pipe": "^", "coil": "D", "jacket_and_coil": "P"}
+
+
+def _size(args: dict):
+    result = sizing.jacket_sizing(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
+                                  args["heat_release"], args["safety_factor"], args["options"], deadline=deadline())
+    return jacket_sizing_view(result)
+
+
+def sizing_chart(payload: dict, fmt: str) -> bytes:
+    """Cooling capacity against pressure drop for every candidate, the duty line, the recommendation marked."""
+    fig, (axis,) = charts.figure(1)
+    fig.set_size_inches(7.5, 4.6)
+    candidates = [c for c in payload["candidates"] if c["pressure_drop"] and c["pressure_drop"] > 0]
+    for colour, (kind, marker) in zip(charts.COLOURS * 2, MARKERS.items()):
+        rows = [c for c in candidates if c["type"] == kind]
+        if not rows:
+            continue
+        for feasible in (True, False):
+            chosen = [c for c in rows if c["feasible"] is feasible]
+            if chosen:
+                axis.scatter([c["pressure_drop"] / 1e5 for c in chosen], [c["cooling_capacity"] / 1e3 for c in chosen],
+                             marker=marker, s=22, color=colour if feasible else "none", edgecolors=colour,
+                             linewidths=0.9, label=kind.replace("_", " ") + ("" if feasible else " (not feasible)"))
+    duty = payload["duty"] / 1e3
+    axis.axhline(duty, color="#555555", linestyle="--", linewidth=0.9,
+                 label=f"duty: load x safety factor {payload['safety_factor']:g}")
+    best = payload["recommendation"].get("index")
+    if best is not None:
+        chosen = payload["candidates"][best]
+        axis.scatter([chosen["pressure_drop"] / 1e5], [chosen["cooling_capacity"] / 1e3], s=140, facecolors="none",
+                     edgecolors="#000000", linewidths=1.2, label="recommended")
+    axis.set_xscale("log")
+    axis.set_xlabel("pressure drop, bar (largest circuit)")
+    axis.set_ylabel("cooling capacity, kW")
+    axis.set_title("Candidate jackets and coils: capacity against pressure drop", fontsize=10)
+    axis.legend(fontsize=6.5, frameon=False, ncol=2)
+    charts.footnote(fig)
+    return charts.render(fig, fmt)
+
+
+@bp.route("/jacket-sizing", methods=["GET", "POST"])
+def jacket_sizing():
+    return calculate(_request, _size, _result, rows="candidates", chart=sizing_chart,
+                     lead=("index", "type", "description", "feasible", "margin", "cooling_capacity", "pressure_drop",
+                           "velocity", "coolant_flow"))

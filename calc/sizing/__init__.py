@@ -1,0 +1,1 @@
+"""Sizing the cooling: candidate jackets and coils for a vessel shell, ranked."""

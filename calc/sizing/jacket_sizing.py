@@ -1,0 +1,427 @@
+"""Jacket sizing: enumerate candidate jackets and coils for a vessel shell, evaluate each, recommend one.
+
+Each candidate is the vessel shell with one jacket (plain annular, spiral-baffle annular, half-pipe in
+parallel zones), one internal helical coil, or both, evaluated by the same heat-transfer network as the
+cooling check (:func:`calc.network.heat_transfer.heat_transfer`) with the utility's flow. When that
+flow is beyond what the utility can push through the candidate (available pressure difference,
+maximum velocity, maximum flow: :mod:`calc.network.flow_limit`), the candidate is evaluated at the
+largest flow it can push, and says so. A candidate is feasible when its capacity at that flow
+meets the heat load times the safety factor.
+
+Candidates (defaults; every list can be given):
+
+- annular jackets over gaps, with and without a spiral baffle over baffle pitches; inlet and outlet
+  nozzles: the smallest schedule-40 pipe carrying the flow at no more than 2.5 m/s (common practice,
+  no source: nozzles are sized for 1-3 m/s);
+- half-pipe jackets (180 degree, from schedule-40 pipe, ASME B36.10M) over nominal sizes, pitches
+  (1.25, 1.5 and 2 outside diameters unless given) and 1..4 parallel zones;
+- internal helical coils (schedule-10S tube, ASME B36.19M) centred in the annulus between impeller tip
+  and wall, pitch two tube diameters, from one tube diameter above the bottom tangent line, over a
+  quarter to all of the turns that fit below the liquid level (common practice, no source);
+- jacket + coil: when no jacket alone meets the duty, the highest-capacity jacket of each jacket type
+  with each coil.
+
+Ranking (common practice, no source): "smallest" is the least heat-transfer area that meets the duty;
+among equal areas (every jacket covers the same wall) the simplest type (plain annular, then spiral
+baffle, then half pipe), then the least coolant hold-up (the volume of the channels: the least
+fabricated jacket or coil), then the least pressure drop. The overall recommendation prefers a jacket
+alone (no internals to clean, no displaced volume, no obstruction to the flow), then a jacket with a
+coil, then a coil alone.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+
+from calc.checks.cooling_check import CAUTIONS, charge_mass, margin_of
+from calc.checks.heat_load import HeatLoad, HeatRelease, heat_load
+from calc.deadline import NEVER, Deadline
+from calc.films.jacket_side import JacketSpec
+from calc.network.flow_limit import flow_limit
+from calc.network.heat_transfer import HeatTransferResult, assemble, heat_transfer
+from calc.sizing import pipes
+from calc.validity import CalcWarning, InputError, Warnings
+from calc.vessel import geometry
+from calc.vessel.model import Charge, Coolant, Vessel
+
+JACKET_TYPES = ("annular", "annular_spiral_baffle", "half_pipe")
+TYPES = JACKET_TYPES + ("coil", "jacket_and_coil")
+#: Preference of the overall recommendation, most preferred first (see the module notes).
+PREFERENCE = ("annular", "annular_spiral_baffle", "half_pipe", "jacket_and_coil", "coil")
+NOZZLE_VELOCITY = 2.5  # m/s, common practice, no source
+PITCH_RATIOS = (1.25, 1.5, 2.0)  # half-pipe pitch over the pipe's outside diameter, common practice
+COIL_PITCH_RATIO = 2.0  # coil pitch over tube OD, common practice, no source
+COIL_CLEARANCE_RATIO = 1.0  # free space on each side of a coil tube, in tube ODs, common practice
+TURN_FRACTIONS = (0.25, 0.5, 0.75, 1.0)
+HALF_PIPE_SCHEDULE, COIL_SCHEDULE = "40", "10S"
+DEFAULT_COIL_TUBE_SIZES = ("1", "1-1/2", "2", "3")
+#: Most candidates one sizing evaluates (a request whose lists multiply beyond this is refused).
+MAX_CANDIDATES = 600
+
+SIZING_CAUTION = ("A sized design is a thermal and hydraulic screening: the jacket's pressure rating, the "
+                  "shell's stiffening, weld access, coil supports and vibration, venting and draining are the "
+                  "vessel fabricator's to confirm under the applicable pressure-vessel code.")
+
+
+@dataclass(frozen=True)
+class SizingOptions:
+    """What to enumerate; lengths in m. None means the defaults of the module notes."""
+
+    types: tuple[str, ...] = TYPES
+    gaps: tuple[float, ...] = (0.025, 0.038, 0.05, 0.075, 0.1)
+    baffle_pitches: tuple[float, ...] = (0.1, 0.15, 0.2, 0.3, 0.4)
+    pipe_sizes: tuple[str, ...] = ("1-1/2", "2", "2-1/2", "3", "4")
+    pipe_pitches: tuple[float, ...] | None = None
+    zones: tuple[int, ...] = (1, 2, 3, 4)
+    coil_tube_sizes: tuple[str, ...] | None = None  # default DEFAULT_COIL_TUBE_SIZES, those that fit
+    coil_turns: tuple[int, ...] | None = None
+    coil_helix_diameter: float | None = None
+    covers_bottom_head: bool = True
+    jacket_top: float | None = None
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One evaluated design. Flows in kg/s, pressure in Pa, lengths in m, areas in m2, powers in W."""
+
+    index: int
+    type: str
+    description: str
+    jacket: JacketSpec | None
+    coil: geometry.HelicalCoil | None
+    pipe_size: str | None  # NPS of the half pipe, or of the coil tube
+    heat_transfer_area: float
+    overall_coefficient: float
+    cooling_capacity: float
+    margin: float | None
+    coolant_flow: float  # flow of the first circuit (``coolant.flow``: the jacket's, else the coil's)
+    total_coolant_flow: float  # all circuits together
+    velocity: float  # the largest channel velocity over the circuits
+    pressure_drop: float  # the largest circuit pressure drop
+    path_length: float  # of the circuit with the largest pressure drop
+    displaced_volume: float  # m3 of liquid displaced by the coil
+    holdup_volume: float  # m3 of coolant in the channels of every circuit
+    process_film_jacket: float | None  # W/(m2 K)
+    process_film_coil: float | None
+    flow_limited: bool
+    feasible: bool
+    reason: str
+    warning_codes: tuple[str, ...] = ()
+    coverage: geometry.JacketCoverage = field(default_factory=geometry.JacketCoverage)
+
+    @property
+    def jacket_geometry(self) -> dict | None:
+        """The jacket as a request's ``vessel.jacket`` gives it (so the design can be checked again)."""
+        if self.jacket is None:
+            return None
+        keys = ("type", "gap", "baffle_pitch", "pipe_diameter", "pipe_pitch", "passes", "inlet_diameter")
+        return {k: getattr(self.jacket, k) for k in keys} | {
+            "covers_bottom_head": self.coverage.covers_bottom_head, "top": self.coverage.top}
+
+
+@dataclass(frozen=True)
+class Recommendation:
+    index: int | None
+    type: str | None
+    description: str
+    reasoning: str
+
+
+@dataclass(frozen=True)
+class SizedDesign:
+    """The recommended design of one sizing (for a scale-up's scales)."""
+
+    recommendation: Recommendation
+    candidate: Candidate | None
+    candidates_evaluated: int
+
+
+@dataclass(frozen=True)
+class JacketSizing:
+    candidates: tuple[Candidate, ...]
+    recommendation: Recommendation
+    smallest_feasible: dict  # type -> candidate index or None
+    heat_load: HeatLoad | None
+    duty: float  # W, heat load x safety factor
+    safety_factor: float
+    warnings: Warnings = field(default_factory=Warnings)
+    cautions: tuple[str, ...] = CAUTIONS + (SIZING_CAUTION,)
+
+    @property
+    def recommended(self) -> SizedDesign:
+        index = self.recommendation.index
+        return SizedDesign(self.recommendation, None if index is None else self.candidates[index],
+                           len(self.candidates))
+
+
+# ---------------------------------------------------------------- the envelope
+
+
+def _coil_geometry(vessel: Vessel, size: pipes.PipeSize, helix: float | None) -> tuple[float, float]:
+    """(helix diameter, pitch) of a coil of tube ``size`` centred between impeller tip and wall."""
+    T, D = vessel.shape.diameter, vessel.agitator.diameter
+    d = size.outer_diameter
+    return ((T + D) / 2.0 if helix is None else helix), COIL_PITCH_RATIO * d
+
+
+def check_envelope(vessel: Vessel, options: SizingOptions) -> None:
+    """Refuse options no design can meet (an :class:`InputError` naming the ``options`` field)."""
+    for name in ("types",):
+        for i, value in enumerate(getattr(options, name)):
+            if value not in TYPES:
+                raise InputError(f"options.{name}[{i}]", f"unknown type {value!r}; known: {', '.join(TYPES)}")
+    sizes = [pipes.pipe_size(n, f"options.pipe_sizes[{i}]") for i, n in enumerate(options.pipe_sizes)]
+    if options.pipe_pitches is not None and "half_pipe" in options.types and sizes:
+        widest = max(sizes, key=lambda s: s.outer_diameter)
+        for i, pitch in enumerate(options.pipe_pitches):
+            if pitch < widest.outer_diameter:
+                raise InputError(f"options.pipe_pitches[{i}]",
+                                 f"{pitch:g} m is below the width of the NPS {widest.nps} half pipe "
+                                 f"({widest.outer_diameter:g} m): neighbouring turns would overlap")
+    for i, zones in enumerate(options.zones):
+        if not 1 <= zones <= 20:
+            raise InputError(f"options.zones[{i}]", f"must be between 1 and 20, got {zones!r}")
+    if not any(t in options.types for t in ("coil", "jacket_and_coil")):
+        return
+    for i, nps in enumerate(options.coil_tube_sizes or ()):
+        size = pipes.pipe_size(nps, f"options.coil_tube_sizes[{i}]")
+        need = size.outer_diameter * (1.0 + 2.0 * COIL_CLEARANCE_RATIO)
+        annulus = _annulus(vessel)
+        if need > annulus:
+            raise InputError(f"options.coil_tube_sizes[{i}]",
+                             f"an NPS {nps} coil needs {need:.4g} m (tube and a tube diameter of clearance each "
+                             f"side) but the annulus between impeller tip and wall is {annulus:.4g} m")
+    if options.coil_helix_diameter is None:
+        return
+    T, D = vessel.shape.diameter, vessel.agitator.diameter
+    helix = options.coil_helix_diameter
+    for nps in _coil_sizes(vessel, options, Warnings()):
+        d = pipes.pipe_size(nps).outer_diameter
+        inner, outer = (helix - d) / 2.0, (helix + d) / 2.0
+        if inner - D / 2.0 < COIL_CLEARANCE_RATIO * d or T / 2.0 - outer < COIL_CLEARANCE_RATIO * d:
+            raise InputError("options.coil_helix_diameter",
+                             f"a helix of {helix:g} m with NPS {nps} tube leaves less than one tube diameter "
+                             f"to the impeller tip ({D / 2:.4g} m radius) or the wall ({T / 2:.4g} m radius)")
+
+
+def _annulus(vessel: Vessel) -> float:
+    """Radial room between the impeller tip and the wall, m."""
+    return (vessel.shape.diameter - vessel.agitator.diameter) / 2.0
+
+
+def _coil_sizes(vessel: Vessel, options: SizingOptions, warnings: Warnings) -> tuple[str, ...]:
+    """The coil tube sizes to try: those given (checked by :func:`check_envelope`), or the defaults that fit
+    between impeller and wall with a tube diameter of clearance each side."""
+    if options.coil_tube_sizes is not None:
+        return options.coil_tube_sizes
+    fit = tuple(n for n in DEFAULT_COIL_TUBE_SIZES
+                if pipes.pipe_size(n).outer_diameter * (1.0 + 2.0 * COIL_CLEARANCE_RATIO) <= _annulus(vessel))
+    if len(fit) < len(DEFAULT_COIL_TUBE_SIZES):
+        warnings.add(CalcWarning("coil_sizes_left_out", f"coil tube sizes that do not fit between impeller and wall "
+                                                        f"({_annulus(vessel):.3g} m) are left out; tried: "
+                                                        f"{', '.join(fit) or 'none'}"))
+    return fit
+
+
+def _coils(vessel: Vessel, charge: Charge, process_temperature: float, options: SizingOptions,
+           warnings: Warnings) -> list[tuple[str, geometry.HelicalCoil]]:
+    volume = charge.liquid_volume(process_temperature)
+    level = geometry.fill(vessel.shape, None, (), volume=volume).liquid_level
+    out = []
+    for nps in _coil_sizes(vessel, options, warnings):
+        size = pipes.pipe_size(nps)
+        helix, pitch = _coil_geometry(vessel, size, options.coil_helix_diameter)
+        d = size.outer_diameter
+        elevation = geometry.head_depth(vessel.shape) + d
+        room = min(level, geometry.brim_height(vessel.shape)) - elevation - d  # top turn a tube OD under the surface
+        most = math.floor(room / pitch) if room > 0 else 0
+        if options.coil_turns is not None:
+            for j, turns in enumerate(options.coil_turns):
+                if turns > most:
+                    raise InputError(f"options.coil_turns[{j}]",
+                                     f"{turns} turns of NPS {nps} tube at a pitch of {pitch:.4g} m do not fit below "
+                                     f"the liquid level ({level:.4g} m): at most {most}")
+            counts = sorted(set(options.coil_turns))
+        else:
+            counts = sorted({max(2, round(f * most)) for f in TURN_FRACTIONS}) if most >= 2 else []
+        if not counts:
+            warnings.add(CalcWarning("coil_does_not_fit", f"no NPS {nps} coil of two or more turns fits below the "
+                                                          f"liquid level ({level:.4g} m)"))
+        for turns in counts:
+            out.append((nps, geometry.HelicalCoil(d, size.wall(COIL_SCHEDULE), helix, float(turns), pitch)))
+    return out
+
+
+def _jackets(vessel: Vessel, coolant: Coolant, options: SizingOptions) -> list[tuple[str, str | None, JacketSpec]]:
+    volume_flow = coolant.mass_flow() / coolant.liquid.at(coolant.inlet_temperature).density
+    nozzle = pipes.nozzle_for(volume_flow, NOZZLE_VELOCITY).inner_diameter("40")
+    out = []
+    if "annular" in options.types:
+        out += [("annular", None, JacketSpec("annular", gap=g, inlet_diameter=nozzle)) for g in options.gaps]
+    if "annular_spiral_baffle" in options.types:
+        out += [("annular_spiral_baffle", None, JacketSpec("annular_spiral_baffle", gap=g, baffle_pitch=p,
+                                                           inlet_diameter=nozzle))
+                for g in options.gaps for p in options.baffle_pitches]
+    if "half_pipe" in options.types:
+        for nps in options.pipe_sizes:
+            size = pipes.pipe_size(nps)
+            pitches = options.pipe_pitches or tuple(r * size.outer_diameter for r in PITCH_RATIOS)
+            out += [("half_pipe", nps, JacketSpec("half_pipe", pipe_diameter=size.inner_diameter(HALF_PIPE_SCHEDULE),
+                                                  pipe_pitch=p, passes=n))
+                    for p in pitches for n in options.zones]
+    return out
+
+
+# ---------------------------------------------------------------- one candidate
+
+
+def describe(jacket: JacketSpec | None, coil: geometry.HelicalCoil | None, nps: str | None,
+             coil_nps: str | None) -> str:
+    parts = []
+    if jacket is not None and jacket.type == "annular":
+        parts.append(f"annular jacket, gap {jacket.gap * 1e3:.0f} mm")
+    elif jacket is not None and jacket.type == "annular_spiral_baffle":
+        parts.append(f"annular jacket, gap {jacket.gap * 1e3:.0f} mm, spiral baffle pitch {jacket.baffle_pitch * 1e3:.0f} mm")
+    elif jacket is not None:
+        zones = "1 zone" if jacket.passes == 1 else f"{jacket.passes} parallel zones"
+        parts.append(f"half-pipe jacket NPS {nps}, pitch {jacket.pipe_pitch * 1e3:.0f} mm, {zones}")
+    if coil is not None:
+        parts.append(f"coil NPS {coil_nps}, {coil.turns:g} turns on {coil.helix_diameter:.3g} m")
+    return " + ".join(parts)
+
+
+def evaluate_candidate(index: int, kind: str, vessel: Vessel, charge: Charge, coolant: Coolant,
+                       process_temperature: float, heat_release: HeatRelease, safety_factor: float,
+                       jacket: JacketSpec | None, coil: geometry.HelicalCoil | None, nps: str | None = None,
+                       coil_nps: str | None = None) -> tuple[Candidate, HeatTransferResult | None, HeatLoad | None]:
+    """Evaluate one design at the utility's flow, cut back to what the utility can push."""
+    description = describe(jacket, coil, nps, coil_nps)
+    design = replace(vessel, jacket=jacket, coils=() if coil is None else (coil,))
+    try:
+        # the flow limit needs only the paths (no solve): solve once, at the flow the utility can push
+        limit = flow_limit(assemble(design, charge, coolant, process_temperature).streams, coolant)
+        limited = limit.mass_flow is not None and limit.mass_flow < coolant.mass_flow() * (1.0 - 1e-9)
+        if limited:
+            coolant = coolant.with_mass_flow(limit.mass_flow)
+        result = heat_transfer(design, charge, coolant, process_temperature)
+    except InputError as exc:
+        return Candidate(index, kind, description, jacket, coil, nps or coil_nps, 0.0, 0.0, 0.0, None, 0.0, 0.0,
+                         0.0, 0.0, 0.0, 0.0, 0.0, None, None, False, False, f"does not fit: {exc.message}", (),
+                         vessel.coverage), None, None
+    load = heat_load(heat_release, charge_mass(result), process_temperature, result.agitation.power)
+    capacity = result.duty
+    margin = margin_of(capacity, load.total)
+    streams = [s for s in result.streams if s.hydraulics is not None]
+    worst = max(streams, key=lambda s: s.pressure_drop) if streams else None
+    films = {"jacket": None, "coil": None}
+    for stream in result.streams:
+        for surface in stream.surfaces:
+            key = "jacket" if stream.name == "jacket" else "coil"
+            if films[key] is None or surface.name == "jacket_shell":
+                films[key] = surface.process_film.h
+    feasible = margin is None or margin >= safety_factor
+    flow = result.streams[0].mass_flow if result.streams else 0.0
+    at = (f"at {flow:.3g} kg/s" + (f" (cut back by {limit.reason})" if limited else "")
+          + (f", {worst.pressure_drop / 1e5:.3g} bar" if worst is not None else ""))
+    if margin is None:
+        reason = "no net heat load to remove"
+    elif feasible:
+        reason = f"meets the duty: margin {margin:.3g} >= {safety_factor:g} {at}"
+    else:
+        reason = (f"falls short: capacity {capacity / 1e3:.4g} kW against {safety_factor:g} x "
+                  f"{load.total / 1e3:.4g} kW (margin {margin:.3g}) {at}")
+    codes = tuple(dict.fromkeys(w.code for w in result.warnings))
+    candidate = Candidate(
+        index, kind, description, jacket, coil, nps or coil_nps, result.area, result.overall_coefficient, capacity,
+        margin, flow, sum(s.mass_flow for s in result.streams),
+        max((s.velocity for s in streams), default=0.0), 0.0 if worst is None else worst.pressure_drop,
+        0.0 if worst is None else worst.path_length, result.fill.displaced_volume,
+        sum(s.path.area * s.path.length * s.path.branches for s in streams), films["jacket"], films["coil"],
+        limited, feasible, reason, codes, vessel.coverage)
+    return candidate, result, load
+
+
+# ---------------------------------------------------------------- the whole sizing
+
+
+def _rank_key(candidate: Candidate) -> tuple:
+    return (round(candidate.heat_transfer_area, 6), PREFERENCE.index(candidate.type), round(candidate.holdup_volume, 6),
+            candidate.pressure_drop, candidate.index)
+
+
+def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
+                  heat_release: HeatRelease, safety_factor: float, options: SizingOptions = SizingOptions(),
+                  deadline: Deadline = NEVER) -> JacketSizing:
+    """Enumerate, evaluate and rank the candidate designs for the shell ``vessel`` (its own jacket and coils
+    are ignored; the coverage of ``options`` applies). Each candidate first checks ``deadline``
+    (:class:`calc.deadline.OutOfTime` once it has passed)."""
+    check_envelope(vessel, options)
+    warnings = Warnings()
+    shell = replace(vessel, jacket=None, coils=(),
+                    coverage=geometry.JacketCoverage(options.covers_bottom_head, options.jacket_top))
+    candidates: list[Candidate] = []
+    load = None
+
+    def add(kind, jacket, coil, nps=None, coil_nps=None):
+        nonlocal load
+        deadline.check()
+        candidate, _, this_load = evaluate_candidate(len(candidates), kind, shell, charge, coolant, process_temperature,
+                                                     heat_release, safety_factor, jacket, coil, nps, coil_nps)
+        load = load or this_load
+        candidates.append(candidate)
+        return candidate
+
+    jackets = _jackets(shell, coolant, options)
+    coils = _coils(shell, charge, process_temperature, options, warnings) \
+        if any(t in options.types for t in ("coil", "jacket_and_coil")) else []
+    most = len(jackets) + len(coils) * (1 + len(JACKET_TYPES) * ("jacket_and_coil" in options.types))
+    if most > MAX_CANDIDATES:
+        raise InputError("options", f"up to {most} candidates: at most {MAX_CANDIDATES} per sizing; "
+                                    "give shorter lists")
+    for kind, nps, jacket in jackets:
+        add(kind, jacket, None, nps)
+    if "coil" in options.types:
+        for coil_nps, coil in coils:
+            add("coil", None, coil, None, coil_nps)
+    jackets_alone = [c for c in candidates if c.type in JACKET_TYPES]
+    if "jacket_and_coil" in options.types and not any(c.feasible for c in jackets_alone):
+        for kind in JACKET_TYPES:
+            of_kind = [c for c in jackets_alone if c.type == kind and c.cooling_capacity > 0]
+            if not of_kind:
+                continue
+            best = max(of_kind, key=lambda c: c.cooling_capacity)
+            for coil_nps, coil in coils:
+                add("jacket_and_coil", best.jacket, coil, best.pipe_size if kind == "half_pipe" else None, coil_nps)
+    if not candidates:
+        raise InputError("options.types", "no candidate to evaluate: choose at least one type")
+    smallest = {}
+    for kind in TYPES:
+        feasible = [c for c in candidates if c.type == kind and c.feasible]
+        smallest[kind] = min(feasible, key=_rank_key).index if feasible else None
+    recommendation = _recommend(candidates, smallest, safety_factor)
+    duty = safety_factor * load.total if load is not None else 0.0
+    return JacketSizing(tuple(candidates), recommendation, smallest, load, duty, safety_factor, warnings)
+
+
+def _recommend(candidates: list[Candidate], smallest: dict, safety_factor: float) -> Recommendation:
+    for group in (JACKET_TYPES, ("jacket_and_coil",), ("coil",)):
+        chosen = [candidates[smallest[k]] for k in group if smallest.get(k) is not None]
+        if not chosen:
+            continue
+        best = min(chosen, key=_rank_key)
+        why = {JACKET_TYPES: "a jacket alone meets the duty (no internals to clean, no displaced volume)",
+               ("jacket_and_coil",): "no jacket alone meets the duty; a jacket with an internal coil does",
+               ("coil",): "only an internal coil meets the duty"}[group]
+        reasoning = (f"{why}; of the feasible designs this has the least heat-transfer area "
+                     f"({best.heat_transfer_area:.3g} m2) and, among equal areas, the simplest type and the least "
+                     f"coolant hold-up ({best.holdup_volume * 1e3:.3g} L); pressure drop "
+                     f"{best.pressure_drop / 1e5:.3g} bar, margin {best.margin if best.margin is None else round(best.margin, 3)} "
+                     f"against the safety factor {safety_factor:g} at {best.coolant_flow:.3g} kg/s")
+        return Recommendation(best.index, best.type, best.description, reasoning)
+    top = max(candidates, key=lambda c: c.cooling_capacity)
+    return Recommendation(None, None, "no feasible design",
+                          f"no candidate meets the duty with the safety factor {safety_factor:g} within the utility's "
+                          f"limits; the highest capacity is {top.cooling_capacity / 1e3:.4g} kW ({top.description}, "
+                          f"margin {top.margin if top.margin is None else round(top.margin, 3)}). Consider a colder "
+                          "coolant, a longer dosing time, more agitation, a higher available pressure difference, or "
+                          "an external loop")
