@@ -10,7 +10,7 @@ from importlib import metadata, resources
 from flask import Flask, g, request
 
 from . import errors, limits, runtime, security
-from .logs import JsonFormatter
+from .logs import JsonFormatter, RequestIdFilter
 
 try:
     VERSION = metadata.version("coolmargin")
@@ -22,11 +22,12 @@ DEFAULTS = {
     "MAX_NESTING_DEPTH": 32,  # levels of JSON objects/arrays
     "MAX_BATCH_CASES": 50,  # cases in one {"cases": [...]} call
     "MAX_SCALES": 20,  # targets in one scale-up
+    "MAX_WINDOW_POINTS": 2500,  # grid points in one operating window
     "MAX_SERIES_POINTS": 2000,  # points in a returned time series
     "MAX_SIMULATION_HORIZON": 7 * 24 * 3600.0,  # s of simulated time
     "SIMULATION_WALL_TIME": 10.0,  # s of computing per simulation request
     "REQUEST_BUDGET": 20.0,  # s a request (or a whole batch) may take; then what is done, or a 503
-    "CALCULATION_SLOTS": 1,  # calculations computing at once in one process
+    "CALCULATION_SLOTS": 16,  # calculations computing at once in one process (16: one per gunicorn thread)
     "AUTH_TOKENS": "",  # comma-separated bearer tokens; empty means open
     "AUTH_TOKENS_FILE": "",
     "CORS_ORIGINS": "",  # comma-separated allow-list
@@ -58,6 +59,7 @@ def _configure_logging() -> None:
         handler = logging.StreamHandler()
         handler.setFormatter(JsonFormatter())  # JSON lines, like the access log, with the request id
         logger.addHandler(handler)
+        logger.addFilter(RequestIdFilter())
         logger.setLevel(logging.INFO)
         logger.propagate = False
 
@@ -87,8 +89,8 @@ def create_app(config: dict | None = None) -> Flask:
     security.register(app)  # after the request-id hook: refusals carry the request id
     runtime.register(app)  # after authentication: a refused request reads no body and takes no slot
 
-    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service, sizing
+    from . import agitation, cooling, geometry, heat_transfer, properties, safety, service, sizing, window
 
-    for module in (service, properties, geometry, agitation, heat_transfer, cooling, sizing, safety):
+    for module in (service, properties, geometry, agitation, heat_transfer, cooling, window, sizing, safety):
         app.register_blueprint(module.bp)
     return app

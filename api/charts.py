@@ -43,10 +43,10 @@ def footnote(fig) -> None:
 
 # Default API units too small to read on an axis, and the unit drawn instead (a request's output units
 # replace the default, and are drawn as asked).
-_READABLE = {"W": ("kW", 1e-3), "s": ("h", 1 / 3600.0)}
+_READABLE = {"W": ("kW", 1e-3), "s": ("h", 1 / 3600.0), "Pa": ("bar", 1e-5)}
 
 
 def readable(values, unit: str) -> tuple[list, str]:
-    """``values`` (None kept) and their axis unit: watts drawn as kW and seconds as hours, else as given."""
+    """``values`` (None kept) and their axis unit: W drawn as kW, s as h, Pa as bar; other units as given."""
     shown, factor = _READABLE.get(unit, (unit, 1.0))
     return [None if v is None else v * factor for v in values], shown

@@ -4,7 +4,7 @@ from flask import Blueprint
 from calc.vessel import geometry
 from schemas.heat_transfer import GeometryRequestSchema, GeometryResultSchema, fill_dict
 
-from .http import load, respond
+from .http import guarded, load, respond
 
 bp = Blueprint("geometry", __name__, url_prefix="/v1")
 _request, _result = GeometryRequestSchema(), GeometryResultSchema()
@@ -12,7 +12,9 @@ _request, _result = GeometryRequestSchema(), GeometryResultSchema()
 
 @bp.route("/geometry", methods=["GET", "POST"])
 def vessel_geometry():
-    args = load(_request)
+    return respond(fill_dict(guarded(_fill, load(_request))), _result)
+
+
+def _fill(args: dict):
     vessel, fill = args["vessel"], args["fill"]
-    result = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=fill["volume"], level=fill["level"])
-    return respond(fill_dict(result), _result)
+    return geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=fill["volume"], level=fill["level"])

@@ -7,7 +7,7 @@ from schemas.heat_transfer import (CoolantBalanceRequestSchema, CoolantBalanceRe
                                    HeatTransferRequestSchema, HeatTransferResultSchema, MaterialSchema,
                                    coolant_balance_dict, heat_transfer_dict)
 
-from .http import list_response, load, respond
+from .http import guarded, list_response, load, respond
 
 bp = Blueprint("heat_transfer", __name__, url_prefix="/v1")
 _request, _result = HeatTransferRequestSchema(), HeatTransferResultSchema()
@@ -17,16 +17,16 @@ _material = MaterialSchema()
 
 @bp.route("/heat-transfer", methods=["GET", "POST"])
 def network():
-    args = load(_request)
-    result = heat_transfer.heat_transfer(args["vessel"], args["charge"], args["coolant"], args["process_temperature"])
+    result = guarded(lambda a: heat_transfer.heat_transfer(a["vessel"], a["charge"], a["coolant"],
+                                                           a["process_temperature"]), load(_request))
     return respond(heat_transfer_dict(result), _result)
 
 
 @bp.route("/coolant-balance", methods=["GET", "POST"])
 def coolant_balance():
-    args = load(_balance_request)
-    balance, mass_flow, heat_capacity = heat_transfer.coolant_balance_at_mean(
-        args["coolant"], args["process_temperature"], args["ua"])
+    balance, mass_flow, heat_capacity = guarded(
+        lambda a: heat_transfer.coolant_balance_at_mean(a["coolant"], a["process_temperature"], a["ua"]),
+        load(_balance_request))
     return respond(coolant_balance_dict(balance, mass_flow, heat_capacity), _balance_result)
 
 

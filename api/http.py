@@ -393,6 +393,9 @@ def calculate(schema: Schema, compute: Callable[[dict], dict], result_schema: Sc
     return respond(_run(compute, schema.load(data), data), result_schema, **respond_options)
 
 
-def _run(compute: Callable[[dict], Any], args: dict, raw: dict) -> Any:
+def _run(compute: Callable[[Any], Any], args: Any, raw: dict | None = None) -> Any:
     """Compute under calc's numerical guard, which names the request field most likely at fault."""
-    return finite_or_input_error(compute, args, numeric_leaves(raw))
+    return finite_or_input_error(compute, args, numeric_leaves(request_object() if raw is None else raw))
+
+
+guarded = _run

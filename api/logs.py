@@ -23,6 +23,14 @@ def _request_id(record: logging.LogRecord) -> str | None:
         return None
 
 
+class RequestIdFilter(logging.Filter):
+    """Stamps ``request_id`` on every record of the logger it guards, so any handler (and a test's) sees it."""
+
+    def filter(self, record: logging.LogRecord) -> bool:
+        record.request_id = _request_id(record) or "-"
+        return True
+
+
 class JsonFormatter(logging.Formatter):
     """``{"time", "level", "logger", "process", "request_id", "message"[, "traceback"][, "stack"]}``."""
 

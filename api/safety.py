@@ -5,6 +5,7 @@ from flask import Blueprint, Response, current_app, request
 
 from calc.safety import dynamics
 from calc.network import heat_transfer
+from calc.validity import fields_renamed
 from calc.safety import criticality as safety
 from calc.safety import steady_states
 from calc.safety import tank_model
@@ -16,7 +17,7 @@ from schemas.safety import (CSTRRequestSchema, CSTRResultSchema, SimulationReque
 
 from .errors import ProblemError
 from .charts import figure as _figure, footnote as _footnote, readable, render as _render
-from .http import load, requested_format, respond, shaped, to_csv
+from .http import guarded, load, requested_format, respond, shaped, to_csv
 from .runtime import deadline
 
 bp = Blueprint("safety", __name__, url_prefix="/v1")
@@ -29,7 +30,7 @@ _cstr_request, _cstr_result = CSTRRequestSchema(), CSTRResultSchema()
 @bp.route("/thermal-safety", methods=["GET", "POST"])
 def thermal_safety():
     inp = load(_safety_request)
-    return respond(thermal_safety_dict(safety.assess_thermal_safety(inp)), _safety_result)
+    return respond(thermal_safety_dict(guarded(safety.assess_thermal_safety, inp)), _safety_result)
 
 
 # ---------------------------------------------------------------- simulations
@@ -83,8 +84,11 @@ def simulations():
     if args["vessel"] is not None:
         given = args["vessel"]
         contents = Charge(given["contents"], mass=args["charge"].mass)
-        duty = heat_transfer.jacket_duty(given["vessel"], contents, given["coolant"], args["charge"].temperature)
-    result = simulation_dict(dynamics.simulate(simulation_input(args, budget, duty)))
+        # the request's own paths: the vessel and its coolant sit under "vessel", the start state under "charge"
+        with fields_renamed({"vessel": "vessel.vessel", "coolant": "vessel.coolant",
+                             "process_temperature": "charge.temperature"}):
+            duty = heat_transfer.jacket_duty(given["vessel"], contents, given["coolant"], args["charge"].temperature)
+    result = simulation_dict(guarded(dynamics.simulate, simulation_input(args, budget, duty)))
     if duty is not None:
         result["warnings"] = warning_dicts(duty.warnings) + result["warnings"]
     if not request.args.get("field") and requested_format() == "csv":
@@ -123,5 +127,5 @@ def _cstr_chart(payload: dict, fmt: str, units: dict) -> bytes:
 @bp.route("/cstr-steady-states", methods=["GET", "POST"])
 def cstr_steady_states():
     inp = load(_cstr_request)
-    result = steady_states_dict(steady_states.cstr_steady_states(inp))
+    result = steady_states_dict(guarded(steady_states.cstr_steady_states, inp))
     return respond(result, _cstr_result, rows="states", chart=_cstr_chart)

@@ -168,3 +168,34 @@ def finite_or_input_error(compute, argument, inputs: dict[str, float]):
                                                                            f"{culprit[0]} = {culprit[1]:.4g})")
         raise InputError(field, f"the calculation broke down numerically with these inputs{shown}: "
                                 f"{type(exc).__name__}: {exc}; check the values and units") from exc
+
+
+class fields_renamed:
+    """Context manager: an :class:`InputError` raised inside names the request's own path.
+
+    The same calculation serves requests of different shapes (a vessel is ``vessel`` in a cooling check,
+    ``reference`` or ``targets[2].vessel`` in a scale-up, ``vessel.vessel`` in a simulation), so a caller
+    that knows the shape renames the leading part of the field: ``{"vessel": "reference"}`` turns
+    ``vessel.jacket.gap`` into ``reference.jacket.gap``. The longest matching prefix wins.
+
+    >>> try:
+    ...     with fields_renamed({"vessel": "targets[1].vessel"}):
+    ...         raise InputError("vessel.jacket.gap", "must be positive")
+    ... except InputError as error:
+    ...     print(error.field)
+    targets[1].vessel.jacket.gap
+    """
+
+    def __init__(self, mapping: dict[str, str]):
+        self.mapping = sorted(mapping.items(), key=lambda item: -len(item[0]))
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, kind, error, traceback):
+        if not isinstance(error, InputError):
+            return False
+        for old, new in self.mapping:
+            if error.field == old or error.field.startswith((old + ".", old + "[")):
+                raise InputError(new + error.field[len(old):], error.message) from None
+        return False

@@ -12,6 +12,7 @@ from .cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema, Scale
                       ScaleUpResultSchema)
 from .properties import FluidSchema, PropertiesQuerySchema, PropertiesResultSchema
 from .sizing import JacketSizingRequestSchema, JacketSizingResultSchema
+from .window import OperatingWindowRequestSchema, OperatingWindowResultSchema
 from .safety import (CSTRRequestSchema, CSTRResultSchema, SimulationRequestSchema, SimulationResultSchema,
                      ThermalSafetyRequestSchema, ThermalSafetyResultSchema)
 
@@ -78,6 +79,19 @@ CALCULATIONS = [
                                                                   "image/png", "text/html", "application/pdf"),
                 batch=True,
                 example="scale_up_demo.json"),
+    Calculation("/v1/operating-window", "cooling check", "The cooling margin over a grid of two operating quantities",
+                "The cooling check's body plus two axes, each one of heat_release.dosing_time, "
+                "coolant.inlet_temperature, coolant.flow, process_temperature or vessel.agitator.speed with "
+                "'from', 'to' and 'points': the margin and verdict at every grid point (all solved in one pass "
+                "of the vectorised network; each equals the single cooling check with that value), the boundary "
+                "of the adequate region (margin = safety factor, solved on each grid line where the verdict "
+                "changes) and the request's own point. At most MAX_WINDOW_POINTS grid points (2500; 413 above). "
+                "format=csv gives one row per point; format=svg or png a contour chart with the safety-factor "
+                "line and the current point. A screening estimate: confirm with reaction calorimetry and plant "
+                "data; local codes and a licensed engineer's review govern.",
+                OperatingWindowRequestSchema, OperatingWindowResultSchema,
+                media=("text/csv", "text/plain", "image/svg+xml", "image/png"),
+                example="operating_window_production.json"),
     Calculation("/v1/jacket-sizing", "cooling check", "Candidate jackets and coils for a vessel shell, ranked",
                 "Annular jackets over gaps (with and without a spiral baffle over pitches), half-pipe jackets over "
                 "standard pipe sizes (ASME B36.10M), pitches and parallel zones, internal helical coils (ASME "

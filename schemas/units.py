@@ -100,6 +100,8 @@ class Bounds:
     reason: str
 
 
+# The comparisons in the reasons are orders of magnitude from memory (TEMA's fouling allowances, osmium's
+# density, hydrogen's heat capacity); the bounds sit far beyond them on purpose.
 BOUNDS: dict[str, Bounds] = {
     "length": Bounds(1e3, 1e-9, "from a nanometre (below any wall, gap or deposit) to a kilometre (beyond any plant "
                                 "vessel or pipe)"),
@@ -219,7 +221,7 @@ def check_unit_text(unit: str) -> None:
     ...
     marshmallow.exceptions.ValidationError: unit text may not chain exponents (K**2**3)
     """
-    tokens = [t for t in _TOKEN.findall(unit)]
+    tokens = _TOKEN.findall(unit)
     if "".join(tokens) != unit:
         raise ValidationError(f"unit text {unit!r} has characters outside unit names, digits, * / ^ ( ) and spaces")
     if re.search(r"[0-9][A-Za-z_]", unit):

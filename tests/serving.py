@@ -112,3 +112,17 @@ def timed_get(url: str, timeout: float = 10.0) -> tuple[int, float, bytes, dict]
             return response.status, time.monotonic() - started, response.read(), dict(response.headers)
     except urllib.error.HTTPError as error:
         return error.code, time.monotonic() - started, error.read(), dict(error.headers)
+
+
+def raw_request(base_url: str, data: bytes, timeout: float = 10.0) -> tuple[int, dict, bytes]:
+    """Send raw bytes (a request no HTTP library would send) to a loopback server; (status, headers, body)."""
+    host, port = base_url.rsplit("//", 1)[1].rsplit(":", 1)
+    assert host == "127.0.0.1"
+    with socket.create_connection((host, int(port)), timeout=timeout) as sock:
+        sock.sendall(data)
+        answer = b""
+        while chunk := sock.recv(65536):
+            answer += chunk
+    head, _, body = answer.partition(b"\r\n\r\n")
+    lines = head.decode("latin-1").split("\r\n")
+    return int(lines[0].split()[1]), dict(line.split(": ", 1) for line in lines[1:] if ": " in line), body

@@ -119,3 +119,37 @@ def test_a_numerical_breakdown_names_the_most_extreme_input():
     with pytest.raises(InputError) as error:
         finite_or_input_error(overflowing, {"x": 1e6}, {"vessel.diameter": 2.0, "heat_release.dosing_time": 1e6})
     assert error.value.field == "heat_release.dosing_time" and "OverflowError" in error.value.message
+
+
+def _example(name: str) -> dict:
+    return json.loads((ROOT / "examples" / name).read_text())
+
+
+def _set(body: dict, dotted: str, value) -> dict:
+    body = copy.deepcopy(body)
+    node = body
+    *parents, last = dotted.split(".")
+    for key in parents:
+        node = node[key]
+    node[last] = value
+    return body
+
+
+@pytest.mark.parametrize("route, example, changes", [
+    # products of bounded inputs that overflow an exponential or a power inside calc
+    ("/v1/agitation", "agitation_request.json", {"vessel.agitator.speed": "99999 rpm", "vessel.diameter": 999}),
+    ("/v1/heat-transfer", "heat_transfer_request.json", {"coolant.flow": "1e-15 m^3/s", "vessel.wall.thickness": 999}),
+    ("/v1/thermal-safety", "thermal_safety_production.json",
+     {"decomposition.activation_energy": "9999999 J/mol", "decomposition.onset_power": "1e8 W/kg"}),
+    ("/v1/cstr-steady-states", "cstr_steady_states.json", {"activation_energy": "9999999 J/mol", "rate_constant": 1e30}),
+])
+def test_overflowing_combinations_answer_a_number_or_a_named_problem(client, route, example, changes):
+    body = _example(example)
+    for dotted, value in changes.items():
+        body = _set(body, dotted, value)
+    response = client.post(route, json=body)
+    assert response.status_code in (200, 422), response.get_data(as_text=True)[:300]
+    if response.status_code == 422:
+        assert response.json["errors"] and all(e["field"] for e in response.json["errors"])
+    else:
+        json.loads(response.get_data(as_text=True), parse_constant=lambda name: pytest.fail(f"{name} in JSON"))

@@ -24,7 +24,7 @@ import pytest
 import yaml
 
 from api import DEFAULTS
-from serving import ROOT, free_port, gunicorn, slow_uploads, timed_get
+from serving import ROOT, free_port, gunicorn, raw_request, slow_uploads, timed_get
 
 pytestmark = pytest.mark.slow
 CONF = (ROOT / "docker" / "nginx.conf").read_text()
@@ -90,23 +90,6 @@ _REWRITES = {
 }
 
 
-def _raw(base: str, data: bytes, timeout: float = 10.0) -> tuple[int, dict, bytes]:
-    """Send raw bytes; return (status, headers, body) of the answer."""
-    host, port = base.rsplit("//", 1)[1].rsplit(":", 1)
-    with socket.create_connection((host, int(port)), timeout=timeout) as sock:
-        sock.sendall(data)
-        chunks = []
-        while True:
-            chunk = sock.recv(65536)
-            if not chunk:
-                break
-            chunks.append(chunk)
-    head, _, body = b"".join(chunks).partition(b"\r\n\r\n")
-    lines = head.decode("latin-1").split("\r\n")
-    headers = dict(line.split(": ", 1) for line in lines[1:] if ": " in line)
-    return int(lines[0].split()[1]), headers, body
-
-
 def _assert_problem(status: int, headers: dict, body: bytes, expected: int) -> dict:
     assert status == expected, (status, body[:300])
     assert headers["Content-Type"] == "application/problem+json"
@@ -153,10 +136,10 @@ def test_errors_nginx_answers_itself_are_problem_json(service, tmp_path):
         too_large = b"{" + b" " * DEFAULTS["MAX_CONTENT_LENGTH"] + b"}"
         request = (b"POST /v1/properties HTTP/1.1\r\nHost: x\r\nContent-Type: application/json\r\n"
                    + f"Content-Length: {len(too_large)}\r\n\r\n".encode())
-        _assert_problem(*_raw(proxy, request), 413)  # refused on its Content-Length, before the body
-        _assert_problem(*_raw(proxy, b"GET /v1/properties?" + b"a" * 9000 + b" HTTP/1.1\r\nHost: x\r\n\r\n"), 414)
-        _assert_problem(*_raw(proxy, b"GET /health HTTP/1.1\r\nHost: x\r\nX-Note: " + b"a" * 9000 + b"\r\n\r\n"), 431)
-        _assert_problem(*_raw(proxy, b"NOT HTTP AT ALL\r\n\r\n"), 400)
+        _assert_problem(*raw_request(proxy, request), 413)  # refused on its Content-Length, before the body
+        _assert_problem(*raw_request(proxy, b"GET /v1/properties?" + b"a" * 9000 + b" HTTP/1.1\r\nHost: x\r\n\r\n"), 414)
+        _assert_problem(*raw_request(proxy, b"GET /health HTTP/1.1\r\nHost: x\r\nX-Note: " + b"a" * 9000 + b"\r\n\r\n"), 431)
+        _assert_problem(*raw_request(proxy, b"NOT HTTP AT ALL\r\n\r\n"), 400)
         # the healthcheck of the proxy image, run as the image runs it
         healthcheck = _instruction("HEALTHCHECK")
         port = proxy.rsplit(":", 1)[1]

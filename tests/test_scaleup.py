@@ -145,8 +145,8 @@ def test_explicit_target_vessels_follow_the_rule():
 
 @pytest.mark.parametrize("kw, field", [
     ({"rule": "constant_froude"}, "rule"),
-    ({"targets": [8.0, -2.0]}, "targets.1.volume"),
-    ({"targets": [8.0, "big"]}, "targets.1.volume"),
+    ({"targets": [8.0, -2.0]}, "targets[1].volume"),
+    ({"targets": [8.0, "big"]}, "targets[1].volume"),
     ({"coolant_flow_rule": "double"}, "coolant_flow_rule"),
 ])
 def test_bad_input_names_the_field(kw, field):

@@ -17,7 +17,7 @@ from pathlib import Path
 
 import pytest
 
-from serving import ROOT, gunicorn, slow_uploads, timed_get
+from serving import ROOT, gunicorn, raw_request, slow_uploads, timed_get
 
 pytestmark = pytest.mark.slow
 DEMO = json.loads((ROOT / "examples" / "scale_up_demo.json").read_text())
@@ -74,7 +74,7 @@ def _post_and_hang_up(base: str, body: dict, after: float) -> None:
 def test_a_client_that_hangs_up_frees_the_calculation_slot():
     # one worker, one calculation slot: a 50-case scale-up batch holds it for 7 s or more unless the
     # server notices the client has gone
-    with gunicorn(workers=1) as base:
+    with gunicorn(workers=1, env={"COOLMARGIN_CALCULATION_SLOTS": "1"}) as base:
         _post_and_hang_up(base, {"cases": [DEMO] * 50}, after=1.0)
         status, seconds, _, _ = timed_get(base + "/v1/properties?fluid=water&temperature=20", timeout=30)
         assert status == 200 and seconds < 3.0, seconds
@@ -103,18 +103,6 @@ def _control_sockets():
     return list(folder.glob("gunicorn-*.ctl"))
 
 
-def _raw(base: str, data: bytes) -> tuple[int, dict, bytes]:
-    host, port = base.rsplit("//", 1)[1].rsplit(":", 1)
-    with socket.create_connection((host, int(port)), timeout=10) as sock:
-        sock.sendall(data)
-        answer = b""
-        while chunk := sock.recv(65536):
-            answer += chunk
-    head, _, body = answer.partition(b"\r\n\r\n")
-    lines = head.decode("latin-1").split("\r\n")
-    return int(lines[0].split()[1]), dict(line.split(": ", 1) for line in lines[1:] if ": " in line), body
-
-
 def test_errors_gunicorn_answers_itself_are_problem_json():
     # RFC 9110 15.5.1 (400), 15.5.15 (414); RFC 6585 section 5 (431)
     with gunicorn(workers=1) as base:
@@ -124,7 +112,7 @@ def test_errors_gunicorn_answers_itself_are_problem_json():
             400: b"GET /health HTTP/1.1\r\nHost: x\r\nBad Header Name: 1\r\n\r\n",
         }
         for expected, request in cases.items():
-            status, headers, body = _raw(base, request)
+            status, headers, body = raw_request(base, request)
             assert status == expected, body
             assert headers["Content-Type"] == "application/problem+json"
             problem = json.loads(body)

@@ -198,3 +198,63 @@ def test_scale_up_sizes_the_jacket_at_each_generated_scale(client):
             assert "no candidate meets the duty" in design["recommendation"]["reasoning"]
     without = client.post("/v1/scale-up", json=dict(body, size_jacket=False)).json["scales"]
     assert all(s["jacket_design"] is None for s in without)
+
+
+def test_readme_walk_through_matches_the_service(client):
+    # Not a reference value: the README quotes this demo's answer, and must keep saying what the service says.
+    readme = (ROOT / "README.md").read_text()
+    body = client.post("/v1/jacket-sizing", json=EXAMPLE).json
+    feasible = sum(c["feasible"] for c in body["candidates"])
+    chosen = body["candidates"][body["recommendation"]["index"]]
+    assert f"{body['candidates_evaluated']} candidates are evaluated and {feasible} are feasible" in readme
+    assert chosen["description"] == "annular jacket, gap 25 mm, spiral baffle pitch 100 mm"
+    assert f"(margin {chosen['margin']:.2f}, {chosen['pressure_drop'] / 1e5:.2f} bar)" in readme
+    assert not any(c["feasible"] for c in body["candidates"] if c["type"] == "annular")
+
+
+@pytest.mark.parametrize("change, field", [
+    ({"coolant": {"inlet_temperature": "50 degC"}}, "coolant.inlet_temperature"),
+    ({"options": {"jacket_top": "9 m"}}, "options.jacket_top"),
+    ({"charge": {"volume": "40 m^3"}}, "fill.volume"),
+])
+def test_errors_no_design_changes_are_the_requests_own(client, change, field):
+    body = copy.deepcopy(EXAMPLE)
+    for key, value in change.items():
+        body[key] = dict(body.get(key) or {}, **value)
+    if "charge" in change:
+        body["charge"] = {"fluid": "toluene", **change["charge"]}
+    response = client.post("/v1/jacket-sizing", json=body)
+    assert response.status_code == 422, response.json
+    assert [e["field"] for e in response.json["errors"]] == [field]  # as the cooling check names it
+
+
+def test_jacket_and_coil_only_when_no_jacket_alone_suffices():
+    from calc.checks.heat_load import heat_release_model
+
+    options = sizing.SizingOptions(gaps=(0.05,), baffle_pitches=(0.2,), pipe_sizes=("3",), zones=(1, 2),
+                                   coil_tube_sizes=("1-1/2",))
+
+    def run(power):
+        return sizing.jacket_sizing(SHELL, ARGS["charge"], ARGS["coolant"], ARGS["process_temperature"],
+                                    heat_release_model("total_power", power=power), 1.3, options)
+
+    easy, hard = run(30e3), run(150e3)
+    assert any(c.feasible for c in easy.candidates if c.type in sizing.JACKET_TYPES)
+    assert not any(c.type == "jacket_and_coil" for c in easy.candidates)
+    assert not any(c.feasible for c in hard.candidates if c.type in sizing.JACKET_TYPES)
+    combos = [c for c in hard.candidates if c.type == "jacket_and_coil"]
+    assert combos and any(w.code == "coil_shields_wall" for w in hard.warnings)
+    for combo in combos:  # a coil added to a jacket adds area and capacity (physics), and displaces liquid
+        alone = next(c for c in hard.candidates if c.type in sizing.JACKET_TYPES and c.jacket == combo.jacket)
+        assert combo.heat_transfer_area > alone.heat_transfer_area
+        assert combo.cooling_capacity > alone.cooling_capacity and combo.displaced_volume > 0
+
+
+def test_sizing_warnings_and_cautions():
+    result = sizing.jacket_sizing(ARGS["vessel"], ARGS["charge"], ARGS["coolant"], ARGS["process_temperature"],
+                                  ARGS["heat_release"], ARGS["safety_factor"])
+    assert "no_cooling_surface" not in {w.code for w in result.warnings}  # the bare shell is not a candidate
+    cautions = " ".join(result.cautions)
+    for phrase in ("Screening estimate", "reaction calorimetry", "licensed engineer", "pressure-vessel code",
+                   "accumulates"):  # the dosing caution rides along for a dosing step
+        assert phrase in cautions

@@ -136,7 +136,7 @@ def test_property_states_balance_and_alternate(ua, kref, Tc, order):
 
 @pytest.mark.parametrize("changes, field", [
     ({"volume": -1.0}, "volume"), ({"order": -1.0}, "order"), ({"grid_points": 3}, "grid_points"),
-    ({"temperature_range": (400.0, 300.0)}, "temperature_range"), ({"reaction_enthalpy": math.nan}, "reaction_enthalpy"),
+    ({"temperature_range": (400.0, 300.0)}, "maximum_temperature"), ({"reaction_enthalpy": math.nan}, "reaction_enthalpy"),
 ])
 def test_bad_input_names_the_field(changes, field):
     with pytest.raises(InputError) as info:

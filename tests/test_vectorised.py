@@ -11,6 +11,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from marshmallow import ValidationError
 from hypothesis import given, settings, strategies as st
 
 from calc.films import jacket_side
@@ -33,6 +34,7 @@ def _agree(vector, index, scalar):
     main = scalar.stream("jacket") or (scalar.streams[0] if scalar.streams else None)
     if main is not None:
         assert vector.outlet_temperature[index] == pytest.approx(main.balance.outlet_temperature, rel=RELATIVE)
+    assert vector.controlling[index] == scalar.controlling
     # both stop at the same iteration, or both run out of iterations (then both say so)
     assert vector.converged[index] == all(w.code != "iteration_not_converged" for w in scalar.warnings)
 
@@ -54,8 +56,12 @@ def _example_states():
                 states += [(path.name, v, args["charge"], args["coolant"], args["process_temperature"])
                            for v in vessels if hasattr(v, "shape")]
             elif {"vessel", "charge", "coolant", "process_temperature"} <= set(body):
+                body.pop("axes", None)  # an operating window: its check's state
                 schema = CoolingCheckRequestSchema() if "heat_release" in body else HeatTransferRequestSchema()
-                args = schema.load(body)
+                try:
+                    args = schema.load(body)
+                except ValidationError:  # another resource's request (e.g. jacket sizing): not a network state
+                    continue
                 states.append((path.name, args["vessel"], args["charge"], args["coolant"], args["process_temperature"]))
     return states
 
@@ -81,7 +87,7 @@ def test_every_example_and_neighbouring_states_agree_with_the_scalar_path(name, 
 def test_examples_together_in_one_pass_agree_one_by_one():
     # N different vessels (and coolants, contents) in one call: the sizing and screening use
     many = heat_transfer_many([s[1:] for s in EXAMPLE_STATES] * 2)
-    assert len(many) == 2 * len(EXAMPLE_STATES) and len(many.networks) == len(EXAMPLE_STATES)
+    assert len(many) == 2 * len(EXAMPLE_STATES) and len(many.networks) <= len(EXAMPLE_STATES)  # equal ones once
     for i, (_, vessel, charge, coolant, process) in enumerate(EXAMPLE_STATES * 2):
         _agree(many, i, heat_transfer(vessel, charge, coolant, process))
 

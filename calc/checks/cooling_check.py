@@ -17,13 +17,18 @@ heat-transfer network, because properties, films and U change with the quantity 
 * ``minimum_dosing_time`` (dosing model only): Q_load(t) = A / t + P_agitator with
   A = -dH n - m_feed c_p,feed (T_r - T_feed), so t_min = A / (Q_capacity / SF - P_agitator)
   (closed form; the capacity does not depend on the dosing time at a steady T_r).
-* ``maximum_coolant_inlet_temperature``: Brent's method on the inlet temperature between just above
-  the coolant's freezing point and T_r (the capacity falls to zero as the inlet approaches T_r).
-* ``required_coolant_flow``: Brent's method on log(jacket mass flow); coil flows change in
-  proportion. The capacity rises with flow toward the limit set by the area and the process film;
-  the search stops at the largest flow the utility can push (its available pressure difference,
-  maximum velocity and maximum flow: :mod:`calc.network.flow_limit`), or, when the utility gives no
-  limit, at :data:`FLOW_SEARCH_CAP` times the given flow (with a warning).
+* ``maximum_coolant_inlet_temperature``: the inlet temperature between just above the coolant's
+  freezing point and T_r (the capacity falls to zero as the inlet approaches T_r), to 1e-9 K.
+* ``required_coolant_flow``: log(jacket mass flow), to 1e-10; coil flows change in proportion. The
+  capacity rises with flow toward the limit set by the area and the process film; the search stops at
+  the largest flow the utility can push (its available pressure difference, maximum velocity and maximum
+  flow: :mod:`calc.network.flow_limit`), or, when the utility gives no limit, at
+  :data:`FLOW_SEARCH_CAP` times the given flow (with a warning).
+
+Both are searched together on the vectorised network (``calc.network.vectorised``): each pass solves
+every candidate of both in one call, a grid around the closed-form estimates until the sign changes,
+then Newton steps with slopes from neighbouring points (three or four passes in all, instead of a
+dozen scalar solves).
 
 When the given flow is beyond the utility's limits, the coolant-temperature limit is solved at the
 largest flow the utility allows, and the check warns (the capacity itself stays at the given flow).
@@ -33,13 +38,13 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field, replace
 
-from scipy.optimize import brentq
+import numpy as np
 
 from calc.deadline import NEVER, Deadline
-from calc.network import coolant_balance
+from calc.network import coolant_balance, vectorised
 from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
 from calc.network.flow_limit import FlowLimit, flow_limit
-from calc.network.heat_transfer import HeatTransferResult, heat_transfer
+from calc.network.heat_transfer import HeatTransferResult, Network, assemble, heat_transfer, solve
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
 
@@ -143,10 +148,6 @@ def evaluate(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
     return result, load
 
 
-def _capacity(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> float:
-    return heat_transfer(vessel, charge, coolant, process_temperature).duty
-
-
 def _minimum_dosing_time(heat_release: Dosing, process_temperature: float, capacity: float,
                          agitator_power: float, safety_factor: float) -> Limit:
     net_energy = heat_release.net_energy(process_temperature)
@@ -159,88 +160,6 @@ def _minimum_dosing_time(heat_release: Dosing, process_temperature: float, capac
                                   "cooling capacity divided by the safety factor", capacity)
     return Limit(net_energy / available, True,
                  "shortest dosing time whose heat load the vessel removes with the safety factor", capacity)
-
-
-def _solve(residual, start: float, step: float, low: float, high: float, increasing: bool, what: str,
-           deadline: Deadline = NEVER, **tolerances) -> tuple[float | None, float]:
-    """Root of a monotonic ``residual`` in [low, high], searched outward from the estimate ``start``.
-
-    Steps of ``step``, doubling, go the way the residual's sign points until it changes; Brent's
-    method then closes the bracket (calls are memoised, so its first two evaluations are free).
-    Returns (root, residual there), or (None, residual at the bound reached) when the sign never
-    changes: the root lies beyond ``low`` or ``high``. Each new evaluation first checks ``deadline``
-    (:class:`calc.deadline.OutOfTime` when it has passed).
-    """
-    memo: dict[float, float] = {}
-
-    def f(x: float) -> float:
-        if x not in memo:
-            deadline.check()
-            memo[x] = residual(x)
-        return memo[x]
-
-    x = min(max(start, low), high)
-    fx = f(x)
-    while fx != 0.0:
-        upward = (fx < 0.0) == increasing
-        if (upward and x >= high) or (not upward and x <= low):
-            return None, fx
-        nxt = min(x + step, high) if upward else max(x - step, low)
-        fn = f(nxt)
-        if (fn < 0.0) != (fx < 0.0) or fn == 0.0:
-            a, b = sorted((x, nxt))
-            try:
-                root = brentq(f, a, b, **tolerances)
-            except (ValueError, RuntimeError) as exc:  # pragma: no cover - the bracket changes sign
-                raise CalculationError(f"{what}: {exc}") from None
-            return root, f(root)
-        x, fx, step = nxt, fn, 2.0 * step
-    return x, fx
-
-
-def _maximum_inlet_temperature(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
-                               target: float, capacity: float, limit: FlowLimit,
-                               deadline: Deadline = NEVER) -> Limit:
-    at_flow = "at the given flow"
-    if limit.mass_flow is not None and limit.mass_flow < coolant.mass_flow():
-        coolant = coolant.with_mass_flow(limit.mass_flow)
-        capacity = _capacity(vessel, charge, coolant, process_temperature)
-        at_flow = (f"at {limit.mass_flow:.4g} kg/s, the largest flow within {limit.reason} "
-                   "(the given flow is beyond it)")
-    if target <= 0.0:
-        return Limit(process_temperature, True, "no net heat load: any coolant colder than the contents will do")
-    liquid_range = getattr(coolant.liquid, "liquid_range", None)
-    if liquid_range is not None:
-        freezing, boiling = liquid_range()
-        low = freezing + FREEZING_OFFSET
-        floor = "the coolant's freezing point"
-        high = min(process_temperature, boiling) - APPROACH
-    else:
-        low = max(process_temperature - EXPLICIT_COOLANT_SPAN, 1.0)
-        floor = f"{EXPLICIT_COOLANT_SPAN:g} K below the process temperature (no freezing point known)"
-        high = process_temperature - APPROACH
-    given = coolant.inlet_temperature
-    low = min(low, given)
-
-    def residual(inlet: float) -> float:
-        if inlet == given:
-            return capacity / target - 1.0
-        return _capacity(vessel, charge, replace(coolant, inlet_temperature=inlet), process_temperature) / target - 1.0
-
-    # At fixed U and coolant properties the capacity is proportional to T_r - T_in (calc.coolant):
-    # that estimate is close, since U changes little with the inlet temperature.
-    driving = process_temperature - given
-    estimate = process_temperature - driving * target / capacity if capacity > 0.0 else low
-    inlet, value = _solve(residual, estimate, 0.01 * driving, low, high, increasing=False,
-                          what="maximum coolant inlet temperature", deadline=deadline, xtol=1e-9, rtol=1e-11)
-    if inlet is None and value >= 0.0:
-        return Limit(high, True, "every inlet temperature up to the process temperature (or the coolant's "
-                                 "boiling point) removes the load with the safety factor", (value + 1.0) * target)
-    if inlet is None:
-        return Limit(None, False, f"not reachable: even a coolant inlet just above {floor} does not remove "
-                                  f"the load with the safety factor {at_flow}", (value + 1.0) * target)
-    return Limit(inlet, True, "warmest coolant inlet that removes the load with the safety factor "
-                              f"{at_flow}", (value + 1.0) * target)
 
 
 def _flow_estimate(result: HeatTransferResult, target: float) -> float:
@@ -263,52 +182,211 @@ def _flow_estimate(result: HeatTransferResult, target: float) -> float:
     return need.mass_flow * jacket / flow
 
 
-def _required_flow(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
-                   target: float, result: HeatTransferResult, limit: FlowLimit,
-                   deadline: Deadline = NEVER) -> Limit:
-    if target <= 0.0:
-        return Limit(0.0, True, "no net heat load: no coolant flow is needed")
-    given = coolant.mass_flow()
-    capacity = result.duty
+@dataclass
+class _Search:
+    """One monotonic root search x in [low, high] of residual(x) = capacity(x) / target - 1."""
 
-    results: dict[float, HeatTransferResult] = {}
+    low: float
+    high: float
+    estimate: float
+    step: float  # first spacing of the bracketing grid around the estimate
+    increasing: bool  # the residual rises with x
+    xtol: float
+    known: dict = field(default_factory=dict)  # x -> residual already evaluated
+    root: float | None = None
+    value: float | None = None  # residual at the root, or at the bound reached when there is none
+    done: bool = False
+    width: float | None = None  # of the bracket at the last pass
 
-    def residual(log_flow: float) -> float:
-        if log_flow == math.log(given):
-            return capacity / target - 1.0
-        if log_flow not in results:
-            results[log_flow] = heat_transfer(vessel, charge, coolant.with_mass_flow(math.exp(log_flow)),
-                                              process_temperature)
-        return results[log_flow].duty / target - 1.0
+    def bracket(self) -> tuple[float, float] | None:
+        points = sorted(self.known)
+        for a, b in zip(points, points[1:]):
+            if (self.known[a] < 0.0) != (self.known[b] < 0.0) or self.known[b] == 0.0:
+                return a, b
+        return None
 
-    estimate = math.log(_flow_estimate(result, target)) if result.streams else math.log(given)
-    high = math.log(given * FLOW_SEARCH_CAP if limit.mass_flow is None else limit.mass_flow)
-    # U A rises with the flow, so the fixed-U A estimate is off; one more closed-form estimate from the
-    # network solved at the first one shows how far, and sets the first step of the search.
-    step = math.log(1.2)
-    if result.streams and estimate < high:
+    def next_points(self, spread: float) -> list[float]:
+        """Where to evaluate next.
+
+        Until the sign changes: a grid around the estimate, then widening on the side the residual points
+        to. Then Newton's step from the bracket end nearest the root, with the slope from its nearest
+        evaluated neighbour (the secant of the bracket when that step leaves it, and the midpoint too when
+        the bracket stops halving), plus two neighbours ``spread`` of the step away, which bracket the
+        root tightly once the step is accurate and give the next slope.
+        """
+        found = self.bracket()
+        points = sorted(self.known)
+        if found is None:
+            upward = (self.known[points[0]] < 0.0) == self.increasing
+            edge = points[-1] if upward else points[0]
+            if (upward and edge >= self.high) or (not upward and edge <= self.low):
+                self.root, self.value, self.done = None, self.known[edge], True
+                return []
+            if len(points) == 1:  # first pass: a grid on both sides of the estimate
+                grid = [self.estimate + k * self.step for k in (-3, -1, 0, 1, 3)]
+            else:  # the residual has one sign everywhere so far: widen on the side it points to
+                width = max(points[-1] - points[0], self.step)
+                grid = [edge + (1 if upward else -1) * width * k for k in (1, 4, 16)]
+            return sorted({min(max(x, self.low), self.high) for x in grid} - set(self.known))
+        a, b = found
+        fa, fb = self.known[a], self.known[b]
+        best = a if abs(fa) <= abs(fb) else b
+        if self.known[best] == 0.0 or abs(self.known[best]) < RESIDUAL_TOLERANCE or b - a <= self.xtol:
+            self.root, self.value, self.done = best, self.known[best], True
+            return []
+        x = _newton_step(best, points, self.known)
+        wanted = set()
+        if x is None or not a < x < b:
+            x = a - fa * (b - a) / (fb - fa)
+            x = min(max(x, a), b)
+        if self.width is not None and b - a > 0.5 * self.width:
+            wanted.add(0.5 * (a + b))
+        self.width = b - a
+        delta = max(spread * abs(x - best), 0.5 * self.xtol)
+        wanted |= {x, max(x - delta, a), min(x + delta, b)}
+        return sorted(wanted - set(self.known))
+
+
+def _newton_step(best: float, points: list[float], known: dict) -> float | None:
+    """Root near ``best`` of the parabola through it and its nearest evaluated neighbours (the line through
+    one neighbour when it has only one), by Newton's method on that model; None when it is flat."""
+    near = sorted(sorted((x for x in points if x != best), key=lambda x: abs(x - best))[:2] + [best])
+    if len(near) < 2:
+        return None
+    if len(near) == 2:
+        (x0, x1), f0, f1 = near, known[near[0]], known[near[1]]
+        slope = (f1 - f0) / (x1 - x0)
+        return best - known[best] / slope if slope != 0.0 else None
+    x0, x1, x2 = near
+    d01 = (known[x1] - known[x0]) / (x1 - x0)
+    d12 = (known[x2] - known[x1]) / (x2 - x1)
+    curvature = (d12 - d01) / (x2 - x0)
+    x = best
+    for _ in range(8):  # on the model only: cheap
+        value = known[x0] + d01 * (x - x0) + curvature * (x - x0) * (x - x1)
+        slope = d01 + curvature * (2.0 * x - x0 - x1)
+        if slope == 0.0:
+            return None
+        step = value / slope
+        x -= step
+        if abs(step) <= 1e-15 * max(abs(x), 1.0):
+            break
+    return x
+
+
+#: The neighbours of each Newton point sit this share of its step away.
+SPREAD = 0.02
+#: A limit is solved when capacity / target - 1 is this small (the margin then equals the safety factor to
+#: this relative precision).
+RESIDUAL_TOLERANCE = 1e-8
+#: Most passes of the limit search (each pass solves every candidate of every limit in one vector call).
+MAX_PASSES = 16
+
+
+def _search(searches: list[_Search], evaluate, deadline: Deadline = NEVER) -> None:
+    """Run the searches together: each pass gathers every search's next points and solves them in one call.
+
+    ``evaluate(points)`` takes [(search index, x), ...] and returns the residuals. The secant root of a
+    smooth residual in a bracket of width w is off by about w^2 times its curvature, so each pass
+    shrinks the bracket to ``SPREAD`` of its width or better; three or four passes reach ``xtol``.
+    """
+    for _ in range(MAX_PASSES):
         deadline.check()
-        first = residual(estimate)
-        if first != 0.0 and results.get(estimate) is not None and results[estimate].streams:
-            again = math.log(_flow_estimate(results[estimate], target))
-            step = min(max(1.5 * abs(again - estimate), math.log(1.01)), math.log(4.0))
-    low = math.log(given) - 30.0 * math.log(10.0)
-    log_flow, value = _solve(residual, estimate, step, low, high,
-                             increasing=True, what="required coolant flow", deadline=deadline, xtol=1e-10, rtol=1e-11)
-    if log_flow is None and value < 0.0:
+        wanted = [(i, x) for i, search in enumerate(searches) if not search.done
+                  for x in search.next_points(SPREAD)]
+        if not wanted:
+            return
+        for (i, x), value in zip(wanted, evaluate(wanted)):
+            searches[i].known[x] = float(value)
+    unfinished = [search for search in searches if not search.done]
+    if unfinished:  # pragma: no cover - the secant passes converge long before
+        raise CalculationError(f"limit search did not converge in {MAX_PASSES} passes")
+
+
+def _inlet_search(network: Network, coolant: Coolant, target: float, capacity: float) -> tuple[_Search, str]:
+    """The inlet-temperature search at ``coolant``'s flow, given the capacity at its own inlet."""
+    process_temperature = network.process_temperature
+    liquid_range = getattr(coolant.liquid, "liquid_range", None)
+    if liquid_range is not None:
+        freezing, boiling = liquid_range()
+        low = freezing + FREEZING_OFFSET
+        floor = "the coolant's freezing point"
+        high = min(process_temperature, boiling) - APPROACH
+    else:
+        low = max(process_temperature - EXPLICIT_COOLANT_SPAN, 1.0)
+        floor = f"{EXPLICIT_COOLANT_SPAN:g} K below the process temperature (no freezing point known)"
+        high = process_temperature - APPROACH
+    given = coolant.inlet_temperature
+    low = min(low, given)
+    # At fixed U and coolant properties the capacity is proportional to T_r - T_in (calc.coolant):
+    # that estimate is close, since U changes little with the inlet temperature.
+    driving = process_temperature - given
+    estimate = process_temperature - driving * target / capacity if capacity > 0.0 else low
+    return _Search(low, high, min(max(estimate, low), high), 0.01 * driving, False, 1e-9,
+                   {given: capacity / target - 1.0}), floor
+
+
+def _solve_limits(network: Network, result: HeatTransferResult, target: float, limit: FlowLimit,
+                  deadline: Deadline = NEVER) -> tuple[Limit, Limit]:
+    """Warmest coolant inlet and required coolant flow, searched together on the vectorised network."""
+    coolant = network.coolant
+    given = coolant.mass_flow()
+    log_given = math.log(given)
+    prepared = vectorised.Prepared([network])
+    prepared.warm_start([result])
+    capacity = result.duty
+    inlet_flow = 1.0  # the inlet-temperature limit's flow, over the given
+    at_flow = "at the given flow"
+    if limit.mass_flow is not None and limit.mass_flow < given:
+        inlet_flow = limit.mass_flow / given
+        capacity = float(prepared.solve(np.zeros(1, dtype=int), None, np.array([inlet_flow])).duty[0])
+        at_flow = (f"at {limit.mass_flow:.4g} kg/s, the largest flow within {limit.reason} "
+                   "(the given flow is beyond it)")
+    inlet, floor = _inlet_search(network, coolant, target, capacity)
+    estimate = math.log(_flow_estimate(result, target)) if result.streams else log_given
+    high = math.log(given * FLOW_SEARCH_CAP if limit.mass_flow is None else limit.mass_flow)
+    low = log_given - 30.0 * math.log(10.0)
+    # U A rises with the flow, so the fixed-U A estimate is low; the grid around it brackets the root
+    flow = _Search(low, high, min(max(estimate, low), high), math.log(1.2), True, 1e-10,
+                   {log_given: result.duty / target - 1.0} if log_given <= high else {})
+    if not flow.known:  # the given flow is beyond the utility's limit: start from the limit
+        flow.known[high] = float(prepared.solve(np.zeros(1, dtype=int), None,
+                                                np.array([math.exp(high - log_given)])).duty[0]) / target - 1.0
+
+    def evaluate(points):
+        inlets = np.array([x if i == 0 else coolant.inlet_temperature for i, x in points])
+        factors = np.array([inlet_flow if i == 0 else math.exp(x - log_given) for i, x in points])
+        return prepared.solve(np.zeros(len(points), dtype=int), inlets, factors).duty / target - 1.0
+
+    _search([inlet, flow], evaluate, deadline)
+    if inlet.root is None and inlet.value >= 0.0:
+        warmest = Limit(inlet.high, True, "every inlet temperature up to the process temperature (or the coolant's "
+                                          "boiling point) removes the load with the safety factor",
+                        (inlet.value + 1.0) * target)
+    elif inlet.root is None:
+        warmest = Limit(None, False, f"not reachable: even a coolant inlet just above {floor} does not remove "
+                                     f"the load with the safety factor {at_flow}", (inlet.value + 1.0) * target)
+    else:
+        warmest = Limit(inlet.root, True, "warmest coolant inlet that removes the load with the safety factor "
+                                          f"{at_flow}", (inlet.value + 1.0) * target)
+    if flow.root is None and flow.value < 0.0:
         if limit.mass_flow is not None:
-            return Limit(None, False, f"not reachable within {limit.reason}: the largest flow it allows "
-                                      f"({limit.mass_flow:.4g} kg/s) does not remove the load with the safety factor "
-                                      "(capacity shown at that flow)", (value + 1.0) * target)
-        return Limit(None, False, "not reachable at any flow: the area and process film limit the capacity "
-                                  f"(shown at {FLOW_SEARCH_CAP:g} times the given flow; the utility gave no "
-                                  "available pressure difference, maximum velocity or maximum flow)",
-                     (value + 1.0) * target)
-    if log_flow is None:  # pragma: no cover - capacity ~ m c_p (T_r - T_in) vanishes long before 1e-30 of the flow
+            needed = Limit(None, False, f"not reachable within {limit.reason}: the largest flow it allows "
+                                        f"({limit.mass_flow:.4g} kg/s) does not remove the load with the safety "
+                                        "factor (capacity shown at that flow)", (flow.value + 1.0) * target)
+        else:
+            needed = Limit(None, False, "not reachable at any flow: the area and process film limit the capacity "
+                                        f"(shown at {FLOW_SEARCH_CAP:g} times the given flow; the utility gave no "
+                                        "available pressure difference, maximum velocity or maximum flow)",
+                           (flow.value + 1.0) * target)
+    elif flow.root is None:  # pragma: no cover - capacity ~ m c_p (T_r - T_in) vanishes long before 1e-30 of the flow
         raise CalculationError("required coolant flow: no flow low enough to fall short of the load")
-    within = "" if limit.mass_flow is None else f", within {limit.reason} (at most {limit.mass_flow:.4g} kg/s)"
-    return Limit(math.exp(log_flow), True, "jacket coolant mass flow that removes the load with the safety factor "
-                                           f"(coil flows in proportion){within}", (value + 1.0) * target)
+    else:
+        within = "" if limit.mass_flow is None else f", within {limit.reason} (at most {limit.mass_flow:.4g} kg/s)"
+        needed = Limit(math.exp(flow.root), True, "jacket coolant mass flow that removes the load with the safety "
+                                                  f"factor (coil flows in proportion){within}",
+                       (flow.value + 1.0) * target)
+    return warmest, needed
 
 
 def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
@@ -321,7 +399,9 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     once ``deadline`` has passed.
     """
     safety_factor = _check_safety_factor(safety_factor)
-    result, load = evaluate(vessel, charge, coolant, process_temperature, heat_release)
+    network = assemble(vessel, charge, coolant, process_temperature)
+    result = solve(network)
+    load = heat_load(heat_release, charge_mass(result), process_temperature, result.agitation.power)
     capacity = result.duty
     margin = margin_of(capacity, load.total)
     adequate = margin is None or margin >= safety_factor
@@ -346,11 +426,13 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         dosing = None
         if isinstance(heat_release, Dosing):
             dosing = _minimum_dosing_time(heat_release, process_temperature, capacity, load.agitator, safety_factor)
-        solved = Limits(dosing,
-                        _maximum_inlet_temperature(vessel, charge, coolant, process_temperature, target, capacity,
-                                                   limit, deadline),
-                        _required_flow(vessel, charge, coolant, process_temperature, target, result, limit,
-                                       deadline))
+        if target <= 0.0:
+            warmest = Limit(process_temperature, True, "no net heat load: any coolant colder than the contents "
+                                                       "will do")
+            needed = Limit(0.0, True, "no net heat load: no coolant flow is needed")
+        else:
+            warmest, needed = _solve_limits(network, result, target, limit, deadline)
+        solved = Limits(dosing, warmest, needed)
     cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ())
     if getattr(heat_release, "endothermic", False):
         cautions += (ENDOTHERMIC_CAUTION,)

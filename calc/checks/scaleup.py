@@ -40,10 +40,11 @@ from calc.vessel import agitation as agitation_module
 from calc.vessel import geometry
 from calc.checks.cooling_check import CAUTIONS, DEFAULT_SAFETY_FACTOR, DOSING_CAUTION, CoolingCheck, _check_safety_factor, \
     cooling_check, evaluate, margin_of
-from calc.checks.heat_load import Dosing, HeatRelease
+from calc.checks.heat_load import Dosing, HeatRelease, heat_load
+from calc.network import vectorised
 from calc.properties import LiquidProperties
 from calc.sizing.jacket_sizing import jacket_sizing
-from calc.validity import CalcWarning, CalculationError, InputError, Warnings
+from calc.validity import CalcWarning, CalculationError, InputError, Warnings, fields_renamed
 from calc.vessel.model import Charge, Coolant, Vessel
 
 RULES = tuple(sorted(agitation_module.SCALE_UP_RULES)) + ("as_given",)
@@ -173,7 +174,7 @@ def _speed_for_power_per_volume(vessel: Vessel, props: LiquidProperties, volume:
 
 def _given(reference: _Reference, vessel: Vessel, index: int, rule: str, coolant_rule: str, warnings: Warnings):
     """An explicit target vessel: its charge, coolant, heat release and agitator speed under ``rule``."""
-    field_name = f"targets.{index}"
+    field_name = f"targets[{index}]"
     if vessel.agitator is None:
         raise InputError(f"{field_name}.vessel.agitator", "an explicit target vessel needs its agitator")
     vessel.agitator.validate()
@@ -210,8 +211,51 @@ def _check_targets(targets) -> list:
             continue
         if isinstance(target, bool) or not isinstance(target, (int, float)) or not math.isfinite(target) \
                 or target <= 0:
-            raise InputError(f"targets.{i}.volume", f"must be a positive volume or a vessel, got {target!r}")
+            raise InputError(f"targets[{i}].volume", f"must be a positive volume or a vessel, got {target!r}")
     return targets
+
+
+def _scan(reference: _Reference, rule: str, coolant_rule: str, safety_factor: float, grid: list[float],
+          memo: dict, deadline: Deadline) -> None:
+    """The family's scan points solved together on the vectorised network, into ``memo`` as ``state`` would."""
+    if not grid:
+        return
+    deadline.check()
+    similar = [_similar(reference, math.exp(x), rule, coolant_rule) for x in grid]
+    cases = [(vessel, charge, coolant, reference.process_temperature) for vessel, charge, _, coolant, _, _ in similar]
+    solved = vectorised.heat_transfer_many(cases)
+    for i, (x, (_, _, _, _, heat_release, _)) in enumerate(zip(grid, similar)):
+        network = solved.networks[solved.network_index[i]]
+        load = heat_load(heat_release, network.fill.volume * network.process_properties.density,
+                         reference.process_temperature, network.agitation.power)
+        margin = margin_of(float(solved.duty[i]), load.total)
+        value = 10.0 if margin is None else (math.log(margin / safety_factor) if margin > 0 else -50.0)
+        memo[x] = (value, solved.controlling[i])
+
+
+def _target_scale(ref: _Reference, target, own_coolant: Coolant | None, i: int, rule: str, coolant_flow_rule: str,
+                  process_temperature: float, safety_factor: float, limits: bool, deadline: Deadline,
+                  warnings: Warnings, size_jacket: bool = False) -> ScaleResult:
+    """The cooling check of target ``i``: an explicit vessel (with its own coolant, if given) or a volume."""
+    if isinstance(target, Vessel):
+        vessel, scaled_charge, charge_volume, scaled_coolant, release, factor, volume = \
+            _given(ref, target, i, rule, coolant_flow_rule, warnings)
+        if own_coolant is not None:
+            scaled_coolant = own_coolant
+        generated = False
+    else:
+        volume = float(target)
+        vessel, scaled_charge, charge_volume, scaled_coolant, release, factor = \
+            _similar(ref, volume, rule, coolant_flow_rule)
+        generated = True
+    check = cooling_check(vessel, scaled_charge, scaled_coolant, process_temperature, release,
+                          safety_factor, limits, deadline)
+    design = None
+    if size_jacket and generated:
+        design = jacket_sizing(vessel, scaled_charge, scaled_coolant, process_temperature, release,
+                               safety_factor, deadline=deadline).recommended
+    return ScaleResult(vessel.name, volume, charge_volume, factor, generated, vessel.agitator.speed,
+                       vessel, scaled_coolant, check, design)
 
 
 def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_factor: float, upper: float,
@@ -237,6 +281,7 @@ def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_f
                  reference_check.heat_transfer.controlling)
     count = max(2, int(math.ceil((high - low) / math.log(10.0) * SCAN_POINTS_PER_DECADE)))
     grid = [low + (high - low) * i / count for i in range(count + 1)]
+    _scan(reference, rule, coolant_rule, safety_factor, [x for x in grid if x not in memo], memo, deadline)
     states = [state(x) for x in grid]
 
     switches = []
@@ -293,14 +338,15 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
     targets = _check_targets(targets)
     warnings = Warnings()
 
-    first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits,
-                          deadline)
+    with fields_renamed({"vessel": "reference"}):
+        first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits,
+                              deadline)
     result = first.heat_transfer
     ref = _Reference(reference, charge, coolant, heat_release, process_temperature, result.fill.brim_volume,
                      result.fill.volume, result.fill.heat_transfer_area, result.process_properties,
                      result.agitation.power_per_volume)
     if not ref.area > 0.0 and coolant_flow_rule == "scale_with_area":
-        raise InputError("vessel", "the reference vessel has no heat-transfer area at its fill; "
+        raise InputError("reference", "the reference vessel has no heat-transfer area at its fill; "
                                    "the coolant flow cannot be scaled with the area")
     scales = [ScaleResult(reference.name, ref.volume, ref.charge_volume, 1.0, False, reference.agitator.speed,
                           reference, coolant, first)]
@@ -309,25 +355,13 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
         own_coolant = None
         if isinstance(target, tuple):  # (vessel, its own utility)
             target, own_coolant = target
-        if isinstance(target, Vessel):
-            vessel, scaled_charge, charge_volume, scaled_coolant, release, factor, volume = \
-                _given(ref, target, i, rule, coolant_flow_rule, warnings)
-            if own_coolant is not None:
-                scaled_coolant = own_coolant
-            generated = False
-        else:
-            volume = float(target)
-            vessel, scaled_charge, charge_volume, scaled_coolant, release, factor = \
-                _similar(ref, volume, rule, coolant_flow_rule)
-            generated = True
-        check = cooling_check(vessel, scaled_charge, scaled_coolant, process_temperature, release,
-                              safety_factor, limits, deadline)
-        design = None
-        if size_jacket and generated:
-            design = jacket_sizing(vessel, scaled_charge, scaled_coolant, process_temperature, release,
-                                   safety_factor, deadline=deadline).recommended
-        scales.append(ScaleResult(vessel.name, volume, charge_volume, factor, generated, vessel.agitator.speed,
-                                  vessel, scaled_coolant, check, design))
+        # the request's own paths: an explicit target is targets[i].vessel (+ .coolant), a generated one its volume
+        renamed = ({"vessel": f"targets[{i}].vessel"}
+                   | ({"coolant": f"targets[{i}].coolant"} if own_coolant is not None else {})
+                   if isinstance(target, Vessel) else {"vessel": f"targets[{i}].volume"})
+        with fields_renamed(renamed):
+            scales.append(_target_scale(ref, target, own_coolant, i, rule, coolant_flow_rule, process_temperature,
+                                        safety_factor, limits, deadline, warnings, size_jacket))
 
     largest_target = max((s.volume for s in scales), default=ref.volume)
     upper = max(ref.volume * SEARCH_RATIO, 10.0 * largest_target)

@@ -187,7 +187,7 @@ def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant
     ('turbulent', 50848)
     """
     require_positive("coolant.flow", mass_flow)
-    require_positive("coolant.viscosity_at_wall", mu_wall)
+    require_positive("coolant", mu_wall)  # the coolant's viscosity at the wall
     formula = coil_film_formula(tube_inner_diameter, helix_diameter, pitch, parallel_tubes, correlation)
     warnings = Warnings()
     flow = formula.function(coolant_props, mass_flow * formula.flow_share, mu_wall, None, **formula.fixed)
@@ -223,7 +223,7 @@ def coil_film_formula(tube_inner_diameter: float, helix_diameter: float, pitch: 
     if correlation not in COIL_CORRELATIONS:
         raise InputError("vessel.coils.correlation", f"unknown option {correlation!r}; known: "
                                                      f"{', '.join(COIL_CORRELATIONS)}")
-    d = require_positive("vessel.coils.tube_inner_diameter", tube_inner_diameter)
+    d = require_positive("vessel.coils.tube_wall", tube_inner_diameter)  # the bore left by the wall
     D_c = require_positive("vessel.coils.helix_diameter", helix_diameter)
     if D_c <= d:
         raise InputError("vessel.coils.helix_diameter", "must exceed the tube diameter")

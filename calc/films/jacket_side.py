@@ -695,7 +695,7 @@ def service_film_jacket(jacket: JacketSpec, coolant_props: LiquidProperties, mas
     (2922, 'Lehrer (1970)')
     """
     require_positive("coolant.flow", mass_flow)
-    require_positive("coolant.viscosity_at_wall", mu_wall)
+    require_positive("coolant", mu_wall)  # the coolant's viscosity at the wall
     formula, warnings = jacket_film_formula(jacket, vessel_outer_diameter, jacket_height)
     flow = formula.function(coolant_props, mass_flow * formula.flow_share, mu_wall, rho_wall,
                             beta=expansion_coefficient, dT=temperature_rise, warnings=warnings, **formula.fixed)

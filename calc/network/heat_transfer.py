@@ -28,7 +28,7 @@ from calc.films import jacket_side as service_side
 from calc.films import wall
 from calc.hydraulics import paths
 from calc.properties import LiquidProperties
-from calc.validity import CalcWarning, InputError, Warnings
+from calc.validity import CalcWarning, InputError, Warnings, fields_renamed
 from calc.vessel.model import Charge, Coolant, Vessel
 
 TOLERANCE = 1e-6  # K
@@ -276,7 +276,8 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
                          f"({coolant.inlet_temperature - 273.15:.2f} degC >= {process_temperature - 273.15:.2f} degC)")
     props = charge.liquid.at(process_temperature, field="process_temperature")
     volume = charge.liquid_volume(process_temperature)
-    filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume)
+    filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume,
+                           field="charge.volume" if charge.volume is not None else "charge.mass")
     warnings.extend_unique(filled.warnings)
     stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
     warnings.extend_unique(stirred.warnings)
@@ -325,6 +326,8 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         coil_wall = replace(vessel.wall, thickness=coil.tube_wall, lining_thickness=0.0, lining_conductivity=None)
         if wall.material(coil_wall.material).lining_thickness:  # a glass-lined vessel's coils are alloy
             coil_wall = replace(coil_wall, material="stainless_316l")
+        with fields_renamed({"vessel.coils": f"vessel.coils[{index}]"}):
+            formula = coil_side.coil_film_formula(coil.tube_inner_diameter, coil.helix_diameter, pitch=coil.pitch)
         model = _SurfaceModel(
             f"coil_{index}", area, coil_wall, coil.tube_outer_diameter / 2.0, "outside",
             lambda mu_w, _coil=coil: process_side.process_film_coil(
@@ -333,7 +336,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
             lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
                 _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
                 pitch=_coil.pitch),
-            coil_side.coil_film_formula(coil.tube_inner_diameter, coil.helix_diameter, pitch=coil.pitch))
+            formula)
         streams.append(StreamModel(f"coil_{index}", coolant.coil_mass_flow(), (model,), paths.coil_path(coil)))
     if not streams:
         warnings.add(CalcWarning("no_cooling_surface", "no wetted jacket or coil area: the vessel cannot be cooled"))
@@ -347,13 +350,22 @@ def heat_transfer(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     states at once (grids, limits, candidates, fleets) see ``calc.network.vectorised``; a test keeps
     the two in agreement.
     """
-    network = assemble(vessel, charge, coolant, process_temperature)
+    return solve(assemble(vessel, charge, coolant, process_temperature))
+
+
+def solve(network: Network) -> HeatTransferResult:
+    """Solve an assembled network (one state, the scalar path)."""
     warnings = Warnings(network.warnings)
-    streams = tuple(_solve_stream(stream.name, list(stream.surfaces), charge, coolant, stream.mass_flow,
-                                  process_temperature, vessel.fouling, warnings, stream.path)
-                    for stream in network.streams)
-    return HeatTransferResult(process_temperature, network.process_properties, network.fill, network.agitation,
-                              streams, warnings)
+    solved = []
+    for stream in network.streams:
+        # a coil's errors name its place in the request: vessel.coils[i]
+        coil = {"vessel.coils": f"vessel.coils[{stream.name[5:]}]"} if stream.name.startswith("coil_") else {}
+        with fields_renamed(coil):
+            solved.append(_solve_stream(stream.name, list(stream.surfaces), network.charge, network.coolant,
+                                        stream.mass_flow, network.process_temperature, network.vessel.fouling,
+                                        warnings, stream.path))
+    return HeatTransferResult(network.process_temperature, network.process_properties, network.fill,
+                              network.agitation, tuple(solved), warnings)
 
 
 

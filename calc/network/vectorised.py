@@ -16,6 +16,8 @@ Entry points
     flow times ``flow_factor[i]`` (default 1). Operating points of one vessel (a grid over coolant
     inlet temperature and flow, the solved limits), N vessels or jacket designs (candidates, a fleet),
     or N alternatives of one (an ensemble) are all this call.
+``Prepared(networks).solve(...)``
+    The same, with the networks set up once for several calls (the limit searches).
 ``heat_transfer_many(cases)``
     The same for a list of ``(vessel, charge, coolant, process_temperature)``; equal cases are
     assembled once.
@@ -52,6 +54,7 @@ class ManyResult:
     outlet_temperature: np.ndarray  # K, the main stream (jacket, else the first coil); NaN without one
     iterations: np.ndarray  # most iterations any of the state's streams took
     converged: np.ndarray  # bool, every stream of the state settled within MAX_ITERATIONS
+    controlling: np.ndarray  # the largest resistance on the surface with the most U A ("none": no surface)
     networks: tuple[Network, ...]
     network_index: np.ndarray  # which network each state solved
 
@@ -116,175 +119,265 @@ def _take(props: LiquidProperties, rows) -> LiquidProperties:
                             props.viscosity[rows], props.thermal_conductivity[rows])
 
 
+class Prepared:
+    """Networks set up for the vectorised solve: every stream and surface as a template row, once.
+
+    Build it once and call :meth:`solve` as often as needed (the limit searches solve the same network
+    at new coolant states several times); ``solve_many`` builds one per call.
+    """
+
+    def __init__(self, networks: Sequence[Network]):
+        self.networks = tuple(networks)
+        charge_liquids: list = []
+        coolant_liquids: list = []
+        streams_t: list[tuple] = []  # (flow, per volume?, coolant liquid index, process temperature)
+        surfaces_t: list[tuple] = []  # (stream template, area, charge liquid, bulk props, film, formula, layers)
+        self.network_streams: list[np.ndarray] = []
+        self.network_surfaces: list[np.ndarray] = []
+        self.network_local: list[np.ndarray] = []
+        for network in self.networks:
+            charge_i = _index(charge_liquids, network.charge.liquid)
+            coolant_i = _index(coolant_liquids, network.coolant.liquid)
+            props = network.process_properties
+            streams, surfaces = [], []
+            for stream in network.streams:
+                streams.append(len(streams_t))
+                # a volume flow is converted with the density at the inlet: it moves with the inlet temperature
+                coolant = network.coolant
+                volume = coolant.flow_kind != "mass"
+                flow = stream.mass_flow
+                if volume:
+                    flow = coolant.flow if stream.name == "jacket" or coolant.coil_flow is None else coolant.coil_flow
+                follows = stream.name == "jacket" or coolant.coil_flow is None  # moves with coolant.flow
+                streams_t.append((flow, volume, coolant_i, network.process_temperature, follows))
+                for model in stream.surfaces:
+                    film = model.process_film(props.viscosity)  # at ratio 1: the correlation's other arguments
+                    layer, _ = wall.wall_layers(model.wall, network.vessel.fouling, model.process_radius,
+                                                model.process_side)
+                    surfaces.append(len(surfaces_t))
+                    surfaces_t.append((streams[-1], model.area, charge_i, props, film, model.service_formula, layer))
+            self.network_streams.append(np.array(streams, dtype=int))
+            self.network_surfaces.append(np.array(surfaces, dtype=int))
+            self.network_local.append(np.searchsorted(streams, [surfaces_t[t][0] for t in surfaces]).astype(int))
+        self.charge_liquids, self.coolant_liquids = charge_liquids, coolant_liquids
+        if streams_t:
+            flows, per_volume, coolant_of, temperatures, follows = (np.array(column) for column in zip(*streams_t))
+            self.flows, self.per_volume, self.follows = flows.astype(float), per_volume.astype(bool), follows.astype(bool)
+            self.coolant_of, self.temperatures = coolant_of.astype(int), temperatures.astype(float)
+        if not surfaces_t:
+            return
+        self.area = np.array([t[1] for t in surfaces_t])
+        self.surface_charge = np.array([t[2] for t in surfaces_t], dtype=int)
+        self.mu_bulk = np.array([t[3].viscosity for t in surfaces_t])
+        self.k_bulk = np.array([t[3].thermal_conductivity / t[4].length for t in surfaces_t])
+        self.share = np.array([t[5].flow_share for t in surfaces_t])
+        self.layers = wall.WallLayers(*(np.array(column) for column in zip(*(t[6] for t in surfaces_t))))
+        # correlation groups: one array call per correlation (and per option string) for all rows using it
+        self.process_group = np.empty(len(surfaces_t), dtype=int)
+        self.process_position = np.empty(len(surfaces_t), dtype=int)
+        self.process_groups = []
+        for g, (key, templates) in enumerate(_groups([(t[4].constants.correlation, tuple(t[4].arguments))
+                                                      for t in surfaces_t])):
+            self.process_group[templates] = g
+            self.process_position[templates] = np.arange(templates.size)
+            self.process_groups.append((process_side.CORRELATIONS[key[0]].function,
+                                        _stack([surfaces_t[t][4].arguments for t in templates])))
+        self.service_group = np.empty(len(surfaces_t), dtype=int)
+        self.service_position = np.empty(len(surfaces_t), dtype=int)
+        self.service_groups = []
+        keys = [(t[5].function, tuple(sorted((k, v) for k, v in t[5].fixed.items() if isinstance(v, str))))
+                for t in surfaces_t]
+        for g, (key, templates) in enumerate(_groups(keys)):
+            self.service_group[templates] = g
+            self.service_position[templates] = np.arange(templates.size)
+            numbers = _stack([{k: v for k, v in surfaces_t[t][5].fixed.items() if not isinstance(v, str)}
+                              for t in templates])
+            self.service_groups.append((key[0], numbers, dict(key[1])))
+        self.start = None  # warm start: see warm_start
+        self.coolant_range = np.array([_range(liquid) for liquid in coolant_liquids]) + [1e-3, -1e-2]
+        self.charge_range = np.array([_range(liquid) for liquid in charge_liquids]) + [1e-3, -1e-2]
+
+    def warm_start(self, results: Sequence) -> None:
+        """Start later solves from solved states (one scalar ``HeatTransferResult`` per network, in order).
+
+        Each stream starts with its mean coolant and wall temperatures at the same fractions of the
+        driving force T_r - T_in as in the solved state, which cuts the iterations for nearby states
+        (the limit searches). The answer stays the fixed point to ``TOLERANCE``; it is no longer the
+        scalar path's iterate bit for bit, so grids that must match the scalar path start cold.
+        """
+        mean, process, service = [], [], []
+        for network, result in zip(self.networks, results):
+            for stream in result.streams:
+                driving = network.process_temperature - stream.balance.inlet_temperature
+                mean.append((network.process_temperature - stream.mean_temperature) / driving)
+                for surface in stream.surfaces:
+                    process.append((network.process_temperature - surface.process_wall_temperature) / driving)
+                    service.append((network.process_temperature - surface.service_wall_temperature) / driving)
+        self.start = (np.array(mean), np.array(process), np.array(service))
+
+    def solve(self, network_index=None, inlet_temperature=None, flow_factor=None,
+              coil_flow_factor=None) -> ManyResult:
+        """Solve N states; see the module notes for the arguments.
+
+        ``coil_flow_factor`` (default: ``flow_factor``) multiplies the flow of coils that have a flow of
+        their own (``coolant.coil_flow``); coils without one follow the jacket's ``flow_factor``.
+        """
+        networks = self.networks
+        if network_index is None:
+            network_index = np.arange(len(networks))
+        network_index = np.asarray(network_index, dtype=int).ravel()
+        size = max(network_index.size, np.size(inlet_temperature) if inlet_temperature is not None else 0,
+                   np.size(flow_factor) if flow_factor is not None else 0)
+        network_index = np.broadcast_to(network_index, (size,))
+        inlet = np.array([n.coolant.inlet_temperature for n in networks])[network_index] \
+            if inlet_temperature is None else np.broadcast_to(np.asarray(inlet_temperature, dtype=float), (size,))
+        factor = np.ones(size) if flow_factor is None else \
+            np.broadcast_to(np.asarray(flow_factor, dtype=float), (size,))
+        coil_factor = factor if coil_flow_factor is None else \
+            np.broadcast_to(np.asarray(coil_flow_factor, dtype=float), (size,))
+
+        # rows: one per stream of each state, one per surface of each stream (a stream's surfaces adjacent)
+        stream_rows, stream_state, surface_rows, surface_stream = [], [], [], []
+        first_stream = np.full(size, -1)
+        offset = 0
+        for n, (streams, surfaces, local) in enumerate(zip(self.network_streams, self.network_surfaces,
+                                                           self.network_local)):
+            states = np.flatnonzero(network_index == n) if len(networks) > 1 else np.arange(size)
+            if not states.size or not streams.size:
+                continue
+            k = streams.size
+            stream_rows.append(np.tile(streams, states.size))
+            stream_state.append(np.repeat(states, k))
+            first_stream[states] = offset + k * np.arange(states.size)
+            surface_rows.append(np.tile(surfaces, states.size))
+            surface_stream.append(offset + np.repeat(k * np.arange(states.size), surfaces.size)
+                                  + np.tile(local, states.size))
+            offset += k * states.size
+        if offset == 0 or not surface_rows or not np.concatenate(surface_rows).size:
+            nothing = np.zeros(size)
+            return ManyResult(nothing, nothing.copy(), nothing.copy(), np.full(size, np.nan),
+                              np.zeros(size, dtype=int), np.ones(size, dtype=bool),
+                              np.full(size, "none", dtype=object), networks, network_index)
+        tstream = np.concatenate(stream_rows)
+        stream_state = np.concatenate(stream_state)
+        tsurface = np.concatenate(surface_rows)
+        sid = np.concatenate(surface_stream)
+        if len(networks) > 1:
+            order = np.argsort(sid, kind="stable")  # a stream's surfaces adjacent, in their own order
+            tsurface, sid = tsurface[order], sid[order]
+        return self._iterate(size, network_index, inlet, factor, coil_factor, tstream, stream_state, tsurface, sid,
+                             first_stream)
+
+    def _iterate(self, size, network_index, inlet, factor, coil_factor, tstream, stream_state, tsurface, sid,
+                 first_stream):
+        n_streams = tstream.size
+        t_in = inlet[stream_state]
+        t_r = self.temperatures[tstream]
+        stream_coolant = self.coolant_of[tstream]
+        coolant = _ByLiquid(self.coolant_liquids, stream_coolant)
+        m = self.flows[tstream]
+        if self.per_volume.any():
+            m = np.where(self.per_volume[tstream], m * coolant.states(t_in).density, m)
+        m = m * np.where(self.follows[tstream], factor[stream_state], coil_factor[stream_state])
+        area = self.area[tsurface]
+        mu_bulk = self.mu_bulk[tsurface]
+        k_bulk = self.k_bulk[tsurface]
+        flow_rows = m[sid] * self.share[tsurface]
+        layers = wall.WallLayers(*(column[tsurface] for column in self.layers))
+        process = []
+        for g, (function, stacked) in enumerate(self.process_groups):
+            rows = np.flatnonzero(self.process_group[tsurface] == g) if len(self.process_groups) > 1 else None
+            position = self.process_position[tsurface if rows is None else tsurface[rows]]
+            process.append((function, rows, {name: value[position] for name, value in stacked.items()}))
+        service = []
+        for g, (function, numbers, strings) in enumerate(self.service_groups):
+            rows = np.flatnonzero(self.service_group[tsurface] == g) if len(self.service_groups) > 1 else None
+            position = self.service_position[tsurface if rows is None else tsurface[rows]]
+            service.append((function, rows, {**{name: value[position] for name, value in numbers.items()},
+                                             **strings}))
+        coolant_rows = _ByLiquid(self.coolant_liquids, stream_coolant[sid])
+        charge = _ByLiquid(self.charge_liquids, self.surface_charge[tsurface])
+        c_low, c_high = self.coolant_range[stream_coolant].T
+        p_low, p_high = self.charge_range[self.surface_charge[tsurface]].T
+        c_low_rows, c_high_rows = c_low[sid], c_high[sid]
+        t_r_rows = t_r[sid]
+
+        if self.start is None:  # where the scalar path starts
+            mean = t_in.copy()
+            process_wall = 0.5 * (t_r_rows + t_in[sid])
+            service_wall = process_wall.copy()
+        else:
+            mean = t_r - self.start[0][tstream] * (t_r - t_in)
+            process_wall = t_r_rows - self.start[1][tsurface] * (t_r_rows - t_in[sid])
+            service_wall = t_r_rows - self.start[2][tsurface] * (t_r_rows - t_in[sid])
+        active = np.ones(n_streams, dtype=bool)
+        duty = np.zeros(n_streams)
+        ua = np.zeros(n_streams)
+        outlet = np.zeros(n_streams)
+        iterations = np.zeros(n_streams, dtype=int)
+        h_process = np.empty(sid.size)
+        h_service = np.empty(sid.size)
+        starts = np.flatnonzero(np.r_[True, sid[1:] != sid[:-1]])
+        for iteration in range(1, MAX_ITERATIONS + 1):
+            state = coolant.states(np.clip(mean, c_low, c_high))
+            ratio = mu_bulk / charge.states(np.clip(process_wall, p_low, p_high)).viscosity
+            for function, rows, arguments in process:
+                if rows is None:
+                    h_process[:] = function(viscosity_ratio=ratio, **arguments) * k_bulk
+                else:
+                    h_process[rows] = function(viscosity_ratio=ratio[rows], **arguments) * k_bulk[rows]
+            at_wall = coolant_rows.states(np.clip(service_wall, c_low_rows, c_high_rows))
+            bulk = _take(state, sid)
+            for function, rows, fixed in service:
+                if rows is None:
+                    h_service[:] = function(bulk, flow_rows, at_wall.viscosity, at_wall.density, **fixed)[0]
+                else:
+                    h_service[rows] = function(_take(bulk, rows), flow_rows[rows], at_wall.viscosity[rows],
+                                               at_wall.density[rows], **fixed)[0]
+            overall = wall.overall_from_layers(h_process, h_service, layers)
+            new_ua = np.bincount(sid, overall.U * area, minlength=n_streams)
+            new_outlet, new_duty, _, _ = single_pass(t_r, t_in, new_ua, m * state.heat_capacity)
+            new_mean = 0.5 * (t_in + new_outlet)
+            temperatures = wall.interface_temperatures(overall, t_r_rows, new_mean[sid])
+            change = np.maximum(np.abs(new_mean - mean), np.maximum.reduceat(
+                np.maximum(np.abs(temperatures.process_surface - process_wall),
+                           np.abs(temperatures.service_surface - service_wall)), starts))
+            duty = np.where(active, new_duty, duty)
+            ua = np.where(active, new_ua, ua)
+            outlet = np.where(active, new_outlet, outlet)
+            iterations = np.where(active, iteration, iterations)
+            mean = np.where(active, new_mean, mean)
+            rows_active = active[sid]
+            process_wall = np.where(rows_active, temperatures.process_surface, process_wall)
+            service_wall = np.where(rows_active, temperatures.service_surface, service_wall)
+            active &= ~(change < TOLERANCE)
+            if not active.any():
+                break
+
+        total_duty = np.bincount(stream_state, duty, minlength=size)
+        total_ua = np.bincount(stream_state, ua, minlength=size)
+        total_area = np.bincount(stream_state, np.bincount(sid, area, minlength=n_streams), minlength=size)
+        main_outlet = np.where(first_stream >= 0, outlet[np.maximum(first_stream, 0)], np.nan)
+        most = np.zeros(size, dtype=int)
+        np.maximum.at(most, stream_state, iterations)
+        unsettled = np.zeros(size, dtype=bool)
+        np.logical_or.at(unsettled, stream_state, active)
+        # as HeatTransferResult.controlling: the largest layer (first in LAYERS on a tie) of the surface
+        # carrying the most U A (first on a tie)
+        row_state = stream_state[sid]
+        order = np.lexsort((np.arange(sid.size), -(overall.U * area), row_state))
+        first = order[np.r_[True, row_state[order][1:] != row_state[order][:-1]]]
+        layers = np.array([np.broadcast_to(overall.resistances[name], sid.shape) for name in wall.LAYERS])
+        controlling = np.full(size, "none", dtype=object)
+        controlling[row_state[first]] = np.array(wall.LAYERS, dtype=object)[np.argmax(layers[:, first], axis=0)]
+        return ManyResult(total_duty, total_ua, total_area, main_outlet, most, ~unsettled, controlling,
+                          self.networks, network_index)
+
+
 def solve_many(networks: Sequence[Network], network_index=None, inlet_temperature=None,
                flow_factor=None) -> ManyResult:
     """Solve N states of the assembled ``networks`` at once; see the module notes for the arguments."""
-    networks = tuple(networks)
-    if network_index is None:
-        network_index = np.arange(len(networks))
-    network_index = np.asarray(network_index, dtype=int).ravel()
-    size = max(network_index.size, np.size(inlet_temperature) if inlet_temperature is not None else 0,
-               np.size(flow_factor) if flow_factor is not None else 0)
-    network_index = np.broadcast_to(network_index, (size,))
-    given_inlet = np.array([n.coolant.inlet_temperature for n in networks])[network_index]
-    inlet = given_inlet if inlet_temperature is None else \
-        np.broadcast_to(np.asarray(inlet_temperature, dtype=float), (size,)).copy()
-    factor = np.ones(size) if flow_factor is None else \
-        np.broadcast_to(np.asarray(flow_factor, dtype=float), (size,))
-
-    # ---- templates: each network's streams and surfaces, set up once however many states use it
-    charge_liquids: list = []
-    coolant_liquids: list = []
-    stream_template: list[tuple] = []  # (flow, per volume?, coolant liquid index, process temperature)
-    surface_template: list[tuple] = []  # (stream template, area, charge liquid, film, formula, layers)
-    network_streams: list[np.ndarray] = []
-    network_surfaces: list[np.ndarray] = []
-    for network in networks:
-        charge_i = _index(charge_liquids, network.charge.liquid)
-        coolant_i = _index(coolant_liquids, network.coolant.liquid)
-        props = network.process_properties
-        streams, surfaces = [], []
-        for stream in network.streams:
-            streams.append(len(stream_template))
-            # a volume flow is converted with the density at the inlet, so it moves with the inlet temperature
-            coolant = network.coolant
-            volume = coolant.flow_kind != "mass"
-            flow = stream.mass_flow
-            if volume:
-                flow = coolant.flow if stream.name == "jacket" or coolant.coil_flow is None else coolant.coil_flow
-            stream_template.append((flow, volume, coolant_i, network.process_temperature))
-            for model in stream.surfaces:
-                film = model.process_film(props.viscosity)  # at ratio 1: the correlation's other arguments
-                layer, _ = wall.wall_layers(model.wall, network.vessel.fouling, model.process_radius,
-                                            model.process_side)
-                surfaces.append(len(surface_template))
-                surface_template.append((streams[-1], model.area, charge_i, props, film, model.service_formula,
-                                         layer))
-        network_streams.append(np.array(streams, dtype=int))
-        network_surfaces.append(np.array(surfaces, dtype=int))
-
-    # ---- rows: one per stream of each state, one per surface of each stream (a stream's surfaces adjacent)
-    stream_rows, stream_state, surface_rows, surface_stream = [], [], [], []
-    first_stream = np.full(size, -1)
-    offset = 0
-    for n, (streams, surfaces) in enumerate(zip(network_streams, network_surfaces)):
-        states = np.flatnonzero(network_index == n)
-        if not states.size or not streams.size:
-            continue
-        k = streams.size
-        stream_rows.append(np.tile(streams, states.size))
-        stream_state.append(np.repeat(states, k))
-        first_stream[states] = offset + k * np.arange(states.size)
-        local = np.searchsorted(streams, [surface_template[t][0] for t in surfaces])
-        surface_rows.append(np.tile(surfaces, states.size))
-        surface_stream.append(offset + np.repeat(k * np.arange(states.size), surfaces.size)
-                              + np.tile(local, states.size))
-        offset += k * states.size
-    n_streams = offset
-    if n_streams == 0:
-        nothing = np.zeros(size)
-        return ManyResult(nothing, nothing.copy(), nothing.copy(), np.full(size, np.nan), np.zeros(size, dtype=int),
-                          np.ones(size, dtype=bool), networks, network_index)
-    tstream = np.concatenate(stream_rows)
-    stream_state = np.concatenate(stream_state)
-    tsurface = np.concatenate(surface_rows)
-    sid = np.concatenate(surface_stream)
-    order = np.argsort(sid, kind="stable")  # a stream's surfaces adjacent, in their own order
-    tsurface, sid = tsurface[order], sid[order]
-
-    flows, per_volume, coolant_of, temperatures = (np.array(column) for column in zip(*stream_template))
-    t_in = inlet[stream_state]
-    t_r = temperatures[tstream]
-    stream_coolant = coolant_of[tstream].astype(int)
-    coolant = _ByLiquid(coolant_liquids, stream_coolant)
-    m = flows[tstream]
-    if per_volume.any():
-        m = np.where(per_volume[tstream], m * coolant.states(t_in).density, m)
-    m = m * factor[stream_state]
-    area = np.array([t[1] for t in surface_template])[tsurface]
-    surface_charge = np.array([t[2] for t in surface_template], dtype=int)[tsurface]
-    mu_bulk = np.array([t[3].viscosity for t in surface_template])[tsurface]
-    k_bulk = np.array([t[3].thermal_conductivity / t[4].length for t in surface_template])[tsurface]
-    surface_flow_share = np.array([t[5].flow_share for t in surface_template])[tsurface]
-    stacked_layers = wall.WallLayers(*(np.array(column)[tsurface] for column in zip(*(t[6] for t in surface_template))))
-    process_groups = []
-    for key, templates in _groups([(t[4].constants.correlation, tuple(t[4].arguments)) for t in surface_template]):
-        rows = np.flatnonzero(np.isin(tsurface, templates))
-        position = np.searchsorted(templates, tsurface[rows])
-        stacked = _stack([surface_template[t][4].arguments for t in templates])
-        process_groups.append((key, rows, {name: value[position] for name, value in stacked.items()}))
-    service_groups = []
-    for key, templates in _groups([(t[5].function, tuple(sorted((k, v) for k, v in t[5].fixed.items()
-                                                                  if isinstance(v, str))))
-                                   for t in surface_template]):
-        rows = np.flatnonzero(np.isin(tsurface, templates))
-        position = np.searchsorted(templates, tsurface[rows])
-        stacked = _stack([{k: v for k, v in surface_template[t][5].fixed.items() if not isinstance(v, str)}
-                          for t in templates])
-        service_groups.append((key, rows, {**{name: value[position] for name, value in stacked.items()},
-                                           **dict(key[1])}))
-    t_r_rows = t_r[sid]
-    coolant_rows = _ByLiquid(coolant_liquids, stream_coolant[sid])
-    charge = _ByLiquid(charge_liquids, surface_charge)
-    c_low, c_high = (np.array(v) for v in zip(*(_range(liquid) for liquid in coolant_liquids)))
-    p_low, p_high = (np.array(v) for v in zip(*(_range(liquid) for liquid in charge_liquids)))
-    c_low, c_high = c_low[stream_coolant] + 1e-3, c_high[stream_coolant] - 1e-2
-    p_low, p_high = p_low[surface_charge] + 1e-3, p_high[surface_charge] - 1e-2
-    c_low_rows, c_high_rows = c_low[sid], c_high[sid]
-
-    mean = t_in.copy()
-    process_wall = 0.5 * (t_r_rows + t_in[sid])
-    service_wall = process_wall.copy()
-    active = np.ones(n_streams, dtype=bool)
-    duty = np.zeros(n_streams)
-    ua = np.zeros(n_streams)
-    outlet = np.zeros(n_streams)
-    iterations = np.zeros(n_streams, dtype=int)
-    h_process = np.empty(len(sid))
-    h_service = np.empty(len(sid))
-    starts = np.flatnonzero(np.r_[True, sid[1:] != sid[:-1]])
-    for iteration in range(1, MAX_ITERATIONS + 1):
-        state = coolant.states(np.clip(mean, c_low, c_high))
-        mu_wall = charge.states(np.clip(process_wall, p_low, p_high)).viscosity
-        ratio = mu_bulk / mu_wall
-        for (key, _), rows, arguments in process_groups:
-            function = process_side.CORRELATIONS[key].function
-            h_process[rows] = function(viscosity_ratio=ratio[rows], **arguments) * k_bulk[rows]
-        at_wall = coolant_rows.states(np.clip(service_wall, c_low_rows, c_high_rows))
-        bulk = _take(state, sid)
-        flow_rows = m[sid] * surface_flow_share
-        for (function, _), rows, fixed in service_groups:
-            h_service[rows] = function(_take(bulk, rows), flow_rows[rows], at_wall.viscosity[rows],
-                                       at_wall.density[rows], **fixed)[0]
-        overall = wall.overall_from_layers(h_process, h_service, stacked_layers)
-        new_ua = np.bincount(sid, overall.U * area, minlength=n_streams)
-        new_outlet, new_duty, _, _ = single_pass(t_r, t_in, new_ua, m * state.heat_capacity)
-        new_mean = 0.5 * (t_in + new_outlet)
-        temperatures = wall.interface_temperatures(overall, t_r_rows, new_mean[sid])
-        change = np.maximum(np.abs(new_mean - mean), np.maximum.reduceat(
-            np.maximum(np.abs(temperatures.process_surface - process_wall),
-                       np.abs(temperatures.service_surface - service_wall)), starts))
-        duty = np.where(active, new_duty, duty)
-        ua = np.where(active, new_ua, ua)
-        outlet = np.where(active, new_outlet, outlet)
-        iterations = np.where(active, iteration, iterations)
-        mean = np.where(active, new_mean, mean)
-        rows_active = active[sid]
-        process_wall = np.where(rows_active, temperatures.process_surface, process_wall)
-        service_wall = np.where(rows_active, temperatures.service_surface, service_wall)
-        active &= ~(change < TOLERANCE)
-        if not active.any():
-            break
-
-    total_duty = np.bincount(stream_state, duty, minlength=size)
-    total_ua = np.bincount(stream_state, ua, minlength=size)
-    total_area = np.bincount(stream_state, np.bincount(sid, area, minlength=n_streams), minlength=size)
-    main_outlet = np.where(first_stream >= 0, outlet[np.maximum(first_stream, 0)], np.nan)
-    most = np.zeros(size, dtype=int)
-    np.maximum.at(most, stream_state, iterations)
-    unsettled = np.zeros(size, dtype=bool)
-    np.logical_or.at(unsettled, stream_state, active)
-    return ManyResult(total_duty, total_ua, total_area, main_outlet, most, ~unsettled, networks, network_index)
+    return Prepared(networks).solve(network_index, inlet_temperature, flow_factor)
 
 
 def heat_transfer_many(cases: Iterable[tuple]) -> ManyResult:

@@ -159,7 +159,7 @@ def _validate(inp: CSTRInput) -> None:
     if inp.temperature_range is not None:
         low, high = inp.temperature_range
         if not (math.isfinite(low) and math.isfinite(high) and 0 < low < high):
-            raise InputError("temperature_range", "must be two absolute temperatures, low < high")
+            raise InputError("maximum_temperature", "must be above minimum_temperature (both absolute, in K)")
 
 
 class _CSTR:

@@ -357,7 +357,7 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
     if inp.horizon > b.horizon_limit:
         raise InputError("horizon", f"must not exceed {b.horizon_limit:g} s")
     if not (isinstance(b.output_points, int) and 2 <= b.output_points <= b.maximum_output_points):
-        raise InputError("budget.output_points", f"must be an integer from 2 to {b.maximum_output_points}")
+        raise InputError("output_points", f"must be a whole number from 2 to {b.maximum_output_points}")
     require_positive("budget.wall_time", b.wall_time)
     if not (isinstance(inp.rtol, numbers.Real) and 1e-12 <= inp.rtol <= 1e-3):
         raise InputError("rtol", "must lie between 1e-12 and 1e-3")
@@ -401,8 +401,8 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
         if not c.maximum_inlet_temperature > c.minimum_inlet_temperature:
             raise InputError("controller.maximum_inlet_temperature", "must exceed the minimum inlet temperature")
     if inp.failure is not None and inp.failure.time is not None:
-        if not (_non_negative("failure.time", inp.failure.time) <= inp.horizon):
-            raise InputError("failure.time", "must lie within the horizon")
+        if not (_non_negative("cooling_failure.time", inp.failure.time) <= inp.horizon):
+            raise InputError("cooling_failure.time", f"must lie within the horizon ({inp.horizon:g} s)")
     for i, lim in enumerate(inp.limits):
         require_positive(f"limits[{i}].temperature", lim.temperature)
         if lim.direction not in (-1, 0, 1):

@@ -33,8 +33,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field, replace
 
-from calc.checks.cooling_check import CAUTIONS, charge_mass, margin_of
-from calc.checks.heat_load import HeatLoad, HeatRelease, heat_load
+from calc.checks.cooling_check import CAUTIONS, DOSING_CAUTION, charge_mass, margin_of
+from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
 from calc.deadline import NEVER, Deadline
 from calc.films.jacket_side import JacketSpec
 from calc.network.flow_limit import flow_limit
@@ -306,7 +306,7 @@ def evaluate_candidate(index: int, kind: str, vessel: Vessel, charge: Charge, co
         result = heat_transfer(design, charge, coolant, process_temperature)
     except InputError as exc:
         return Candidate(index, kind, description, jacket, coil, nps or coil_nps, 0.0, 0.0, 0.0, None, 0.0, 0.0,
-                         0.0, 0.0, 0.0, 0.0, 0.0, None, None, False, False, f"does not fit: {exc.message}", (),
+                         0.0, 0.0, 0.0, 0.0, 0.0, None, None, False, False, f"not evaluated: {exc.message}", (),
                          vessel.coverage), None, None
     load = heat_load(heat_release, charge_mass(result), process_temperature, result.agitation.power)
     capacity = result.duty
@@ -357,8 +357,15 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     (:class:`calc.deadline.OutOfTime` once it has passed)."""
     check_envelope(vessel, options)
     warnings = Warnings()
+    brim = geometry.brim_height(vessel.shape)
+    if options.jacket_top is not None and options.jacket_top > brim:
+        raise InputError("options.jacket_top", f"must be at most the top of the straight side ({brim:.4g} m), "
+                                               f"got {options.jacket_top:g}")
     shell = replace(vessel, jacket=None, coils=(),
                     coverage=geometry.JacketCoverage(options.covers_bottom_head, options.jacket_top))
+    # what no design changes (coolant colder than the contents, the charge fits, the agitator) is checked once
+    # here, so it is refused as the request's error rather than reported against every candidate
+    assemble(shell, charge, coolant, process_temperature)  # its warnings are each candidate's
     candidates: list[Candidate] = []
     load = None
 
@@ -394,13 +401,19 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
                 add("jacket_and_coil", best.jacket, coil, best.pipe_size if kind == "half_pipe" else None, coil_nps)
     if not candidates:
         raise InputError("options.types", "no candidate to evaluate: choose at least one type")
+    if any(c.type == "jacket_and_coil" for c in candidates):
+        warnings.add(CalcWarning("coil_shields_wall",
+                                 "jacket + coil: the jacket wall's process film is computed as without the coil; a "
+                                 "coil between impeller and wall slows the flow along the wall and lowers that film "
+                                 "(not modelled: the combined capacity may be optimistic)"))
     smallest = {}
     for kind in TYPES:
         feasible = [c for c in candidates if c.type == kind and c.feasible]
         smallest[kind] = min(feasible, key=_rank_key).index if feasible else None
     recommendation = _recommend(candidates, smallest, safety_factor)
     duty = safety_factor * load.total if load is not None else 0.0
-    return JacketSizing(tuple(candidates), recommendation, smallest, load, duty, safety_factor, warnings)
+    cautions = CAUTIONS + ((DOSING_CAUTION,) if isinstance(heat_release, Dosing) else ()) + (SIZING_CAUTION,)
+    return JacketSizing(tuple(candidates), recommendation, smallest, load, duty, safety_factor, warnings, cautions)
 
 
 def _recommend(candidates: list[Candidate], smallest: dict, safety_factor: float) -> Recommendation:

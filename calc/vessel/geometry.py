@@ -275,7 +275,7 @@ def _coils_submerged(shape: VesselShape, coils, level: float) -> tuple[float, fl
 
 
 def fill(shape: VesselShape, jacket: JacketCoverage | None = None, coils: tuple[HelicalCoil, ...] = (),
-         volume: float | None = None, level: float | None = None) -> FillGeometry:
+         volume: float | None = None, level: float | None = None, field: str | None = None) -> FillGeometry:
     """The vessel filled with ``volume`` [m3] of liquid, or to ``level`` [m]: exactly one of the two.
 
     Coils displace liquid: for a given liquid volume the level is found where the vessel volume below
@@ -298,7 +298,7 @@ def fill(shape: VesselShape, jacket: JacketCoverage | None = None, coils: tuple[
     brim = brim_height(shape)
     if (volume is None) == (level is None):
         raise InputError("fill", "give exactly one of volume or level")
-    field = "fill.level" if level is not None else "fill.volume"
+    field = field or ("fill.level" if level is not None else "fill.volume")  # the request's own path
     if level is not None:
         if not (math.isfinite(level) and 0.0 < level <= brim):
             raise InputError(field, f"must be above 0 and at most the top of the straight side "

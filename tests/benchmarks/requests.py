@@ -78,6 +78,11 @@ EXAMPLES: dict[str, Example | None] = {
     # The reference plus four similar targets: five scales.
     "/v1/scale-up": Example("POST", "/v1/scale-up", _example_file("scale_up_path.json")),
     "/v1/jacket-sizing": Example("POST", "/v1/jacket-sizing", _example_file("jacket_sizing_request.json")),
+    # The demo check's dosing time x coolant inlet temperature over a 50 x 50 grid (the target size).
+    "/v1/operating-window": Example("POST", "/v1/operating-window", dict(
+        _example_file("operating_window_production.json"),
+        axes=[{"quantity": "heat_release.dosing_time", "from": "30 min", "to": "4 h", "points": 50},
+              {"quantity": "coolant.inlet_temperature", "from": "-10 degC", "to": "25 degC", "points": 50}])),
     "/v1/geometry": Example("POST", "/v1/geometry", {"vessel": _HEAT["vessel"], "fill": {"volume": "4 m^3"}}),
     "/v1/agitation": Example("POST", "/v1/agitation",
                              {k: _HEAT[k] for k in ("vessel", "charge", "process_temperature")}),
