@@ -8,7 +8,7 @@ PORT ?= 8000
 CONSTRAINTS := docker/constraints.txt
 PIP := $(BIN)/python -m pip install --quiet -c $(CONSTRAINTS)
 
-.PHONY: install install-test nginx run test bench lint load clean constraints
+.PHONY: install install-test nginx chromium run test bench lint load clean constraints
 
 $(BIN)/python:
 	$(PYTHON) -m venv $(VENV)
@@ -32,6 +32,13 @@ nginx:
 	    apt-cache policy nginx nginx-light | grep -q 'Candidate: [0-9]' || $$SUDO apt-get update -q; \
 	    DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -q --no-install-recommends nginx; }
 
+# Debian's headless chromium, for the test that prints an HTML report in a real browser (tests/test_reports.py).
+chromium:
+	@command -v chromium >/dev/null 2>&1 || { \
+	    SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); \
+	    apt-cache policy chromium | grep -q 'Candidate: [0-9]' || $$SUDO apt-get update -q; \
+	    DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -q --no-install-recommends chromium; }
+
 run: install
 	$(BIN)/coolmargin db upgrade
 	$(BIN)/coolmargin import --if-empty --author demo examples/plant.json
@@ -41,7 +48,7 @@ run: install
 	@echo "        $(BIN)/coolmargin scale-up examples/scale_up_demo.json"
 	COOLMARGIN_BIND=$(HOST):$(PORT) $(BIN)/gunicorn --config docker/gunicorn.conf.py 'api.wsgi:app'
 
-test: install-test nginx
+test: install-test nginx chromium
 	$(BIN)/python -m pytest
 
 bench: install-test

@@ -44,3 +44,14 @@ def render(fig, fmt: str) -> bytes:
 def footnote(fig) -> None:
     fig.text(0.01, 0.003, CHART,
              fontsize=7, color="#777777")
+
+
+# Default API units too small to read on an axis, and the unit drawn instead (a request's output units
+# replace the default, and are drawn as asked).
+_READABLE = {"W": ("kW", 1e-3), "s": ("h", 1 / 3600.0), "Pa": ("bar", 1e-5)}
+
+
+def readable(values, unit: str) -> tuple[list, str]:
+    """``values`` (None kept) and their axis unit: W drawn as kW, s as h, Pa as bar; other units as given."""
+    shown, factor = _READABLE.get(unit, (unit, 1.0))
+    return [None if v is None else v * factor for v in values], shown

@@ -1,9 +1,9 @@
 """Command-line client ``coolmargin``.
 
-``coolmargin serve`` runs the service with the container's gunicorn settings; ``coolmargin check
-FILE.json`` runs a cooling check and ``coolmargin scale-up FILE.json`` a scale-up (locally, or against
-``--url``), each printing a table. Exit status: 0 adequate everywhere, 1 inadequate somewhere,
-2 invalid input.
+``coolmargin serve`` runs the service with the container's gunicorn settings. The calculation commands
+read a request (JSON file, or ``-``/nothing for standard input), compute it in this process or call the
+service at ``--url`` (or COOLMARGIN_URL) with ``--token`` (or COOLMARGIN_TOKEN), and print a table,
+the JSON answer (``--output json``) or CSV (``--output csv``).
 
 The plant catalogue (COOLMARGIN_DATABASE_URL, or ``--database-url``): ``coolmargin db upgrade`` applies
 the migrations; ``coolmargin export [FILE]`` writes every record with its history as JSON;
@@ -13,12 +13,29 @@ file is a vessel list from a spreadsheet); ``--if-empty`` imports only into an e
 from __future__ import annotations
 
 import argparse
+import contextlib
+import io
 import json
 import os
 import sys
 from pathlib import Path
+from typing import Any, Callable
 
-EXIT_OK, EXIT_INADEQUATE, EXIT_INVALID = 0, 1, 2
+EXIT_OK, EXIT_INADEQUATE, EXIT_INVALID, EXIT_SERVICE, EXIT_UNREACHABLE = 0, 1, 2, 3, 4
+EXIT_CODES = f"""exit status:
+  {EXIT_OK}  adequate at every scale / computed (thermal safety: criticality class 1 or 2)
+  {EXIT_INADEQUATE}  NOT adequate somewhere (thermal safety: criticality class 3 to 5)
+  {EXIT_INVALID}  invalid request (unreadable file, not JSON, or a 4xx answer naming the fields)
+  {EXIT_SERVICE}  the service refused or failed (401 without a valid token, 5xx)
+  {EXIT_UNREACHABLE}  the service could not be reached at --url
+Every verdict is a screening estimate: confirm with reaction calorimetry and plant data; local codes
+and a licensed engineer's review govern."""
+
+
+def _version() -> str:
+    from . import VERSION
+
+    return VERSION
 
 
 def _serve(args: argparse.Namespace) -> int:
@@ -29,103 +46,99 @@ def _serve(args: argparse.Namespace) -> int:
     return EXIT_OK  # pragma: no cover (exec does not return)
 
 
-def _post(path: str, body: dict, url: str | None) -> tuple[int, dict]:
-    """POST to the service at ``url``, or to an in-process app when no URL is given."""
-    if url is None:
+class _Failure(Exception):
+    def __init__(self, status: int, message: str):
+        super().__init__(message)
+        self.status = status
+
+
+def _read(source: str | None) -> dict:
+    try:
+        if source in (None, "-"):
+            text = sys.stdin.read()
+        else:
+            with open(source, encoding="utf-8") as handle:
+                text = handle.read()
+        body = json.loads(text)
+    except (OSError, ValueError) as error:
+        where = "standard input" if source in (None, "-") else source
+        raise _Failure(EXIT_INVALID, f"coolmargin: cannot read {where}: {error}") from None
+    if not isinstance(body, dict):
+        raise _Failure(EXIT_INVALID, "coolmargin: the request must be a JSON object")
+    return body
+
+
+def _problem(status: int, problem: dict) -> _Failure:
+    errors = problem.get("errors") or [{"field": "", "message": problem.get("detail", "")}]
+    lines = "\n".join(f"coolmargin: {e.get('field')}: {e.get('message')}".replace(": : ", ": ") for e in errors)
+    code = EXIT_INVALID if 400 <= status < 500 and status != 401 else EXIT_SERVICE
+    return _Failure(code, f"coolmargin: the service answered {status} {problem.get('title', '')}\n{lines}")
+
+
+def _call(path: str, body: dict, args: argparse.Namespace, params: dict) -> tuple[Any, str]:
+    """(answer, media type): JSON as a dict, CSV as text. Computes locally without --url."""
+    if args.url is None:
         from . import create_app
 
         # A command prints results, not the service's start-up notes: its app logs warnings and above.
-        response = create_app({"LOG_LEVEL": "WARNING"}).test_client().post(path, json=body)
-        return response.status_code, response.get_json()
-    import urllib.error
-    import urllib.request
+        response = create_app({"LOG_LEVEL": "WARNING"}).test_client().post(path, json=body, query_string=params)
+        if response.status_code >= 400:
+            raise _problem(response.status_code, response.get_json(silent=True) or {})
+        return (response.get_data(as_text=True) if response.mimetype == "text/csv" else response.get_json(),
+                response.mimetype)
+    from .client import Client, ProblemError, ServiceUnreachable
 
-    request = urllib.request.Request(url.rstrip("/") + path, data=json.dumps(body).encode(),
-                                     headers={"Content-Type": "application/json"}, method="POST")
     try:
-        with urllib.request.urlopen(request, timeout=120) as response:
-            return response.status, json.loads(response.read())
-    except urllib.error.HTTPError as error:
-        return error.code, json.loads(error.read() or b"{}")
+        with Client(args.url, token=args.token, timeout=(args.connect_timeout, args.timeout)) as client:
+            response = client.request("POST", path, body, params)
+    except ServiceUnreachable:
+        raise _Failure(EXIT_UNREACHABLE, f"coolmargin: cannot reach the service at {args.url} (is it running? "
+                                         "check --url or COOLMARGIN_URL)") from None
+    except ProblemError as error:
+        raise _problem(error.status, error.problem) from None
+    media = response.headers.get("Content-Type", "").split(";")[0]
+    return (response.text if media == "text/csv" else response.json()), media
+
+
+def _kw(value: float | None, unit: str) -> tuple[str, str]:
+    from .charts import readable
+
+    if value is None:
+        return "-", unit
+    (shown,), label = readable([value], unit)
+    return f"{shown:.4g}", label
 
 
 def _band(result: dict) -> str:
+    """The margin band as "low-high" (the published alternatives' spread), or "-" without one."""
     band = result.get("margin_band") or {}
     return "-" if band.get("low") is None else f"{band['low']:.3g}-{band['high']:.3g}"
 
 
-def _print_check(result: dict, units: dict, out) -> None:
+def _print_check(result: dict, units: dict, prefix: str = "") -> None:
+    def row(path: str, label: str) -> tuple[str, str, str]:
+        node: Any = result
+        for part in path.split("."):
+            node = node.get(part) if isinstance(node, dict) else None
+        value, unit = _kw(node, units.get(prefix + path, ""))
+        return label, value, unit
+
     rows = [("verdict", "ADEQUATE" if result["adequate"] else "NOT ADEQUATE", ""),
-            ("margin (capacity / load)", f"{result['margin']:.3g}" if result["margin"] is not None else "-", ""),
+            ("margin (capacity / load)", "-" if result["margin"] is None else f"{result['margin']:.3g}", ""),
             ("margin band", _band(result), ""),
             ("safety factor", f"{result['safety_factor']:g}", ""),
-            ("heat load", f"{result['heat_load']['total'] / 1e3:.4g}", "kW"),
-            ("cooling capacity", f"{result['cooling_capacity'] / 1e3:.4g}", "kW"),
-            ("coolant outlet", f"{result['coolant_outlet_temperature']:.4g}"
-             if result["coolant_outlet_temperature"] is not None else "-", units.get("coolant_outlet_temperature", ""))]
-    for key, value in result["limits"].items():
-        if not key.endswith("_note"):
-            rows.append((key.replace("_", " "), "-" if value is None else f"{value:.4g}", units.get(f"limits.{key}", "")))
+            row("heat_load.total", "heat load"), row("cooling_capacity", "cooling capacity"),
+            row("coolant_outlet_temperature", "coolant outlet")]
+    rows += [row(f"limits.{key}", key.replace("_", " ")) for key in result["limits"] if not key.endswith("_note")]
     width = max(len(r[0]) for r in rows)
     for name, value, unit in rows:
-        print(f"  {name:<{width}}  {value:>14} {unit}", file=out)
+        print(f"  {name:<{width}}  {value:>14} {unit}")
     for warning in result.get("warnings", []):
-        print(f"  warning: {warning['message']}", file=out)
-    print("  " + " ".join(result.get("cautions", [])[:1]), file=out)
+        print(f"  warning: {warning['message']}")
+    print("  " + " ".join(result.get("cautions", [])[:1]))
 
 
-def _request(path: str, args: argparse.Namespace) -> tuple[dict | None, int]:
-    """Read the request file and call ``path``; on failure print the problem and return the exit status."""
-    try:
-        body = json.loads(Path(args.file).read_text())
-    except (OSError, ValueError) as error:
-        print(f"coolmargin: cannot read {args.file}: {error}", file=sys.stderr)
-        return None, EXIT_INVALID
-    status, answer = _post(path, body, args.url)
-    if status != 200:
-        for error in (answer or {}).get("errors", []) or [{"field": "", "message": (answer or {}).get("detail", "")}]:
-            print(f"coolmargin: {error['field']}: {error['message']}", file=sys.stderr)
-        return None, EXIT_INVALID
-    return answer, EXIT_OK
-
-
-def _scale_up(args: argparse.Namespace) -> int:
-    answer, status = _request("/v1/scale-up", args)
-    if answer is None:
-        return status
-    units = answer["units"]
-    print(f"scale-up, rule {answer['rule']}, safety factor {answer['safety_factor']:g}")
-    header = (f"  {'vessel':<34} {'volume':>9} {'A/V':>6} {'U':>6} {'load':>9} {'capacity':>9} {'margin':>7} "
-              f"{'band':>11}  verdict")
-    print(header)
-    print(f"  {'':<34} {'m^3':>9} {'1/m':>6} {'W/m2K':>6} {'kW':>9} {'kW':>9} {'':>7} {'':>11}")
-    worst = EXIT_OK
-    for scale in answer["scales"]:
-        name = f"{scale['volume']:.3g} m^3 similar" if scale["generated"] else scale["name"][:34]
-        margin = "-" if scale["margin"] is None else f"{scale['margin']:.3g}"
-        verdict = "adequate" if scale["adequate"] else "NOT ADEQUATE"
-        print(f"  {name:<34} {scale['volume']:>9.4g} {scale['area_per_volume']:>6.3g} "
-              f"{scale['overall_coefficient']:>6.0f} {scale['heat_load']['total'] / 1e3:>9.4g} "
-              f"{scale['cooling_capacity'] / 1e3:>9.4g} {margin:>7} {_band(scale):>11}  {verdict}")
-        band = scale.get("margin_band") or {}
-        if band.get("holds_across_band") is False:
-            print(f"    {band['statement']}")
-        if not scale["adequate"]:
-            worst = EXIT_INADEQUATE
-    largest = answer["largest_adequate_volume"]
-    print(f"  largest adequate similar volume: {'-' if largest is None else f'{largest:.4g} m^3'} "
-          f"({answer['largest_adequate_volume_note']})")
-    for switch in answer["controlling_switches"]:
-        print(f"  controlling resistance: {switch['below']} -> {switch['above']} at {switch['volume']:.3g} "
-              f"{units.get('controlling_switches.volume', 'm^3')}")
-    print("  " + answer["cautions"][0])
-    return worst
-
-
-def _check(args: argparse.Namespace) -> int:
-    answer, status = _request("/v1/cooling-check", args)
-    if answer is None:
-        return status
+def _check(answer: dict) -> int:
     cases = answer["cases"] if "cases" in answer else [{"status": 200, "result": answer}]
     worst = EXIT_OK
     for index, case in enumerate(cases):
@@ -134,7 +147,7 @@ def _check(args: argparse.Namespace) -> int:
             print(f"  invalid: {case['problem']['detail']}")
             worst = max(worst, EXIT_INVALID)
             continue
-        _print_check(case["result"], answer["units"], sys.stdout)
+        _print_check(case["result"], answer["units"])
         if not case["result"]["adequate"]:
             worst = max(worst, EXIT_INADEQUATE)
     return worst
@@ -216,21 +229,123 @@ def _import_into(catalogue, text: str, args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def _scale_up(answer: dict) -> int:
+    units = answer["units"]
+    print(f"scale-up, rule {answer['rule']}, safety factor {answer['safety_factor']:g}")
+    volume_unit = units["scales.volume"]
+    _, load_unit = _kw(0.0, units["scales.heat_load.total"])
+    _, capacity_unit = _kw(0.0, units["scales.cooling_capacity"])
+    print(f"  {'volume':>9} {'A/V':>6} {'U':>6} {'load':>9} {'capacity':>9} {'margin':>7} {'band':>11}  verdict"
+          "       vessel")
+    print(f"  {volume_unit:>9} {units['scales.area_per_volume']:>6} {'':>6} {load_unit:>9} {capacity_unit:>9}")
+    worst = EXIT_OK
+    for scale in answer["scales"]:
+        name = f"similar vessel, {scale['volume']:.3g} {volume_unit}" if scale["generated"] else scale["name"]
+        margin = "-" if scale["margin"] is None else f"{scale['margin']:.3g}"
+        verdict = "adequate" if scale["adequate"] else "NOT ADEQUATE"
+        print(f"  {scale['volume']:>9.4g} {scale['area_per_volume']:>6.3g} {scale['overall_coefficient']:>6.0f} "
+              f"{_kw(scale['heat_load']['total'], units['scales.heat_load.total'])[0]:>9} "
+              f"{_kw(scale['cooling_capacity'], units['scales.cooling_capacity'])[0]:>9} {margin:>7} "
+              f"{_band(scale):>11}  {verdict:<13} {name}")  # the full vessel name last, never cut
+        band = scale.get("margin_band") or {}
+        if band.get("holds_across_band") is False:
+            print(f"    {band['statement']}")
+        if not scale["adequate"]:
+            worst = EXIT_INADEQUATE
+    largest = answer["largest_adequate_volume"]
+    print(f"  largest adequate similar volume: {'-' if largest is None else f'{largest:.4g} {volume_unit}'} "
+          f"({answer['largest_adequate_volume_note']})")
+    for switch in answer["controlling_switches"]:
+        print(f"  controlling resistance: {switch['below']} -> {switch['above']} at {switch['volume']:.3g} "
+              f"{units.get('controlling_switches.volume', volume_unit)}")
+    print("  " + answer["cautions"][0])
+    return worst
+
+
+def _thermal_safety(answer: dict) -> int:
+    units = answer["units"]
+    print("thermal safety (cooling failure):")
+    for key, label in (("adiabatic_temperature_rise", "adiabatic temperature rise"), ("mtsr", "MTSR"),
+                       ("mtt", "MTT"), ("td24", "T_D24"), ("time_to_maximum_rate", "TMR_ad at the MTSR")):
+        value = answer.get(key)
+        print(f"  {label:<28} {'-' if value is None else f'{value:.4g}':>10} {units.get(key, '')}")
+    print(f"  {'criticality class':<28} {answer['criticality_class']:>10}")
+    for line in answer.get("reasoning", []):
+        print(f"  - {line}")
+    for warning in answer.get("warnings", []):
+        print(f"  warning: {warning['message']}")
+    print("  " + " ".join(answer.get("cautions", [])[:1]))
+    return EXIT_OK if answer["criticality_class"] <= 2 else EXIT_INADEQUATE
+
+
+def _simulation(answer: dict) -> int:
+    units = answer["units"]
+    print(f"simulation: {answer['message']}")
+    for key, value in answer["summary"].items():
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            print(f"  {key.replace('_', ' '):<32} {value:>12.4g} {units.get('summary.' + key, '')}")
+    for warning in answer.get("warnings", []):
+        print(f"  warning: {warning['message']}")
+    print("  " + " ".join(answer.get("cautions", [])[:1]))
+    return EXIT_OK
+
+
+# command -> (path, help, table printer)
+COMMANDS: dict[str, tuple[str, str, Callable[[dict], int]]] = {
+    "check": ("/v1/cooling-check", "cooling check of one vessel (or {'cases': [...]})", _check),
+    "scale-up": ("/v1/scale-up", "cooling check at every scale of a scale-up path", _scale_up),
+    "thermal-safety": ("/v1/thermal-safety", "cooling-failure assessment: MTSR, T_D24, criticality class",
+                       _thermal_safety),
+    "simulate": ("/v1/simulations", "dynamic energy and mole balances with the jacket, cooling failure", _simulation),
+}
+
+
+def _run(args: argparse.Namespace) -> int:
+    path, _, printer = COMMANDS[args.command]
+    params = {"output_units": args.units} if args.units else {}
+    if args.output == "csv":
+        params["format"] = "csv"
+    try:
+        body = _read(args.file)
+        answer, media = _call(path, body, args, params)
+    except _Failure as failure:
+        print(failure, file=sys.stderr)
+        return failure.status
+    if args.output == "csv":
+        sys.stdout.write(answer)
+        return EXIT_OK
+    if args.output == "json":
+        json.dump(answer, sys.stdout, indent=2)
+        print()
+        with contextlib.redirect_stdout(io.StringIO()):  # the exit status still says pass/fail; no table
+            return printer(answer)
+    return printer(answer)
+
+
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(prog="coolmargin", description=__doc__.splitlines()[0])
+    parser = argparse.ArgumentParser(prog="coolmargin", description=__doc__.splitlines()[0] + ".",
+                                     epilog=EXIT_CODES, formatter_class=argparse.RawDescriptionHelpFormatter)
+    parser.add_argument("--version", action="version", version=f"coolmargin {_version()}")
     commands = parser.add_subparsers(dest="command", required=True)
     serve = commands.add_parser("serve", help="run the HTTP service (gunicorn)")
     serve.add_argument("--host", default="127.0.0.1")
     serve.add_argument("--port", type=int, default=8000)
     serve.set_defaults(handler=_serve)
-    check = commands.add_parser("check", help="cooling check of a request file (JSON, single or {'cases': [...]})")
-    check.add_argument("file")
-    check.add_argument("--url", default=None, help="service base URL; default: compute locally")
-    check.set_defaults(handler=_check)
-    scale = commands.add_parser("scale-up", help="cooling check at every scale of a scale-up request file (JSON)")
-    scale.add_argument("file")
-    scale.add_argument("--url", default=None, help="service base URL; default: compute locally")
-    scale.set_defaults(handler=_scale_up)
+    for name, (path, help_text, _) in COMMANDS.items():
+        command = commands.add_parser(name, help=help_text, description=f"{help_text} ({path}).", epilog=EXIT_CODES,
+                                      formatter_class=argparse.RawDescriptionHelpFormatter)
+        command.add_argument("file", nargs="?", default="-", help="request JSON file; '-' or nothing: standard input")
+        command.add_argument("--url", default=os.environ.get("COOLMARGIN_URL"),
+                             help="service base URL (env COOLMARGIN_URL); default: compute in this process")
+        command.add_argument("--token", default=os.environ.get("COOLMARGIN_TOKEN"),
+                             help="bearer token for --url (env COOLMARGIN_TOKEN)")
+        command.add_argument("--output", choices=("table", "json", "csv"), default="table",
+                             help="table (default), the JSON answer, or CSV with units in the header")
+        command.add_argument("--units", choices=("si", "metric", "us"), default=None,
+                             help="units of the answer (output_units)")
+        command.add_argument("--timeout", type=float, default=120.0, help="seconds to wait for an answer")
+        command.add_argument("--connect-timeout", type=float, default=5.0, help="seconds to wait for a connection")
+        command.set_defaults(handler=_run)
     database = argparse.ArgumentParser(add_help=False)
     database.add_argument("--database-url", default=None,
                           help="SQLAlchemy URL of the catalogue; default COOLMARGIN_DATABASE_URL or a SQLite file "

@@ -3,6 +3,8 @@
 POST takes a JSON object; GET takes the same object flattened to dotted query parameters.
 Responses are JSON (with ``units``) by default, CSV with ``?format=csv`` or ``Accept: text/csv``,
 a single value as text/plain with ``?field=a.b``, and a chart where the resource draws one.
+Every format follows the presentation the query asks for: ``output_units`` (si, metric, us) and
+``unit.<field>`` overrides, ``digits`` (significant figures) and ``decimal=comma`` (CSV with ``;``).
 """
 from __future__ import annotations
 
@@ -11,13 +13,15 @@ import io
 import json
 import math
 import re
+from dataclasses import dataclass, field as dataclass_field
 from typing import Any, Callable
 
 from flask import Response, current_app, g, request
 from marshmallow import Schema, ValidationError
 
 from calc.validity import finite_or_input_error
-from schemas.base import clean, numeric_leaves, unflatten, unit_map
+from schemas import output_units
+from schemas.base import clean, kind_map, numeric_leaves, unflatten, unit_map
 
 from calc.deadline import OutOfTime
 
@@ -25,9 +29,18 @@ from .errors import ProblemError
 from .references import records_used, resolve
 from .runtime import deadline
 
-RESERVED_PARAMETERS = {"format", "field"}
-FORMATS = {"json": "application/json", "csv": "text/csv", "svg": "image/svg+xml", "png": "image/png"}
+RESERVED_PARAMETERS = {"format", "field", "output_units", "digits", "decimal"}
+FORMATS = {"json": "application/json", "csv": "text/csv", "svg": "image/svg+xml", "png": "image/png",
+           "html": "text/html", "pdf": "application/pdf"}
 _UNIT_CACHE: dict[type, dict[str, str]] = {}
+_KIND_CACHE: dict[type, dict[str, str]] = {}
+TEXT_DIGITS = 12  # significant figures of numbers written as text: no float noise (24.99999999999909 -> 25)
+MAX_DIGITS = 15
+
+
+def reserved(name: str) -> bool:
+    """Query parameters that shape the answer rather than feed the calculation."""
+    return name in RESERVED_PARAMETERS or name.startswith(output_units.OVERRIDE_PREFIX)
 
 
 def _reject_constant(name: str):
@@ -47,7 +60,7 @@ def _depth(value: Any, limit: int, level: int = 0) -> int:
 def request_object() -> dict:
     """The request's input object: the JSON body (POST) or the unflattened query (GET)."""
     if request.method == "GET":
-        params = {k: v for k, v in request.args.items() if k not in RESERVED_PARAMETERS}
+        params = {k: v for k, v in request.args.items() if not reserved(k)}
         return unflatten(params)
     mimetype = request.mimetype or ""
     if not (mimetype == "application/json" or mimetype.endswith("+json")):
@@ -74,6 +87,61 @@ def units_of(schema: Schema) -> dict[str, str]:
     return _UNIT_CACHE[key]
 
 
+def kinds_of(schema: Schema) -> dict[str, str]:
+    key = type(schema)
+    if key not in _KIND_CACHE:
+        _KIND_CACHE[key] = kind_map(schema)
+    return _KIND_CACHE[key]
+
+
+@dataclass(frozen=True)
+class Presentation:
+    """How the numbers of an answer are written: units, significant figures, decimal mark."""
+
+    conversions: dict = dataclass_field(default_factory=dict)
+    digits: int | None = None
+    decimal_comma: bool = False
+
+    def convert(self, payload: Any, units: dict[str, str]) -> tuple[Any, dict[str, str]]:
+        payload = output_units.apply(payload, self.conversions)
+        if self.digits is not None:
+            payload = _rounded(payload, self.digits)
+        return payload, output_units.units_after(units, self.conversions)
+
+    def text(self, value: float) -> str:
+        """A number as text: rounded to the significant figures asked for (12 by default)."""
+        written = f"{value:.{self.digits or TEXT_DIGITS}g}"
+        return written.replace(".", ",") if self.decimal_comma else written
+
+
+def _rounded(value: Any, digits: int) -> Any:
+    if isinstance(value, float):
+        return float(f"{value:.{digits}g}") if math.isfinite(value) else value
+    if isinstance(value, dict):
+        return {k: _rounded(v, digits) for k, v in value.items()}
+    if isinstance(value, list):
+        return [_rounded(v, digits) for v in value]
+    return value
+
+
+def presentation(schema: Schema) -> Presentation:
+    """The presentation the query asks for; a bad option is a 422 naming the parameter."""
+    args = request.args
+    overrides = {k[len(output_units.OVERRIDE_PREFIX):]: v for k, v in args.items()
+                 if k.startswith(output_units.OVERRIDE_PREFIX)}
+    conversions = output_units.plan(kinds_of(schema), args.get("output_units"), overrides)
+    digits = args.get("digits")
+    if digits is not None:
+        if not digits.isdigit() or not 1 <= int(digits) <= MAX_DIGITS:
+            raise ProblemError(422, f"digits must be a whole number from 1 to {MAX_DIGITS}",
+                               [{"field": "digits", "message": f"must be a whole number from 1 to {MAX_DIGITS}"}])
+    decimal = args.get("decimal", "point")
+    if decimal not in ("point", "comma"):
+        raise ProblemError(422, "decimal must be point or comma",
+                           [{"field": "decimal", "message": "must be one of point, comma"}])
+    return Presentation(conversions, None if digits is None else int(digits), decimal == "comma")
+
+
 def requested_format() -> str:
     fmt = request.args.get("format")
     if fmt is not None:
@@ -81,8 +149,9 @@ def requested_format() -> str:
             raise ProblemError(422, f"unknown format {fmt!r}",
                                [{"field": "format", "message": f"must be one of {', '.join(FORMATS)}"}])
         return fmt
-    best = request.accept_mimetypes.best_match(["application/json", "text/csv", "image/svg+xml", "image/png"],
-                                               default="application/json")
+    # text/html only when asked with format=html: a browser's Accept header must not turn JSON into a report.
+    best = request.accept_mimetypes.best_match(["application/json", "text/csv", "image/svg+xml", "image/png",
+                                                "application/pdf"], default="application/json")
     return {v: k for k, v in FORMATS.items()}.get(best, "json")
 
 
@@ -137,11 +206,14 @@ def _unit_for(column: str, units: dict[str, str]) -> str | None:
     return None
 
 
-def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = ()) -> str:
+def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = (),
+           view: Presentation | None = None) -> str:
     """CSV with one row per item and the unit of each column in the header: ``density [kg/m^3]``.
 
-    Columns named in ``lead`` (those that say which row is which) come first.
+    Columns named in ``lead`` (those that say which row is which) come first. With a decimal comma
+    the separator is ``;``, as spreadsheets set up for a decimal comma expect.
     """
+    view = view or Presentation()
     flat_rows = []
     for row in rows:
         flat: dict = {}
@@ -156,10 +228,10 @@ def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = ()) 
         unit = _unit_for(column, units)
         header.append(f"{column} [{unit}]" if unit else column)
     buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\r\n")
+    writer = csv.writer(buffer, lineterminator="\r\n", delimiter=";" if view.decimal_comma else ",")
     writer.writerow(header)
     for flat in flat_rows:
-        writer.writerow([_csv_cell(flat.get(c)) for c in columns])
+        writer.writerow([text_value(flat.get(c), view) for c in columns])
     return buffer.getvalue()
 
 
@@ -167,55 +239,79 @@ def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = ()) 
 FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
 
 
-def _csv_cell(value: Any) -> Any:
-    """One CSV cell; text that a spreadsheet would run as a formula is neutralised with a leading quote.
+def text_value(value: Any, view: Presentation) -> str:
+    """One value as a spreadsheet reads it: TRUE/FALSE, numbers without float noise, empty for none;
+    text that a spreadsheet would run as a formula is neutralised with a leading quote.
 
-    >>> print(_csv_cell("=1+2"), _csv_cell("@SUM(A1)"), _csv_cell(-5.0), _csv_cell("Puffin"))
-    '=1+2 '@SUM(A1) -5.0 Puffin
+    >>> view = Presentation()
+    >>> print(text_value("=1+2", view), text_value("@SUM(A1)", view), text_value(-5.0, view), text_value("Puffin", view),
+    ...       text_value(True, view))
+    '=1+2 '@SUM(A1) -5 Puffin TRUE
     """
     if value is None:
         return ""
     if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, float):
-        return repr(value) if math.isfinite(value) else ""
-    if isinstance(value, str) and value.startswith(FORMULA_STARTS):
-        return "'" + value
-    return value
+        return "TRUE" if value else "FALSE"
+    if isinstance(value, (int, float)):
+        return view.text(float(value)) if math.isfinite(value) else ""
+    text = str(value)
+    return "'" + text if text.startswith(FORMULA_STARTS) else text
+
+
+def shaped(result: Any, schema: Schema) -> tuple[Any, dict[str, str], Presentation]:
+    """Dump ``result`` with ``schema`` in the units and figures the query asks for: (payload, units, view)."""
+    view = presentation(schema)
+    payload, units = view.convert(clean(schema.dump(result)), units_of(schema))
+    return payload, units, view
 
 
 Table = Callable[[dict], tuple[list[dict], dict[str, str]]]
 
 
 def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple[str, ...] = (),
-            table: Table | None = None, chart: Callable[[dict, str], bytes] | None = None,
-            status: int = 200) -> Response:
+            table: Table | None = None, chart: Callable[[dict, str, dict], bytes] | None = None,
+            report: Callable[[dict, dict, dict, Presentation], Any] | None = None, status: int = 200) -> Response:
     """Dump ``result`` (a calc result) with ``schema`` and answer in the negotiated format.
 
     ``rows`` names the list that becomes one CSV row per item (e.g. ``"scales"``), with the ``lead``
     columns first; ``table`` instead turns the dumped payload into CSV rows and their units;
-    ``chart`` draws the dumped payload as SVG or PNG.
+    ``chart`` draws the dumped payload (with its units) as SVG or PNG; ``report`` builds an
+    :class:`api.reports.Report` from (request as given, payload, units, presentation).
     """
-    payload = clean(schema.dump(result))
-    units = units_of(schema)
+    payload, units, view = shaped(result, schema)
     field = request.args.get("field")
     if field:
         value = pick(payload, field)
-        text = json.dumps(value) if isinstance(value, (dict, list)) else _text_value(value)
+        text = json.dumps(value) if isinstance(value, (dict, list)) else text_value(value, view)
         return Response(text + "\n", status=status, mimetype="text/plain")
     fmt = requested_format()
     if fmt == "csv" and table is not None:
         table_rows, table_units = table(payload)
-        return Response(to_csv(table_rows, table_units), status=status, mimetype="text/csv")
+        # the columns follow the requested output units where the result schema declares them
+        table_units.update({k.split(".", 1)[1]: v for k, v in units.items()
+                            if "." in k and k.split(".", 1)[1] in table_units})
+        return Response(to_csv(table_rows, table_units, view=view), status=status, mimetype="text/csv")
     if fmt == "csv":
         items = payload.get(rows, []) if rows else [payload]
         row_units = {k[len(rows) + 1:]: v for k, v in units.items() if rows and k.startswith(rows + ".")} if rows else units
-        return Response(to_csv(items, row_units, lead), status=status, mimetype="text/csv")
+        return Response(to_csv(items, row_units, lead, view), status=status, mimetype="text/csv")
     if fmt in ("svg", "png"):
         if chart is None:
             raise ProblemError(422, "this resource has no chart; use format json or csv",
                                [{"field": "format", "message": "no chart for this resource"}])
-        return Response(chart(payload, fmt), status=status, mimetype=FORMATS[fmt])
+        return Response(chart(payload, fmt, units), status=status, mimetype=FORMATS[fmt])
+    if fmt in ("html", "pdf"):
+        if report is None:
+            raise ProblemError(422, "this resource has no report; use format json or csv",
+                               [{"field": "format", "message": "no report for this resource"}])
+        from . import reports
+
+        document = report(request_object(), payload, units, view)
+        body, media = reports.render(document, fmt)
+        response = Response(body, status=status, mimetype=media)
+        name = f"coolmargin-{request.path.rsplit('/', 1)[-1]}-{document.request_hash[:12]}.{fmt}"
+        response.headers["Content-Disposition"] = f'inline; filename="{name}"'
+        return response
     body = dict(payload)
     used = records_used()
     if used:
@@ -226,10 +322,11 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple
 
 def list_response(items: list[dict], schema: Schema) -> Response:
     """A library listing: ``{"items": [...]}`` as JSON, or CSV one row per item."""
-    dumped = clean(schema.dump(items, many=True))
+    view = presentation(schema)
+    dumped, units = view.convert(clean(schema.dump(items, many=True)), units_of(schema))
     if requested_format() == "csv":
-        return Response(to_csv(dumped, units_of(schema)), mimetype="text/csv")
-    return Response(json.dumps({"items": dumped, "units": units_of(schema)}), mimetype="application/json")
+        return Response(to_csv(dumped, units, view=view), mimetype="text/csv")
+    return Response(json.dumps({"items": dumped, "units": units}), mimetype="application/json")
 
 
 def batch_response(cases: list, schema: Schema, compute: Callable[[Any], Any], result_schema: Schema) -> Response:
@@ -241,6 +338,7 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[Any], Any], r
         raise ProblemError(422, "cases must be a non-empty list", [{"field": "cases", "message": "must be a non-empty list"}])
     if len(cases) > limit:
         raise ProblemError(413, f"at most {limit} cases per call", [{"field": "cases", "message": f"at most {limit} cases"}])
+    view = presentation(result_schema)
     clock = deadline()
     results = []
     for index, case in enumerate(cases):
@@ -253,7 +351,7 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[Any], Any], r
                 raise ValidationError(["must be an object"])
             g.records_used = []
             resolved = resolve(case, schema)
-            result = clean(result_schema.dump(_run(compute, schema.load(resolved), resolved)))
+            result, _ = view.convert(clean(result_schema.dump(_run(compute, schema.load(resolved), resolved))), {})
             if g.records_used:
                 result["records"] = records_used()
             results.append({"status": 200, "result": result})
@@ -264,10 +362,10 @@ def batch_response(cases: list, schema: Schema, compute: Callable[[Any], Any], r
             for error in errors:
                 error["field"] = f"cases[{index}].{error['field']}"
             results.append({"status": status, "problem": problem_body(status, detail, errors, title)})
-    return _batch_answer(results, units_of(result_schema))
+    return _batch_answer(results, view.convert({}, units_of(result_schema))[1], view)
 
 
-def _batch_answer(results: list[dict], units: dict[str, str]) -> Response:
+def _batch_answer(results: list[dict], units: dict[str, str], view: Presentation) -> Response:
     """A batch in the negotiated format: JSON, CSV a row per case, or one value per line for ``field``."""
     field = request.args.get("field")
     if field:
@@ -277,25 +375,19 @@ def _batch_answer(results: list[dict], units: dict[str, str]) -> Response:
                 lines.append(f"error {case['status']}: {case['problem']['detail']}".replace("\n", " "))
                 continue
             value = pick(case["result"], field)
-            lines.append(json.dumps(value) if isinstance(value, (dict, list)) else _text_value(value))
+            lines.append(json.dumps(value) if isinstance(value, (dict, list)) else text_value(value, view))
         return Response("".join(line + "\n" for line in lines), mimetype="text/plain")
     fmt = requested_format()
     if fmt == "csv":
         rows = [{"case": i, "status": case["status"], **(case.get("result") or {}),
                  **({"problem": case["problem"]["detail"]} if "problem" in case else {})}
                 for i, case in enumerate(results)]
-        return Response(to_csv(rows, units, ("case", "status", "problem")), mimetype="text/csv")
+        return Response(to_csv(rows, units, ("case", "status", "problem"), view), mimetype="text/csv")
     if fmt != "json":
         raise ProblemError(422, "a batch has no chart; use format json or csv",
                            [{"field": "format", "message": "no chart for a batch"}])
     body = {"cases": results, "units": units}
     return Response(json.dumps(body, allow_nan=False), mimetype="application/json")
-
-
-def _text_value(value: Any) -> str:
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    return "" if value is None else str(value)
 
 
 def _not_computed(index: int, total: int) -> dict:

@@ -11,7 +11,7 @@ from schemas.safety import (CSTRRequestSchema, CSTRResultSchema, SimulationReque
                             ThermalSafetyRequestSchema, ThermalSafetyResultSchema, series_rows, simulation_input)
 
 from .errors import ProblemError
-from .charts import figure as _figure, footnote as _footnote, render as _render
+from .charts import figure as _figure, footnote as _footnote, readable, render as _render
 from .http import calculate
 from .runtime import deadline
 
@@ -29,27 +29,30 @@ def thermal_safety():
 
 # ---------------------------------------------------------------- simulations
 
-def _simulation_chart(payload: dict, fmt: str) -> bytes:
+def _simulation_chart(payload: dict, fmt: str, units: dict) -> bytes:
     s = payload["series"]
-    hours = [t / 3600.0 for t in s["time"]]
+    times, time_unit = readable(s["time"], units["series.time"])
+    temperature_unit = units["series.temperature"]
     fig, (ax_t, ax_q, ax_x) = _figure(3)
-    ax_t.plot(hours, s["temperature"], label="contents")
-    ax_t.plot(hours, s["coolant_inlet_temperature"], label="coolant in", linewidth=0.9)
-    ax_t.plot(hours, s["coolant_outlet_temperature"], label="coolant out", linewidth=0.9, linestyle="--")
+    ax_t.plot(times, s["temperature"], label="contents")
+    ax_t.plot(times, s["coolant_inlet_temperature"], label="coolant in", linewidth=0.9)
+    ax_t.plot(times, s["coolant_outlet_temperature"], label="coolant out", linewidth=0.9, linestyle="--")
     failure = payload["summary"].get("failure_time")
     for ax in (ax_t, ax_q, ax_x):
         if failure is not None:
-            ax.axvline(failure / 3600.0, color="#999999", linewidth=0.8, linestyle=":")
-    ax_t.set_ylabel("temperature, degC")
+            ax.axvline(readable([failure], units["summary.failure_time"])[0][0], color="#999999", linewidth=0.8,
+                       linestyle=":")
+    ax_t.set_ylabel(f"temperature, {temperature_unit}")
     ax_t.legend(frameon=False, fontsize=8)
-    ax_q.plot(hours, [q / 1000.0 for q in s["heat_release_rate"]], label="reaction heat release")
-    ax_q.plot(hours, [q / 1000.0 for q in s["jacket_duty"]], label="jacket duty")
-    ax_q.set_ylabel("heat flow, kW")
+    release, power_unit = readable(s["heat_release_rate"], units["series.heat_release_rate"])
+    ax_q.plot(times, release, label="reaction heat release")
+    ax_q.plot(times, readable(s["jacket_duty"], units["series.jacket_duty"])[0], label="jacket duty")
+    ax_q.set_ylabel(f"heat flow, {power_unit}")
     ax_q.legend(frameon=False, fontsize=8)
-    ax_x.plot(hours, s["accumulation"], label="accumulation")
-    ax_x.plot(hours, s["conversion"], label="conversion", linewidth=0.9)
+    ax_x.plot(times, s["accumulation"], label="accumulation")
+    ax_x.plot(times, s["conversion"], label="conversion", linewidth=0.9)
     ax_x.set_ylabel("fraction")
-    ax_x.set_xlabel("time, h")
+    ax_x.set_xlabel(f"time, {time_unit}")
     ax_x.legend(frameon=False, fontsize=8)
     _footnote(fig)
     return _render(fig, fmt)
@@ -79,21 +82,24 @@ def simulations():
 
 # ---------------------------------------------------------------- CSTR steady states
 
-def _cstr_chart(payload: dict, fmt: str) -> bytes:
+def _cstr_chart(payload: dict, fmt: str, units: dict) -> bytes:
     curves = payload["curves"]
     fig, (ax,) = _figure(1)
     fig.set_size_inches(7.5, 4.2)
-    ax.plot(curves["temperature"], [q / 1000.0 for q in curves["heat_generation"]], label="heat generation")
-    ax.plot(curves["temperature"], [q / 1000.0 for q in curves["heat_removal"]], label="heat removal")
+    generation, power_unit = readable(curves["heat_generation"], units["curves.heat_generation"])
+    ax.plot(curves["temperature"], generation, label="heat generation")
+    ax.plot(curves["temperature"], readable(curves["heat_removal"], units["curves.heat_removal"])[0],
+            label="heat removal")
     for state in payload["states"]:
         filled = state["stable"]
-        ax.plot([state["temperature"]], [state["heat_generation"] / 1000.0], "o", markersize=7,
+        at = readable([state["heat_generation"]], units["states.heat_generation"])[0][0]
+        ax.plot([state["temperature"]], [at], "o", markersize=7,
                 color="#222222", markerfacecolor="#222222" if filled else "white",
                 label=None)
-        ax.annotate(state["classification"], (state["temperature"], state["heat_generation"] / 1000.0),
+        ax.annotate(state["classification"], (state["temperature"], at),
                     textcoords="offset points", xytext=(6, -12), fontsize=7)
-    ax.set_xlabel("reactor temperature, degC")
-    ax.set_ylabel("heat flow, kW")
+    ax.set_xlabel(f"reactor temperature, {units['curves.temperature']}")
+    ax.set_ylabel(f"heat flow, {power_unit}")
     ax.legend(frameon=False, fontsize=8, title="filled: stable, open: unstable", title_fontsize=7)
     _footnote(fig)
     return _render(fig, fmt)

@@ -18,8 +18,14 @@ def _size(args: dict) -> sizing.JacketSizing:
                                 args["heat_release"], args["safety_factor"], args["options"], deadline=deadline())
 
 
-def sizing_chart(payload: dict, fmt: str) -> bytes:
+def sizing_chart(payload: dict, fmt: str, units: dict) -> bytes:
     """Cooling capacity against pressure drop for every candidate, the duty line, the recommendation marked."""
+    def drop(values):
+        return charts.readable(values, units["candidates.pressure_drop"])
+
+    def power(values, key="candidates.cooling_capacity"):
+        return charts.readable(values, units[key])
+
     fig, (axis,) = charts.figure(1)
     fig.set_size_inches(7.5, 4.6)
     candidates = [c for c in payload["candidates"] if c["pressure_drop"] and c["pressure_drop"] > 0]
@@ -30,20 +36,22 @@ def sizing_chart(payload: dict, fmt: str) -> bytes:
         for feasible in (True, False):
             chosen = [c for c in rows if c["feasible"] is feasible]
             if chosen:
-                axis.scatter([c["pressure_drop"] / 1e5 for c in chosen], [c["cooling_capacity"] / 1e3 for c in chosen],
+                axis.scatter(drop([c["pressure_drop"] for c in chosen])[0],
+                             power([c["cooling_capacity"] for c in chosen])[0],
                              marker=marker, s=22, color=colour if feasible else "none", edgecolors=colour,
                              linewidths=0.9, label=kind.replace("_", " ") + ("" if feasible else " (not feasible)"))
-    duty = payload["duty"] / 1e3
+    duty = power([payload["duty"]], "duty")[0][0]
     axis.axhline(duty, color="#555555", linestyle="--", linewidth=0.9,
                  label=f"duty: load x safety factor {payload['safety_factor']:g}")
     best = payload["recommendation"].get("index")
     if best is not None:
         chosen = payload["candidates"][best]
-        axis.scatter([chosen["pressure_drop"] / 1e5], [chosen["cooling_capacity"] / 1e3], s=140, facecolors="none",
+        axis.scatter(drop([chosen["pressure_drop"]])[0], power([chosen["cooling_capacity"]])[0], s=140,
+                     facecolors="none",
                      edgecolors="#000000", linewidths=1.2, label="recommended")
     axis.set_xscale("log")
-    axis.set_xlabel("pressure drop, bar (largest circuit)")
-    axis.set_ylabel("cooling capacity, kW")
+    axis.set_xlabel(f"pressure drop, {drop([0.0])[1]} (largest circuit)")
+    axis.set_ylabel(f"cooling capacity, {power([0.0])[1]}")
     axis.set_title("Candidate jackets and coils: capacity against pressure drop", fontsize=10)
     axis.legend(fontsize=6.5, frameon=False, ncol=2)
     charts.footnote(fig)

@@ -26,11 +26,10 @@ def _window(args: dict) -> dict:
     return operating_window_dict(result)
 
 
-def window_chart(payload: dict, fmt: str) -> bytes:
+def window_chart(payload: dict, fmt: str, units: dict) -> bytes:
     """Margin contours over the two axes, the safety-factor line bold, the request's own point marked."""
     import numpy as np
 
-    units = _result_units()
     (first, second) = payload["axes"]
     n1, n2 = first["points"], second["points"]
     points = payload["points"]
@@ -59,12 +58,6 @@ def window_chart(payload: dict, fmt: str) -> bytes:
     axis.set_title("Operating window: cooling margin (adequate where margin >= safety factor)", fontsize=10)
     charts.footnote(fig)
     return charts.render(fig, fmt)
-
-
-def _result_units() -> dict:
-    from .http import units_of
-
-    return units_of(_result)
 
 
 @bp.route("/operating-window", methods=["GET", "POST"])

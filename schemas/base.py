@@ -157,9 +157,8 @@ def numeric_leaves(value: Any, prefix: str = "") -> dict[str, float]:
     return out
 
 
-def unit_map(schema: Schema, prefix: str = "") -> dict[str, str]:
-    """The default unit of every quantity field of a (response) schema, by dotted name."""
-    units: dict[str, str] = {}
+def _quantities(schema: Schema, prefix: str = ""):
+    """(dotted name, Quantity field) of every quantity of a (response) schema; ``name.*`` for dict values."""
     for name, field in schema.fields.items():
         key = field.data_key or name
         path = f"{prefix}.{key}" if prefix else key
@@ -167,13 +166,21 @@ def unit_map(schema: Schema, prefix: str = "") -> dict[str, str]:
         if isinstance(field, fields.List):
             inner = field.inner
         if isinstance(inner, fields.Nested):
-            nested = inner.schema
-            units.update(unit_map(nested, path))
+            yield from _quantities(inner.schema, path)
         elif isinstance(inner, Quantity):
-            units[path] = inner.metadata["unit"]
+            yield path, inner
         elif isinstance(inner, fields.Dict) and isinstance(inner.value_field, Quantity):
-            units[f"{path}.*"] = inner.value_field.metadata["unit"]
-    return units
+            yield f"{path}.*", inner.value_field
+
+
+def unit_map(schema: Schema) -> dict[str, str]:
+    """The default unit of every quantity field of a (response) schema, by dotted name."""
+    return {path: field.metadata["unit"] for path, field in _quantities(schema)}
+
+
+def kind_map(schema: Schema) -> dict[str, str]:
+    """The quantity kind of every quantity field of a (response) schema, by dotted name."""
+    return {path: field.kind for path, field in _quantities(schema)}
 
 
 def clean(value: Any) -> Any:

@@ -185,6 +185,8 @@ def roots() -> tuple[list[type], list[type]]:
 
 
 _PROBLEM = {"$ref": "#/components/responses/Problem"}
+# Query parameters that shape an answer (hand-written under components/parameters).
+PRESENTATION_PARAMETERS = ("format", "field", "output_units", "digits", "decimal")
 #: Answers any operation can give besides its own: too large (body, batch or scale list), URI too long,
 #: rate limited, internal error, over its time budget or not ready.
 COMMON_PROBLEMS = ("413", "414", "429", "500", "503")
@@ -242,7 +244,7 @@ def paths() -> dict:
     for calc in registry.CALCULATIONS:
         operation_id = "".join(part.capitalize() for part in calc.path.split("/")[-1].split("-"))
         common = {"tags": [calc.tag], "summary": calc.summary, "description": calc.description}
-        params = [{"$ref": "#/components/parameters/format"}, {"$ref": "#/components/parameters/field"}]
+        params = [{"$ref": f"#/components/parameters/{name}"} for name in PRESENTATION_PARAMETERS]
         body_schema: dict = {"$ref": f"#/components/schemas/{_name(calc.request)}"}
         ok = _ok(calc.response, calc.media)
         if calc.batch:
@@ -277,7 +279,8 @@ def paths() -> dict:
         out[library.path] = {"get": {
             "tags": [library.tag], "summary": library.summary,
             "operationId": "list" + library.path.split("/")[-1].capitalize(),
-            "parameters": [{"$ref": "#/components/parameters/format"}],
+            "parameters": [{"$ref": f"#/components/parameters/{name}"} for name in PRESENTATION_PARAMETERS
+                           if name != "field"],
             "responses": {"200": {"description": "Library entries; the id is what requests use.", "content": {
                 "application/json": {"schema": {"type": "object", "required": ["items"], "properties": {
                     "items": {"type": "array", "items": item}, "units": {"$ref": "#/components/schemas/Units"}}}},

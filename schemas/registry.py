@@ -67,9 +67,11 @@ CALCULATIONS = [
                 "process temperature; margin = capacity / load; adequate when margin >= safety_factor (default "
                 "1.3, a conservative engineering choice). Limits are solved: the shortest dosing time, the "
                 "warmest coolant inlet and the coolant flow that restore the safety factor. POST also takes "
-                "{\"cases\": [...]}. A screening estimate: confirm with reaction calorimetry and plant data; "
+                "{\"cases\": [...]}. format=svg or png draws the heat balance; format=html or pdf gives a printable "
+                "report (inputs as given, results, limits, warnings, cautions, request hash). A screening estimate: confirm with reaction calorimetry and plant data; "
                 "local codes and a licensed engineer's review govern.",
                 CoolingCheckRequestSchema, CoolingCheckResultSchema, batch=True,
+                media=("text/csv", "text/plain", "image/svg+xml", "image/png", "text/html", "application/pdf"),
                 example="cooling_check_production.json"),
     Calculation("/v1/scale-up", "cooling check", "The cooling check at every scale of a scale-up path",
                 "From a reference vessel to explicit target vessels or target volumes (geometrically similar "
@@ -77,9 +79,10 @@ CALCULATIONS = [
                 "speed, A/V, films, U, the controlling resistance, capacity, load, margin, verdict and limits; "
                 "overall the largest adequate volume solved on the continuous family of similar vessels and "
                 "where the controlling resistance switches. format=csv gives one row per scale; format=svg or "
-                "png a chart. POST also takes {\"cases\": [...]}.",
+                "png a chart; format=html or pdf a printable report (one page per scale). POST also takes {\"cases\": [...]}.",
                 ScaleUpRequestSchema, ScaleUpResultSchema, media=("text/csv", "text/plain", "image/svg+xml",
-                                                                  "image/png"), batch=True,
+                                                                  "image/png", "text/html", "application/pdf"),
+                batch=True,
                 example="scale_up_demo.json"),
     Calculation("/v1/operating-window", "cooling check", "The cooling margin over a grid of two operating quantities",
                 "The cooling check's body plus two axes, each one of heat_release.dosing_time, "

@@ -181,17 +181,26 @@ def parse_quantity(kind_name: str, raw) -> float:
     if len(raw) > MAX_TEXT:
         raise ValidationError(f"quantity text is longer than {MAX_TEXT} characters")
     if not raw.isascii():
-        raise ValidationError("quantity text must be plain ASCII (digits 0-9, unit names such as 'degC', 'm^3/h')")
+        degrees = "; write degC or degF for degrees" if "\u00b0" in raw else ""
+        raise ValidationError("quantity text must be plain ASCII (digits 0-9, unit names such as 'degC', 'm^3/h')"
+                              + degrees)
     match = _NUMBER_THEN_UNIT.match(raw)
     if match is None:
-        raise ValidationError(f"expected a number with an optional unit, e.g. '{_example(kind)}'; got {raw!r}")
+        raise ValidationError(decimal_comma_hint(raw) or
+                              f"expected a number with an optional unit, e.g. '{_example(kind)}'; got {raw!r}")
     number, unit = float(match.group(1)), match.group(2)
     if not math.isfinite(number):
         raise ValidationError("must be a finite number")
     if unit == "":
         return to_si(kind_name, number)
-    check_unit_text(unit)
-    factor, offset = _conversion(kind_name, unit)
+    try:
+        check_unit_text(unit)  # bounded grammar first; its refusals get the same hints
+        factor, offset = _conversion(kind_name, unit)
+    except ValidationError as error:
+        hint = habit_hint(kind, match.group(1), unit)
+        if hint is None:
+            raise
+        raise ValidationError(f"{error.messages[0]}; {hint}") from None
     value = number * factor + offset
     if not math.isfinite(value):
         raise ValidationError("must be a finite number")
@@ -300,6 +309,68 @@ def _conversion(kind_name: str, unit: str) -> tuple[float, float]:
         return float(one.to(kind.si_unit).magnitude) - at_zero, at_zero
     except Exception as exc:  # pint refuses some conversions (e.g. offset units in compound units)
         raise ValidationError(f"cannot convert {unit!r} to {kind.api_unit}: {exc}") from None
+
+
+_GAUGE = re.compile(r"^(bar|psi|kPa|MPa|Pa)\s*(?:g|\(g\)|gauge|\(gauge\))$", re.IGNORECASE)
+_ABSOLUTE = re.compile(r"^(bar|psi|kPa|MPa|Pa)\s*(?:a|\(a\)|abs|\(abs\))$", re.IGNORECASE)
+# The standard atmosphere, 101 325 Pa by definition, in each unit a gauge reading is written in.
+_ATMOSPHERE = {"bar": 1.01325, "psi": 14.696, "kpa": 101.325, "mpa": 0.101325, "pa": 101325.0}
+_BARE_DEGREES = {"c": "degC", "f": "degF", "deg c": "degC", "deg f": "degF", "celsius": "degC",
+                 "fahrenheit": "degF", "k": "K", "r": "degR"}
+
+
+def habit_hint(kind: Kind, number: str, unit: str) -> str | None:
+    """A suggestion for a unit written as people often write it by hand, or None.
+
+    >>> habit_hint(KINDS["volume flow"], "20", "m3/h")
+    "write powers with ^: '20 m^3/h'"
+    """
+    bare = unit.strip().lower()
+    if kind.name.startswith("temperature") and bare in _BARE_DEGREES:
+        meaning = {"c": " ('C' is the coulomb)", "f": " ('F' is the farad)"}.get(bare, "")
+        return f"did you mean '{number} {_BARE_DEGREES[bare]}'{meaning}?"
+    gauge = _GAUGE.match(unit.strip())
+    if gauge:
+        base = gauge.group(1)
+        absolute = float(number) + _ATMOSPHERE[base.lower()]
+        return (f"pressures here are absolute: add the atmospheric pressure to a gauge reading, e.g. "
+                f"'{absolute:.6g} {base}' for {number} {unit.strip()} at sea level")
+    absolute = _ABSOLUTE.match(unit.strip())
+    if absolute:
+        return f"pressures here are absolute already: write '{number} {absolute.group(1)}'"
+    if re.search(r"[A-Za-z]\d", unit):
+        powered = re.sub(r"([A-Za-z])(\d)", r"\1^\2", unit)
+        return f"write powers with ^: '{number} {powered}'"
+    if unit != unit.lower():
+        try:
+            UREG.parse_units(unit.lower())
+        except Exception:  # pint's parser raises assorted errors on garbage text
+            return None
+        return f"units are case-sensitive: did you mean '{number} {unit.lower()}'?"
+    return None
+
+
+_DECIMAL_COMMA = re.compile(r"^ *[-+]?[0-9]+,[0-9]")
+
+
+def decimal_comma_hint(raw: str) -> str | None:
+    """A message for a number written with a decimal comma ("1,8 m"), or None.
+
+    >>> decimal_comma_hint("1,8 m")
+    "'1,8 m' has a decimal comma: write '1.8 m' (a comma is read neither as a decimal mark nor as a thousands separator)"
+    """
+    if not _DECIMAL_COMMA.match(raw):
+        return None
+    return (f"{raw.strip()!r} has a decimal comma: write {raw.strip().replace(',', '.', 1)!r} (a comma is read neither "
+            "as a decimal mark nor as a thousands separator)")
+
+
+def hint_for(kind_name: str, raw) -> str | None:
+    """The habit hint for quantity text ``raw`` read as ``kind_name``, or None."""
+    if isinstance(raw, str) and decimal_comma_hint(raw):
+        return decimal_comma_hint(raw)
+    match = _NUMBER_THEN_UNIT.match(raw) if isinstance(raw, str) and len(raw) <= MAX_TEXT else None
+    return habit_hint(KINDS[kind_name], match.group(1), match.group(2)) if match and match.group(2) else None
 
 
 def _example(kind: Kind) -> str:

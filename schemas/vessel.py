@@ -16,7 +16,7 @@ from calc.films import wall
 from calc.vessel.model import Charge, Coolant, Vessel
 
 from .base import StrictSchema, finite_float, whole_number
-from .units import BOUNDS, Quantity, absolute_temperature, parse_quantity
+from .units import BOUNDS, Quantity, absolute_temperature, hint_for, parse_quantity
 
 JACKET_TYPES = ["annular", "annular_spiral_baffle", "half_pipe", "none"]
 
@@ -221,7 +221,9 @@ class Flow(fields.Field):
             try:
                 kind, si = "volume", parse_quantity("volume flow", value)
             except ValidationError:
-                raise ValidationError("expected a mass flow (e.g. '2 kg/s') or a volume flow (e.g. '20 m^3/h')") from None
+                message = "expected a mass flow (e.g. '2 kg/s') or a volume flow (e.g. '20 m^3/h')"
+                hint = hint_for("volume flow", value)
+                raise ValidationError(f"{message}; {hint}" if hint else message) from None
         bounds = BOUNDS[f"{kind} flow"]
         unit = "kg/s" if kind == "mass" else "m^3/s"
         if not bounds.smallest <= si <= bounds.largest:

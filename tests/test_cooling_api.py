@@ -31,7 +31,8 @@ def test_minimum_dosing_time_fed_back_gives_the_safety_factor(client):
 def test_csv_and_single_value(client):
     csv = client.post("/v1/cooling-check?format=csv", json=EXAMPLE).get_data(as_text=True)
     assert "cooling_capacity [W]" in csv.splitlines()[0]
-    assert client.post("/v1/cooling-check?field=adequate", json=EXAMPLE).get_data(as_text=True) == "true\n"
+    # Booleans as a spreadsheet reads them (documented in README and the contract).
+    assert client.post("/v1/cooling-check?field=adequate", json=EXAMPLE).get_data(as_text=True) == "TRUE\n"
 
 
 def _cli(tmp_path, body):
