@@ -37,7 +37,7 @@ def whole_number(**kwargs) -> fields.Integer:
     return WholeNumber(strict=False, **kwargs)
 
 
-_SEGMENT = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*)((?:\[\d+\])*)$")
+_SEGMENT = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*)((?:\[[0-9]+\])*)$")
 
 
 def unflatten(pairs: dict[str, str]) -> dict[str, Any]:
@@ -54,14 +54,14 @@ def unflatten(pairs: dict[str, str]) -> dict[str, Any]:
             raise ValidationError({shown: [f"is nested deeper than {MAX_QUERY_DEPTH} levels"]})
         parts: list[str | int] = []
         for segment in key.split("."):
-            if segment.isdigit():
+            if segment.isascii() and segment.isdigit():  # '³' is a digit to str.isdigit, not to int()
                 parts.append(int(segment))
                 continue
             match = _SEGMENT.match(segment)
             if match is None:
                 raise ValidationError({key: ["is not a valid parameter name"]})
             parts.append(match.group(1))
-            parts.extend(int(i) for i in re.findall(r"\[(\d+)\]", match.group(2)))
+            parts.extend(int(i) for i in re.findall(r"\[([0-9]+)\]", match.group(2)))
         if any(isinstance(p, int) and p >= MAX_QUERY_INDEX for p in parts):
             raise ValidationError({key: [f"list index must be below {MAX_QUERY_INDEX}"]})
         node: Any = root

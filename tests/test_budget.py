@@ -80,9 +80,12 @@ def test_a_request_past_its_budget_is_a_503_problem_with_retry_after():
 
 
 def test_a_batch_past_its_budget_keeps_the_cases_it_finished():
-    # time one case, then give the batch room for about two of six
-    one, took = _post({}, DEMO)
-    assert one.status_code == 200
+    # time one case (warm, the median of three: timing noise on a busy machine), then give the batch room
+    # for about two of six
+    _post({}, DEMO)  # warm: property tables and caches are built on first use
+    timed = [_post({}, DEMO) for _ in range(3)]
+    assert all(response.status_code == 200 for response, _ in timed)
+    one, took = sorted(timed, key=lambda pair: pair[1])[1]
     response, elapsed = _post({"REQUEST_BUDGET": 2.5 * took}, {"cases": [DEMO] * 6})
     assert response.status_code == 200
     statuses = [case["status"] for case in response.json["cases"]]
@@ -92,7 +95,8 @@ def test_a_batch_past_its_budget_keeps_the_cases_it_finished():
     kept = response.json["cases"][0]["result"]
     assert kept["largest_adequate_volume"] == one.json["largest_adequate_volume"]  # the same answer, kept
     missing = response.json["cases"][-1]["problem"]
-    assert missing["status"] == 503 and "not computed" in missing["detail"]
+    # the last case was either never started or stopped by the clock mid-way
+    assert missing["status"] == 503 and ("not computed" in missing["detail"] or "did not finish" in missing["detail"])
     assert elapsed < 6 * took  # the rest was not computed
 
 
