@@ -343,6 +343,7 @@ def habit_hint(kind: Kind, number: str, unit: str) -> str | None:
         return f"write powers with ^: '{number} {powered}'"
     if unit != unit.lower():
         try:
+            check_unit_text(unit.lower())  # the bounded grammar first: pint may spin on text outside it
             UREG.parse_units(unit.lower())
         except Exception:  # pint's parser raises assorted errors on garbage text
             return None
