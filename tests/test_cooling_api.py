@@ -106,7 +106,7 @@ def test_spreadsheet_url_in_the_demo_guide_answers_one_number(client):
     url = next(line.strip() for line in guide.splitlines() if line.strip().startswith("http://127.0.0.1:8000/v1/cooling-check?"))
     text = client.get(url.split("8000", 1)[1]).get_data(as_text=True)
     posted = client.post("/v1/cooling-check", json=EXAMPLE).json["margin"]
-    assert float(text) == pytest.approx(posted, rel=1e-12)
+    assert float(text) == pytest.approx(posted, rel=1e-11)  # text answers carry 12 significant figures
 
 
 def test_internal_error_in_one_batch_case_is_that_case_only(client, monkeypatch, caplog):
