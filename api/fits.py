@@ -63,7 +63,7 @@ def _ua_fit_object() -> dict:
     return request_object()
 
 
-def ua_fit_chart(payload: dict, fmt: str) -> bytes:
+def ua_fit_chart(payload: dict, fmt: str, units: dict | None = None) -> bytes:
     """Logged and fitted contents temperature, and the residuals."""
     fig, (top, bottom) = charts.figure(2)
     time = [t / 60.0 for t in payload["time"]]
@@ -92,7 +92,7 @@ def ua_fit():
     return respond(ua_fit_dict(fitted, CAUTIONS), _result, chart=ua_fit_chart)
 
 
-def wilson_chart(payload: dict, fmt: str) -> bytes:
+def wilson_chart(payload: dict, fmt: str, units: dict | None = None) -> bytes:
     """1/U against Re^-b with the fitted line (Wilson 1915)."""
     fig, (axis,) = charts.figure(1)
     x = payload["x"]
