@@ -15,7 +15,7 @@ from flask import Blueprint, Flask, Response, current_app, request
 from marshmallow import ValidationError
 
 from schemas.base import clean, unit_map
-from schemas.records import RECORD_SCHEMAS, RecordListSchema, RecordQuerySchema, RecordSchema
+from schemas.records import IF_MATCH_MAX_LENGTH, RECORD_SCHEMAS, RecordListSchema, RecordQuerySchema, RecordSchema
 
 from . import bulk, security
 from .errors import ProblemError
@@ -82,6 +82,10 @@ def validated(kind: str, content: Any) -> tuple[dict, dict]:
 def _if_match(current: RevisionView) -> int:
     """The revision number the change is based on, from If-Match (428 when missing, 412 when stale)."""
     header = request.headers.get("If-Match")
+    if header is not None and len(header) > IF_MATCH_MAX_LENGTH:
+        raise ProblemError(422, f"If-Match is longer than {IF_MATCH_MAX_LENGTH} characters; send the ETag of the "
+                                f"revision you changed (the current one is {current.etag})",
+                           [{"field": "If-Match", "message": f"at most {IF_MATCH_MAX_LENGTH} characters"}])
     if header is None:
         raise ProblemError(428, f"send If-Match with the ETag of the revision you changed "
                                 f"(the current one is {current.etag})",

@@ -163,6 +163,18 @@ def _rows(payload: dict, units: dict, prefix: str, names: list[tuple[str, str]],
     return rows
 
 
+def band_section(band: dict, digits: int = REPORT_DIGITS) -> Section:
+    """The margin band in a few rows: its ends (with what sets each), then one line per alternative."""
+    rows = [Row("lowest margin", number(band.get("low"), digits), "", str(band.get("low_set_by") or "")),
+            Row("highest margin", number(band.get("high"), digits), "", str(band.get("high_set_by") or ""))]
+    members = [f"{m.get('resistance')} = {m.get('alternative')}: {number(m.get('margin'), 3)}"
+               for m in band.get("members") or [] if isinstance(m, dict) and m.get("resistance") != "joint"]
+    lines = [str(band["statement"])] if band.get("statement") else []
+    if members:
+        lines.append("margin with each alternative: " + "; ".join(members))
+    return Section("Margin band", rows, lines)
+
+
 def check_page(payload: dict, units: dict, heading: str, *, prefix: str = "", digits: int = REPORT_DIGITS,
                chart: Chart | None = None, extra: list[Row] | None = None) -> Page:
     """One printed page of a cooling check (a single vessel, or one scale of a scale-up).
@@ -187,11 +199,7 @@ def check_page(payload: dict, units: dict, heading: str, *, prefix: str = "", di
     ], digits)))
     band = payload.get("margin_band")
     if isinstance(band, dict):
-        pairs: list[tuple[str, Any]] = []
-        _flat(band, "", pairs)
-        sections.append(Section("Margin band", [Row(name.replace("_", " "), number(value, digits),
-                                                    units.get(f"{prefix}margin_band.{name}", ""))
-                                                for name, value in pairs]))
+        sections.append(band_section(band, digits))
     sections.append(Section("Heat transfer", _rows(payload, units, prefix, [
         ("heat_transfer.overall_coefficient", "overall coefficient U"), ("heat_transfer.ua", "UA"),
         ("heat_transfer.heat_transfer_area", "heat-transfer area"),

@@ -11,6 +11,7 @@ from pathlib import Path
 import yaml
 from marshmallow import Schema, fields, validate
 
+from .records import IF_MATCH_MAX_LENGTH
 from .units import MAX_EXPONENT, MAX_NESTING, MAX_TEXT, QUANTITY_PATTERN, Quantity
 
 
@@ -294,7 +295,8 @@ _KEY = {"name": "key", "in": "path", "required": True, "description": "the recor
         "(of the latest retired one when none is live)", "schema": {"type": "string", "minLength": 1, "maxLength": 64}}
 _IF_MATCH = {"name": "If-Match", "in": "header", "required": True,
              "description": "ETag of the revision the change is based on (RFC 9110 §13.1.1); missing: 428, "
-                            "stale: 412 with the current ETag", "schema": {"type": "string", "maxLength": 200}}
+                            "stale: 412 with the current ETag",
+             "schema": {"type": "string", "maxLength": IF_MATCH_MAX_LENGTH}}
 _ETAG = {"ETag": {"description": "entity tag of the record's current revision", "schema": {"type": "string"}}}
 
 

@@ -17,6 +17,7 @@ from .units import Quantity, absolute_temperature
 from .vessel import ChargeSchema, CoolantSchema, VesselSchema
 
 TAG_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9._/+-]{0,63}$"
+IF_MATCH_MAX_LENGTH = 200  # an If-Match header longer than this is a 422 (a few ETags fit easily)
 CALIBRATION_SOURCES = ["ua-fit", "wilson-plot", "plant-trial"]
 
 

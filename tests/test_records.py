@@ -46,6 +46,12 @@ def test_changes_need_if_match_and_a_stale_etag_is_refused(store_client):
     assert weak.status_code == 412  # weak entity tags never match If-Match (strong comparison)
     star = store_client.patch(R630, json={"notes": "y"}, headers={"If-Match": "*"})
     assert star.status_code == 200 and star.json["revision"] == 3
+    # Longer than the contract's maxLength: a 422 naming the header, on delete too (found by contract fuzzing).
+    long_tag = f'"{"x" * 300}", ' + star.headers["ETag"]
+    for too_long in (store_client.patch(R630, json={"notes": "w"}, headers={"If-Match": long_tag}),
+                     store_client.delete(R630, headers={"If-Match": long_tag})):
+        assert too_long.status_code == 422 and too_long.json["errors"][0]["field"] == "If-Match"
+    assert store_client.get(R630).json["revision"] == 3
 
 
 def test_merge_patch_changes_only_what_it_names(store_client):

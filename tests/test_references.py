@@ -65,7 +65,9 @@ def test_fields_beside_a_step_and_an_explicit_coolant_override_the_stored_ones(p
 def test_spreadsheet_get_names_records_too(plant):
     inline = plant.post(CHECK, json=_inline("R-800", "AC-7-FAST", "GLY-5")).json
     text = plant.get(f"{CHECK}?vessel.ref=R-800&step.ref=AC-7-FAST&field=margin").get_data(as_text=True)
-    assert float(text) == inline["margin"]
+    # Text answers carry 12 significant figures (README, "Spreadsheets"), JSON the full double.
+    assert float(text) == pytest.approx(inline["margin"], rel=1e-11)
+    assert text.strip() == f"{inline['margin']:.12g}"
 
 
 def test_the_cooling_failure_scenario_of_a_step_feeds_thermal_safety(plant):

@@ -56,7 +56,8 @@ def test_pdf_report_of_a_scale_up_reads_back(client, scale_up):
     _assert_one_page_per_scale(pages, names)
     text = " ".join(" ".join(pages).split())
     assert _canonical_hash(DEMO) in text  # reproducible: the same inputs give the same hash
-    assert "NOT ADEQUATE: margin 0.948 against 1.30 required" in text  # Puffin, as in the README's table
+    puffin = scale_up["scales"][-1]  # the numbers printed are the JSON answer's, rounded (the README's table)
+    assert f"NOT ADEQUATE: margin {puffin['margin']:#.3g} against 1.30 required" in text
     assert "reference.diameter 0.1 m" in text and "process_temperature 45 degC" in text  # inputs as given
     assert "minimum dosing time" in text and "jacket bottom head" in text  # limits and warnings
 
@@ -64,8 +65,11 @@ def test_pdf_report_of_a_scale_up_reads_back(client, scale_up):
 def test_pdf_report_follows_the_output_units(client):
     pages = _pages(client.post("/v1/cooling-check?format=pdf&output_units=metric", json=CHECK).data)
     text = " ".join(" ".join(pages).split())
-    assert "ADEQUATE: margin 2.20 against 1.30 required" in text
-    assert "heat load 63.97 kW" in text and "minimum dosing time 70.78 min" in text
+    answer = client.post("/v1/cooling-check", json=CHECK).json  # SI: W and s
+    assert f"ADEQUATE: margin {answer['margin']:#.3g} against 1.30 required" in text
+    assert f"heat load {answer['heat_load']['total'] / 1e3:#.4g} kW" in text
+    assert f"minimum dosing time {answer['limits']['minimum_dosing_time'] / 60:#.4g} min" in text
+    assert "lowest margin" in text and "coker_2001" in text  # the band, with what sets its low end
     assert len(pages) == 2  # the check on one page, the inputs on the next
 
 
