@@ -25,7 +25,7 @@ def _tag(**kwargs) -> fields.String:
     return fields.String(validate=validate.Regexp(TAG_PATTERN, error="a tag is 1-64 letters, digits or . _ / + -, "
                                                                     "starting with a letter or digit"),
                          metadata={"description": "the plant's own name for the record, unique among live "
-                                                  "records of its kind (e.g. R-630)"}, **kwargs)
+                                                  "records of its kind (e.g. Puffin)"}, **kwargs)
 
 
 def _notes() -> fields.String:

@@ -16,7 +16,7 @@ HEADERS_WITH_UNITS = (
     "tag,name,diameter [m],straight_side (m),bottom_head,wall.material,wall.thickness [mm],jacket.type,"
     "jacket.pipe_diameter [mm],jacket.pipe_pitch [mm],agitator.impeller,agitator.diameter [m],agitator.speed [rpm],"
     "fouling.process,fouling.service,utility\r\n"
-    "R-630,\"R-630 stainless production reactor, 6.3 m3\",1.8,2.2,torispherical_fd,stainless_316l,12,half_pipe,"
+    "Puffin,\"Puffin, 6.3 m3 production reactor\",1.8,2.2,torispherical_fd,stainless_316l,12,half_pipe,"
     "100,140,pitched_blade_turbine,0.6,90,0.00018,0.00035,GLY-5\r\n")
 UNIT_ROW = (
     "tag,vessel.name,vessel.diameter,vessel.straight_side,vessel.bottom_head,wall.material,wall.thickness,"
@@ -32,16 +32,16 @@ def _csv(client, text: str, query: str = ""):
 
 def test_a_spreadsheet_row_with_unit_headers_is_the_same_vessel_as_the_json_record(store_client):
     load_plant(store_client)
-    store_client.delete("/v1/vessels/R-630")
+    store_client.delete("/v1/vessels/Puffin")
     imported = _csv(store_client, HEADERS_WITH_UNITS)
-    assert imported.status_code == 201 and [r["tag"] for r in imported.json["created"]] == ["R-630"]
-    stored = store_client.get("/v1/vessels/R-630").json["content"]
+    assert imported.status_code == 201 and [r["tag"] for r in imported.json["created"]] == ["Puffin"]
+    stored = store_client.get("/v1/vessels/Puffin").json["content"]
     assert stored["vessel"]["wall"]["thickness"] == "12 mm" and stored["vessel"]["agitator"]["speed"] == "90 rpm"
-    body = {"vessel": {"ref": "R-630"}, "step": {"ref": "AC-7-PROD"}}
+    body = {"vessel": {"ref": "Puffin"}, "step": {"ref": "AC-7-PROD"}}
     from_csv = store_client.post("/v1/cooling-check", json=body).get_json()
     step = record("step", "AC-7-PROD")
     inline = store_client.post("/v1/cooling-check", json={
-        "vessel": record("vessel", "R-630")["vessel"], "coolant": record("utility", "GLY-5")["coolant"],
+        "vessel": record("vessel", "Puffin")["vessel"], "coolant": record("utility", "GLY-5")["coolant"],
         **{k: step[k] for k in ("charge", "process_temperature", "heat_release", "safety_factor")}}).get_json()
     assert from_csv["margin"] == inline["margin"]  # unit conversions are exact here: mm, m, rpm
 
@@ -85,9 +85,9 @@ def test_replace_revises_existing_tags(store_client):
 
 def test_export_import_round_trip_keeps_every_revision(store_client, database_url, tmp_path):
     load_plant(store_client)
-    etag = store_client.get("/v1/vessels/R-800").headers["ETag"]
-    store_client.patch("/v1/vessels/R-800", json={"notes": "coil re-tubed"}, headers={"If-Match": etag})
-    store_client.delete("/v1/vessels/R-1200")
+    etag = store_client.get("/v1/vessels/Cormorant").headers["ETag"]
+    store_client.patch("/v1/vessels/Cormorant", json={"notes": "coil re-tubed"}, headers={"If-Match": etag})
+    store_client.delete("/v1/vessels/Albatross")
     exported = tmp_path / "catalogue.json"
     assert cli.main(["export", "--database-url", database_url, str(exported)]) == 0
     document = json.loads(exported.read_text())

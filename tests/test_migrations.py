@@ -42,20 +42,20 @@ def test_upgrade_from_the_previous_revision_keeps_every_record(database_url):
     try:
         catalogue.upgrade("0001_records")
         now = datetime(2026, 11, 2, 8, 30, tzinfo=timezone.utc)
-        body = record("vessel", "R-630")
+        body = record("vessel", "Puffin")
         with catalogue.engine.begin() as connection:  # rows as the previous release wrote them
             connection.execute(text(
                 "INSERT INTO records (id, kind, tag, revision, retired, created_at, updated_at, name, material, "
-                "jacket_type, volume) VALUES ('a1', 'vessel', 'R-630', 2, false, :now, :now, 'R-630', "
+                "jacket_type, volume) VALUES ('a1', 'vessel', 'Puffin', 2, false, :now, :now, 'Puffin', "
                 "'stainless_316l', 'half_pipe', 6.07)"), {"now": now})
             for number, notes in ((1, None), (2, "seal")):
                 connection.execute(text(
                     "INSERT INTO revisions (record_id, number, tag, body, author, created_at, retired) "
-                    "VALUES ('a1', :number, 'R-630', :body, 'alice', :now, false)"),
+                    "VALUES ('a1', :number, 'Puffin', :body, 'alice', :now, false)"),
                     {"number": number, "now": now, "body": __import__("json").dumps(body | {"notes": notes})})
         catalogue.upgrade()
         assert catalogue.schema_revision() == "0002_screenings"
-        history = catalogue.history("vessel", "R-630")
+        history = catalogue.history("vessel", "Puffin")
         assert [(h.number, h.body.get("notes"), h.author) for h in history] == [(1, None, "alice"), (2, "seal", "alice")]
         assert catalogue.list("vessel", material="stainless_316l")[1] == 1
     finally:

@@ -11,11 +11,11 @@ import pytest
 
 from plant import load_plant, record
 
-R630 = "/v1/vessels/R-630"
+R630 = "/v1/vessels/Puffin"
 
 
-def _create_vessel(client, tag="R-630"):
-    body = record("vessel", "R-630") | {"tag": tag, "utility": None}
+def _create_vessel(client, tag="Puffin"):
+    body = record("vessel", "Puffin") | {"tag": tag, "utility": None}
     return client.post("/v1/vessels", json=body)
 
 
@@ -26,7 +26,7 @@ def test_create_answers_201_with_location_and_etag_and_reads_back(store_client):
     assert location == f"/v1/vessels/{response.json['id']}" and etag.startswith('"') and etag.endswith('"')
     again = store_client.get(location)
     assert again.status_code == 200 and again.headers["ETag"] == etag
-    assert again.json["content"] == record("vessel", "R-630") | {"utility": None}
+    assert again.json["content"] == record("vessel", "Puffin") | {"utility": None}
     assert again.json["revision"] == 1 and again.json["author"] == "anonymous"
     assert store_client.get(R630).json["id"] == response.json["id"]  # by tag too
 
@@ -40,7 +40,7 @@ def test_changes_need_if_match_and_a_stale_etag_is_refused(store_client):
     assert changed.status_code == 200 and changed.json["revision"] == 2
     second = changed.headers["ETag"]
     assert second != first
-    stale = store_client.put(R630, json=record("vessel", "R-630") | {"utility": None}, headers={"If-Match": first})
+    stale = store_client.put(R630, json=record("vessel", "Puffin") | {"utility": None}, headers={"If-Match": first})
     assert stale.status_code == 412 and stale.headers["ETag"] == second  # RFC 9110 §13.1.1
     weak = store_client.patch(R630, json={"notes": "x"}, headers={"If-Match": "W/" + second})
     assert weak.status_code == 412  # weak entity tags never match If-Match (strong comparison)
@@ -69,7 +69,7 @@ def test_invalid_content_is_refused_by_the_calculation_schemas(store_client):
     etag = _create_vessel(store_client).headers["ETag"]
     bad = store_client.patch(R630, json={"vessel": {"diameter": "-2 m"}}, headers={"If-Match": etag})
     assert bad.status_code == 422 and bad.json["errors"][0]["field"] == "vessel.diameter"
-    no_utility = store_client.post("/v1/vessels", json=record("vessel", "R-630") | {"tag": "R-9"})
+    no_utility = store_client.post("/v1/vessels", json=record("vessel", "Puffin") | {"tag": "R-9"})
     assert no_utility.status_code == 422 and no_utility.json["errors"][0]["field"] == "utility"
     assert store_client.get(R630).json["revision"] == 1  # nothing was written
 
@@ -104,7 +104,7 @@ def test_missing_records_and_revisions_are_404(store_client):
     assert store_client.get("/v1/vessels/nope").status_code == 404
     _create_vessel(store_client)
     assert store_client.get(R630 + "/revisions/7").status_code == 404
-    assert store_client.get("/v1/steps/R-630").status_code == 404  # kinds do not mix
+    assert store_client.get("/v1/steps/Puffin").status_code == 404  # kinds do not mix
 
 
 def test_list_filters_and_pages(store_client):
@@ -115,13 +115,15 @@ def test_list_filters_and_pages(store_client):
     following = store_client.get("/v1/vessels?limit=3&offset=3").json["items"]
     assert not set(tags) & {item["tag"] for item in following}
     # nominal volumes of the demo plant, from each vessel's own geometry: between 5 and 9 m^3 are
-    # R-630, R-631 (6.07 m^3) and R-800 (8.3 m^3)
+    # Puffin, Gannet (6.07 m^3) and Cormorant (8.3 m^3)
     middle = store_client.get("/v1/vessels?volume_min=5000 L&volume_max=9 m^3").json
-    assert sorted(item["tag"] for item in middle["items"]) == ["R-630", "R-631", "R-800"]
+    assert sorted(item["tag"] for item in middle["items"]) == ["Cormorant", "Gannet", "Puffin"]
     glass = store_client.get("/v1/vessels?material=glass_lined_steel").json["items"]
-    assert sorted(item["tag"] for item in glass) == ["P-250", "R-400"]
-    half_pipe = store_client.get("/v1/vessels?jacket_type=half_pipe&tag=R-6*").json["items"]
-    assert sorted(item["tag"] for item in half_pipe) == ["R-630", "R-631"]
+    assert sorted(item["tag"] for item in glass) == ["Egret", "Pelican"]
+    half_pipe = store_client.get("/v1/vessels?jacket_type=half_pipe").json["items"]
+    assert sorted(item["tag"] for item in half_pipe) == ["Albatross", "Cormorant", "Gannet", "Puffin"]
+    half_pipe_p = store_client.get("/v1/vessels?jacket_type=half_pipe&tag=P*").json["items"]
+    assert [item["tag"] for item in half_pipe_p] == ["Puffin"]  # Pelican starts with P but is annular
     bad = store_client.get("/v1/vessels?volume_min=3 kg")
     assert bad.status_code == 422 and bad.json["errors"][0]["field"] == "volume_min"
     assert store_client.get("/v1/utilities?material=x").status_code == 422
@@ -142,7 +144,7 @@ def token_client(database_url):
 def test_writes_need_a_write_token_and_record_its_name(token_client):
     writer = {"Authorization": "Bearer s3cret-writer-token"}
     reader = {"Authorization": "Bearer s3cret-reader-token"}
-    body = record("vessel", "R-630") | {"utility": None}
+    body = record("vessel", "Puffin") | {"utility": None}
     refused = token_client.post("/v1/vessels", json=body, headers=reader)
     assert refused.status_code == 403 and "bob" in refused.json["detail"]
     created = token_client.post("/v1/vessels", json=body, headers=writer)

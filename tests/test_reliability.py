@@ -40,7 +40,7 @@ def _call(base: str, method: str, path: str, body: dict | None = None, headers: 
 @pytest.mark.slow
 def test_sixteen_concurrent_writers_lose_no_revision(database_url):
     with gunicorn(env={"COOLMARGIN_DATABASE_URL": database_url}, workers=4) as base:
-        vessel = record("vessel", "R-630") | {"utility": None}
+        vessel = record("vessel", "Puffin") | {"utility": None}
         status, _, _ = _call(base, "POST", "/v1/vessels", vessel)
         assert status == 201
         outcomes: list[tuple[int, int]] = []  # (writer, 412s met)
@@ -50,8 +50,8 @@ def test_sixteen_concurrent_writers_lose_no_revision(database_url):
             stale = 0
             for change in range(CHANGES_EACH):
                 for _attempt in range(200):
-                    _, headers, _ = _call(base, "GET", "/v1/vessels/R-630")
-                    status, _, body = _call(base, "PATCH", "/v1/vessels/R-630",
+                    _, headers, _ = _call(base, "GET", "/v1/vessels/Puffin")
+                    status, _, body = _call(base, "PATCH", "/v1/vessels/Puffin",
                                             {"notes": f"writer {number} change {change}"},
                                             {"If-Match": headers["ETag"]})
                     if status == 200:
@@ -70,7 +70,7 @@ def test_sixteen_concurrent_writers_lose_no_revision(database_url):
         for thread in threads:
             thread.join()
         assert errors == []
-        status, _, history = _call(base, "GET", "/v1/vessels/R-630/revisions")
+        status, _, history = _call(base, "GET", "/v1/vessels/Puffin/revisions")
         items = history["items"]
         assert [item["revision"] for item in items] == list(range(1, 1 + WRITERS * CHANGES_EACH + 1))
         notes = [item["content"].get("notes") for item in items[1:]]
@@ -107,7 +107,7 @@ storage._before_commit = stall
 if sys.argv[2] == "create":
     catalogue.create("vessel", "K-1", {"tag": "K-1"}, {}, "killed")
 else:
-    catalogue.revise("vessel", "R-630", 1, "killed", body={"tag": "R-630", "notes": "half"})
+    catalogue.revise("vessel", "Puffin", 1, "killed", body={"tag": "Puffin", "notes": "half"})
 """
 
 
@@ -118,20 +118,20 @@ def test_a_writer_killed_inside_its_transaction_leaves_no_partial_record(databas
     catalogue = Catalogue(database_url)
     try:
         catalogue.upgrade()
-        catalogue.create("vessel", "R-630", {"tag": "R-630"}, {}, "alice")
+        catalogue.create("vessel", "Puffin", {"tag": "Puffin"}, {}, "alice")
         child = subprocess.Popen([sys.executable, "-c", _KILLED_WRITER, database_url, operation], cwd=ROOT,
                                  stdout=subprocess.PIPE, text=True, env=dict(os.environ, PYTHONPATH=str(ROOT)))
         assert child.stdout.readline().strip() == "inside"  # the rows are written, not committed
         child.send_signal(signal.SIGKILL)
         child.wait(timeout=30)
         child.stdout.close()
-        assert [h.number for h in catalogue.history("vessel", "R-630")] == [1]
-        assert catalogue.get("vessel", "R-630").current == 1
+        assert [h.number for h in catalogue.history("vessel", "Puffin")] == [1]
+        assert catalogue.get("vessel", "Puffin").current == 1
         assert catalogue.counts() == {"vessel": 1}
         with pytest.raises(Exception, match="no vessel"):
             catalogue.get("vessel", "K-1")
         # and the catalogue still takes writes (no lock left behind)
-        assert catalogue.revise("vessel", "R-630", 1, "alice", body={"tag": "R-630", "notes": "ok"}).number == 2
+        assert catalogue.revise("vessel", "Puffin", 1, "alice", body={"tag": "Puffin", "notes": "ok"}).number == 2
     finally:
         catalogue.dispose()
 
@@ -150,10 +150,10 @@ def test_database_down_is_503_on_record_routes_and_calculations_keep_working(url
     catcher.emit = seen.append
     logging.getLogger("coolmargin").addHandler(catcher)
     try:
-        for response in (client.get("/v1/vessels"), client.get("/v1/vessels/R-630"),
+        for response in (client.get("/v1/vessels"), client.get("/v1/vessels/Puffin"),
                          client.post("/v1/steps", json=record("step", "AC-7-PROD")),
                          client.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}}),
-                         client.post("/v1/cooling-check", json={"vessel": {"ref": "R-630"},
+                         client.post("/v1/cooling-check", json={"vessel": {"ref": "Puffin"},
                                                                 "step": {"ref": "AC-7-PROD"}})):
             assert response.status_code == 503 and response.mimetype == "application/problem+json"
             assert int(response.headers["Retry-After"]) >= 1 and response.json["status"] == 503

@@ -49,22 +49,22 @@ def test_rows_equal_the_inline_checks_and_are_ranked(plant):
     margins = [row["margin"] for row in rows if row["verdict"] == "not adequate"]
     assert margins == sorted(margins, reverse=True)
     # the 4.6 m^3 batch does not fit the laboratory, pilot, 1.6 m^3 or 4 m^3 vessels
-    assert {row["tag"] for row in rows if row["verdict"] == "no verdict"} == {"L-1", "P-250", "R-160", "R-400"}
+    assert {row["tag"] for row in rows if row["verdict"] == "no verdict"} == {"Lark", "Pelican", "Heron", "Egret"}
     assert any("licensed engineer" in caution for caution in answer["cautions"])
     assert {r["tag"] for r in answer["records"] if r["kind"] == "utility"} == {"GLY-5", "CW-24", "GLY-LAB", "GLY-M5"}
 
 
 def test_selection_by_list_and_filter_and_a_common_coolant(plant):
-    listed = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": ["R-631", "R-630"],
+    listed = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": ["Gannet", "Puffin"],
                                                 "coolant": {"ref": "GLY-5"}}).get_json()
-    assert {row["tag"] for row in listed["rows"]} == {"R-630", "R-631"}
+    assert {row["tag"] for row in listed["rows"]} == {"Puffin", "Gannet"}
     # the same vessel geometry with the same coolant: the same margin
     assert listed["rows"][0]["margin"] == listed["rows"][1]["margin"]
     assert all(row["utility"] is None for row in listed["rows"])
     filtered = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"},
                                                   "vessels": {"jacket_type": "half_pipe", "volume_min": "7 m^3"}})
-    assert {row["tag"] for row in filtered.json["rows"]} == {"R-800", "R-1200"}
-    unknown = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": ["R-630", "R-999"]})
+    assert {row["tag"] for row in filtered.json["rows"]} == {"Cormorant", "Albatross"}
+    unknown = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": ["Puffin", "R-999"]})
     assert unknown.status_code == 422 and unknown.json["errors"][0]["field"] == "vessels[1]"
     empty = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": {"tag": "X-*"}})
     assert empty.status_code == 422 and empty.json["errors"][0]["field"] == "vessels"
@@ -73,8 +73,8 @@ def test_selection_by_list_and_filter_and_a_common_coolant(plant):
 def test_an_inline_step_works_without_a_stored_one(plant):
     step = record("step", "AC-7-PROD")
     inline = {k: step[k] for k in ("charge", "process_temperature", "heat_release", "safety_factor")}
-    by_ref = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": ["R-630"]}).json
-    given = plant.post("/v1/screenings", json={"step": inline, "vessels": ["R-630"]}).json
+    by_ref = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": ["Puffin"]}).json
+    given = plant.post("/v1/screenings", json={"step": inline, "vessels": ["Puffin"]}).json
     assert given["step"] is None and given["rows"][0]["margin"] == by_ref["rows"][0]["margin"]
 
 
@@ -84,15 +84,15 @@ def test_stored_rerun_says_what_changed(plant):
     again = plant.post(f"/v1/screenings/{first['id']}/rerun").get_json()
     assert again["changes"]["previous_id"] == first["id"] and again["changes"]["items"] == []
     assert plant.get(f"/v1/screenings/{first['id']}").get_json() == first  # stored as answered
-    etag = plant.get("/v1/vessels/R-800").headers["ETag"]
-    plant.patch("/v1/vessels/R-800", json={"vessel": {"agitator": {"speed": "60 rpm"}}}, headers={"If-Match": etag})
-    plant.delete("/v1/vessels/R-1200")
+    etag = plant.get("/v1/vessels/Cormorant").headers["ETag"]
+    plant.patch("/v1/vessels/Cormorant", json={"vessel": {"agitator": {"speed": "60 rpm"}}}, headers={"If-Match": etag})
+    plant.delete("/v1/vessels/Albatross")
     third = plant.post("/v1/screenings", json={"step": {"ref": "AC-7-FAST"}}).get_json()
     changes = {item["tag"]: item for item in third["changes"]["items"]}
-    assert set(changes) == {"R-800", "R-1200"}
-    assert changes["R-1200"]["change"] == "removed"
-    r800 = changes["R-800"]
-    assert r800["change"] == "changed" and "vessel R-800 revision 1 -> R-800 revision 2" in r800["details"]
+    assert set(changes) == {"Cormorant", "Albatross"}
+    assert changes["Albatross"]["change"] == "removed"
+    r800 = changes["Cormorant"]
+    assert r800["change"] == "changed" and "vessel Cormorant revision 1 -> Cormorant revision 2" in r800["details"]
     assert r800["margin_after"] < r800["margin_before"]  # slower agitator, thinner process film
     listing = plant.get("/v1/screenings").json
     assert listing["total"] == 3 and listing["items"][0]["id"] == third["id"]
@@ -105,7 +105,7 @@ def test_csv_and_chart(plant):
     assert lines[0].startswith("rank,tag,verdict,margin,minimum_dosing_time [s],maximum_coolant_inlet_temperature "
                                "[degC],controlling") and len(lines) == 9
     svg = plant.get(created.headers["Location"] + "?format=svg")
-    assert svg.mimetype == "image/svg+xml" and b"safety factor 1.3" in svg.data and b"R-800" in svg.data
+    assert svg.mimetype == "image/svg+xml" and b"safety factor 1.3" in svg.data and b"Cormorant" in svg.data
 
 
 def test_size_limit_and_time_budget(database_url):
@@ -119,7 +119,7 @@ def test_size_limit_and_time_budget(database_url):
         too_many = client.post("/v1/screenings", json={"step": {"ref": "AC-7-FAST"}})
         assert too_many.status_code == 413 and too_many.json["errors"][0]["field"] == "vessels"
         partial = client.post("/v1/screenings", json={"step": {"ref": "AC-7-FAST"},
-                                                      "vessels": ["R-630", "R-800", "R-1200"]}).get_json()
+                                                      "vessels": ["Puffin", "Cormorant", "Albatross"]}).get_json()
         assert partial["status"] == "partial" and partial["warnings"][0]["code"] == "screening_budget"
         assert partial["counts"]["not_evaluated"] >= 2
     finally:
@@ -141,8 +141,8 @@ def test_catalogue_and_screening_answers_conform_to_the_contract(plant):
     check_contract(contract, plant.get(created.headers["Location"]))
     check_contract(contract, plant.get("/v1/screenings"))
     check_contract(contract, plant.get("/v1/vessels?volume_min=1"))
-    check_contract(contract, plant.get("/v1/vessels/R-630"))
+    check_contract(contract, plant.get("/v1/vessels/Puffin"))
     check_contract(contract, plant.get("/v1/steps/AC-7-FAST/revisions"))
     check_contract(contract, plant.get("/v1/utilities/GLY-5/revisions/1"))
-    check = {"vessel": {"ref": "R-630"}, "step": {"ref": "AC-7-PROD"}}
+    check = {"vessel": {"ref": "Puffin"}, "step": {"ref": "AC-7-PROD"}}
     check_contract(contract, plant.post("/v1/cooling-check", json=check), check)

@@ -39,7 +39,7 @@ POSTGRES = "postgresql+psycopg://postgres@127.0.0.1:5432/test"
 
 def _fleet() -> list[dict]:
     """100 vessels: the demo plant's production reactors with their diameters stepped (invented, demo only)."""
-    bases = [record("vessel", tag) for tag in ("R-630", "R-800", "R-1200", "R-631")]
+    bases = [record("vessel", tag) for tag in ("Puffin", "Cormorant", "Albatross", "Gannet")]
     fleet = []
     for index in range(VESSELS):
         vessel = copy.deepcopy(bases[index % len(bases)])
