@@ -13,13 +13,12 @@ from flask import Blueprint, request
 
 from calc.fits import plant_runs
 from schemas.base import unflatten
-from calc.cautions import FITS as CAUTIONS
 from schemas.fits import (SERIES_COLUMNS, UAFitRequestSchema, UAFitResultSchema, WilsonRequestSchema,
-                          WilsonResultSchema, ua_fit_dict, wilson_dict)
+                          WilsonResultSchema)
 
 from . import charts
 from .errors import ProblemError
-from .http import RESERVED_PARAMETERS, request_object, respond
+from .http import calculate, request_object, reserved
 
 bp = Blueprint("fits", __name__, url_prefix="/v1")
 _request, _result = UAFitRequestSchema(), UAFitResultSchema()
@@ -56,63 +55,77 @@ def _csv_series(text: str) -> dict:
 
 
 def _ua_fit_object() -> dict:
+    """The input object: a JSON body or query, or a CSV log with the other fields as query parameters."""
     if request.method == "POST" and (request.mimetype or "") == "text/csv":
-        data = unflatten({k: v for k, v in request.args.items() if k not in RESERVED_PARAMETERS})
+        data = unflatten({k: v for k, v in request.args.items() if not reserved(k)})
         data["series"] = _csv_series(request.get_data(as_text=True))
         return data
     return request_object()
 
 
-def ua_fit_chart(payload: dict, fmt: str, units: dict | None = None) -> bytes:
-    """Logged and fitted contents temperature, and the residuals."""
+def _time_axis(values: list, unit: str) -> tuple[list, str]:
+    """Times drawn in minutes where the answer is in seconds (a logged run lasts minutes to hours)."""
+    return ([v / 60.0 for v in values], "min") if unit == "s" else (values, unit)
+
+
+def ua_fit_chart(payload: dict, fmt: str, units: dict) -> bytes:
+    """Logged and fitted contents temperature, and the residuals, in the answer's units."""
     fig, (top, bottom) = charts.figure(2)
-    time = [t / 60.0 for t in payload["time"]]
+    time, time_unit = _time_axis(payload["time"], units["time"])
+    ua = f"{payload['ua']:.4g} {units['ua']}"
     top.plot(time, payload["contents_temperature"], linestyle="none", marker=".", label="logged")
-    top.plot(time, payload["fitted_temperature"], label=f"fit, UA = {payload['ua']:.4g} W/K")
-    top.set_ylabel("contents, degC")
+    top.plot(time, payload["fitted_temperature"], label=f"fit, UA = {ua}")
+    top.set_ylabel(f"contents, {units['contents_temperature']}")
     top.legend(fontsize=7, frameon=False)
     bottom.axhline(0.0, color="#555555", linewidth=0.8)
     bottom.plot(time, payload["residuals"], linestyle="none", marker=".", color=charts.COLOURS[1])
-    bottom.set_ylabel("residual, K")
-    bottom.set_xlabel("time, min")
+    bottom.set_ylabel(f"residual, {units['residuals']}")
+    bottom.set_xlabel(f"time, {time_unit}")
     low, high = payload["ua_interval"]
-    top.set_title(f"UA fit: {payload['ua']:.4g} W/K (95 %: {low:.4g}-{high:.4g}), time constant "
-                  f"{payload['time_constant'] / 60:.3g} min", fontsize=10)
+    (constant,), constant_unit = _time_axis([payload["time_constant"]], units["time_constant"])
+    top.set_title(f"UA fit: {ua} (95 %: {low:.4g}-{high:.4g}), time constant {constant:.3g} {constant_unit}",
+                  fontsize=10)
     charts.footnote(fig)
     return charts.render(fig, fmt)
 
 
+def _fit_run(args: dict) -> plant_runs.RunFit:
+    series = args["series"]
+    return plant_runs.fit_run(series["time"], series["contents_temperature"], series["coolant_inlet_temperature"],
+                              args["charge"], args["mode"], series["coolant_outlet_temperature"], args["coolant"],
+                              args["vessel"], args["shaft_power"], args["heat_loss"])
+
+
 @bp.route("/ua-fit", methods=["GET", "POST"])
 def ua_fit():
-    args = _request.load(_ua_fit_object())
-    series = args["series"]
-    fitted = plant_runs.fit_run(series["time"], series["contents_temperature"], series["coolant_inlet_temperature"],
-                                args["charge"], args["mode"], series["coolant_outlet_temperature"], args["coolant"],
-                                args["vessel"], args["shaft_power"], args["heat_loss"])
-    return respond(ua_fit_dict(fitted, CAUTIONS), _result, chart=ua_fit_chart)
+    return calculate(_request, _fit_run, _result, read=_ua_fit_object, chart=ua_fit_chart)
 
 
-def wilson_chart(payload: dict, fmt: str, units: dict | None = None) -> bytes:
-    """1/U against Re^-b with the fitted line (Wilson 1915)."""
+def wilson_chart(payload: dict, fmt: str, units: dict) -> bytes:
+    """1/U against Re^-b with the fitted line (Wilson 1915), 1/U in the answer's unit."""
     fig, (axis,) = charts.figure(1)
+    unit = units["inverse_u"]
+    scale, shown = (1e3, f"1e-3 {unit}") if unit == "m^2*K/W" else (1.0, unit)
     x = payload["x"]
-    axis.plot(x, [v * 1e3 for v in payload["inverse_u"]], linestyle="none", marker="o", label="runs")
+    axis.plot(x, [v * scale for v in payload["inverse_u"]], linestyle="none", marker="o", label="runs")
     ends = [0.0, max(x) * 1.05]
     intercept = payload["remaining_resistance"]
     slope = (payload["fitted_inverse_u"][0] - intercept) / x[0]
-    axis.plot(ends, [(intercept + slope * e) * 1e3 for e in ends], label="least-squares line")
+    axis.plot(ends, [(intercept + slope * e) * scale for e in ends], label="least-squares line")
     axis.set_xlabel(f"Re^-{payload['exponent']:.3g}")
-    axis.set_ylabel("1/U, 1e-3 m2 K/W")
+    axis.set_ylabel(f"1/U, {shown}")
     axis.set_title(f"Wilson plot: a = {payload['process_constant']:.3g}, remaining resistance "
-                   f"{intercept * 1e3:.3g}e-3 m2 K/W", fontsize=10)
+                   f"{intercept * scale:.3g} {shown}", fontsize=10)
     axis.legend(fontsize=7, frameon=False)
     charts.footnote(fig)
     return charts.render(fig, fmt)
 
 
+def _wilson(args: dict) -> plant_runs.WilsonRuns:
+    return plant_runs.wilson_from_runs(args["vessel"], args["charge"], args["process_temperature"], args["runs"],
+                                       args["coolant"], args["exponent"], args["prandtl_exponent"])
+
+
 @bp.route("/wilson-plot", methods=["GET", "POST"])
 def wilson():
-    args = _wilson_request.load(request_object())
-    result = plant_runs.wilson_from_runs(args["vessel"], args["charge"], args["process_temperature"], args["runs"],
-                                         args["coolant"], args["exponent"], args["prandtl_exponent"])
-    return respond(wilson_dict(result, CAUTIONS), _wilson_result, chart=wilson_chart)
+    return calculate(_wilson_request, _wilson, _wilson_result, chart=wilson_chart)

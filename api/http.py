@@ -398,14 +398,16 @@ def _not_computed(index: int, total: int) -> dict:
 
 
 def calculate(schema: Schema, compute: Callable[[Any], Any], result_schema: Schema, *, batch: bool = False,
-              **respond_options: Any) -> Response:
+              read: Callable[[], dict] = request_object, **respond_options: Any) -> Response:
     """The whole life of a calculation request: load, compute (calc), dump and negotiate the format.
 
     Every calculation resource answers through here. ``compute`` takes what ``schema`` loads and
     returns a calc result that ``result_schema`` dumps. With ``batch``, a POST of
-    ``{"cases": [...]}`` answers each case on its own.
+    ``{"cases": [...]}`` answers each case on its own. ``read`` gives the request's input object
+    (JSON body or query by default; a resource that also takes another body, such as a CSV log,
+    passes its own).
     """
-    data = request_object()
+    data = read()
     if batch and request.method == "POST" and "cases" in data:
         if set(data) != {"cases"}:
             raise ProblemError(422, "a batch body holds only 'cases'",

@@ -1,7 +1,6 @@
 """Schemas of /v1/ua-fit and /v1/wilson-plot: logged series in, fitted UA or Wilson line out."""
 from __future__ import annotations
 
-import math
 
 from marshmallow import ValidationError, fields, post_load, validate, validates_schema
 
@@ -123,26 +122,32 @@ class UAFitRequestSchema(StrictSchema):
 
 
 class UAFitResultSchema(StrictSchema):
-    ua = Quantity("thermal conductance")
-    ua_interval = fields.List(Quantity("thermal conductance"), metadata={"description": "95 % interval [low, high]"})
-    standard_error = Quantity("thermal conductance")
+    """Dumps a :class:`calc.fits.plant_runs.RunFit`."""
+
+    ua = Quantity("thermal conductance", attribute="fit.ua")
+    ua_interval = fields.List(Quantity("thermal conductance"), attribute="fit.ua_interval",
+                              metadata={"description": "95 % interval [low, high]"})
+    standard_error = Quantity("thermal conductance", attribute="fit.standard_error")
     overall_coefficient = Quantity("heat-transfer coefficient", allow_none=True,
                                    metadata={"description": "UA / heat-transfer area (with a vessel)"})
     overall_coefficient_interval = fields.List(Quantity("heat-transfer coefficient"), allow_none=True)
-    heat_transfer_area = Quantity("area", allow_none=True)
-    initial_temperature = Quantity("temperature", metadata={"description": "fitted contents temperature at the start"})
-    time_constant = Quantity("time", metadata={"description": "M c_p / UA_eff"})
-    rms = Quantity("temperature difference", metadata={"description": "root-mean-square residual"})
-    points = fields.Integer()
-    degrees_of_freedom = fields.Integer()
-    uses_coolant_balance = fields.Boolean()
-    effective = fields.Boolean(metadata={"description": "no coolant flow given: UA includes the coolant's warming"})
-    time = fields.List(Quantity("time"))
-    contents_temperature = fields.List(Quantity("temperature"))
-    fitted_temperature = fields.List(Quantity("temperature"))
-    residuals = fields.List(Quantity("temperature difference"), metadata={"description": "measured - fitted"})
-    outlet_residuals = fields.List(Quantity("temperature difference"), allow_none=True)
-    warnings = fields.List(fields.Nested(WarningSchema))
+    heat_transfer_area = Quantity("area", allow_none=True, attribute="area")
+    initial_temperature = Quantity("temperature", attribute="fit.initial_temperature",
+                                   metadata={"description": "fitted contents temperature at the start"})
+    time_constant = Quantity("time", attribute="fit.time_constant", metadata={"description": "M c_p / UA_eff"})
+    rms = Quantity("temperature difference", attribute="fit.rms", metadata={"description": "root-mean-square residual"})
+    points = fields.Integer(attribute="fit.points")
+    degrees_of_freedom = fields.Integer(attribute="fit.degrees_of_freedom")
+    uses_coolant_balance = fields.Boolean(attribute="fit.uses_coolant_balance")
+    effective = fields.Boolean(attribute="fit.effective",
+                               metadata={"description": "no coolant flow given: UA includes the coolant's warming"})
+    time = fields.List(Quantity("time"), attribute="fit.time")
+    contents_temperature = fields.List(Quantity("temperature"), attribute="fit.contents")
+    fitted_temperature = fields.List(Quantity("temperature"), attribute="fit.fitted")
+    residuals = fields.List(Quantity("temperature difference"), attribute="fit.residuals",
+                            metadata={"description": "measured - fitted"})
+    outlet_residuals = fields.List(Quantity("temperature difference"), allow_none=True, attribute="fit.outlet_residuals")
+    warnings = fields.List(fields.Nested(WarningSchema), attribute="fit.warnings")
     cautions = fields.List(fields.String())
 
 
@@ -177,64 +182,30 @@ class WilsonRequestSchema(StrictSchema):
 
 
 class WilsonResultSchema(StrictSchema):
-    process_constant = fields.Float(metadata={"description": "a in Nu = a Re^b Pr^c (mu/mu_w)^0.14 (Nu = hT/k)"})
-    process_constant_interval = fields.List(fields.Float(allow_none=True), metadata={"description": "95 %"})
-    remaining_resistance = Quantity("fouling resistance", metadata={
+    """Dumps a :class:`calc.fits.plant_runs.WilsonRuns`."""
+
+    process_constant = fields.Float(attribute="plot.process_constant", metadata={
+        "description": "a in Nu = a Re^b Pr^c (mu/mu_w)^0.14 (Nu = hT/k)"})
+    process_constant_interval = fields.List(fields.Float(allow_none=True), attribute="plot.process_constant_interval",
+                                            metadata={"description": "95 %"})
+    remaining_resistance = Quantity("fouling resistance", attribute="plot.remaining_resistance", metadata={
         "description": "wall + fouling + service film, on the process-side area"})
-    remaining_resistance_interval = fields.List(Quantity("fouling resistance"), metadata={"description": "95 %"})
-    exponent = fields.Float()
-    prandtl_exponent = fields.Float()
-    r_squared = fields.Float()
-    reynolds = fields.List(fields.Float())
-    overall_coefficient = fields.List(Quantity("heat-transfer coefficient"))
-    x = fields.List(fields.Float(), metadata={"description": "Re^-b of each run"})
-    inverse_u = fields.List(Quantity("fouling resistance"), metadata={"description": "1/U of each run"})
-    fitted_inverse_u = fields.List(Quantity("fouling resistance"))
-    calibration = fields.Dict(metadata={"description": "ready to paste as a request's calibration"})
-    warnings = fields.List(fields.Nested(WarningSchema))
+    remaining_resistance_interval = fields.List(Quantity("fouling resistance"),
+                                                attribute="plot.remaining_resistance_interval",
+                                                metadata={"description": "95 %"})
+    exponent = fields.Float(attribute="plot.exponent")
+    prandtl_exponent = fields.Float(attribute="plot.prandtl_exponent")
+    r_squared = fields.Float(attribute="plot.r_squared")
+    reynolds = fields.List(fields.Float(), attribute="plot.reynolds")
+    overall_coefficient = fields.List(Quantity("heat-transfer coefficient"), attribute="overall_coefficients")
+    x = fields.List(fields.Float(), attribute="plot.x", metadata={"description": "Re^-b of each run"})
+    inverse_u = fields.List(Quantity("fouling resistance"), attribute="plot.inverse_u",
+                            metadata={"description": "1/U of each run"})
+    fitted_inverse_u = fields.List(Quantity("fouling resistance"), attribute="plot.fitted_inverse_u")
+    calibration = fields.Dict(metadata={"description": "ready to paste as a request's calibration: in the API's "
+                                                       "default units whatever output_units asks"})
+    warnings = fields.List(fields.Nested(WarningSchema), attribute="plot.warnings")
     cautions = fields.List(fields.String())
 
 
-def finite(values) -> list:
-    return [v if math.isfinite(v) else None for v in values]
-
-
 SERIES_COLUMNS = tuple(LoggedSeriesSchema().fields)
-
-
-def ua_fit_dict(run, cautions) -> dict:
-    """Shape a calc.fits.plant_runs.RunFit for UAFitResultSchema."""
-    fit = run.fit
-    return {
-        "ua": fit.ua, "ua_interval": list(fit.ua_interval), "standard_error": fit.standard_error,
-        "overall_coefficient": run.overall_coefficient,
-        "overall_coefficient_interval": None if run.overall_coefficient_interval is None
-        else list(run.overall_coefficient_interval),
-        "heat_transfer_area": run.area, "initial_temperature": fit.initial_temperature,
-        "time_constant": fit.time_constant, "rms": fit.rms, "points": fit.points,
-        "degrees_of_freedom": fit.degrees_of_freedom, "uses_coolant_balance": fit.uses_coolant_balance,
-        "effective": fit.effective, "time": fit.time.tolist(), "contents_temperature": fit.contents.tolist(),
-        "fitted_temperature": fit.fitted.tolist(), "residuals": fit.residuals.tolist(),
-        "outlet_residuals": None if fit.outlet_residuals is None else fit.outlet_residuals.tolist(),
-        "warnings": [{"code": w.code, "message": w.message} for w in fit.warnings], "cautions": list(cautions),
-    }
-
-
-def wilson_dict(runs, cautions) -> dict:
-    """Shape a calc.fits.plant_runs.WilsonRuns for WilsonResultSchema."""
-    plot = runs.plot
-    low, high = plot.process_constant_interval
-    return {
-        "process_constant": plot.process_constant, "process_constant_interval": finite([low, high]),
-        "remaining_resistance": plot.remaining_resistance,
-        "remaining_resistance_interval": list(plot.remaining_resistance_interval),
-        "exponent": plot.exponent, "prandtl_exponent": plot.prandtl_exponent, "r_squared": plot.r_squared,
-        "reynolds": plot.reynolds.tolist(), "overall_coefficient": runs.overall_coefficients.tolist(),
-        "x": plot.x.tolist(), "inverse_u": plot.inverse_u.tolist(), "fitted_inverse_u": plot.fitted_inverse_u.tolist(),
-        "calibration": {"process_constant": plot.process_constant,
-                        "process_constant_interval": finite([low, high]),
-                        "exponent": plot.exponent, "prandtl_exponent": plot.prandtl_exponent,
-                        "remaining_resistance": plot.remaining_resistance,
-                        "remaining_resistance_interval": list(plot.remaining_resistance_interval)},
-        "warnings": [{"code": w.code, "message": w.message} for w in plot.warnings], "cautions": list(cautions),
-    }

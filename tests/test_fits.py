@@ -164,3 +164,23 @@ def test_wilson_over_http_from_logged_series(client):
                                                         "coolant_inlet_temperature": [15.0] * t.size}})
     logged = client.post("/v1/wilson-plot", json=dict(demo, runs=runs)).get_json()
     assert logged["process_constant"] == pytest.approx(direct["process_constant"], rel=0.05)
+
+
+def test_fits_follow_the_answer_presentation_on_every_input_form(client):
+    # The CSV log takes the shaping options beside its fields (unit.<field> overrides were read as request
+    # fields before); 1 kW/K = 1000 W/K (SI prefix, BIPM SI Brochure 9th ed., table 7). Charts label their
+    # axes in the answer's units.
+    body = json.loads((EXAMPLES / "ua_fit_water_run.json").read_text())
+    series = body["series"]
+    rows = ["time [min],contents_temperature [degC],coolant_inlet_temperature [degC]"]
+    rows += [f"{t},{T},{Tin}" for t, T, Tin in zip(series["time"]["values"], series["contents_temperature"]["values"],
+                                                  series["coolant_inlet_temperature"]["values"])]
+    query = "mode=cooling&charge.fluid=water&charge.volume=4.9%20m%5E3"
+    si = client.post(f"/v1/ua-fit?{query}", data="\r\n".join(rows), content_type="text/csv").get_json()
+    kilo = client.post(f"/v1/ua-fit?{query}&unit.ua=kW/K", data="\r\n".join(rows), content_type="text/csv").get_json()
+    assert kilo["units"]["ua"] == "kW/K" and kilo["ua"] == pytest.approx(si["ua"] / 1000.0, rel=1e-12)
+    us = client.post("/v1/ua-fit?format=svg&output_units=us", json=body).get_data(as_text=True)
+    assert "degF" in us and "degC" not in us
+    demo = json.loads((EXAMPLES / "wilson_plot_runs.json").read_text())
+    wilson = client.post("/v1/wilson-plot?format=svg&output_units=us", json=demo).get_data(as_text=True)
+    assert "h*ft^2*delta_degF/BTU" in wilson and "m^2*K/W" not in wilson

@@ -13,6 +13,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from calc.cautions import FITS
 from calc.fits.ua_fit import UAFit, fit_ua
 from calc.fits.wilson import WilsonPlot, wilson_plot
 from calc.validity import InputError
@@ -74,10 +75,13 @@ class RunCoolant:
 
 @dataclass(frozen=True)
 class RunFit:
+    """A logged run's UA fit, and U where the vessel gives the heat-transfer area at the run's fill."""
+
     fit: UAFit
     area: float | None  # m2
     overall_coefficient: float | None  # W/(m2 K)
     overall_coefficient_interval: tuple[float, float] | None
+    cautions: tuple[str, ...] = FITS
 
 
 def fit_run(time, contents, inlet, charge: RunCharge, mode: str, outlet=None, coolant: RunCoolant | None = None,
@@ -99,9 +103,22 @@ def fit_run(time, contents, inlet, charge: RunCharge, mode: str, outlet=None, co
 
 @dataclass(frozen=True)
 class WilsonRuns:
+    """A Wilson plot of runs at several speeds, with each run's U and the area it refers to."""
+
     plot: WilsonPlot
     overall_coefficients: np.ndarray
     area: float
+    cautions: tuple[str, ...] = FITS
+
+    @property
+    def calibration(self) -> dict[str, Any]:
+        """The plot's constants as a request's ``calibration`` takes them (SI, the API's default units)."""
+        plot = self.plot
+        return {"process_constant": plot.process_constant,
+                "process_constant_interval": list(plot.process_constant_interval),
+                "exponent": plot.exponent, "prandtl_exponent": plot.prandtl_exponent,
+                "remaining_resistance": plot.remaining_resistance,
+                "remaining_resistance_interval": list(plot.remaining_resistance_interval)}
 
 
 def wilson_from_runs(vessel, charge: RunCharge, process_temperature: float, runs: list[dict],
