@@ -399,7 +399,8 @@ class Quantity(fields.Field):
         maximum = bounds.largest if maximum is None else min(maximum, bounds.largest)
         self.minimum, self.maximum, self.exclusive_minimum = minimum, maximum, exclusive_minimum
         metadata = dict(kwargs.pop("metadata", {}))
-        metadata.update(unit=KINDS[kind].api_unit, kind=kind, description=description,
+        # a description given either way (the keyword, or marshmallow's metadata) is kept
+        metadata.update(unit=KINDS[kind].api_unit, kind=kind, description=description or metadata.get("description", ""),
                         bounds_reason=bounds.reason)
         super().__init__(metadata=metadata, **kwargs)
 

@@ -98,6 +98,22 @@ def test_generated_parts_of_the_spec_are_in_step_with_the_schemas():
         assert SPEC["paths"][path] == item, path
 
 
+
+def test_response_quantities_keep_their_descriptions():
+    # A response field's description, given as marshmallow metadata, reaches the contract (it was dropped
+    # for quantities): every described Quantity of every result schema is described in openapi.yaml.
+    from schemas.openapi import roots
+    from schemas.units import Quantity
+
+    for schema_cls in roots()[1]:
+        name = schema_cls.__name__.removesuffix("Schema")
+        for field_name, field in schema_cls().fields.items():
+            if isinstance(field, Quantity) and field.metadata.get("description"):
+                spec_field = SPEC["components"]["schemas"][name]["properties"][field.data_key or field_name]
+                assert spec_field.get("description", "").startswith(field.metadata["description"]), (name, field_name)
+    window = SPEC["components"]["schemas"]["WindowPoint"]["properties"]
+    assert window["dosing_time"]["description"] == "axis value, when an axis varies it"
+
 EXAMPLE = json.loads((SPEC_PATH.parent / "examples" / "heat_transfer_request.json").read_text())
 CALCULATION_SAMPLES = [
     ("/v1/heat-transfer", EXAMPLE),
