@@ -34,9 +34,11 @@ import threading
 from bisect import bisect_right
 from dataclasses import dataclass, field
 from functools import lru_cache
+from typing import Any, Sequence
 
 import CoolProp.CoolProp as CP
 import numpy as np
+import numpy.typing as npt
 
 from calc import arrays
 from calc.validity import InputError
@@ -117,7 +119,7 @@ _lock = threading.Lock()
 
 
 @lru_cache(maxsize=64)
-def _state(backend: str, name: str, mass_fraction: float | None):
+def _state(backend: str, name: str, mass_fraction: float | None) -> Any:  # a CoolProp AbstractState
     state = CP.AbstractState(backend, name)
     if mass_fraction is not None:
         state.set_mass_fractions([mass_fraction])
@@ -195,7 +197,7 @@ def _check_state(info: FluidInfo, temperature: float, mass_fraction: float | Non
         )
 
 
-def _sample(state, pressure: float, temperature: float) -> tuple[float, float, float, float] | None:
+def _sample(state: Any, pressure: float, temperature: float) -> tuple[float, float, float, float] | None:
     """Density, heat capacity, viscosity, conductivity from CoolProp at (T, p); None where CoolProp refuses."""
     try:
         state.update(CP.PT_INPUTS, pressure, temperature)
@@ -204,7 +206,8 @@ def _sample(state, pressure: float, temperature: float) -> tuple[float, float, f
         return None
 
 
-def _between(t0: float, v0, t1: float, v1, t: float) -> tuple[float, float, float, float]:
+def _between(t0: float, v0: Sequence[float], t1: float, v1: Sequence[float], t: float
+             ) -> tuple[float, float, float, float]:
     """The table's interpolation between two neighbouring points, at ``t`` (the rule :class:`PropertyTable` uses)."""
     w = (t - t0) / (t1 - t0)
     u = (-1.0 / t + 1.0 / t0) / (-1.0 / t1 + 1.0 / t0)
@@ -222,14 +225,14 @@ class PropertyTable:
     log_viscosity: np.ndarray  # ln(Pa s)
     conductivity: np.ndarray  # W/(m K)
     inverse_temperature: np.ndarray  # -1/T, 1/K, increasing (the abscissa of ln viscosity)
-    _lists: tuple | None = field(default=None, repr=False)  # the arrays as lists, for one-state look-ups
+    _lists: tuple[list[float], ...] | None = field(default=None, repr=False)  # the arrays as lists, for one-state look-ups
 
     @property
     def span(self) -> tuple[float, float]:
         """First and last tabulated temperature, K."""
         return float(self.temperature[0]), float(self.temperature[-1])
 
-    def states(self, temperature) -> LiquidProperties:
+    def states(self, temperature: npt.ArrayLike) -> LiquidProperties:
         """Properties at an array of temperatures (K), as a :class:`LiquidProperties` of arrays.
 
         Outside the span the end values are held (callers clamp or check first).
@@ -255,7 +258,7 @@ class PropertyTable:
                                 math.exp(_interp(-1.0 / T, inverse, log_viscosity)), _interp(T, grid, conductivity))
 
 
-def _interp(x: float, xp: list, fp: list) -> float:
+def _interp(x: float, xp: list[float], fp: list[float]) -> float:
     """``numpy.interp(x, xp, fp)`` for one float x (same end rules, same formula)."""
     if x <= xp[0]:
         return fp[0]
@@ -374,7 +377,7 @@ class Liquid:
     def at(self, temperature: float, field: str = "temperature") -> LiquidProperties:  # pragma: no cover
         raise NotImplementedError
 
-    def states(self, temperature) -> LiquidProperties:  # pragma: no cover
+    def states(self, temperature: npt.ArrayLike) -> LiquidProperties:  # pragma: no cover
         raise NotImplementedError
 
 
@@ -409,7 +412,7 @@ class LibraryLiquid(Liquid):
                                     f"(CoolProp's liquid states span {low - 273.15:.2f} to {high - 273.15:.2f} degC)")
         return table.state(temperature)
 
-    def states(self, temperature) -> LiquidProperties:
+    def states(self, temperature: npt.ArrayLike) -> LiquidProperties:
         return self.table().states(temperature)
 
     def table(self) -> PropertyTable:
@@ -436,14 +439,14 @@ class ExplicitLiquid(Liquid):
     viscosity_temperature_coefficient: float = 0.0
     name: str = "liquid (given properties)"
 
-    def viscosity_at(self, temperature):
+    def viscosity_at(self, temperature: float) -> float:
         """Viscosity at ``temperature`` (K; a float or an array), Pa s."""
         if self.reference_temperature is None or self.viscosity_temperature_coefficient == 0.0:
             return self.viscosity + 0.0 * temperature
         exponent = self.viscosity_temperature_coefficient * (1.0 / temperature - 1.0 / self.reference_temperature)
         return self.viscosity * arrays.exp(arrays.clip(exponent, -50.0, 50.0))
 
-    def states(self, temperature) -> LiquidProperties:
+    def states(self, temperature: npt.ArrayLike) -> LiquidProperties:
         T = np.asarray(temperature, dtype=float)
         constant = np.ones_like(T)
         return LiquidProperties(T, self.density * constant, self.heat_capacity * constant,  # type: ignore[arg-type]

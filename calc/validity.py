@@ -9,7 +9,11 @@ from __future__ import annotations
 import math
 import numbers
 from dataclasses import dataclass
-from typing import Any, Callable
+from types import TracebackType
+from typing import Any, Callable, Iterable, Literal, TypeVar
+
+T = TypeVar("T")
+R = TypeVar("R")
 
 
 @dataclass(frozen=True)
@@ -69,7 +73,7 @@ def range_warning(correlation: str, quantity: str, value: float,
     )
 
 
-class Warnings(list):
+class Warnings(list[CalcWarning]):
     """A list of :class:`CalcWarning` that drops duplicates and knows how to check a range."""
 
     def add(self, warning: CalcWarning | None) -> None:
@@ -80,7 +84,7 @@ class Warnings(list):
               low: float | None = None, high: float | None = None) -> None:
         self.add(range_warning(correlation, quantity, value, low, high))
 
-    def extend_unique(self, warnings) -> None:
+    def extend_unique(self, warnings: Iterable[CalcWarning]) -> None:
         for w in warnings:
             self.add(w)
 
@@ -88,8 +92,8 @@ class Warnings(list):
 # ---------------------------------------------------------------- input guards
 # The one set of guards every calc module uses on the numbers it is given; each names the API field.
 
-def require_finite(field: str, value: float) -> float:
-    """Raise :class:`InputError` unless ``value`` is a finite real number (a bool is not one).
+def require_finite(field: str, value: float | None) -> float:
+    """Raise :class:`InputError` unless ``value`` is a finite real number (a bool or None is not one).
 
     >>> require_finite("ua", 3)
     3.0
@@ -99,25 +103,28 @@ def require_finite(field: str, value: float) -> float:
     return float(value)
 
 
-def require_positive(field: str, value: float) -> float:
+def require_positive(field: str, value: float | None) -> float:
     """Raise :class:`InputError` unless ``value`` is a finite number > 0."""
-    if not require_finite(field, value) > 0:
+    checked = require_finite(field, value)
+    if not checked > 0:
         raise InputError(field, f"must be a positive number, got {value!r}")
-    return float(value)
+    return checked
 
 
-def require_non_negative(field: str, value: float) -> float:
+def require_non_negative(field: str, value: float | None) -> float:
     """Raise :class:`InputError` unless ``value`` is a finite number >= 0."""
-    if not require_finite(field, value) >= 0:
+    checked = require_finite(field, value)
+    if not checked >= 0:
         raise InputError(field, f"must not be negative, got {value!r}")
-    return float(value)
+    return checked
 
 
-def require_temperature(field: str, value: float) -> float:
+def require_temperature(field: str, value: float | None) -> float:
     """Raise :class:`InputError` unless ``value`` is an absolute temperature above 0 K."""
-    if not require_finite(field, value) > 0:
+    checked = require_finite(field, value)
+    if not checked > 0:
         raise InputError(field, f"must be an absolute temperature above 0 K, got {value!r}")
-    return float(value)
+    return checked
 
 
 @dataclass(frozen=True)
@@ -131,7 +138,7 @@ class Correlation:
     name: str  # the authors and year, as cited: "Lehrer (1970)"
     function: Callable[..., Any]
     source: str
-    validity: dict = None  # type: ignore[assignment]
+    validity: dict[str, tuple[float | None, float | None]] = None  # type: ignore[assignment]
 
     def check(self, warnings: Warnings, **values: float) -> None:
         """Add a warning to ``warnings`` for every given quantity outside this correlation's range."""
@@ -182,7 +189,7 @@ def _extreme_input(inputs: dict[str, float]) -> tuple[str, float] | None:
     return name, value
 
 
-def finite_or_input_error(compute, argument, inputs: dict[str, float]):
+def finite_or_input_error(compute: Callable[[T], R], argument: T, inputs: dict[str, float]) -> R:
     """Run ``compute(argument)``; a numerical breakdown becomes an :class:`InputError` naming an input.
 
     Every field is bounded at the API, yet products of bounded inputs (an exponential of an activation
@@ -223,10 +230,11 @@ class fields_renamed:
     def __init__(self, mapping: dict[str, str]):
         self.mapping = sorted(mapping.items(), key=lambda item: -len(item[0]))
 
-    def __enter__(self):
+    def __enter__(self) -> fields_renamed:
         return self
 
-    def __exit__(self, kind, error, traceback):
+    def __exit__(self, kind: type[BaseException] | None, error: BaseException | None,
+                 traceback: TracebackType | None) -> Literal[False]:
         if not isinstance(error, InputError):
             return False
         for old, new in self.mapping:

@@ -37,6 +37,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Callable, Iterable
 
 import numpy as np
 
@@ -223,7 +224,7 @@ class _Search:
     step: float  # first spacing of the bracketing grid around the estimate
     increasing: bool  # the residual rises with x
     xtol: float
-    known: dict = field(default_factory=dict)  # x -> residual already evaluated
+    known: dict[float, float] = field(default_factory=dict)  # x -> residual already evaluated
     root: float | None = None
     value: float | None = None  # residual at the root, or at the bound reached when there is none
     done: bool = False
@@ -278,7 +279,7 @@ class _Search:
         return sorted(wanted - set(self.known))
 
 
-def _newton_step(best: float, points: list[float], known: dict) -> float | None:
+def _newton_step(best: float, points: list[float], known: dict[float, float]) -> float | None:
     """Root near ``best`` of the parabola through it and its nearest evaluated neighbours (the line through
     one neighbour when it has only one), by Newton's method on that model; None when it is flat."""
     near = sorted(sorted((x for x in points if x != best), key=lambda x: abs(x - best))[:2] + [best])
@@ -314,7 +315,8 @@ RESIDUAL_TOLERANCE = 1e-8
 MAX_PASSES = 16
 
 
-def _search(searches: list[_Search], evaluate, deadline: Deadline = NEVER) -> None:
+def _search(searches: list[_Search], evaluate: Callable[[list[tuple[int, float]]], Iterable[float]],
+            deadline: Deadline = NEVER) -> None:
     """Run the searches together: each pass gathers every search's next points and solves them in one call.
 
     ``evaluate(points)`` takes [(search index, x), ...] and returns the residuals. The secant root of a
@@ -384,7 +386,7 @@ def _solve_limits(network: Network, result: HeatTransferResult, target: float, l
         flow.known[high] = float(prepared.solve(np.zeros(1, dtype=int), None,
                                                 np.array([math.exp(high - log_given)])).duty[0]) / target - 1.0
 
-    def evaluate(points):
+    def evaluate(points: list[tuple[int, float]]) -> Iterable[float]:
         inlets = np.array([x if i == 0 else coolant.inlet_temperature for i, x in points])
         factors = np.array([inlet_flow if i == 0 else math.exp(x - log_given) for i, x in points])
         return prepared.solve(np.zeros(len(points), dtype=int), inlets, factors).duty / target - 1.0

@@ -146,7 +146,7 @@ MODELS: dict[str, type] = {cls.model: cls for cls in (SpecificPower, TotalPower,
 HeatRelease = SpecificPower | TotalPower | Dosing
 
 
-def heat_release_model(model: str, **parameters) -> HeatRelease:
+def heat_release_model(model: str, **parameters: float) -> HeatRelease:
     """Build and validate a heat-release model from its registry name and parameters.
 
     >>> heat_release_model("specific_power", power_per_mass=25.0)
@@ -169,7 +169,7 @@ def heat_release_model(model: str, **parameters) -> HeatRelease:
     for name in required:
         if parameters.get(name) is None:
             raise InputError(f"heat_release.{name}", f"is required by the {model!r} model")
-    instance = cls(**parameters)
+    instance: HeatRelease = cls(**parameters)
     instance.validate()
     return instance
 

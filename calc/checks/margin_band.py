@@ -36,6 +36,7 @@ from calc.films import process_side
 from calc.films.selection import CorrelationChoice
 from calc.network.heat_transfer import HeatTransferResult
 from calc.network.vectorised import heat_transfer_many
+from calc.vessel.model import Charge, Coolant, Vessel
 
 #: Cooling-check margins of members are capacity / load; these name the resistance a member varies.
 RESISTANCES = ("process_wall", "process_coil", "annular_jacket", "channel", "coil_tube",
@@ -72,12 +73,13 @@ def _scatter(field: str, base: CorrelationChoice, resistance: str) -> list[tuple
              replace(base, **{field: value * (1 + sign * process_side.CONSTANT_SCATTER)})) for sign in (-1, 1)]
 
 
-def published_members(result: HeatTransferResult, vessel) -> list[tuple[str, str, CorrelationChoice]]:
+def published_members(result: HeatTransferResult, vessel: Vessel) -> list[tuple[str, str, CorrelationChoice]]:
     """(resistance, alternative, choice) for every single-resistance member that applies to this vessel."""
     base = vessel.correlations
     members: list[tuple[str, str, CorrelationChoice]] = []
     jacket = result.stream("jacket") is not None
     coils = any(stream.name.startswith("coil") for stream in result.streams)
+    jacket_type = vessel.jacket.type if vessel.jacket is not None else None
     calibration = base.calibration
     if jacket and calibration is not None:
         if calibration.process_constant_interval is not None:
@@ -93,18 +95,17 @@ def published_members(result: HeatTransferResult, vessel) -> list[tuple[str, str
         else:
             members += _scatter("process_factor", base, "process_wall")
     if jacket and base.remaining_resistance is None:
-        kind = vessel.jacket.type
-        if kind == "annular":
+        if jacket_type == "annular":
             from calc.films.jacket_side import ANNULAR_CORRELATIONS
             members += [("annular_jacket", key, replace(base, annular_jacket=key))
                         for key in ANNULAR_CORRELATIONS if key != base.annular_jacket]
-        elif kind in ("half_pipe", "annular_spiral_baffle"):
+        elif jacket_type in ("half_pipe", "annular_spiral_baffle"):
             from calc.films.jacket_side import CHANNEL_TREATMENTS
             members += [("channel", key, replace(base, channel=key)) for key in CHANNEL_TREATMENTS
                         if key != base.channel]
     if coils:
         members += _scatter("coil_process_factor", base, "process_coil")
-    if coils or (jacket and vessel.jacket.type in ("half_pipe", "annular_spiral_baffle") and base.channel == "curved"):
+    if coils or (jacket and jacket_type in ("half_pipe", "annular_spiral_baffle") and base.channel == "curved"):
         from calc.films.coil_side import COIL_CORRELATIONS
         members += [("coil_tube", key, replace(base, coil_tube=key)) for key in COIL_CORRELATIONS
                     if key != base.coil_tube]
@@ -122,7 +123,8 @@ def _joint(base: CorrelationChoice, picks: list[BandMember]) -> CorrelationChoic
     return replace(base, **changes)
 
 
-def margin_band(vessel, charge, coolant, process_temperature: float, result: HeatTransferResult, load_total: float,
+def margin_band(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
+                result: HeatTransferResult, load_total: float,
                 nominal: float | None, safety_factor: float,
                 members: list[tuple[str, str, CorrelationChoice]] | None = None) -> MarginBand:
     """The band around ``nominal`` (capacity/load of ``result``); ``members`` default: :func:`published_members`."""

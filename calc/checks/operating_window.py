@@ -18,18 +18,19 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
-from typing import Callable
+from typing import Callable, Iterable, Sequence
 
 import numpy as np
 
 from calc.cautions import COOLING_CHECK
 from calc.checks.cooling_check import (_check_safety_factor, _Search, _search, check_cautions,
                                        cooling_check, margin_of)
-from calc.checks.heat_load import Dosing, HeatRelease, heat_load
+from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
 from calc.deadline import NEVER, Deadline
 from calc.network import vectorised
 from calc.network.heat_transfer import Network, assemble
 from calc.validity import CalcWarning, InputError, Warnings
+from calc.properties import Liquid
 from calc.vessel.model import Charge, Coolant, Vessel
 
 #: The quantities an axis may vary, by their dotted request paths.
@@ -37,6 +38,8 @@ AXES = ("heat_release.dosing_time", "coolant.inlet_temperature", "coolant.flow",
         "vessel.agitator.speed")
 #: Quantities that change the network itself (contents' state, agitation) rather than the coolant state.
 NETWORK_AXES = ("process_temperature", "vessel.agitator.speed")
+#: One state of the window: {quantity of an axis: SI value}.
+State = dict[str, float]
 
 
 @dataclass(frozen=True)
@@ -84,8 +87,8 @@ class _States:
         self.vessel, self.charge, self.coolant = vessel, charge, coolant
         self.process_temperature, self.heat_release = process_temperature, heat_release
         self.safety_factor, self.flow_kind = safety_factor, flow_kind
-        self.networks: dict[tuple, Network | None] = {}
-        self.loads: dict[tuple, object] = {}
+        self.networks: dict[tuple[float, float], Network | None] = {}
+        self.loads: dict[tuple[float, float, float | None], HeatLoad] = {}
 
     def _network(self, temperature: float, speed: float, coldest_inlet: float) -> Network:
         key = (temperature, speed)
@@ -100,7 +103,7 @@ class _States:
             self.networks[key] = network
         return network
 
-    def evaluate(self, states: list[dict]) -> dict[str, np.ndarray]:
+    def evaluate(self, states: list[State]) -> dict[str, np.ndarray]:
         """Capacity, load, outlet temperature and margin (NaN where not a cooling state) of each state."""
         n = len(states)
         temperature = np.array([s.get("process_temperature", self.process_temperature) for s in states])
@@ -108,7 +111,7 @@ class _States:
         inlet = np.array([s.get("coolant.inlet_temperature", self.coolant.inlet_temperature) for s in states])
         valid = inlet < temperature
         keys = list(zip(temperature.tolist(), speed.tolist()))
-        coldest: dict[tuple, float] = {}
+        coldest: dict[tuple[float, float], float] = {}
         for key, t_in, ok in zip(keys, inlet.tolist(), valid.tolist()):
             if ok:
                 coldest[key] = min(coldest.get(key, math.inf), t_in)
@@ -132,7 +135,7 @@ class _States:
         margin[index < 0] = np.nan
         return {"capacity": capacity, "load": load, "outlet": outlet, "margin": margin, "valid": index >= 0}
 
-    def _flow_factors(self, states: list[dict], inlet: np.ndarray) -> np.ndarray:
+    def _flow_factors(self, states: list[State], inlet: np.ndarray) -> np.ndarray:
         """Jacket flow of each state over the base coolant's, at the state's inlet temperature."""
         if "coolant.flow" not in states[0]:
             return np.ones(len(states))
@@ -149,7 +152,7 @@ class _States:
         liquid_range = getattr(self.coolant.liquid, "liquid_range", None)
         return liquid_range()[1] - 1e-2 if liquid_range is not None else math.inf
 
-    def _load(self, network: Network, dosing_time: float | None):
+    def _load(self, network: Network, dosing_time: float | None) -> HeatLoad:
         key = (network.process_temperature, network.vessel.agitator.speed, dosing_time)
         if key not in self.loads:
             release = self.heat_release
@@ -160,7 +163,7 @@ class _States:
         return self.loads[key]
 
 
-def _check_axes(axes, vessel: Vessel, charge: Charge, coolant: Coolant, heat_release: HeatRelease) -> None:
+def _check_axes(axes: Sequence[Axis], vessel: Vessel, charge: Charge, coolant: Coolant, heat_release: HeatRelease) -> None:
     if len(axes) != 2:
         raise InputError("axes", f"give exactly two axes, got {len(axes)}")
     if axes[0].quantity == axes[1].quantity:
@@ -182,7 +185,7 @@ def _check_axes(axes, vessel: Vessel, charge: Charge, coolant: Coolant, heat_rel
             _check_liquid(axis, name, charge.liquid, "process_temperature")
 
 
-def _check_liquid(axis: Axis, name: str, liquid, field_name: str) -> None:
+def _check_liquid(axis: Axis, name: str, liquid: Liquid, field_name: str) -> None:
     """Both ends of a temperature axis within the liquid's range (the error names the end at fault)."""
     for v in (min(axis.values), max(axis.values)):
         try:
@@ -193,7 +196,7 @@ def _check_liquid(axis: Axis, name: str, liquid, field_name: str) -> None:
 
 def operating_window(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
                      heat_release: HeatRelease, axes: tuple[Axis, Axis],
-                     safety_factor: float = 1.3, band: Callable | None = None,
+                     safety_factor: float = 1.3, band: Callable[[_States, list[State]], Iterable[object]] | None = None,
                      deadline: Deadline = NEVER) -> OperatingWindow:
     """The margin over the grid of ``axes`` around the check's state, its boundary and the check's own point.
 
@@ -234,8 +237,10 @@ def operating_window(vessel: Vessel, charge: Charge, coolant: Coolant, process_t
     return OperatingWindow(tuple(axes), safety_factor, points, boundary, current, share, warnings, cautions)
 
 
-def _own_value(axis: Axis, vessel: Vessel, coolant: Coolant, process_temperature: float, release) -> float:
+def _own_value(axis: Axis, vessel: Vessel, coolant: Coolant, process_temperature: float,
+               release: HeatRelease) -> float:
     if axis.quantity == "heat_release.dosing_time":
+        assert isinstance(release, Dosing)  # _check_axes refuses a dosing-time axis on another model
         return float(release.dosing_time)
     if axis.quantity == "coolant.inlet_temperature":
         return coolant.inlet_temperature
@@ -251,7 +256,7 @@ def _own_value(axis: Axis, vessel: Vessel, coolant: Coolant, process_temperature
     return mass / coolant.liquid.at(coolant.inlet_temperature, field="coolant.inlet_temperature").density
 
 
-def _point(solved: dict, i: int, values: tuple, safety_factor: float) -> WindowPoint:
+def _point(solved: dict[str, np.ndarray], i: int, values: tuple[float, ...], safety_factor: float) -> WindowPoint:
     if not solved["valid"][i]:
         return WindowPoint(tuple(float(v) for v in values), None, None, None, None, None,
                            "coolant not colder than the contents")
@@ -263,7 +268,7 @@ def _point(solved: dict, i: int, values: tuple, safety_factor: float) -> WindowP
                        outlet if math.isfinite(outlet) else None)
 
 
-def _boundary(states: _States, axes, solved: dict, safety_factor: float,
+def _boundary(states: _States, axes: Sequence[Axis], solved: dict[str, np.ndarray], safety_factor: float,
               deadline: Deadline = NEVER) -> tuple[WindowPoint, ...]:
     """Where margin = safety factor on each grid line between neighbours of different verdict (solved)."""
     first, second = axes
@@ -295,7 +300,7 @@ def _boundary(states: _States, axes, solved: dict, safety_factor: float,
     if not searches:
         return ()
 
-    def evaluate(wanted):
+    def evaluate(wanted: list[tuple[int, float]]) -> Iterable[float]:
         batch = [{**lines[k][1], lines[k][0]: x} for k, x in wanted]
         result = states.evaluate(batch)
         return np.log(result["margin"] / safety_factor)

@@ -33,6 +33,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
+from typing import Iterable, Union
 
 from scipy.optimize import brentq
 
@@ -54,6 +55,8 @@ COOLANT_FLOW_RULES = ("scale_with_area", "as_given")
 #: Default largest number of target vessels in one scale-up (keeps a request's work bounded); the
 #: service's COOLMARGIN_MAX_SCALES setting replaces it.
 MAX_TARGETS = 20
+#: A target: a nominal volume (m3) of a similar vessel, a vessel, or a vessel with a coolant of its own.
+Target = Union[float, Vessel, tuple[Vessel, Coolant]]
 #: The continuous family is searched from the reference volume up to this multiple of it (or 10x the
 #: largest target volume, whichever is larger).
 SEARCH_RATIO = 1000.0
@@ -243,24 +246,24 @@ def _given(reference: _Reference, vessel: Vessel, index: int, rule: str, coolant
     return replace(_scaled_case(reference, vessel, ratio, coolant_rule), volume=nominal)
 
 
-def _check_targets(targets, max_targets: int) -> list:
+def _check_targets(targets: Iterable[Target], max_targets: int) -> list[Target]:
     if isinstance(targets, (str, bytes)) or not hasattr(targets, "__iter__"):
         raise InputError("targets", "must be a list of vessels, (vessel, coolant) pairs or volumes")
-    targets = list(targets)
-    if len(targets) > max_targets:
-        raise TooLarge("targets", f"at most {max_targets} targets per scale-up, got {len(targets)}")
-    for i, target in enumerate(targets):
+    given = list(targets)
+    if len(given) > max_targets:
+        raise TooLarge("targets", f"at most {max_targets} targets per scale-up, got {len(given)}")
+    for i, target in enumerate(given):
         if isinstance(target, Vessel) or (isinstance(target, tuple) and len(target) == 2
                                           and isinstance(target[0], Vessel) and isinstance(target[1], Coolant)):
             continue
         if isinstance(target, bool) or not isinstance(target, (int, float)) or not math.isfinite(target) \
                 or target <= 0:
             raise InputError(f"targets[{i}].volume", f"must be a positive volume or a vessel, got {target!r}")
-    return targets
+    return given
 
 
 def _scan(reference: _Reference, rule: str, coolant_rule: str, safety_factor: float, grid: list[float],
-          memo: dict, deadline: Deadline) -> None:
+          memo: dict[float, tuple[float, str]], deadline: Deadline) -> None:
     """The family's scan points solved together on the vectorised network, into ``memo`` as ``state`` would."""
     if not grid:
         return
@@ -277,12 +280,12 @@ def _scan(reference: _Reference, rule: str, coolant_rule: str, safety_factor: fl
         memo[x] = (value, solved.controlling[i])
 
 
-def _target_scale(ref: _Reference, target, own_coolant: Coolant | None, i: int, rule: str, coolant_flow_rule: str,
-                  process_temperature: float, safety_factor: float, limits: bool, deadline: Deadline,
-                  warnings: Warnings, size_jacket: bool = False) -> ScaleResult:
+def _target_scale(ref: _Reference, target: float | Vessel, own_coolant: Coolant | None, i: int, rule: str,
+                  coolant_flow_rule: str, process_temperature: float, safety_factor: float, limits: bool,
+                  deadline: Deadline, warnings: Warnings, size_jacket: bool = False) -> ScaleResult:
     """The cooling check of target ``i``: an explicit vessel (with its own coolant, if given) or a volume."""
     generated = not isinstance(target, Vessel)
-    if generated:
+    if not isinstance(target, Vessel):
         case = _similar(ref, float(target), rule, coolant_flow_rule)
     else:
         case = _given(ref, target, i, rule, coolant_flow_rule, warnings)
@@ -299,7 +302,8 @@ def _target_scale(ref: _Reference, target, own_coolant: Coolant | None, i: int, 
 
 
 def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_factor: float, upper: float,
-                   reference_check: CoolingCheck, warnings: Warnings, deadline: Deadline = NEVER):
+                   reference_check: CoolingCheck, warnings: Warnings, deadline: Deadline = NEVER
+                   ) -> tuple[float | None, bool, str, tuple[ControllingSwitch, ...]]:
     """Largest adequate volume (Brent's method on log V) and controlling switches (scan, then bisection)."""
     memo: dict[float, tuple[float, str]] = {}
 
@@ -356,7 +360,7 @@ def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_f
                                    "the safety factor"), tuple(switches)
 
 
-def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coolant, process_temperature: float,
+def scale_up(reference: Vessel, targets: Iterable[Target], rule: str, charge: Charge, coolant: Coolant, process_temperature: float,
              heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
              coolant_flow_rule: str = "scale_with_area", limits: bool = True,
              deadline: Deadline = NEVER, size_jacket: bool = False, max_targets: int = MAX_TARGETS) -> ScaleUp:

@@ -46,7 +46,7 @@ class Screening:
     complete: bool  # every candidate evaluated within the budget
 
 
-def _order(row: ScreeningRow) -> tuple:
+def _order(row: ScreeningRow) -> tuple[int, float]:
     if row.check is None:
         return (2, 0.0)
     margin = math.inf if row.check.margin is None else row.check.margin

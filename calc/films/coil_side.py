@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 
-from typing import NamedTuple
+from typing import Callable, NamedTuple
 
 from calc import arrays
 from calc.films.jacket_side import VDI_HEAT_ATLAS, FilmFormula, CoolantFilm, flow_warnings
@@ -55,7 +55,8 @@ def Nu_coil_laminar_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
     doi:10.1002/cite.330391302. VDI Heat Atlas, chapter Gc (helically coiled tubes; Gnielinski).
     """
     m = 0.5 + 0.2903 * r ** 0.194
-    return 3.66 + 0.08 * (1 + 0.8 * r ** 0.9) * Re ** m * Pr ** (1 / 3)
+    Nu: float = 3.66 + 0.08 * (1 + 0.8 * r ** 0.9) * Re ** m * Pr ** (1 / 3)
+    return Nu
 
 
 def Nu_coil_turbulent_Schmidt_1967(Re: float, Pr: float, r: float) -> float:
@@ -142,7 +143,9 @@ def Nu_coil_turbulent_Mori_Nakayama_1967(Re: float, Pr: float, r: float) -> floa
 COIL_TURBULENT_REYNOLDS = 2.2e4
 
 
-def Nu_coil_transition_Gnielinski_1986(Re: float, Pr: float, r: float, turbulent=Nu_coil_turbulent_Schmidt_1967) -> float:
+def Nu_coil_transition_Gnielinski_1986(Re: float, Pr: float, r: float,
+                                       turbulent: Callable[[float, float, float], float]
+                                       = Nu_coil_turbulent_Schmidt_1967) -> float:
     """Transitional flow in a helical coil: linear interpolation in Re, Gnielinski's rule for coiled tubes.
 
     Nu = g Nu_lam(Re_crit) + (1 - g) Nu_turb(2.2e4),  g = (2.2e4 - Re)/(2.2e4 - Re_crit),
@@ -182,8 +185,9 @@ def Nu_coil_transition_Gnielinski_1986(Re: float, Pr: float, r: float, turbulent
     """
     Re_crit = coil_critical_reynolds_Schmidt_1967(r)
     weight = arrays.clip((COIL_TURBULENT_REYNOLDS - Re) / (COIL_TURBULENT_REYNOLDS - Re_crit), 0.0, 1.0)
-    return (weight * Nu_coil_laminar_Schmidt_1967(Re_crit, Pr, r)
-            + (1.0 - weight) * turbulent(COIL_TURBULENT_REYNOLDS, Pr, r))
+    Nu: float = (weight * Nu_coil_laminar_Schmidt_1967(Re_crit, Pr, r)
+                 + (1.0 - weight) * turbulent(COIL_TURBULENT_REYNOLDS, Pr, r))
+    return Nu
 
 
 CORRELATIONS: dict[str, Correlation] = {
@@ -268,8 +272,9 @@ class _CoilFlow(NamedTuple):
     critical_reynolds: float
 
 
-def coil_flow(props, mass_flow, mu_wall, rho_wall, d, D_c, correlation, area=None, beta=None, dT=None,
-              warnings=None) -> _CoilFlow:
+def coil_flow(props: LiquidProperties, mass_flow: float, mu_wall: float, rho_wall: float | None, d: float,
+              D_c: float, correlation: str, area: float | None = None, beta: float | None = None,
+              dT: float | None = None, warnings: Warnings | None = None) -> _CoilFlow:
     """Film in a coil tube or curved channel at a coolant state (floats or arrays): Schmidt laminar below
     Re_crit, Gnielinski's interpolation to 2.2e4, the turbulent ``correlation`` above; times (mu/mu_w)^0.14.
     ``d`` is the (equivalent) diameter, ``area`` the flow area (default the tube's pi d^2/4)."""
@@ -287,8 +292,9 @@ def coil_flow(props, mass_flow, mu_wall, rho_wall, d, D_c, correlation, area=Non
     return _CoilFlow(Nu * props.thermal_conductivity / d, Re, velocity, Nu, Re_crit)
 
 
-def _describer(d: float, D_c: float, correlation: str):
-    def describe(props, flow: _CoilFlow, warnings: Warnings) -> CoolantFilm:
+def _describer(d: float, D_c: float, correlation: str) -> Callable[[LiquidProperties, _CoilFlow, Warnings],
+                                                                    CoolantFilm]:
+    def describe(props: LiquidProperties, flow: _CoilFlow, warnings: Warnings) -> CoolantFilm:
         Re, r = flow.reynolds, d / D_c
         key = ("schmidt_1967_laminar" if Re < flow.critical_reynolds else
                "gnielinski_coil_transition" if Re < COIL_TURBULENT_REYNOLDS else correlation)

@@ -33,7 +33,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
-from typing import Any, Callable, NamedTuple
+from typing import Any, Callable, NamedTuple, cast
 
 import numpy as np
 from scipy.constants import g
@@ -82,9 +82,11 @@ def friction_factor_Stein_Schmidt(Re: float, relative_roughness: float = 0.0) ->
     return friction_factor_Colebrook_1939(Re, relative_roughness)
 
 
-def h_jacket_Lehrer_1970(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type="tangential",
-                         inlet_location="bottom", rho_w=None, beta=None, dT=None, roughness=0.0,
-                         warnings=None) -> _Flow:
+def h_jacket_Lehrer_1970(m: float, D_tank: float, gap: float, H: float, d_inlet: float, rho: float, cp: float,
+                         k: float, mu: float, mu_w: float, inlet_type: str = "tangential",
+                         inlet_location: str = "bottom", rho_w: float | None = None, beta: float | None = None,
+                         dT: float | None = None, roughness: float = 0.0,
+                         warnings: Warnings | None = None) -> _Flow:
     """Plain annular jacket, Lehrer (1970), as given in the VDI Heat Atlas (2010).
 
     Nu = 0.03 Re^0.75 Pr / [1 + 1.74 (Pr - 1) Re^-0.125] (mu/mu_w)^0.14,  Nu = h d_g/k,  d_g = (8/3)^0.5 gap
@@ -172,9 +174,11 @@ def h_jacket_Lehrer_1970(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet
     return _Flow(Nu * k / d_g, Re, v_h, Nu, d_g)
 
 
-def h_jacket_Stein_Schmidt_1993(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type="tangential",
-                                inlet_location="bottom", rho_w=None, beta=None, dT=None, roughness=0.0,
-                                warnings=None) -> _Flow:
+def h_jacket_Stein_Schmidt_1993(m: float, D_tank: float, gap: float, H: float, d_inlet: float, rho: float,
+                                cp: float, k: float, mu: float, mu_w: float, inlet_type: str = "tangential",
+                                inlet_location: str = "bottom", rho_w: float | None = None,
+                                beta: float | None = None, dT: float | None = None, roughness: float = 0.0,
+                                warnings: Warnings | None = None) -> _Flow:
     """Plain annular jacket, Stein & Schmidt (1993), as given in the VDI Heat Atlas (2010).
 
     Nu = (Nu_A^3 + Nu_B^3 + Nu_C^3 + Nu_D^3)^(1/3) (mu/mu_w)^0.14,  Nu = h d_ch/k,  d_ch = 2 gap,
@@ -275,8 +279,9 @@ def h_jacket_Stein_Schmidt_1993(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w
     return _Flow(Nu * k / d_ch, Re, v_ch, Nu, d_ch)
 
 
-def _Stein_Schmidt_elementwise(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type, inlet_location,
-                               rho_w, roughness) -> _Flow:
+def _Stein_Schmidt_elementwise(m: float, D_tank: float, gap: float, H: float, d_inlet: float, rho: float,
+                               cp: float, k: float, mu: float, mu_w: float, inlet_type: str, inlet_location: str,
+                               rho_w: float | None, roughness: float) -> _Flow:
     """:func:`h_jacket_Stein_Schmidt_1993` over arrays of states, one element at a time.
 
     Its tangential-inlet velocity is itself a fixed-point iteration on the friction factor, with a
@@ -414,7 +419,8 @@ def Nu_turbulent_Sieder_Tate_1936(Re: float, Pr: float, De_over_Dc: float) -> fl
     ----------
     Sieder, E. N.; Tate, G. E. Ind. Eng. Chem. 28, 1429-1435 (1936), doi:10.1021/ie50324a027.
     """
-    return 0.027 * Re ** 0.8 * Pr ** (1 / 3) * (1 + 3.5 * De_over_Dc)
+    Nu: float = 0.027 * Re ** 0.8 * Pr ** (1 / 3) * (1 + 3.5 * De_over_Dc)
+    return Nu
 
 
 VDI_HEAT_ATLAS = "VDI Heat Atlas, 2nd ed., Springer 2010"
@@ -517,22 +523,26 @@ class FilmFormula:
     """
 
     function: Callable[..., Any]
-    fixed: dict
+    fixed: dict[str, Any]
     flow_share: float
     describe: Callable[..., CoolantFilm]
 
-    def h(self, props: LiquidProperties, stream_mass_flow, mu_wall, rho_wall):
+    def h(self, props: LiquidProperties, stream_mass_flow: float, mu_wall: float, rho_wall: float | None) -> float:
         """Film coefficient for a stream mass flow (floats or arrays), [W/(m2 K)]."""
-        return self.function(props, stream_mass_flow * self.flow_share, mu_wall, rho_wall, **self.fixed)[0]
+        h: float = self.function(props, stream_mass_flow * self.flow_share, mu_wall, rho_wall, **self.fixed)[0]
+        return h
 
 
-def annular_flow(props, mass_flow, mu_wall, rho_wall, correlation, D_tank, gap, H, d_inlet, inlet_type,
-                 inlet_location, roughness, beta=None, dT=None, warnings=None) -> _Flow:
+def annular_flow(props: LiquidProperties, mass_flow: float, mu_wall: float, rho_wall: float | None,
+                 correlation: str, D_tank: float, gap: float, H: float, d_inlet: float, inlet_type: str,
+                 inlet_location: str, roughness: float, beta: float | None = None, dT: float | None = None,
+                 warnings: Warnings | None = None) -> _Flow:
     """The registered annular-jacket correlation ``correlation`` at a coolant state (floats or arrays)."""
-    return CORRELATIONS[correlation].function(
+    flow: _Flow = CORRELATIONS[correlation].function(
         mass_flow, D_tank, gap, H, d_inlet, props.density, props.heat_capacity, props.thermal_conductivity,
         props.viscosity, mu_wall, inlet_type=inlet_type, inlet_location=inlet_location, rho_w=rho_wall, beta=beta,
         dT=dT, roughness=roughness, warnings=warnings)
+    return flow
 
 
 class _ChannelFlow(NamedTuple):
@@ -540,14 +550,15 @@ class _ChannelFlow(NamedTuple):
     reynolds: float
     velocity: float
     nusselt: float
-    key: int  # index into _CHANNEL_KEYS: the correlation in force
+    key: int  # index into _CHANNEL_KEYS: the correlation in force (an array of them on the vectorised path)
 
 
 _CHANNEL_KEYS = ("sieder_tate_1936_laminar", "gnielinski_2013", "sieder_tate_1936_turbulent")
 
 
-def channel_flow(props, mass_flow, mu_wall, rho_wall, area, d_e, length, d_curve, beta=None, dT=None,
-                 warnings=None) -> _ChannelFlow:
+def channel_flow(props: LiquidProperties, mass_flow: float, mu_wall: float, rho_wall: float | None, area: float,
+                 d_e: float, length: float, d_curve: float, beta: float | None = None, dT: float | None = None,
+                 warnings: Warnings | None = None) -> _ChannelFlow:
     """Film in a coiled channel (spiral baffle, half pipe): laminar, transitional or turbulent (floats or arrays).
 
     Laminar below Re = 2100, Gnielinski's interpolation to Re = 10^4, turbulent above. Short channels:
@@ -562,13 +573,14 @@ def channel_flow(props, mass_flow, mu_wall, rho_wall, area, d_e, length, d_curve
     transition = Nu_transition_Gnielinski_2013(Re, Pr, d_e / length, d_e / d_curve)
     turbulent = Nu_turbulent_Sieder_Tate_1936(Re, Pr, d_e / d_curve)
     entry_wins = laminar > transition
-    key = arrays.where(Re < LAMINAR_LIMIT, 0, arrays.where(Re < TURBULENT_LIMIT, arrays.where(entry_wins, 0, 1), 2))
+    key = cast(int, arrays.where(Re < LAMINAR_LIMIT, 0, arrays.where(Re < TURBULENT_LIMIT,
+                                                                     arrays.where(entry_wins, 0, 1), 2)))
     Nu = arrays.where(key == 0, laminar, arrays.where(key == 1, transition, turbulent))
     Nu = Nu * (props.viscosity / mu_wall) ** 0.14
     return _ChannelFlow(Nu * props.thermal_conductivity / d_e, Re, velocity, Nu, key)
 
 
-def _describe_channel(props, flow: _ChannelFlow, warnings: Warnings, d_e: float) -> CoolantFilm:
+def _describe_channel(props: LiquidProperties, flow: _ChannelFlow, warnings: Warnings, d_e: float) -> CoolantFilm:
     entry = CORRELATIONS[_CHANNEL_KEYS[flow.key]]
     entry.check(warnings, Re=flow.reynolds, Pr=props.prandtl)
     regime = flow_warnings(warnings, flow.reynolds, flow.velocity, LAMINAR_LIMIT, entry.name)
@@ -576,7 +588,8 @@ def _describe_channel(props, flow: _ChannelFlow, warnings: Warnings, d_e: float)
                       warnings)
 
 
-def _channel_formula(area, d_e, length, d_curve, share, jacket) -> FilmFormula:
+def _channel_formula(area: float, d_e: float, length: float, d_curve: float, share: float,
+                     jacket: JacketSpec) -> FilmFormula:
     """The channel's film: the curved (coil-tube) treatment on De and De/D_c, or the straight one."""
     if jacket.channel not in CHANNEL_TREATMENTS:
         raise InputError("correlations.channel", f"unknown option {jacket.channel!r}; known: "
@@ -589,7 +602,7 @@ def _channel_formula(area, d_e, length, d_curve, share, jacket) -> FilmFormula:
                        lambda props, flow, warnings: _describe_channel(props, flow, warnings, d_e))
 
 
-def _annular(jacket, D_o, H, warnings) -> FilmFormula:
+def _annular(jacket: JacketSpec, D_o: float, H: float, warnings: Warnings) -> FilmFormula:
     if jacket.correlation not in ANNULAR_CORRELATIONS:
         raise InputError("vessel.jacket.correlation", f"unknown option {jacket.correlation!r}; known: "
                                                       f"{', '.join(ANNULAR_CORRELATIONS)}")
@@ -606,7 +619,7 @@ def _annular(jacket, D_o, H, warnings) -> FilmFormula:
             raise InputError(f"vessel.jacket.{name}", f"unknown option {value!r}; known: {', '.join(options)}")
     entry = CORRELATIONS[jacket.correlation]
 
-    def describe(props, flow: _Flow, warnings: Warnings) -> CoolantFilm:
+    def describe(props: LiquidProperties, flow: _Flow, warnings: Warnings) -> CoolantFilm:
         entry.check(warnings, Re=flow.reynolds, Pr=props.prandtl, **{"H/D": H / D_o})
         regime = flow_warnings(warnings, flow.reynolds, flow.velocity, 2300.0, entry.name)
         return CoolantFilm(flow.h, flow.reynolds, flow.velocity, entry.name, flow.nusselt, props.prandtl,
@@ -617,7 +630,7 @@ def _annular(jacket, D_o, H, warnings) -> FilmFormula:
     return FilmFormula(annular_flow, fixed, 1.0, describe)
 
 
-def _spiral_baffle(jacket, D_o, H, warnings) -> FilmFormula:
+def _spiral_baffle(jacket: JacketSpec, D_o: float, H: float, warnings: Warnings) -> FilmFormula:
     gap = _positive("gap", jacket.gap, "a spiral-baffle jacket")
     pitch = _positive("baffle_pitch", jacket.baffle_pitch, "a spiral-baffle jacket")
     bypass = DEFAULT_BYPASS_FRACTION if jacket.bypass_fraction is None else jacket.bypass_fraction
@@ -632,7 +645,7 @@ def _spiral_baffle(jacket, D_o, H, warnings) -> FilmFormula:
     return _channel_formula(pitch * gap, 4.0 * gap, length, d_curve, 1.0 - bypass, jacket)
 
 
-def _half_pipe(jacket, D_o, H, warnings) -> FilmFormula:
+def _half_pipe(jacket: JacketSpec, D_o: float, H: float, warnings: Warnings) -> FilmFormula:
     d = _positive("pipe_diameter", jacket.pipe_diameter, "a half-pipe jacket")
     pitch = _positive("pipe_pitch", jacket.pipe_pitch, "a half-pipe jacket")
     theta = jacket.pipe_section_angle
@@ -648,12 +661,12 @@ def _half_pipe(jacket, D_o, H, warnings) -> FilmFormula:
     return _channel_formula(area, d_e, length, D_o, 1.0, jacket)
 
 
-def _no_jacket(*_args) -> FilmFormula:
+def _no_jacket(*_args: object) -> FilmFormula:
     raise InputError("vessel.jacket.type", "the vessel has no jacket (type 'none'): there is no jacket film")
 
 
-_JACKET_TYPES = {"annular": _annular, "annular_spiral_baffle": _spiral_baffle, "half_pipe": _half_pipe,
-                 "none": _no_jacket}
+_JACKET_TYPES: dict[str, Callable[[JacketSpec, float, float, Warnings], FilmFormula]] = {
+    "annular": _annular, "annular_spiral_baffle": _spiral_baffle, "half_pipe": _half_pipe, "none": _no_jacket}
 
 
 def jacket_film_formula(jacket: JacketSpec, vessel_outer_diameter: float, jacket_height: float

@@ -77,7 +77,8 @@ def nusselt_agitated_Chilton_Drew_Jebens_1944(Re: float, Pr: float, viscosity_ra
     Chilton, T. H., Drew, T. B., Jebens, R. H., "Heat transfer coefficients in agitated vessels",
     Ind. Eng. Chem. 36 (6), 510-516 (1944).
     """
-    return a * Re ** b * Pr ** c * viscosity_ratio ** d * H_over_T ** height_exponent
+    Nu: float = a * Re ** b * Pr ** c * viscosity_ratio ** d * H_over_T ** height_exponent
+    return Nu
 
 
 def nusselt_coil_Oldshue_Gretton_1954(Re: float, Pr: float, viscosity_ratio: float, D_over_T: float,
@@ -133,8 +134,9 @@ def nusselt_coil_Oldshue_Gretton_1954(Re: float, Pr: float, viscosity_ratio: flo
     "Heat Transfer", ch. 14 in Paul, Atiemo-Obeng & Kresta (eds.), Handbook of Industrial Mixing,
     Wiley 2004.
     """
-    return (a * Re ** b * Pr ** c * viscosity_ratio ** d * H_over_T ** height_exponent
-            * (3.0 * D_over_T) ** 0.1 * (do_over_T / 0.04) ** 0.5)
+    Nu: float = (a * Re ** b * Pr ** c * viscosity_ratio ** d * H_over_T ** height_exponent
+                 * (3.0 * D_over_T) ** 0.1 * (do_over_T / 0.04) ** 0.5)
+    return Nu
 
 
 @dataclass(frozen=True)
@@ -175,13 +177,14 @@ class ProcessFilm:
     warnings: Warnings = field(default_factory=Warnings)
     #: What the correlation was called with, but the viscosity ratio, and the length h = Nu k / length uses:
     #: the vectorised network calls the same correlation with an array of wall viscosities.
-    arguments: dict = field(default_factory=dict, repr=False, compare=False)
+    arguments: dict[str, float] = field(default_factory=dict, repr=False, compare=False)
     length: float = field(default=1.0, repr=False, compare=False)
 
-    def h_at(self, viscosity_ratio, conductivity: float):
+    def h_at(self, viscosity_ratio: float, conductivity: float) -> float:
         """h for other bulk-to-wall viscosity ratios (a float or an array) at the same bulk state, [W/(m2 K)]."""
         function = CORRELATIONS[self.constants.correlation].function
-        return function(viscosity_ratio=viscosity_ratio, **self.arguments) * conductivity / self.length
+        h: float = function(viscosity_ratio=viscosity_ratio, **self.arguments) * conductivity / self.length
+        return h
 
 
 #: Width, in decades of Re, of the blend between two constant sets sharing their Re exponent.
@@ -237,9 +240,9 @@ def weighted_constants(bands: tuple[FilmConstants, ...], Re: float) -> list[tupl
     return [(1.0, bands[-1])]
 
 
-def transitions(bands: tuple[FilmConstants, ...]) -> list[dict]:
+def transitions(bands: tuple[FilmConstants, ...]) -> list[dict[str, float | str]]:
     """Where one constant set hands over to the next: the Re range and how (for the library listing)."""
-    out = []
+    out: list[dict[str, float | str]] = []
     for lower, upper in zip(bands, bands[1:]):
         switch, blended = switch_reynolds(lower, upper)
         if blended:
@@ -255,7 +258,8 @@ def transitions(bands: tuple[FilmConstants, ...]) -> list[dict]:
 
 
 def _film(info: ImpellerInfo, bands: tuple[FilmConstants, ...], surface: str, Re: float,
-          props: LiquidProperties, mu_wall: float, baffled: bool, lengths: dict, geometry: dict,
+          props: LiquidProperties, mu_wall: float, baffled: bool, lengths: dict[str, float],
+          geometry: dict[str, float],
           warnings: Warnings, factor: float = 1.0) -> ProcessFilm:
     require_positive("vessel.agitator.speed", Re)
     require_positive("charge.viscosity", mu_wall)
@@ -340,7 +344,8 @@ def wall_alternatives(impeller: str) -> dict[str, tuple[FilmConstants, ...]]:
     return {"default": info.wall} | WALL_ALTERNATIVES.get(impeller, {})
 
 
-def _wall_bands(info: ImpellerInfo, alternative: str, field: str = "correlations.process_wall"):
+def _wall_bands(info: ImpellerInfo, alternative: str,
+                field: str = "correlations.process_wall") -> tuple[FilmConstants, ...]:
     options = wall_alternatives(info.id)
     try:
         return options[alternative]

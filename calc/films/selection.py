@@ -16,9 +16,11 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from calc.films import coil_side, jacket_side, process_side
-from calc.validity import InputError
+from calc.films.jacket_side import JacketSpec
+from calc.validity import Correlation, InputError
 from calc.vessel.agitation import IMPELLERS, FilmConstants
 
 
@@ -85,7 +87,7 @@ class CorrelationChoice:
                                                               f"{impeller}; published: {', '.join(walls)}")
         return self
 
-    def jacket(self, spec):
+    def jacket(self, spec: JacketSpec) -> JacketSpec:
         """The jacket spec with this choice's service-side options applied."""
         from dataclasses import replace
 
@@ -102,11 +104,11 @@ class Alternative:
     default: bool
     applies_to: str
     source: str
-    validity: dict
-    constants: dict
+    validity: dict[str, list[float | str | None]]
+    constants: dict[str, Any]
 
 
-def _validity(entry) -> dict:
+def _validity(entry: Correlation) -> dict[str, list[float | str | None]]:
     return {k: [v[0], v[1]] for k, v in (entry.validity or {}).items()}
 
 

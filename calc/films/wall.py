@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import NamedTuple
+from typing import NamedTuple, cast
 
 from calc import arrays
 from calc.validity import CalcWarning, InputError, Warnings, require_positive
@@ -100,7 +100,7 @@ class OverallResult:
     """Overall coefficient on the process-side area and its resistances (m2 K/W, same basis)."""
 
     U: float  # W/(m2 K), referred to the process-side surface
-    resistances: dict  # name -> m2 K/W, in the order of LAYERS
+    resistances: dict[str, float]  # name -> m2 K/W, in the order of LAYERS
     controlling: str  # name of the largest resistance
     reference_radius: float  # m, radius of the process-side surface (inf for a flat wall)
     service_radius: float  # m, radius of the service-side surface
@@ -114,7 +114,7 @@ class WallTemperatures:
     heat_flux: float  # W/m2 on the process-side area, positive from process to coolant
     process_surface: float  # K, surface the process film sees (fouling surface if fouled)
     service_surface: float  # K, surface the service film sees
-    interfaces: tuple  # ((name of the layer just crossed, K), ...) from process to coolant
+    interfaces: tuple[tuple[str, float], ...]  # ((name of the layer just crossed, K), ...) from process to coolant
 
 
 def layer_resistance(inner_radius: float, thickness: float, conductivity: float,
@@ -283,7 +283,8 @@ def wall_layers(wall: WallSpec, fouling: Fouling | None = None, process_radius: 
     return WallLayers(fouling.process, lining, metal, fouling.service * area_ratio, area_ratio, r_p, r_s), warnings
 
 
-def overall_from_layers(h_process, h_service, layers: WallLayers, warnings: Warnings | None = None) -> OverallResult:
+def overall_from_layers(h_process: float, h_service: float, layers: WallLayers,
+                        warnings: Warnings | None = None) -> OverallResult:
     """U from the two films and the fixed layers: 1/U = the sum of the resistances in the order of LAYERS.
 
     Takes floats (one surface) or arrays (many states at once, ``controlling`` then left empty).
@@ -321,7 +322,7 @@ def with_remaining_resistance(result: OverallResult, remaining: float) -> Overal
     if arrays.is_array(remaining, total):  # many states: NaN marks the surfaces without a calibration
         import numpy as np
 
-        scale = np.where(np.isnan(remaining), 1.0, remaining / total)
+        scale = cast(float, np.where(np.isnan(remaining), 1.0, remaining / total))  # an array on this path
         share = {k: v * scale for k, v in others.items()}
     else:
         share = {k: (v / total * remaining if total > 0 else (remaining if k == "wall" else 0.0))

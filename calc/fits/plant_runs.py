@@ -7,9 +7,8 @@ vessel at the run's fill (:mod:`calc.vessel.geometry`).
 """
 from __future__ import annotations
 
-from typing import Any
-
 from dataclasses import dataclass
+from typing import Any, Sequence
 
 import numpy as np
 
@@ -19,6 +18,7 @@ from calc.fits.wilson import WilsonPlot, wilson_plot
 from calc.validity import InputError
 from calc.vessel import geometry
 from calc.vessel.agitation import reynolds_impeller
+from calc.vessel.model import Vessel
 
 
 @dataclass(frozen=True)
@@ -31,7 +31,8 @@ class RunLiquid:
     viscosity: float | None = None
     thermal_conductivity: float | None = None
 
-    def properties(self, temperature: float, field: str) -> dict:
+    def properties(self, temperature: float, field: str) -> dict[str, Any]:
+        """Properties by name, SI; an explicit liquid's missing ones are None (the schemas require what a use needs)."""
         if self.liquid is not None:
             props = self.liquid.at(temperature, field=field)
             return {"heat_capacity": props.heat_capacity, "density": props.density, "viscosity": props.viscosity,
@@ -54,9 +55,10 @@ class RunCharge:
     def volume_at(self, temperature: float) -> float:
         if self.volume is not None:
             return self.volume
-        density = self.liquid.properties(temperature, "charge.fluid")["density"]
+        density: float | None = self.liquid.properties(temperature, "charge.fluid")["density"]
         if density is None:
             raise InputError("charge.density", "needed to find the fill (and the area) from the charge's mass")
+        assert self.mass is not None  # a charge gives its volume or its mass (the schema requires one)
         return self.mass / density
 
 
@@ -84,8 +86,9 @@ class RunFit:
     cautions: tuple[str, ...] = FITS
 
 
-def fit_run(time, contents, inlet, charge: RunCharge, mode: str, outlet=None, coolant: RunCoolant | None = None,
-            vessel=None, shaft_power: float = 0.0, heat_loss: float = 0.0) -> RunFit:
+def fit_run(time: Sequence[float], contents: Sequence[float], inlet: Sequence[float], charge: RunCharge, mode: str,
+            outlet: Sequence[float] | None = None, coolant: RunCoolant | None = None, vessel: Vessel | None = None,
+            shaft_power: float = 0.0, heat_loss: float = 0.0) -> RunFit:
     """UA of a logged run (:func:`calc.fits.ua_fit.fit_ua`), and U when the vessel is given."""
     mean = float(np.mean(contents))
     mass, heat_capacity = charge.mass_and_heat_capacity(mean)
@@ -121,7 +124,7 @@ class WilsonRuns:
                 "remaining_resistance_interval": list(plot.remaining_resistance_interval)}
 
 
-def wilson_from_runs(vessel, charge: RunCharge, process_temperature: float, runs: list[dict],
+def wilson_from_runs(vessel: Vessel, charge: RunCharge, process_temperature: float, runs: list[dict[str, Any]],
                      coolant: RunCoolant | None = None, exponent: float = 2.0 / 3.0,
                      prandtl_exponent: float = 1.0 / 3.0) -> WilsonRuns:
     """Wilson plot of runs given as U, UA or logged series at several speeds (rev/s)."""

@@ -31,6 +31,7 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
+import numpy.typing as npt
 from scipy import stats
 from scipy.optimize import least_squares
 
@@ -81,7 +82,7 @@ class UAFit:
     warnings: Warnings = field(default_factory=Warnings)
 
 
-def _array(name: str, values) -> np.ndarray:
+def _array(name: str, values: npt.ArrayLike) -> np.ndarray:
     try:
         array = np.asarray(values, dtype=float)
     except (TypeError, ValueError):
@@ -140,7 +141,8 @@ def check_series(series: Series, mode: str) -> None:
                          f"sensors' noise (at least {MIN_CHANGE:g} K needed; log longer or with a larger driving force)")
 
 
-def fit_ua(time, contents, inlet, mass: float, heat_capacity: float, mode: str = "cooling", outlet=None,
+def fit_ua(time: npt.ArrayLike, contents: npt.ArrayLike, inlet: npt.ArrayLike, mass: float, heat_capacity: float,
+           mode: str = "cooling", outlet: npt.ArrayLike | None = None,
            coolant_flow: float | None = None, coolant_heat_capacity: float | None = None,
            shaft_power: float = 0.0, heat_loss: float = 0.0) -> UAFit:
     """Least-squares UA [W/K] of a logged run (see the module notes for the model and the interval).

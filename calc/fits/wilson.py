@@ -19,6 +19,7 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
+import numpy.typing as npt
 from scipy import stats
 
 from calc.validity import CalcWarning, InputError, Warnings
@@ -47,7 +48,8 @@ class WilsonPlot:
     warnings: Warnings = field(default_factory=Warnings)
 
 
-def wilson_plot(reynolds, overall_coefficients, tank_diameter: float, conductivity: float, prandtl: float,
+def wilson_plot(reynolds: npt.ArrayLike, overall_coefficients: npt.ArrayLike, tank_diameter: float,
+                conductivity: float, prandtl: float,
                 exponent: float = 2.0 / 3.0, prandtl_exponent: float = 1.0 / 3.0,
                 viscosity_ratio: float = 1.0, viscosity_exponent: float = 0.14) -> WilsonPlot:
     """Fit 1/U = R_rem + m Re^-b over runs at several speeds (Wilson 1915); a = T/(k Pr^c Vi^d m).

@@ -128,7 +128,8 @@ def friction_factor_coil_laminar_Schmidt_1967(Re: float, r: float) -> float:
     Schmidt, E. F. "Wärmeübergang und Druckverlust in Rohrschlangen". Chem. Ing. Tech. 39, 781-789
     (1967), doi:10.1002/cite.330391302. VDI Heat Atlas, 2nd ed., Springer 2010, chapter Gc.
     """
-    return 64.0 / Re * (1.0 + 0.14 * r ** 0.97 * Re ** (1.0 - 0.644 * r ** 0.312))
+    f: float = 64.0 / Re * (1.0 + 0.14 * r ** 0.97 * Re ** (1.0 - 0.644 * r ** 0.312))
+    return f
 
 
 def friction_factor_coil_turbulent_Schmidt_1967(Re: float, r: float, relative_roughness: float = 0.0) -> float:
@@ -167,8 +168,10 @@ def friction_factor_coil_turbulent_Schmidt_1967(Re: float, r: float, relative_ro
     """
     straight = friction_factor_Colebrook_1939(Re, relative_roughness)
     if Re < 2.2e4:
-        return straight * (1.0 + 2.88e4 / Re * r ** 0.62)
-    return straight * (1.0 + 0.0823 * (1.0 + r) * r ** 0.53 * Re ** 0.25)
+        factor: float = 1.0 + 2.88e4 / Re * r ** 0.62
+    else:
+        factor = 1.0 + 0.0823 * (1.0 + r) * r ** 0.53 * Re ** 0.25
+    return straight * factor
 
 
 def coil_critical_reynolds_Schmidt_1967(r: float) -> float:
@@ -193,7 +196,8 @@ def coil_critical_reynolds_Schmidt_1967(r: float) -> float:
     ----------
     Schmidt, E. F. Chem. Ing. Tech. 39, 781-789 (1967), doi:10.1002/cite.330391302.
     """
-    return 2300.0 * (1 + 8.6 * r ** 0.45)
+    Re_crit: float = 2300.0 * (1 + 8.6 * r ** 0.45)
+    return Re_crit
 
 
 def _blend(Re: float, low: float, high: float, laminar: float, turbulent: float) -> float:

@@ -29,10 +29,11 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-from calc.films.jacket_side import DEFAULT_BYPASS_FRACTION
+from calc.films.jacket_side import DEFAULT_BYPASS_FRACTION, JacketSpec
 from calc.hydraulics import friction
 from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, InputError, Warnings, require_positive
+from calc.vessel.geometry import HelicalCoil
 
 HEADER_FITTINGS = ("entrance_sharp", "elbow_90", "elbow_90", "exit")
 NOZZLE_FITTINGS = ("exit", "entrance_sharp")
@@ -115,7 +116,7 @@ def pressure_drop(path: FlowPath, mass_flow: float, props: LiquidProperties) -> 
                       friction.CORRELATIONS[result.correlation].name, warnings)
 
 
-def jacket_path(jacket, outer_diameter: float, jacket_height: float) -> FlowPath:
+def jacket_path(jacket: JacketSpec, outer_diameter: float, jacket_height: float) -> FlowPath:
     """The path of a jacket (``calc.films.jacket_side.JacketSpec``) on a shell of ``outer_diameter`` [m]
     covering ``jacket_height`` [m] (split into ``jacket.passes`` zones)."""
     n = jacket.passes
@@ -147,7 +148,7 @@ def jacket_path(jacket, outer_diameter: float, jacket_height: float) -> FlowPath
     raise InputError("vessel.jacket.type", f"no coolant path for a jacket of type {jacket.type!r}")
 
 
-def coil_path(coil, roughness: float = 0.0) -> FlowPath:
+def coil_path(coil: HelicalCoil, roughness: float = 0.0) -> FlowPath:
     """The path of a helical coil (``calc.vessel.geometry.HelicalCoil``): its tube, pitch-corrected curvature
     D_c [1 + (p / (pi D_c))^2] (VDI Heat Atlas, Gc)."""
     d = coil.tube_inner_diameter

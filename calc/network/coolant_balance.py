@@ -211,7 +211,8 @@ def coolant_balance(process_temperature: float, inlet_temperature: float, ua: fl
                           effectiveness, mass_flow, heat_capacity, warnings)
 
 
-def single_pass(process_temperature, inlet_temperature, ua, capacity_rate):
+def single_pass(process_temperature: float, inlet_temperature: float, ua: float, capacity_rate: float
+                ) -> tuple[float, float, float, float]:
     """Outlet temperature (K), duty (W), NTU and effectiveness of one pass; floats or arrays.
 
     T_out = T_in + (T_r - T_in) eps,  Q = m_dot c_p (T_r - T_in) eps,  eps = 1 - exp(-U A / (m_dot c_p))

@@ -14,10 +14,13 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Sequence
 
 from scipy.optimize import brentq
 
 from calc.hydraulics import paths
+from calc.network.heat_transfer import Stream
+from calc.properties import LiquidProperties
 from calc.vessel.model import Coolant
 
 LIMIT_NAMES = {"available_pressure_drop": "the available pressure difference",
@@ -41,7 +44,7 @@ class FlowLimit:
         return LIMIT_NAMES[self.binding] + where
 
 
-def _pressure_limit(path: paths.FlowPath, props, ratio: float, available: float) -> float:
+def _pressure_limit(path: paths.FlowPath, props: LiquidProperties, ratio: float, available: float) -> float:
     def excess(log_flow: float) -> float:
         return math.log(paths.pressure_drop(path, ratio * math.exp(log_flow), props).pressure_drop / available)
 
@@ -53,7 +56,7 @@ def _pressure_limit(path: paths.FlowPath, props, ratio: float, available: float)
     return math.exp(brentq(excess, low, high, xtol=1e-12, rtol=1e-12))
 
 
-def flow_limit(streams, coolant: Coolant) -> FlowLimit:
+def flow_limit(streams: Sequence[Stream], coolant: Coolant) -> FlowLimit:
     """The largest ``coolant.flow`` [kg/s] that keeps every stream (``calc.heat_transfer.Stream``, with its
     path and flow at the given ``coolant.flow``) within the utility's limits.
 

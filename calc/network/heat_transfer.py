@@ -118,10 +118,11 @@ def _area_weighted_film(surfaces: list[Surface], side: str) -> float | None:
     area = sum(s.area for s in surfaces)
     if not surfaces or area <= 0:
         return None
-    return sum(getattr(s, f"{side}_film").h * s.area for s in surfaces) / area
+    films: float = sum(getattr(s, f"{side}_film").h * s.area for s in surfaces)
+    return films / area
 
 
-def _process_film_label(film, with_constant: bool) -> str:
+def _process_film_label(film: ProcessFilm, with_constant: bool) -> str:
     constant = f", a = {film.constant_a:g}" if with_constant else ""
     return f"{film.correlation}{constant} ({film.source})"
 
@@ -401,7 +402,8 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
 
         chosen_jacket = choice.jacket(jacket)
 
-        def service(props_c, mu_w, rho_w, _jacket=chosen_jacket):
+        def service(props_c: LiquidProperties, mu_w: float, rho_w: float | None,
+                    _jacket: jacket_side.JacketSpec = chosen_jacket) -> CoolantFilm:
             return jacket_side.service_film_jacket(_jacket, props_c, coolant.mass_flow(), mu_w, outer,
                                                     max(jacket_height, 1e-3), rho_wall=rho_w)
         jacket_formula, _ = jacket_side.jacket_film_formula(chosen_jacket, outer, max(jacket_height, 1e-3))
@@ -419,7 +421,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
                     factor=choice.process_factor, constants=choice.process_constants),
                 service, jacket_formula, choice.remaining_resistance))
         streams.append(StreamModel("jacket", coolant.mass_flow(), tuple(models),
-                                   paths.jacket_path(vessel.jacket, outer, max(jacket_height, 1e-3))))
+                                   paths.jacket_path(jacket, outer, max(jacket_height, 1e-3))))
     elif vessel.jacket is not None:
         warnings.add(CalcWarning("jacket_not_wetted", "the liquid does not reach the jacket: no jacket heat transfer"))
 

@@ -20,6 +20,7 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
+import numpy.typing as npt
 from scipy.optimize import brentq
 
 from calc.cautions import THERMAL_SAFETY
@@ -162,8 +163,8 @@ def mtsr_Stoessel_1993(process_temperature: float, accumulation: float,
     return process_temperature + accumulation * max(adiabatic_temperature_rise, 0.0)
 
 
-def mtsr_from_profile(temperature, accumulation, adiabatic_temperature_rise: float,
-                      mass=None, final_mass: float | None = None) -> tuple[float, int]:
+def mtsr_from_profile(temperature: npt.ArrayLike, accumulation: npt.ArrayLike, adiabatic_temperature_rise: float,
+                      mass: npt.ArrayLike | None = None, final_mass: float | None = None) -> tuple[float, int]:
     r"""MTSR of a semi-batch step from a simulated accumulation profile, after Stoessel (2008).
 
     .. math:: MTSR = \max_t \left[T(t) + X_{ac}(t)\, \Delta T_{ad}\, m_{final}/m(t)\right]
@@ -352,7 +353,7 @@ def td24_Townsend_Tou_1980(heat_capacity: float, onset_power: float, onset_tempe
     low, high = 150.0, min(1500.0, 0.5 * activation_energy / GAS_CONSTANT)
     if not (residual(low) > 0 > residual(high)):
         raise CalculationError("T_D24 lies outside 150 K to 1500 K for this decomposition data")
-    return brentq(residual, low, high, xtol=1e-9, rtol=1e-14)
+    return float(brentq(residual, low, high, xtol=1e-9, rtol=1e-14))
 
 
 # ----------------------------------------------------------------------------- criticality classes
@@ -499,7 +500,7 @@ class ThermalSafetyResult:
     time_to_maximum_rate: float | None  # s, adiabatic, starting at the MTSR; None without decomposition data
     mtt: float  # K
     criticality_class: int
-    reasoning: list = field(default_factory=list)
+    reasoning: list[str] = field(default_factory=list)
     warnings: Warnings = field(default_factory=Warnings)
     cautions: tuple[str, ...] = (THERMAL_SAFETY,)
 
@@ -526,7 +527,7 @@ def _adiabatic_rise(inp: ThermalSafetyInput) -> float:
                                                     inp.density, inp.heat_capacity)
 
 
-def _mtt(inp: ThermalSafetyInput, reasons: list) -> float:
+def _mtt(inp: ThermalSafetyInput, reasons: list[str]) -> float:
     if inp.maximum_technical_temperature is not None:
         return require_temperature("maximum_technical_temperature", inp.maximum_technical_temperature)
     if inp.contents_fluid is None:

@@ -34,6 +34,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Callable
 
 import numpy as np
 from scipy.integrate import OdeSolution
@@ -141,7 +142,8 @@ def _kinetics(inp: SimulationInput, index: dict[str, int], molar_heat_capacity: 
             stoichiometry[row, index[name]] = value
         for name, value in reaction.orders.items():
             orders[row, index[name]] = value
-    column = lambda values: np.array(values)[:, None]  # noqa: E731
+    def column(values: list[float]) -> np.ndarray:
+        return np.array(values)[:, None]
     return _Kinetics(
         stoichiometry, orders, column([r.rate_constant for r in inp.reactions]),
         column([r.activation_energy / GAS_CONSTANT for r in inp.reactions]),
@@ -250,7 +252,8 @@ class _Model:
         atol[layout.sums + 5] = rtol * mass
         return atol
 
-    def terms(self, y, F, cooling, outputs: bool = False):
+    def terms(self, y: np.ndarray, F: float | np.ndarray, cooling: float | np.ndarray, outputs: bool = False
+              ) -> tuple[np.ndarray, dict[str, np.ndarray] | None]:
         """Rates of every state (and, if asked, the algebraic outputs) for y of shape (n,) or (n, k);
         F (feed, kg/s) and cooling (1 on, 0 failed) are scalars or arrays of length k."""
         sp, kin, feed, jac, at = self.species, self.kinetics, self.feed, self.cooling, self.layout
@@ -306,8 +309,8 @@ class _Model:
         T_out = Tj if jac.holdup else T - (T - Tin) * (1.0 - jac.effectiveness)
         return dy, dict(mass=mass, V=V, q=q_T, Q=Q, Tin=Tin + 0.0 * T, T_out=T_out, C=C)
 
-    def rhs(self, F: float, cooling: float):
-        def fun(t, y):
+    def rhs(self, F: float, cooling: float) -> Callable[[float, np.ndarray], np.ndarray]:
+        def fun(t: float, y: np.ndarray) -> np.ndarray:
             self.deadline.check()
             self.evaluations += 1 if y.ndim == 1 else y.shape[1]
             dy = self.terms(y, F, cooling)[0]
@@ -318,18 +321,20 @@ class _Model:
         feed = self.inp.feed
         if not self.mode.has_feed or feed is None:
             return 0.0
-        return sum(s.mass_flow for s in feed.steps if s.start <= t < s.end)
+        rate: float = sum(s.mass_flow for s in feed.steps if s.start <= t < s.end)
+        return rate
 
-    def breakpoints(self, t0: float, t1: float) -> list:
+    def breakpoints(self, t0: float, t1: float) -> list[float]:
         points = {t0, t1}
         if self.mode.has_feed and self.inp.feed is not None:
             for s in self.inp.feed.steps:
                 points.update(p for p in (s.start, s.end) if t0 < p < t1)
         return sorted(points)
 
-    def enthalpy(self, y) -> float:
+    def enthalpy(self, y: np.ndarray) -> float:
         """Sensible enthalpy of the contents in state ``y`` above the reference temperature, J."""
-        return self.heat_capacity(y) * (y[self.layout.temperature] - self.enthalpy_reference_temperature)
+        H: float = self.heat_capacity(y) * (y[self.layout.temperature] - self.enthalpy_reference_temperature)
+        return H
 
 
 # ----------------------------------------------------------------------------- integration
@@ -338,28 +343,30 @@ class _Model:
 class _Track:
     """Accepted steps of one run: times, states, dense outputs and (feed rate, cooling) per interval."""
 
-    ts: list
-    ys: list
-    interps: list = field(default_factory=list)
-    params: list = field(default_factory=list)
-    crossings: list = field(default_factory=list)
+    ts: list[float]
+    ys: list[np.ndarray]
+    interps: list[Callable[[float], np.ndarray]] = field(default_factory=list)  # dense outputs
+    params: list[tuple[float, float]] = field(default_factory=list)
+    crossings: list[LimitCrossing] = field(default_factory=list)
     status: int = 0
     message: str = MESSAGES[0]
 
 
-def _crossing(lim: TemperatureLimit, iT: int, sol, t_old, y_old, t_new, y_new):
+def _crossing(lim: TemperatureLimit, iT: int, sol: Callable[[float], np.ndarray], t_old: float, y_old: np.ndarray,
+              t_new: float, y_new: np.ndarray) -> float | None:
     g_old, g_new = y_old[iT] - lim.temperature, y_new[iT] - lim.temperature
     up, down = g_old < 0.0 <= g_new, g_old > 0.0 >= g_new
     if not ((lim.direction >= 0 and up) or (lim.direction <= 0 and down)):
         return None
-    g = lambda t: sol(t)[iT] - lim.temperature  # noqa: E731
+    def g(t: float) -> float:
+        return float(sol(t)[iT] - lim.temperature)
     if g_new == 0.0 or g(t_old) * g(t_new) > 0:
         return t_new
-    return brentq(g, t_old, t_new, xtol=1e-9 * max(1.0, t_new))
+    return float(brentq(g, t_old, t_new, xtol=1e-9 * max(1.0, t_new)))
 
 
 def _run(model: _Model, t0: float, y0: np.ndarray, t1: float, failed: bool, stop_feed: bool,
-         limits: tuple) -> _Track:
+         limits: tuple[TemperatureLimit, ...]) -> _Track:
     """Integrate from t0 to t1, one solver per interval between feed breakpoints."""
     track = _Track([t0], [y0.copy()])
     with np.errstate(all="ignore"):  # overflow shows up as a failed step, reported in the status
@@ -367,7 +374,8 @@ def _run(model: _Model, t0: float, y0: np.ndarray, t1: float, failed: bool, stop
     return track
 
 
-def _integrate(model: _Model, track: _Track, points: list, failed: bool, stop_feed: bool, limits: tuple) -> None:
+def _integrate(model: _Model, track: _Track, points: list[float], failed: bool, stop_feed: bool,
+               limits: tuple[TemperatureLimit, ...]) -> None:
     inp = model.inp
     for a, b in zip(points[:-1], points[1:]):
         F = 0.0 if failed and stop_feed else model.feed_rate(0.5 * (a + b))
@@ -430,7 +438,8 @@ def _concat(first: _Track, second: _Track) -> _Track:
                   second.status, second.message)
 
 
-def _worst_failure(model: _Model, failure: CoolingFailure, limits: tuple):
+def _worst_failure(model: _Model, failure: CoolingFailure, limits: tuple[TemperatureLimit, ...]
+                   ) -> tuple[_Track, float | None, tuple[FailureTrial, ...]]:
     """Failure time in the mode's window that gives the highest temperature after failure."""
     nominal = _run(model, 0.0, model.initial_state, model.inp.horizon, False, False, limits)
     if nominal.status == 2 or len(nominal.ts) < 2:
@@ -438,7 +447,7 @@ def _worst_failure(model: _Model, failure: CoolingFailure, limits: tuple):
     low, high = model.mode.failure_window(model)
     high = min(high, nominal.ts[-1])
     low = min(low, high)
-    runs: dict = {}
+    runs: dict[float, tuple[float, _Track, _Track]] = {}
 
     def peak(t_fail: float) -> float:
         if t_fail not in runs:
@@ -472,15 +481,17 @@ def _worst_failure(model: _Model, failure: CoolingFailure, limits: tuple):
 
 # ----------------------------------------------------------------------------- results
 
-def _outputs(model: _Model, Y: np.ndarray, F: np.ndarray, cooling: np.ndarray, fed: np.ndarray) -> dict:
+def _outputs(model: _Model, Y: np.ndarray, F: np.ndarray, cooling: np.ndarray, fed: np.ndarray) -> dict[str, np.ndarray]:
     dy, a = model.terms(Y, F, cooling, outputs=True)
+    assert a is not None  # asked for
     nL = Y[model.limiting_index]
     a["conversion"] = model.mode.conversion(model, nL, a["mass"], fed)
     a["accumulation"] = model.mode.accumulation(model, nL, a["mass"])
     return a
 
 
-def _result(model: _Model, track: _Track, t_fail, search, warnings: Warnings) -> SimulationResult:
+def _result(model: _Model, track: _Track, t_fail: float | None, search: tuple[FailureTrial, ...],
+            warnings: Warnings) -> SimulationResult:
     inp = model.inp
     ts = np.array(track.ts)
     Y = np.array(track.ys).T
@@ -587,7 +598,8 @@ def simulate(inp: SimulationInput) -> SimulationResult:
     warnings = Warnings()
     model = _Model(inp, warnings)
     model.deadline = inp.budget.deadline.within(inp.budget.wall_time)
-    failure, search, t_fail = inp.failure, (), None
+    failure, t_fail = inp.failure, None
+    search: tuple[FailureTrial, ...] = ()
     if failure is None:
         track = _run(model, 0.0, model.initial_state, inp.horizon, False, False, inp.limits)
     elif failure.time is not None:

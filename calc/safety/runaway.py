@@ -143,7 +143,7 @@ def temperature_of_no_return_Townsend_1981(onset_power: float, onset_temperature
     low, high = 100.0, min(3000.0, 0.5 * activation_energy / GAS_CONSTANT)
     if not (residual(low) < 0 < residual(high)):
         raise CalculationError("the temperature of no return lies outside 100 K to 3000 K")
-    return brentq(residual, low, high, xtol=1e-9, rtol=1e-14)
+    return float(brentq(residual, low, high, xtol=1e-9, rtol=1e-14))
 
 
 REGISTRY: dict[str, Correlation] = {c.name: c for c in [

@@ -47,7 +47,7 @@ class CSTRInput:
     coolant_temperature: float  # K
     order: float = 1.0
     shaft_power: float = 0.0  # W
-    temperature_range: tuple | None = None  # (low, high) K; default: every possible steady state
+    temperature_range: tuple[float, float] | None = None  # (low, high) K; default: every possible steady state
     grid_points: int = 4001
     endothermic: bool = False  # the request declares a heat-absorbing reaction (reaction_enthalpy > 0 allowed)
 
@@ -61,7 +61,7 @@ class SteadyState:
     generation_slope: float  # W/K, dQ_g/dT
     removal_slope: float  # W/K, dQ_r/dT
     slope_stable: bool  # Van Heerden: dQ_r/dT > dQ_g/dT
-    eigenvalues: tuple  # of the Jacobian of (c, T), 1/s
+    eigenvalues: tuple[complex, ...]  # of the Jacobian of (c, T), 1/s
     stable: bool  # every eigenvalue has a negative real part
     classification: str
 
@@ -84,7 +84,8 @@ def thinned(values: np.ndarray, points: int = CURVE_POINTS) -> np.ndarray:
     values = np.asarray(values, dtype=float)
     if values.size <= points:
         return values
-    return values[np.linspace(0, values.size - 1, points).round().astype(int)]
+    picked: np.ndarray = values[np.linspace(0, values.size - 1, points).round().astype(int)]
+    return picked
 
 
 @dataclass(frozen=True)
@@ -98,7 +99,7 @@ class HeatCurves:
 
 @dataclass(frozen=True)
 class SteadyStatesResult:
-    states: tuple  # SteadyState, by increasing temperature
+    states: tuple[SteadyState, ...]  # by increasing temperature
     temperature: np.ndarray  # K, the scanned grid
     heat_generation: np.ndarray  # W
     heat_removal: np.ndarray  # W
@@ -110,7 +111,7 @@ class SteadyStatesResult:
         return HeatCurves(thinned(self.temperature), thinned(self.heat_generation), thinned(self.heat_removal))
 
 
-def outlet_concentration(feed_concentration: float, tau_k, order: float):
+def outlet_concentration(feed_concentration: float, tau_k: np.ndarray, order: float) -> np.ndarray:
     r"""Outlet concentration of a CSTR with power-law kinetics, from the steady mole balance.
 
     .. math:: c_{A0} - c = \tau k c^n
@@ -163,7 +164,7 @@ def _stability_Van_Heerden_1953(generation_slope: float, removal_slope: float) -
     return removal_slope > generation_slope
 
 
-def _stability_Aris_Amundson_1958(jacobian: np.ndarray) -> tuple:
+def _stability_Aris_Amundson_1958(jacobian: np.ndarray) -> tuple[tuple[complex, ...], bool]:
     """Linear stability, Aris & Amundson, Chem. Eng. Sci. 7, 121 (1958): eigenvalues of the Jacobian."""
     eig = np.linalg.eigvals(jacobian)
     return tuple(complex(e) for e in eig), bool(np.all(eig.real < 0))
@@ -200,19 +201,21 @@ class _CSTR:
         self.mcp = inp.density * inp.flow * inp.heat_capacity  # W/K
         self.E_R = inp.activation_energy / GAS_CONSTANT
 
-    def k(self, T):
+    def k(self, T: float | np.ndarray) -> np.ndarray:
         exponent = np.minimum(-self.E_R * (1.0 / np.asarray(T, float) - 1.0 / self.inp.reference_temperature), 600.0)
         return self.inp.rate_constant * np.exp(exponent)
 
-    def concentration(self, T):
+    def concentration(self, T: float | np.ndarray) -> np.ndarray:
         return outlet_concentration(self.inp.feed_concentration, self.tau * self.k(T), self.inp.order)
 
-    def generation(self, T):
-        return -self.inp.reaction_enthalpy * self.inp.flow * (self.inp.feed_concentration - self.concentration(T))
+    def generation(self, T: float | np.ndarray) -> np.ndarray:
+        q_g: np.ndarray = -self.inp.reaction_enthalpy * self.inp.flow * (self.inp.feed_concentration - self.concentration(T))
+        return q_g
 
-    def removal(self, T):
+    def removal(self, T: float | np.ndarray) -> float | np.ndarray:
         i = self.inp
-        return self.mcp * (T - i.feed_temperature) + i.ua * (T - i.coolant_temperature) - i.shaft_power
+        q_r = self.mcp * (T - i.feed_temperature) + i.ua * (T - i.coolant_temperature) - i.shaft_power
+        return q_r
 
     def state(self, T: float) -> SteadyState:
         i, n = self.inp, self.inp.order
@@ -270,7 +273,7 @@ def cstr_steady_states(inp: CSTRInput) -> SteadyStatesResult:
         if low <= 0:
             raise InputError("shaft_power", "no steady state at a positive absolute temperature")
     T = np.linspace(low, high, inp.grid_points)
-    q_g, q_r = model.generation(T), model.removal(T)
+    q_g, q_r = model.generation(T), np.asarray(model.removal(T))  # arrays over the grid
     f = q_g - q_r
     roots = [float(t) for t, v in zip(T, f) if v == 0.0]
     for i in np.nonzero(f[:-1] * f[1:] < 0)[0]:

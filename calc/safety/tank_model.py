@@ -12,7 +12,7 @@ from __future__ import annotations
 import math
 import numbers
 from dataclasses import dataclass, field
-from typing import Callable, NamedTuple
+from typing import TYPE_CHECKING, Callable, NamedTuple, Sequence
 
 import numpy as np
 from scipy.integrate import BDF, LSODA, Radau
@@ -21,6 +21,9 @@ from calc.cautions import DYNAMICS
 from calc.deadline import NEVER, Deadline
 from calc.validity import (CalcWarning, InputError, Warnings, require_finite, require_non_negative,
                            require_positive, require_sign)
+
+if TYPE_CHECKING:  # the model the mode functions take is built from these inputs
+    from calc.safety.dynamics import _Model
 
 
 #: Stiff-capable solvers offered; explicit methods are deliberately absent (runaway kinetics are stiff).
@@ -40,8 +43,8 @@ class Species:
 class Reaction:
     """Power-law kinetics r = k(T) prod c_i^order_i, mol/(m3 s), with k(T) Arrhenius about T_ref."""
 
-    stoichiometry: dict  # species name -> coefficient, negative when consumed
-    orders: dict  # species name -> order, >= 0
+    stoichiometry: dict[str, float]  # species name -> coefficient, negative when consumed
+    orders: dict[str, float]  # species name -> order, >= 0
     rate_constant: float  # k at reference_temperature, (mol/m3)^(1 - sum of orders)/s
     reference_temperature: float  # K
     activation_energy: float  # J/mol
@@ -55,7 +58,7 @@ class InitialCharge:
 
     mass: float  # kg
     temperature: float  # K
-    composition: dict  # species name -> mol/kg of charge
+    composition: dict[str, float]  # species name -> mol/kg of charge
     density: float  # kg/m3, constant
     balance_heat_capacity: float  # J/(kg K) of the inert balance
 
@@ -70,11 +73,11 @@ class FeedStep:
 @dataclass(frozen=True)
 class Feed:
     temperature: float  # K
-    composition: dict  # species name -> mol/kg of feed; the rest is inert balance
-    steps: tuple  # FeedStep, ordered, not overlapping
+    composition: dict[str, float]  # species name -> mol/kg of feed; the rest is inert balance
+    steps: tuple[FeedStep, ...]  # ordered, not overlapping
 
     @classmethod
-    def constant(cls, temperature: float, composition: dict, mass_flow: float,
+    def constant(cls, temperature: float, composition: dict[str, float], mass_flow: float,
                  start: float = 0.0, end: float = math.inf) -> "Feed":
         return cls(temperature, composition, (FeedStep(start, end, mass_flow),))
 
@@ -136,8 +139,8 @@ class Budget:
 @dataclass(frozen=True)
 class SimulationInput:
     mode: str  # "batch", "semi_batch", "continuous"
-    species: tuple
-    reactions: tuple
+    species: tuple[Species, ...]
+    reactions: tuple[Reaction, ...]
     charge: InitialCharge
     horizon: float  # s
     feed: Feed | None = None
@@ -148,7 +151,7 @@ class SimulationInput:
     enthalpy_reference_temperature: float = 298.15  # K
     limiting_reagent: str | None = None
     failure: CoolingFailure | None = None
-    limits: tuple = ()
+    limits: tuple[TemperatureLimit, ...] = ()
     method: str = "BDF"
     rtol: float = 1e-7
     budget: Budget = Budget()
@@ -194,7 +197,7 @@ class Summary:
     time_of_maximum_accumulation: float  # s
     peak_heat_release_rate: float  # W
     peak_jacket_duty: float  # W
-    limits_crossed: tuple  # LimitCrossing
+    limits_crossed: tuple[LimitCrossing, ...]
     closure_error: float  # |dH - sum of terms| / scale
     failure_time: float | None  # s
 
@@ -211,7 +214,7 @@ class SimulationResult:
     success: bool
     status: int
     message: str
-    species: tuple  # names, the row order of moles and concentrations
+    species: tuple[str, ...]  # names, the row order of moles and concentrations
     series: Series
     summary: Summary
     failure_search: tuple[FailureTrial, ...] = ()  # every failure time evaluated, by time
@@ -223,39 +226,42 @@ class SimulationResult:
 
 # ----------------------------------------------------------------------------- modes
 
-def _supply_batch(m) -> float:
+def _supply_batch(m: _Model) -> float:
     return m.limiting_initial_moles
 
 
-def _supply_semi_batch(m) -> float:
+def _supply_semi_batch(m: _Model) -> float:
+    assert m.inp.feed is not None  # a semi-batch input has its feed (validated)
     return m.limiting_initial_moles + m.limiting_feed_moles_per_kg * sum(s.mass_flow * (s.end - s.start) for s in m.inp.feed.steps)
 
 
-def _supply_continuous(m) -> float:
+def _supply_continuous(m: _Model) -> float:
     return m.limiting_feed_moles_per_kg * m.inp.charge.mass  # a vessel-full of feed
 
 
-def _conversion_closed(m, nL, mass, fed):
-    return (m.limiting_initial_moles + m.limiting_feed_moles_per_kg * fed - nL) / m.limiting_supply
+def _conversion_closed(m: _Model, nL: np.ndarray, mass: np.ndarray, fed: np.ndarray) -> np.ndarray:
+    conversion: np.ndarray = (m.limiting_initial_moles + m.limiting_feed_moles_per_kg * fed - nL) / m.limiting_supply
+    return conversion
 
 
-def _conversion_continuous(m, nL, mass, fed):
+def _conversion_continuous(m: _Model, nL: np.ndarray, mass: np.ndarray, fed: np.ndarray) -> np.ndarray:
     return 1.0 - nL / (mass * m.limiting_feed_moles_per_kg)
 
 
-def _accumulation_closed(m, nL, mass):
+def _accumulation_closed(m: _Model, nL: np.ndarray, mass: np.ndarray) -> np.ndarray:
     return nL / m.limiting_supply
 
 
-def _accumulation_continuous(m, nL, mass):
+def _accumulation_continuous(m: _Model, nL: np.ndarray, mass: np.ndarray) -> np.ndarray:
     return nL / (mass * m.limiting_feed_moles_per_kg)
 
 
-def _window_dosing(m) -> tuple:
+def _window_dosing(m: _Model) -> tuple[float, float]:
+    assert m.inp.feed is not None  # a semi-batch input has its feed (validated)
     return m.inp.feed.steps[0].start, min(m.inp.feed.steps[-1].end, m.inp.horizon)
 
 
-def _window_horizon(m) -> tuple:
+def _window_horizon(m: _Model) -> tuple[float, float]:
     return 0.0, m.inp.horizon
 
 
@@ -269,10 +275,10 @@ class _Mode:
 
     has_feed: bool
     has_outflow: bool
-    supply: Callable
-    conversion: Callable
-    accumulation: Callable
-    failure_window: Callable
+    supply: Callable[[_Model], float]
+    conversion: Callable[[_Model, np.ndarray, np.ndarray, np.ndarray], np.ndarray]
+    accumulation: Callable[[_Model, np.ndarray, np.ndarray], np.ndarray]
+    failure_window: Callable[[_Model], tuple[float, float]]
 
 
 MODES = {
@@ -287,7 +293,7 @@ JACKET_MODELS = ("single_pass", "holdup")
 
 # ----------------------------------------------------------------------------- validation
 
-def default_limiting_reagent(inp: SimulationInput, names) -> str:
+def default_limiting_reagent(inp: SimulationInput, names: Sequence[str]) -> str:
     """The first reactant of the first reaction that is fed (semi-batch), else that is charged."""
     source = inp.feed.composition if inp.mode == "semi_batch" and inp.feed is not None else inp.charge.composition
     for name, value in inp.reactions[0].stoichiometry.items():
@@ -298,7 +304,7 @@ def default_limiting_reagent(inp: SimulationInput, names) -> str:
 
 
 
-def _composition(field_name: str, composition: dict, names: set, molar_mass: dict) -> None:
+def _composition(field_name: str, composition: dict[str, float], names: set[str], molar_mass: dict[str, float]) -> None:
     for name, value in composition.items():
         if name not in names:
             raise InputError(f"{field_name}.{name}", f"unknown species {name!r}")
@@ -343,7 +349,7 @@ def validate(inp: SimulationInput, warnings: Warnings) -> None:
         raise InputError("limiting_reagent", f"unknown species {inp.limiting_reagent!r}")
 
 
-def _validate_species(species: tuple) -> dict[str, float]:
+def _validate_species(species: tuple[Species, ...]) -> dict[str, float]:
     """Names unique, molar masses and heat capacities positive; returns name -> molar mass, kg/mol."""
     if not species:
         raise InputError("species", "at least one species is needed")

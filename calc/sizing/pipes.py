@@ -22,7 +22,7 @@ class PipeSize:
 
     nps: str
     outer_diameter: float
-    walls: dict  # schedule -> wall thickness, m
+    walls: dict[str, float]  # schedule -> wall thickness, m
 
     def wall(self, schedule: str) -> float:
         return self.walls[schedule]

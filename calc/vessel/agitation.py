@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Callable
 
 from scipy.optimize import brentq
 
@@ -303,7 +304,7 @@ class AgitationResult:
     froude: float
     regime: str
     warnings: Warnings = field(default_factory=Warnings)
-    sources: dict = field(default_factory=dict)
+    sources: dict[str, str] = field(default_factory=dict)
 
 
 def agitation(agitator: Agitator, liquid_props: LiquidProperties, liquid_volume: float,
@@ -392,12 +393,12 @@ def _constant_power_per_volume(agitator: Agitator, factor: float, props: LiquidP
         return math.log(_specific_power_group(agitator, props, N, D2) / target)
 
     try:
-        return brentq(residual, guess * 1e-3, guess * 1e3, xtol=1e-14, rtol=1e-12)
+        return float(brentq(residual, guess * 1e-3, guess * 1e3, xtol=1e-14, rtol=1e-12))
     except ValueError as exc:  # pragma: no cover - the bracket spans a factor 1e6 of a monotonic function
         raise CalculationError(f"no speed gives the reference power per volume: {exc}") from None
 
 
-SCALE_UP_RULES = {
+SCALE_UP_RULES: dict[str, Callable[[Agitator, float, LiquidProperties], float]] = {
     "constant_power_per_volume": _constant_power_per_volume,
     "constant_tip_speed": lambda agitator, factor, props: agitator.speed / factor,
     "constant_speed": lambda agitator, factor, props: agitator.speed,

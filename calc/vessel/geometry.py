@@ -13,6 +13,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, replace
 from functools import lru_cache
+from typing import Sequence
 
 from scipy.optimize import brentq
 
@@ -156,7 +157,7 @@ def level_at_volume(shape: VesselShape, volume: float) -> float:
     full = head.full_volume
     if volume >= full:
         return head.depth + (volume - full) / _cross_section(shape)
-    return brentq(lambda z: head.volume(z) - volume, 0.0, head.depth, xtol=1e-14 * head.depth, rtol=1e-13)
+    return float(brentq(lambda z: head.volume(z) - volume, 0.0, head.depth, xtol=1e-14 * head.depth, rtol=1e-13))
 
 
 def wetted_area(shape: VesselShape, level: float) -> float:
@@ -269,7 +270,7 @@ def coil_submerged(shape: VesselShape, coil: HelicalCoil, level: float) -> tuple
     return per_height * (hi_v - lo_v), per_height * (hi_s - lo_s)
 
 
-def _coils_submerged(shape: VesselShape, coils, level: float) -> tuple[float, float]:
+def _coils_submerged(shape: VesselShape, coils: Sequence[HelicalCoil], level: float) -> tuple[float, float]:
     pairs = [coil_submerged(shape, c, level) for c in coils]
     return sum(p[0] for p in pairs), sum(p[1] for p in pairs)
 
@@ -355,7 +356,7 @@ def _level_with_coils(shape: VesselShape, coils: tuple[HelicalCoil, ...], volume
         return low
     if excess(high) <= 0.0:
         return high
-    return brentq(excess, low, high, xtol=1e-14 * high, rtol=1e-13)
+    return float(brentq(excess, low, high, xtol=1e-14 * high, rtol=1e-13))
 
 
 def scale_shape(shape: VesselShape, factor: float) -> VesselShape:

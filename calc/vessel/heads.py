@@ -462,7 +462,7 @@ def _flat(D: float, cone_angle: float | None) -> HeadProfile:
                        lambda z: 0.5 * D)
 
 
-def _torispherical(f: float, k: float):
+def _torispherical(f: float, k: float) -> Callable[[float, float | None], HeadProfile]:
     def build(D: float, cone_angle: float | None) -> HeadProfile:
         R, r, rho, alpha, cos_a, crown, depth = _torispherical_parts(D, f, k)
 
