@@ -2,7 +2,8 @@
 from flask import Blueprint, current_app
 
 from calc.checks.operating_window import operating_window as window_calculation
-from schemas.window import OperatingWindowRequestSchema, OperatingWindowResultSchema, operating_window_dict
+from calc.checks.operating_window import OperatingWindow
+from schemas.window import OperatingWindowRequestSchema, OperatingWindowResultSchema
 
 from . import charts
 from .errors import ProblemError
@@ -13,17 +14,15 @@ bp = Blueprint("window", __name__, url_prefix="/v1")
 _request, _result = OperatingWindowRequestSchema(), OperatingWindowResultSchema()
 
 
-def _window(args: dict) -> dict:
+def _window(args: dict) -> OperatingWindow:
     limit = current_app.config["MAX_WINDOW_POINTS"]
     count = len(args["axes"][0].values) * len(args["axes"][1].values)
     if count > limit:
         raise ProblemError(413, f"at most {limit} grid points per operating window, asked for {count}",
                            [{"field": "axes", "message": f"points of the two axes multiply to {count}; "
                                                         f"at most {limit}"}])
-    result = window_calculation(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
-                                args["heat_release"], tuple(args["axes"]), args["safety_factor"],
-                                deadline=deadline())
-    return operating_window_dict(result)
+    return window_calculation(args["vessel"], args["charge"], args["coolant"], args["process_temperature"],
+                              args["heat_release"], tuple(args["axes"]), args["safety_factor"], deadline=deadline())
 
 
 def window_chart(payload: dict, fmt: str, units: dict) -> bytes:

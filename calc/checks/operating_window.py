@@ -50,6 +50,11 @@ class Axis:
     values: tuple[float, ...]
     flow_kind: str = "mass"  # coolant.flow only: "mass" (kg/s) or "volume" (m3/s)
 
+    @property
+    def points(self) -> int:
+        """How many values the axis takes."""
+        return len(self.values)
+
 
 @dataclass(frozen=True)
 class WindowPoint:
