@@ -15,7 +15,8 @@ import math
 from typing import Callable, NamedTuple
 
 from calc import arrays
-from calc.films.jacket_side import VDI_HEAT_ATLAS, FilmFormula, CoolantFilm, flow_warnings
+from calc.films.jacket_side import (VDI_HEAT_ATLAS, CoolantFilm, FilmFormula, channel_reynolds, flow_warnings,
+                                    require_coolant_flow, wall_corrected)
 from calc.properties import LiquidProperties
 from calc.hydraulics.friction import coil_critical_reynolds_Schmidt_1967
 from calc.validity import Correlation, InputError, Warnings, require_positive
@@ -256,12 +257,9 @@ def service_film_coil(tube_inner_diameter: float, helix_diameter: float, coolant
     >>> r.regime, round(r.reynolds)
     ('turbulent', 50848)
     """
-    require_positive("coolant.flow", mass_flow)
-    require_positive("coolant", mu_wall)  # the coolant's viscosity at the wall
+    require_coolant_flow(mass_flow, mu_wall)
     formula = coil_film_formula(tube_inner_diameter, helix_diameter, pitch, parallel_tubes, correlation)
-    warnings = Warnings()
-    flow = formula.function(coolant_props, mass_flow * formula.flow_share, mu_wall, None, **formula.fixed)
-    return formula.describe(coolant_props, flow, warnings)
+    return formula.film(coolant_props, mass_flow, mu_wall, None, Warnings())
 
 
 class _CoilFlow(NamedTuple):
@@ -279,17 +277,16 @@ def coil_flow(props: LiquidProperties, mass_flow: float, mu_wall: float, rho_wal
     Re_crit, Gnielinski's interpolation to 2.2e4, the turbulent ``correlation`` above; times (mu/mu_w)^0.14.
     ``d`` is the (equivalent) diameter, ``area`` the flow area (default the tube's pi d^2/4)."""
     area = math.pi / 4 * d * d if area is None else area
-    velocity = mass_flow / (props.density * area)
-    Re = props.density * velocity * d / props.viscosity
+    velocity, Re = channel_reynolds(props, mass_flow, area, d)
     Pr = props.prandtl
     r = d / D_c
     Re_crit = coil_critical_reynolds_Schmidt_1967(r)
     turbulent = CORRELATIONS[correlation].function
-    Nu = arrays.where(Re < Re_crit, Nu_coil_laminar_Schmidt_1967(Re, Pr, r),
-                      arrays.where(Re < COIL_TURBULENT_REYNOLDS, Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent),
-                                   turbulent(Re, Pr, r)))
-    Nu = Nu * (props.viscosity / mu_wall) ** 0.14
-    return _CoilFlow(Nu * props.thermal_conductivity / d, Re, velocity, Nu, Re_crit)
+    h, Nu = wall_corrected(arrays.where(Re < Re_crit, Nu_coil_laminar_Schmidt_1967(Re, Pr, r),
+                                        arrays.where(Re < COIL_TURBULENT_REYNOLDS,
+                                                     Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent),
+                                                     turbulent(Re, Pr, r))), props, mu_wall, d)
+    return _CoilFlow(h, Re, velocity, Nu, Re_crit)
 
 
 def _describer(d: float, D_c: float, correlation: str) -> Callable[[LiquidProperties, _CoilFlow, Warnings],

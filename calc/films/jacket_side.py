@@ -499,6 +499,26 @@ def _positive(jacket_field: str, value: float | None, what: str) -> float:
     return require_positive(f"vessel.jacket.{jacket_field}", value)
 
 
+def channel_reynolds(props: LiquidProperties, mass_flow: float, area: float, d: float) -> tuple[float, float]:
+    """Mean velocity [m/s] of ``mass_flow`` [kg/s] through a flow ``area`` [m2], and Re on ``d`` [m] (floats or
+    arrays): the state of a coolant channel (coil tube, half pipe, spiral baffle)."""
+    velocity = mass_flow / (props.density * area)
+    return velocity, props.density * velocity * d / props.viscosity
+
+
+def wall_corrected(Nu: float, props: LiquidProperties, mu_wall: float, d: float) -> tuple[float, float]:
+    """(h [W/(m2 K)], Nu) of a channel's Nusselt number on ``d`` [m] times the viscosity correction
+    (mu/mu_w)^0.14 (Sieder & Tate 1936)."""
+    Nu = Nu * (props.viscosity / mu_wall) ** 0.14
+    return Nu * props.thermal_conductivity / d, Nu
+
+
+def require_coolant_flow(mass_flow: float, mu_wall: float) -> None:
+    """The guards every coolant film applies first: a positive flow and wall viscosity."""
+    require_positive("coolant.flow", mass_flow)
+    require_positive("coolant", mu_wall)  # the coolant's viscosity at the wall
+
+
 def flow_warnings(warnings: Warnings, Re: float, velocity: float, laminar_below: float, name: str) -> str:
     if velocity < LOW_VELOCITY:
         warnings.add(CalcWarning("low_velocity",
@@ -531,6 +551,14 @@ class FilmFormula:
         """Film coefficient for a stream mass flow (floats or arrays), [W/(m2 K)]."""
         h: float = self.function(props, stream_mass_flow * self.flow_share, mu_wall, rho_wall, **self.fixed)[0]
         return h
+
+    def film(self, props: LiquidProperties, stream_mass_flow: float, mu_wall: float, rho_wall: float | None,
+             warnings: Warnings, **state: Any) -> CoolantFilm:
+        """The film of one state described, with its validity checks added to ``warnings`` (which the formula
+        also gets); ``state`` passes the buoyancy inputs (``beta``, ``dT``) of an annular jacket."""
+        flow = self.function(props, stream_mass_flow * self.flow_share, mu_wall, rho_wall, warnings=warnings,
+                             **state, **self.fixed)
+        return self.describe(props, flow, warnings)
 
 
 def annular_flow(props: LiquidProperties, mass_flow: float, mu_wall: float, rho_wall: float | None,
@@ -566,8 +594,7 @@ def channel_flow(props: LiquidProperties, mass_flow: float, mu_wall: float, rho_
     transitional flow never transfers less than laminar flow would (common practice, no source), so the
     larger of the two stands and h stays monotonic in the flow across the regime boundary.
     """
-    velocity = mass_flow / (props.density * area)
-    Re = props.density * velocity * d_e / props.viscosity
+    velocity, Re = channel_reynolds(props, mass_flow, area, d_e)
     Pr = props.prandtl
     laminar = Nu_laminar_Sieder_Tate_1936(Re, Pr, d_e / length)
     transition = Nu_transition_Gnielinski_2013(Re, Pr, d_e / length, d_e / d_curve)
@@ -575,9 +602,9 @@ def channel_flow(props: LiquidProperties, mass_flow: float, mu_wall: float, rho_
     entry_wins = laminar > transition
     key = cast(int, arrays.where(Re < LAMINAR_LIMIT, 0, arrays.where(Re < TURBULENT_LIMIT,
                                                                      arrays.where(entry_wins, 0, 1), 2)))
-    Nu = arrays.where(key == 0, laminar, arrays.where(key == 1, transition, turbulent))
-    Nu = Nu * (props.viscosity / mu_wall) ** 0.14
-    return _ChannelFlow(Nu * props.thermal_conductivity / d_e, Re, velocity, Nu, key)
+    h, Nu = wall_corrected(arrays.where(key == 0, laminar, arrays.where(key == 1, transition, turbulent)), props,
+                           mu_wall, d_e)
+    return _ChannelFlow(h, Re, velocity, Nu, key)
 
 
 def _describe_channel(props: LiquidProperties, flow: _ChannelFlow, warnings: Warnings, d_e: float) -> CoolantFilm:
@@ -732,9 +759,7 @@ def service_film_jacket(jacket: JacketSpec, coolant_props: LiquidProperties, mas
     >>> round(r.h), r.correlation
     (2922, 'Lehrer (1970)')
     """
-    require_positive("coolant.flow", mass_flow)
-    require_positive("coolant", mu_wall)  # the coolant's viscosity at the wall
+    require_coolant_flow(mass_flow, mu_wall)
     formula, warnings = jacket_film_formula(jacket, vessel_outer_diameter, jacket_height)
-    flow = formula.function(coolant_props, mass_flow * formula.flow_share, mu_wall, rho_wall,
-                            beta=expansion_coefficient, dT=temperature_rise, warnings=warnings, **formula.fixed)
-    return formula.describe(coolant_props, flow, warnings)
+    return formula.film(coolant_props, mass_flow, mu_wall, rho_wall, warnings, beta=expansion_coefficient,
+                        dT=temperature_rise)

@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Callable
 
 from scipy.special import wrightomega
 
@@ -214,19 +215,27 @@ class Friction:
     correlation: str  # registry key
 
 
+def _over_regimes(Re: float, low: float, high: float, laminar: float, turbulent: Callable[[], float],
+                  laminar_key: str, turbulent_key: str) -> Friction:
+    """Laminar up to ``low``, turbulent from ``high``, the linear blend in Re between (no jump at either end);
+    the turbulent factor is only evaluated above ``low``."""
+    if Re <= low:
+        return Friction(laminar, "laminar", laminar_key)
+    f_turbulent = turbulent()
+    if Re >= high:
+        return Friction(f_turbulent, "turbulent", turbulent_key)
+    return Friction(_blend(Re, low, high, laminar, f_turbulent), "transitional", turbulent_key)
+
+
 def friction_straight(Re: float, relative_roughness: float = 0.0) -> Friction:
     """Darcy friction factor of a straight channel over every regime (no jump at the switch points).
 
     >>> friction_straight(1000.0).factor, friction_straight(1e5).regime
     (0.064, 'turbulent')
     """
-    if Re <= LAMINAR_LIMIT:
-        return Friction(friction_factor_laminar(Re), "laminar", "hagen_poiseuille")
-    turbulent = friction_factor_Colebrook_1939(Re, relative_roughness)
-    if Re >= TURBULENT_LIMIT:
-        return Friction(turbulent, "turbulent", "colebrook_1939")
-    return Friction(_blend(Re, LAMINAR_LIMIT, TURBULENT_LIMIT, friction_factor_laminar(Re), turbulent),
-                    "transitional", "colebrook_1939")
+    return _over_regimes(Re, LAMINAR_LIMIT, TURBULENT_LIMIT, friction_factor_laminar(Re),
+                         lambda: friction_factor_Colebrook_1939(Re, relative_roughness), "hagen_poiseuille",
+                         "colebrook_1939")
 
 
 def friction_coiled(Re: float, r: float, relative_roughness: float = 0.0) -> Friction:
@@ -238,14 +247,9 @@ def friction_coiled(Re: float, r: float, relative_roughness: float = 0.0) -> Fri
     ('laminar', 'turbulent')
     """
     low = coil_critical_reynolds_Schmidt_1967(r)
-    laminar = friction_factor_coil_laminar_Schmidt_1967(Re, r)
-    if Re <= low:
-        return Friction(laminar, "laminar", "schmidt_1967_laminar")
-    turbulent = friction_factor_coil_turbulent_Schmidt_1967(Re, r, relative_roughness)
-    high = TRANSITION_RATIO * low
-    if Re >= high:
-        return Friction(turbulent, "turbulent", "schmidt_1967_turbulent")
-    return Friction(_blend(Re, low, high, laminar, turbulent), "transitional", "schmidt_1967_turbulent")
+    return _over_regimes(Re, low, TRANSITION_RATIO * low, friction_factor_coil_laminar_Schmidt_1967(Re, r),
+                         lambda: friction_factor_coil_turbulent_Schmidt_1967(Re, r, relative_roughness),
+                         "schmidt_1967_laminar", "schmidt_1967_turbulent")
 
 
 CORRELATIONS: dict[str, Correlation] = {

@@ -146,6 +146,11 @@ class _TorisphericalParts(NamedTuple):
     depth: float  # depth of the whole head
 
 
+def _within(z: float, depth: float) -> float:
+    """A liquid height ``z`` [m] limited to the head, [0, ``depth``]: below it nothing, above it the full head."""
+    return min(max(z, 0.0), depth)
+
+
 def _torispherical_parts(D: float, f: float, k: float) -> _TorisphericalParts:
     R, r = f * D, k * D
     rho = 0.5 * D - r
@@ -202,7 +207,7 @@ def volume_torispherical_head(D: float, f: float, k: float, z: float) -> float:
     Jones, D., Calculating Tank Volume, 2015 (the same volumes in another closed form).
     """
     R, r, rho, alpha, cos_a, crown, depth = _torispherical_parts(D, f, k)
-    z = min(max(z, 0.0), depth)
+    z = _within(z, depth)
     if z <= crown:
         return volume_spherical_cap(R, z)
 
@@ -256,7 +261,7 @@ def area_torispherical_head(D: float, f: float, k: float, z: float) -> float:
     Jones, D., Calculating Tank Wetted Area, Chemical Processing, April 2017.
     """
     R, r, rho, alpha, cos_a, crown, depth = _torispherical_parts(D, f, k)
-    z = min(max(z, 0.0), depth)
+    z = _within(z, depth)
     if z <= crown:
         return area_spherical_cap(R, z)
     knuckle = (z - crown) + rho * (0.5 * math.pi - alpha - math.asin(min((depth - z) / r, 1.0)))
@@ -296,7 +301,7 @@ def volume_ellipsoidal_head(D: float, depth: float, z: float) -> float:
     Bronshtein et al., Handbook of Mathematics, 5th ed., Springer, 2007; Jones, D., Calculating Tank
     Volume, 2015.
     """
-    z = min(max(z, 0.0), depth)
+    z = _within(z, depth)
     R = 0.5 * D
     return math.pi * R * R / (depth * depth) * z * z * (depth - z / 3.0)
 
@@ -339,7 +344,7 @@ def area_ellipsoidal_head(D: float, depth: float, z: float) -> float:
     Bronshtein et al., Handbook of Mathematics, 5th ed., Springer, 2007; Jones, D., Calculating Tank
     Wetted Area, Chemical Processing, April 2017.
     """
-    z = min(max(z, 0.0), depth)
+    z = _within(z, depth)
     R, b = 0.5 * D, depth
     b4, c = b ** 4, math.sqrt(R * R - b * b)
 
@@ -383,7 +388,7 @@ def volume_conical_head(D: float, half_angle: float, z: float) -> float:
     Bronshtein et al., Handbook of Mathematics, 5th ed., Springer, 2007.
     """
     t = math.tan(half_angle)
-    z = min(max(z, 0.0), 0.5 * D / t)
+    z = _within(z, 0.5 * D / t)
     return math.pi / 3.0 * z ** 3 * t * t
 
 
@@ -420,7 +425,7 @@ def area_conical_head(D: float, half_angle: float, z: float) -> float:
     Bronshtein et al., Handbook of Mathematics, 5th ed., Springer, 2007.
     """
     t = math.tan(half_angle)
-    z = min(max(z, 0.0), 0.5 * D / t)
+    z = _within(z, 0.5 * D / t)
     return math.pi * z * z * t / math.cos(half_angle)
 
 
@@ -467,7 +472,7 @@ def _torispherical(f: float, k: float) -> Callable[[float, float | None], HeadPr
         R, r, rho, alpha, cos_a, crown, depth = _torispherical_parts(D, f, k)
 
         def radius(z: float) -> float:
-            z = min(max(z, 0.0), depth)
+            z = _within(z, depth)
             if z <= crown:
                 return math.sqrt(max(z * (2.0 * R - z), 0.0))
             return rho + math.sqrt(max(r * r - (depth - z) ** 2, 0.0))
@@ -479,16 +484,14 @@ def _torispherical(f: float, k: float) -> Callable[[float, float | None], HeadPr
 def _ellipsoidal_2_1(D: float, cone_angle: float | None) -> HeadProfile:
     b, R = 0.25 * D, 0.5 * D
     return HeadProfile(b, partial(volume_ellipsoidal_head, D, b), partial(area_ellipsoidal_head, D, b),
-                       lambda z: R * math.sqrt(max(1.0 - ((b - min(max(z, 0.0), b)) / b) ** 2, 0.0)))
+                       lambda z: R * math.sqrt(max(1.0 - ((b - _within(z, b)) / b) ** 2, 0.0)))
 
 
 def _hemispherical(D: float, cone_angle: float | None) -> HeadProfile:
     R = 0.5 * D
-
-    def clip(z: float) -> float:
-        return min(max(z, 0.0), R)
-    return HeadProfile(R, lambda z: volume_spherical_cap(R, clip(z)), lambda z: area_spherical_cap(R, clip(z)),
-                       lambda z: math.sqrt(clip(z) * (2.0 * R - clip(z))))
+    return HeadProfile(R, lambda z: volume_spherical_cap(R, _within(z, R)),
+                       lambda z: area_spherical_cap(R, _within(z, R)),
+                       lambda z: math.sqrt(_within(z, R) * (2.0 * R - _within(z, R))))
 
 
 def _conical(D: float, cone_angle: float | None) -> HeadProfile:
@@ -496,7 +499,7 @@ def _conical(D: float, cone_angle: float | None) -> HeadProfile:
     beta = math.radians(cone_angle) / 2.0
     depth = 0.5 * D / math.tan(beta)
     return HeadProfile(depth, partial(volume_conical_head, D, beta), partial(area_conical_head, D, beta),
-                       lambda z: min(max(z, 0.0), depth) * math.tan(beta))
+                       lambda z: _within(z, depth) * math.tan(beta))
 
 
 _ASME = "ASME Boiler and Pressure Vessel Code, Section VIII, Division 1"
