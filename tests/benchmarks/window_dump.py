@@ -8,8 +8,6 @@ request. Not a test: the numbers are for the record (issue 10), nothing asserts 
 from __future__ import annotations
 
 import json
-import statistics
-import time
 from pathlib import Path
 
 from marshmallow import fields
@@ -18,6 +16,7 @@ from api import create_app
 from api.window import _request, _result
 from calc.checks.operating_window import operating_window
 from schemas import window
+from tests.benchmarks.margin_band import timed
 
 EXAMPLES = Path(__file__).resolve().parents[2] / "examples"
 
@@ -42,15 +41,6 @@ def _rows(result) -> dict:
             "boundary": [row(p) for p in result.boundary]}
 
 
-def median_seconds(call, repeat: int) -> float:
-    times = []
-    for _ in range(repeat):
-        start = time.perf_counter()
-        call()
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
-
-
 def main() -> None:
     body = json.loads((EXAMPLES / "operating_window_production.json").read_text())
     for axis in body["axes"]:
@@ -64,10 +54,10 @@ def main() -> None:
     rows, nested = _rows(result), SchemaPathResult(only=("points", "boundary"))
     fast_only = window.OperatingWindowResultSchema(only=("points", "boundary"))
     assert fast_only.dump(result) == nested.dump(rows)  # the same answer both ways
-    request = median_seconds(lambda: client.post("/v1/operating-window", json=body), 7)
-    fast = median_seconds(lambda: fast_only.dump(result), 15)
-    slow = median_seconds(lambda: nested.dump(rows), 15)
-    whole = median_seconds(lambda: _result.dump(result), 15)
+    request = timed(lambda: client.post("/v1/operating-window", json=body), 7)
+    fast = timed(lambda: fast_only.dump(result), 15)
+    slow = timed(lambda: nested.dump(rows), 15)
+    whole = timed(lambda: _result.dump(result), 15)
     print(f"50 x 50 window, {len(result.points)} points + {len(result.boundary)} boundary points")
     print(f"whole request (in-process): {request * 1e3:.0f} ms")
     print(f"result dump, PointList: {whole * 1e3:.1f} ms (points and boundary alone {fast * 1e3:.1f} ms)")
