@@ -39,7 +39,7 @@ from calc.network.vectorised import heat_transfer_many
 
 #: Cooling-check margins of members are capacity / load; these name the resistance a member varies.
 RESISTANCES = ("process_wall", "process_coil", "annular_jacket", "channel", "coil_tube",
-               "calibrated_process_constant", "calibrated_remaining_resistance")
+               "calibrated_process_constant", "calibrated_remaining_resistance", "calibrated_process_factor")
 
 
 @dataclass(frozen=True)
@@ -79,14 +79,25 @@ def published_members(result: HeatTransferResult, vessel) -> list[tuple[str, str
     jacket = result.stream("jacket") is not None
     coils = any(stream.name.startswith("coil") for stream in result.streams)
     calibration = base.calibration
-    if jacket and calibration is not None:
+    measured = None if calibration is None or calibration.measurement is None else calibration.measurement.surface
+    if measured is not None and calibration is not None and calibration.factor_interval is not None:
+        # a measured UA: the factor backed out at each end of the measurement's interval; the measured surface's
+        # published alternatives are replaced by it (each would reproduce the same measurement)
+        name = calibration.measurement.factor_field if calibration.measurement is not None else "process_factor"
+        members += [("calibrated_process_factor", f"factor={f:.4g}", base.with_factor(name, f))
+                    for f in calibration.factor_interval]
+        if measured == "jacket":
+            jacket = False
+        else:
+            coils = False
+    if jacket and calibration is not None and measured is None:
         if calibration.process_constant_interval is not None:
             members += [("calibrated_process_constant", f"a={a:.4g}", replace(base, process_constants=calibration.constants(a)))
                         for a in calibration.process_constant_interval if math.isfinite(a) and a > 0]
         if base.remaining_resistance is not None and calibration.remaining_resistance_interval is not None:
             members += [("calibrated_remaining_resistance", f"R={r:.4g}", replace(base, remaining_resistance=r))
                         for r in calibration.remaining_resistance_interval if r >= 0]
-    if jacket and calibration is None:
+    if jacket and (calibration is None or measured is not None):
         options = [key for key in process_side.wall_alternatives(vessel.agitator.impeller) if key != base.process_wall]
         if options:
             members += [("process_wall", key, replace(base, process_wall=key)) for key in options]
@@ -167,7 +178,10 @@ def margin_band(vessel, charge, coolant, process_temperature: float, result: Hea
 
     adequate = nominal_margin >= safety_factor
     holds = (low >= safety_factor) if adequate else (high < safety_factor)
-    what = "the fit's 95 % intervals" if basis == "calibration" else "the published alternatives"
+    calibration = vessel.correlations.calibration
+    what = ("the published alternatives" if basis != "calibration" else
+            "the measurement's 95 % interval" if calibration is not None and calibration.measurement is not None
+            else "the fit's 95 % intervals")
     if adequate and holds:
         statement = (f"the verdict holds across the band: over {what} the margin stays between {low:.3g} and "
                      f"{high:.3g}, at least the safety factor {safety_factor:g}")

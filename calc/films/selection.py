@@ -16,32 +16,85 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 from calc.films import coil_side, jacket_side, process_side
 from calc.validity import InputError
 from calc.vessel.agitation import IMPELLERS, FilmConstants
 
 
-@dataclass(frozen=True)
-class Calibration:
-    """A vessel's own measured heat transfer (a Wilson plot, ``calc.fits.wilson``), with its 95 % intervals.
+#: Surfaces a single-point measurement can calibrate, and the factor of CorrelationChoice each one sets.
+MEASURED_SURFACES = {"jacket": "process_factor", "coils": "coil_process_factor"}
 
-    ``process_constant`` is a of Nu = a Re^b Pr^c (mu/mu_w)^0.14 at the wall (Nu = h T/k, no H/T factor:
-    the vessel's own fill); ``remaining_resistance`` (m2 K/W, optional) the wall + fouling + coolant film
-    of the surface it was measured on (the jacket).
+
+@dataclass(frozen=True)
+class Measurement:
+    """A measured UA (or U) of one surface at stated conditions: the single-point calibration's input.
+
+    ``value`` and ``interval`` (95 %, the measurement's stated uncertainty) are W/K for ``quantity = "ua"``
+    and W/(m2 K) on the surface's process-side area for ``"overall_coefficient"``. The conditions are those of
+    the measurement: the charge (often water), the contents' temperature (K), the coolant (fluid, inlet
+    temperature, flow) and the agitator speed (rev/s; None: the vessel's own). ``calc.fits.single_point``
+    backs out what the measurement implies.
     """
 
-    process_constant: float
+    value: float
+    interval: tuple[float, float]
+    process_temperature: float
+    charge: Any
+    coolant: Any
+    quantity: str = "ua"  # or "overall_coefficient"
+    surface: str = "jacket"  # a key of MEASURED_SURFACES
+    agitator_speed: float | None = None
+
+    @property
+    def factor_field(self) -> str:
+        """The field of :class:`CorrelationChoice` the backed-out multiplier sets."""
+        return MEASURED_SURFACES[self.surface]
+
+
+@dataclass(frozen=True)
+class Calibration:
+    """A vessel's own measured heat transfer, with its 95 % intervals.
+
+    Either a Wilson plot (``calc.fits.wilson``): ``process_constant`` is a of Nu = a Re^b Pr^c
+    (mu/mu_w)^0.14 at the wall (Nu = h T/k, no H/T factor: the vessel's own fill) and
+    ``remaining_resistance`` (m2 K/W, optional) the wall + fouling + coolant film of the surface it was
+    measured on (the jacket). Or a single measured UA at stated conditions (``measurement``): the multiplier
+    on the published process-side constant that reproduces it (``factor``, with ``factor_interval`` from the
+    measurement's interval) is backed out by :func:`calc.fits.single_point.resolved` (``basis`` says how).
+    """
+
+    process_constant: float | None = None
     process_constant_interval: tuple[float, float] | None = None
     exponent: float = 2.0 / 3.0
     prandtl_exponent: float = 1.0 / 3.0
     remaining_resistance: float | None = None
     remaining_resistance_interval: tuple[float, float] | None = None
+    measurement: Measurement | None = None
+    factor: float | None = None  # backed out from ``measurement`` (None until resolved)
+    factor_interval: tuple[float, float] | None = None
+    basis: str = ""
 
     def constants(self, a: float | None = None) -> FilmConstants:
-        return FilmConstants("chilton_drew_jebens_1944", self.process_constant if a is None else a, self.exponent,
+        value = self.process_constant if a is None else a
+        if value is None:
+            raise ValueError("a calibration by a measured UA has no fitted constant set")
+        return FilmConstants("chilton_drew_jebens_1944", value, self.exponent,
                              self.prandtl_exponent, 0.14, "calibration: the vessel's own Wilson plot",
                              baffled=None)
+
+    @property
+    def pending(self) -> bool:
+        """A measurement whose factor has not been backed out yet."""
+        return self.measurement is not None and self.factor is None
+
+    @property
+    def summary(self) -> str:
+        """What the calibration changes, for the ``calibrated`` warnings."""
+        if self.measurement is not None:
+            return self.basis or "a measured UA (not yet evaluated)"
+        return f"the vessel's own process constant a = {self.process_constant:.4g} (Wilson plot)"
 
 
 @dataclass(frozen=True)
@@ -64,8 +117,21 @@ class CorrelationChoice:
 
         if calibration is None:
             return self
+        if calibration.measurement is not None:  # the factor is backed out where the vessel is known
+            chosen = replace(self, calibration=calibration)
+            if calibration.factor is None:
+                return chosen
+            return chosen.with_factor(calibration.measurement.factor_field, calibration.factor)
         return replace(self, process_constants=calibration.constants(), calibration=calibration,
                        remaining_resistance=calibration.remaining_resistance if remaining else None)
+
+    def with_factor(self, name: str, value: float) -> "CorrelationChoice":
+        """This choice with ``name`` (``process_factor`` or ``coil_process_factor``) set to ``value``."""
+        from dataclasses import replace
+
+        if name == "coil_process_factor":
+            return replace(self, coil_process_factor=value)
+        return replace(self, process_factor=value)
 
     def validate(self, impeller: str | None = None) -> "CorrelationChoice":
         """Raise :class:`InputError` naming ``correlations.<field>`` for an unknown option."""

@@ -368,8 +368,23 @@ def _outer_diameter(vessel: Vessel) -> float:
     return vessel.shape.diameter + 2.0 * (spec.thickness + lining)
 
 
+def calibrated(vessel: Vessel) -> Vessel:
+    """``vessel`` with a pending single-point calibration resolved (``calc.fits.single_point.resolved``)."""
+    calibration = vessel.correlations.calibration
+    if calibration is None or not calibration.pending:
+        return vessel
+    from calc.fits.single_point import resolved  # the back-out solves this network: imported on use
+
+    return resolved(vessel)
+
+
 def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> Network:
-    """Check the inputs and set up the vessel's network at ``process_temperature`` (K), unsolved."""
+    """Check the inputs and set up the vessel's network at ``process_temperature`` (K), unsolved.
+
+    A single-point calibration (a measured UA at stated conditions) is backed out here first, once per
+    vessel (``calc.fits.single_point``); ``Network.vessel`` carries the result.
+    """
+    vessel = calibrated(vessel)
     warnings = Warnings()
     if coolant.inlet_temperature >= process_temperature:
         raise InputError("coolant.inlet_temperature",
@@ -518,14 +533,15 @@ def lumped_exchange(vessel: Vessel, charge: Charge, coolant: Coolant, process_te
     The dynamic balances hold UA constant over a run: films change with the contents' temperature
     and viscosity, so this is the vessel's UA at the state given (normally the start of the run).
     """
+    vessel = calibrated(vessel)
     result = heat_transfer(vessel, charge, coolant, process_temperature)
     warnings = Warnings(result.warnings)
     warnings.add(CalcWarning("ua_held_constant",
                              f"UA = {result.ua:.4g} W/K from the heat-transfer network at "
                              f"{process_temperature - 273.15:.2f} degC is held constant over the simulation"))
     if vessel.correlations.calibration is not None:
-        warnings.add(CalcWarning("calibrated", "calibrated: UA uses the vessel's own measured process constant "
-                                               f"a = {vessel.correlations.calibration.process_constant:.4g}"))
+        warnings.add(CalcWarning("calibrated", "calibrated: UA uses "
+                                               f"{vessel.correlations.calibration.summary}"))
     main = result.stream("jacket") or (result.streams[0] if result.streams else None)
     if main is None:
         return LumpedExchange(0.0, coolant.mass_flow(), coolant.liquid.at(coolant.inlet_temperature).heat_capacity,
