@@ -60,6 +60,8 @@ class CorrelationsSchema(StrictSchema):
 
     process_wall = fields.String(load_default="default", validate=validate.Length(min=1, max=60), metadata={
         "description": "wall constant set of the impeller: an id of /v1/impellers wall_alternatives"})
+    process_coil = fields.String(load_default="default", validate=validate.Length(min=1, max=60), metadata={
+        "description": "coil constant set of the impeller: an id of /v1/impellers coil_alternatives"})
     annular_jacket = fields.String(load_default="lehrer_1970",
                                    validate=validate.OneOf(jacket_side.ANNULAR_CORRELATIONS),
                                    metadata={"description": "plain annular jacket film"})
@@ -332,7 +334,8 @@ class TransitionSchema(StrictSchema):
 
 
 class WallAlternativeSchema(StrictSchema):
-    id = fields.String(metadata={"description": "what correlations.process_wall takes"})
+    id = fields.String(metadata={"description": "what correlations.process_wall (coil_alternatives: process_coil) "
+                                                "takes"})
     constants = fields.List(fields.Nested(FilmConstantsSchema))
     transitions = fields.List(fields.Nested(TransitionSchema))
 
@@ -354,6 +357,9 @@ class ImpellerSchema(StrictSchema):
                        "chooses one"})
     bottom_head = fields.List(fields.Nested(FilmConstantsSchema))
     coil = fields.List(fields.Nested(FilmConstantsSchema))
+    coil_alternatives = fields.List(fields.Nested(WallAlternativeSchema), metadata={
+        "description": "every published helical-coil constant set ('default' is the coil's, or its stand-in's); "
+                       "correlations.process_coil chooses one"})
     source = fields.String(attribute="wall_source")
 
     @pre_dump
@@ -365,7 +371,9 @@ class ImpellerSchema(StrictSchema):
         return shaped | {
             "wall_transitions": process_side.transitions(info.wall),
             "wall_alternatives": [{"id": key, "constants": bands, "transitions": process_side.transitions(bands)}
-                                  for key, bands in process_side.wall_alternatives(info.id).items()]}
+                                  for key, bands in process_side.wall_alternatives(info.id).items()],
+            "coil_alternatives": [{"id": key, "constants": bands, "transitions": process_side.transitions(bands)}
+                                  for key, bands in process_side.coil_alternatives(info.id).items()]}
 
 
 class CorrelationAlternativeSchema(StrictSchema):

@@ -9,7 +9,8 @@ ensemble entry; the joint members in a second) with one resistance's correlation
 * process side at the wall: every other published constant set of the impeller
   (``calc.films.process_side.wall_alternatives``); where none is published, the constant a times
   1 -+ CONSTANT_SCATTER (the spread between handbooks, common practice, no source);
-* process side at coils: a times 1 -+ CONSTANT_SCATTER (one published constant set per impeller);
+* process side at coils: every other published constant set (``calc.films.process_side.coil_alternatives``);
+  where none is published, a times 1 -+ CONSTANT_SCATTER;
 * service side: the other annular-jacket correlation; the other channel treatment (half pipe, spiral
   baffle); the other coil-tube turbulent correlation (coils, curved channels);
 * two joint members: the alternatives that lowered the margin most for each resistance, all together,
@@ -114,7 +115,12 @@ def published_members(result: HeatTransferResult, vessel) -> list[tuple[str, str
             members += [("channel", key, replace(base, channel=key)) for key in CHANNEL_TREATMENTS
                         if key != base.channel]
     if coils:
-        members += _scatter("coil_process_factor", base, "process_coil")
+        coil_options = [key for key in process_side.coil_alternatives(vessel.agitator.impeller)
+                        if key != base.process_coil]
+        if coil_options:
+            members += [("process_coil", key, replace(base, process_coil=key)) for key in coil_options]
+        else:
+            members += _scatter("coil_process_factor", base, "process_coil")
     if coils or (jacket and vessel.jacket.type in ("half_pipe", "annular_spiral_baffle") and base.channel == "curved"):
         from calc.films.coil_side import COIL_CORRELATIONS
         members += [("coil_tube", key, replace(base, coil_tube=key)) for key in COIL_CORRELATIONS

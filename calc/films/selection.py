@@ -105,6 +105,7 @@ class CorrelationChoice:
     annular_jacket: str = "lehrer_1970"  # calc.films.jacket_side.ANNULAR_CORRELATIONS
     channel: str = "curved"  # half pipe and spiral baffle: calc.films.jacket_side.CHANNEL_TREATMENTS
     coil_tube: str = "schmidt_1967"  # coil tubes and curved channels above 2.2e4: coil_side.COIL_CORRELATIONS
+    process_coil: str = "default"  # a key of calc.films.process_side.coil_alternatives(impeller)
     process_factor: float = 1.0  # multiplies the wall's (and bottom head's) process constant a
     coil_process_factor: float = 1.0  # multiplies the coil's process constant a
     process_constants: FilmConstants | None = None  # a vessel's own fitted wall constants (calibration)
@@ -149,6 +150,10 @@ class CorrelationChoice:
             if self.process_wall not in walls:
                 raise InputError("correlations.process_wall", f"no wall constants {self.process_wall!r} for the "
                                                               f"{impeller}; published: {', '.join(walls)}")
+            coils = process_side.coil_alternatives(impeller)
+            if coils and self.process_coil not in coils:
+                raise InputError("correlations.process_coil", f"no coil constants {self.process_coil!r} for the "
+                                                              f"{impeller}; published: {', '.join(coils)}")
         return self
 
     def jacket(self, spec):
@@ -187,6 +192,17 @@ def alternatives() -> list[Alternative]:
                 "process_wall", key, f"{info.name}: " + ("library constants" if key == "default" else key),
                 key == "default", f"vessel wall, impeller {impeller}", "; ".join(dict.fromkeys(c.source for c in bands)),
                 {"Re": [bands[0].re_low, bands[-1].re_high]}, constants))
+    for impeller, info in IMPELLERS.items():
+        for key, bands in process_side.coil_alternatives(impeller).items():
+            constants = {f"band_{i}": {"a": c.a, "b": c.b, "c": c.c, "d": c.d, "e": c.height_exponent,
+                                       "re_low": c.re_low, "re_high": c.re_high,
+                                       "equation": process_side.CORRELATIONS[c.correlation].equation}
+                         for i, c in enumerate(bands)}
+            out.append(Alternative(
+                "process_coil", key, f"{info.name}, helical coil: " + ("library constants" if key == "default" else key),
+                key == "default", f"outside helical coils, impeller {impeller}",
+                "; ".join(dict.fromkeys(c.source for c in bands)), {"Re": [bands[0].re_low, bands[-1].re_high]},
+                constants))
     for key in jacket_side.ANNULAR_CORRELATIONS:
         entry = jacket_side.CORRELATIONS[key]
         out.append(Alternative("annular_jacket", key, entry.name, key == CorrelationChoice.annular_jacket,

@@ -455,7 +455,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
             lambda mu_w, _coil=coil: process_side.process_film_coil(
                 agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
                 _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled,
-                factor=choice.coil_process_factor),
+                factor=choice.coil_process_factor, alternative=choice.process_coil),
             lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
                 _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
                 pitch=_coil.pitch, correlation=choice.coil_tube),
