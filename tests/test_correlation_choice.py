@@ -112,6 +112,9 @@ def test_coil_alternative_rederived_from_oldshue_gretton_original(client):
     items = [i for i in client.get("/v1/correlations").get_json()["items"]
              if i["resistance"] == "process_coil" and i["applies_to"].endswith("rushton_turbine")]
     assert {i["id"] for i in items} == {"default", "oldshue_gretton_1954_original"}
+    listed = next(i for i in items if i["id"] == "oldshue_gretton_1954_original")["constants"]["band_0"]
+    assert (listed["b"], listed["c"], listed["d"], listed["e"]) == (0.67, 0.37, 0.0, 0.0)
+    assert listed["a"] == pytest.approx(0.17 * (1 / 3) ** 0.1 * 0.04 ** 0.5, rel=1e-12)  # normalised geometry
     films = {}
     for option in ("default", "oldshue_gretton_1954_original"):
         body = _body("rushton_turbine", 120.0, 2.5, correlations={"process_coil": option})

@@ -194,15 +194,15 @@ def alternatives() -> list[Alternative]:
                 {"Re": [bands[0].re_low, bands[-1].re_high]}, constants))
     for impeller, info in IMPELLERS.items():
         for key, bands in process_side.coil_alternatives(impeller).items():
-            constants = {f"band_{i}": {"a": c.a, "b": c.b, "c": c.c, "d": c.d, "e": c.height_exponent,
-                                       "re_low": c.re_low, "re_high": c.re_high,
-                                       "equation": process_side.CORRELATIONS[c.correlation].equation}
-                         for i, c in enumerate(bands)}
+            coil_constants: dict[str, dict[str, object]] = {
+                f"band_{i}": {"a": c.a, "b": c.b, "c": c.c, "d": c.d, "e": c.height_exponent, "re_low": c.re_low,
+                              "re_high": c.re_high, "equation": process_side.CORRELATIONS[c.correlation].equation}
+                for i, c in enumerate(bands)}
             out.append(Alternative(
                 "process_coil", key, f"{info.name}, helical coil: " + ("library constants" if key == "default" else key),
                 key == "default", f"outside helical coils, impeller {impeller}",
                 "; ".join(dict.fromkeys(c.source for c in bands)), {"Re": [bands[0].re_low, bands[-1].re_high]},
-                constants))
+                coil_constants))
     for key in jacket_side.ANNULAR_CORRELATIONS:
         entry = jacket_side.CORRELATIONS[key]
         out.append(Alternative("annular_jacket", key, entry.name, key == CorrelationChoice.annular_jacket,
