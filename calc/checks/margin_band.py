@@ -13,6 +13,12 @@ ensemble entry; the joint members in a second) with one resistance's correlation
   where none is published, a times 1 -+ CONSTANT_SCATTER;
 * service side: the other annular-jacket correlation; the other channel treatment (half pipe, spiral
   baffle); the other coil-tube turbulent correlation (coils, curved channels);
+* process-side fouling: the stated resistance doubled and a clean wall (``FOULING_MEMBERS``), labelled
+  ``process_fouling``. Fouling is an input, not a correlation, but its uncertainty is of the same size
+  (a stated 0.0002 m2 K/W is 20 % of 1/U at U = 1000 W/(m2 K)) and it moves with the product, not the
+  vessel: a margin that vanishes when the wall fouls twice as much as assumed is not one to defend. Only when
+  the stated process fouling is above zero (a clean wall stated has nothing to vary: state the fouling you
+  expect), and not with a calibration (the measurement includes the fouling of its day);
 * two joint members: the alternatives that lowered the margin most for each resistance, all together,
   and those that raised it most (only when more than one resistance moved that way).
 
@@ -38,8 +44,10 @@ from calc.films.selection import CorrelationChoice
 from calc.network.heat_transfer import HeatTransferResult
 from calc.network.vectorised import heat_transfer_many
 
+#: The fouling members: the stated process-side fouling resistance doubled, and a clean wall (factor 0).
+FOULING_MEMBERS = (("doubled", 2.0), ("clean", 0.0))
 #: Cooling-check margins of members are capacity / load; these name the resistance a member varies.
-RESISTANCES = ("process_wall", "process_coil", "annular_jacket", "channel", "coil_tube",
+RESISTANCES = ("process_wall", "process_coil", "annular_jacket", "channel", "coil_tube", "process_fouling",
                "calibrated_process_constant", "calibrated_remaining_resistance", "calibrated_process_factor")
 
 
@@ -125,6 +133,9 @@ def published_members(result: HeatTransferResult, vessel) -> list[tuple[str, str
         from calc.films.coil_side import COIL_CORRELATIONS
         members += [("coil_tube", key, replace(base, coil_tube=key)) for key in COIL_CORRELATIONS
                     if key != base.coil_tube]
+    if (jacket or coils) and calibration is None and vessel.fouling.process > 0.0:
+        members += [("process_fouling", label, replace(base, process_fouling_factor=factor))
+                    for label, factor in FOULING_MEMBERS]
     return members
 
 
@@ -185,7 +196,7 @@ def margin_band(vessel, charge, coolant, process_temperature: float, result: Hea
     adequate = nominal_margin >= safety_factor
     holds = (low >= safety_factor) if adequate else (high < safety_factor)
     calibration = vessel.correlations.calibration
-    what = ("the published alternatives" if basis != "calibration" else
+    what = ("the published alternatives and the fouling range" if basis != "calibration" else
             "the measurement's 95 % interval" if calibration is not None and calibration.measurement is not None
             else "the fit's 95 % intervals")
     if adequate and holds:

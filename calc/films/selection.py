@@ -108,6 +108,7 @@ class CorrelationChoice:
     process_coil: str = "default"  # a key of calc.films.process_side.coil_alternatives(impeller)
     process_factor: float = 1.0  # multiplies the wall's (and bottom head's) process constant a
     coil_process_factor: float = 1.0  # multiplies the coil's process constant a
+    process_fouling_factor: float = 1.0  # multiplies the stated process-side fouling (band: 0 clean, 2 doubled)
     process_constants: FilmConstants | None = None  # a vessel's own fitted wall constants (calibration)
     remaining_resistance: float | None = None  # m2 K/W, jacket wall + fouling + coolant film (calibration)
     calibration: Calibration | None = None  # where the two above come from, with their intervals
@@ -141,6 +142,9 @@ class CorrelationChoice:
                                      ("coil_tube", self.coil_tube, coil_side.COIL_CORRELATIONS)):
             if value not in options:
                 raise InputError(f"correlations.{name}", f"unknown option {value!r}; known: {', '.join(options)}")
+        if not (math.isfinite(self.process_fouling_factor) and self.process_fouling_factor >= 0):
+            raise InputError("correlations.process_fouling_factor",
+                             f"must be a non-negative number, got {self.process_fouling_factor!r}")
         for name in ("process_factor", "coil_process_factor"):
             value = getattr(self, name)
             if not (math.isfinite(value) and value > 0):

@@ -385,6 +385,10 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
     vessel (``calc.fits.single_point``); ``Network.vessel`` carries the result.
     """
     vessel = calibrated(vessel)
+    if vessel.correlations.process_fouling_factor != 1.0:  # the margin band's fouling members
+        vessel = replace(vessel, fouling=replace(vessel.fouling, process=vessel.fouling.process
+                                                 * vessel.correlations.process_fouling_factor),
+                         correlations=replace(vessel.correlations, process_fouling_factor=1.0))
     warnings = Warnings()
     if coolant.inlet_temperature >= process_temperature:
         raise InputError("coolant.inlet_temperature",
