@@ -1,6 +1,8 @@
 """Calibration from one measured UA (or U) at stated conditions: the single-point back-out (issue 12)."""
+import json
 import math
 from dataclasses import replace
+from pathlib import Path
 
 import pytest
 
@@ -13,6 +15,7 @@ from test_correlation_choice import LIQUID, _body
 # cooling water in at 15 degC, 8 m3/h. Constant-property liquids below make mu/mu_w = 1 on both sides.
 RUN = {"agitator_speed": "90 rpm", "process_temperature": 50.0, "charge": {"fluid": "water", "volume": 2.5},
        "coolant": {"fluid": "water", "inlet_temperature": 15.0, "flow": "8 m^3/h"}}
+EXAMPLES = Path(__file__).resolve().parents[1] / "examples"
 SHELL_ONLY = {"type": "annular", "gap": 0.05, "inlet_diameter": 0.05, "covers_bottom_head": False}
 
 
@@ -160,3 +163,25 @@ def test_scale_up_carries_the_backed_out_factor(client):
         assert ours["heat_transfer"]["film_coefficients"]["process_jacket"] == pytest.approx(
             factor * theirs["heat_transfer"]["film_coefficients"]["process_jacket"], rel=1e-3)  # basis prints 4 digits
 
+
+
+def test_simulation_takes_a_measured_ua_and_says_so(client):
+    # The run's UA comes from the network with the backed-out factor: a measured UA below the published network's
+    # (a factor below 1) gives a hotter run than the published correlations (definition of the lumped exchange).
+    body = json.loads((EXAMPLES / "simulation_production_failure.json").read_text())
+    plain = client.post("/v1/simulations", json=body).get_json()
+    run = {"process_temperature": 50.0, "charge": {"fluid": "water", "volume": 5.0},
+           "coolant": body["vessel"]["coolant"]}
+    vessel_only = {"vessel": body["vessel"]["vessel"], "charge": run["charge"], "coolant": run["coolant"],
+                   "process_temperature": 50.0}
+    ua = client.post("/v1/heat-transfer", json=vessel_only).get_json()["ua"]
+    body["vessel"]["calibration"] = {"measurement": {"ua": 0.7 * ua, "relative_uncertainty": 0.1, **run}}
+    calibrated = client.post("/v1/simulations", json=body).get_json()
+    messages = [w["message"] for w in calibrated["warnings"] if w["code"] == "calibrated"]
+    assert messages and "single-point calibration" in messages[0]
+    assert calibrated["summary"]["maximum_temperature"] > plain["summary"]["maximum_temperature"]
+    # a bad condition of the measurement names its place under the simulation's vessel
+    body["vessel"]["calibration"]["measurement"]["coolant"] = {**run["coolant"], "inlet_temperature": 80.0}
+    response = client.post("/v1/simulations", json=body)
+    assert response.status_code == 422
+    assert response.get_json()["errors"][0]["field"].startswith("vessel.calibration.measurement.coolant")

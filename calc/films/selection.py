@@ -142,12 +142,9 @@ class CorrelationChoice:
                                      ("coil_tube", self.coil_tube, coil_side.COIL_CORRELATIONS)):
             if value not in options:
                 raise InputError(f"correlations.{name}", f"unknown option {value!r}; known: {', '.join(options)}")
-        if not (math.isfinite(self.process_fouling_factor) and self.process_fouling_factor >= 0):
-            raise InputError("correlations.process_fouling_factor",
-                             f"must be a non-negative number, got {self.process_fouling_factor!r}")
-        for name in ("process_factor", "coil_process_factor"):
+        for name in ("process_factor", "coil_process_factor", "process_fouling_factor"):
             value = getattr(self, name)
-            if not (math.isfinite(value) and value > 0):
+            if not (math.isfinite(value) and (value > 0 or (value == 0 and name == "process_fouling_factor"))):
                 raise InputError(f"correlations.{name}", f"must be a positive number, got {value!r}")
         if impeller is not None and impeller in IMPELLERS:
             walls = process_side.wall_alternatives(impeller)
