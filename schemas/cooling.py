@@ -168,6 +168,9 @@ class CoolingCheckResultSchema(StrictSchema):
     adequate = fields.Boolean()
     calibrated = fields.Boolean(metadata={"description": "the heat transfer uses the vessel's own measured "
                                                          "constants (a calibration), not only published ones"})
+    calibration_basis = fields.String(allow_none=True, metadata={
+        "description": "what the calibration changes and where it comes from (a Wilson plot's constant, or the "
+                       "multiplier backed out from a measured UA with its interval); null when not calibrated"})
     margin_band = fields.Nested(MarginBandSchema, allow_none=True, metadata={
         "description": "the margin recomputed over the published alternatives of each resistance (or the "
                        "calibration's intervals); the verdict stays nominal margin >= safety_factor"})

@@ -6,7 +6,7 @@ from dataclasses import replace
 from marshmallow import ValidationError, fields, post_load, pre_dump, validate, validates_schema
 
 from calc.films import coil_side, jacket_side, process_side
-from calc.films.selection import Calibration, CorrelationChoice
+from calc.films.selection import MEASURED_SURFACES, Calibration, CorrelationChoice, Measurement
 
 from .base import StrictSchema, finite_float
 from .units import Quantity, absolute_temperature
@@ -60,6 +60,8 @@ class CorrelationsSchema(StrictSchema):
 
     process_wall = fields.String(load_default="default", validate=validate.Length(min=1, max=60), metadata={
         "description": "wall constant set of the impeller: an id of /v1/impellers wall_alternatives"})
+    process_coil = fields.String(load_default="default", validate=validate.Length(min=1, max=60), metadata={
+        "description": "coil constant set of the impeller: an id of /v1/impellers coil_alternatives"})
     annular_jacket = fields.String(load_default="lehrer_1970",
                                    validate=validate.OneOf(jacket_side.ANNULAR_CORRELATIONS),
                                    metadata={"description": "plain annular jacket film"})
@@ -74,11 +76,66 @@ class CorrelationsSchema(StrictSchema):
         return CorrelationChoice(**data)
 
 
-class CalibrationSchema(StrictSchema):
-    """A vessel's own measured constants: paste the calibration object of /v1/wilson-plot."""
+class MeasurementSchema(StrictSchema):
+    """One measured UA (or U) of the vessel at stated conditions (e.g. /v1/ua-fit of a water run)."""
 
-    process_constant = finite_float(required=True, validate=validate.Range(0, 100, min_inclusive=False),
-                                    metadata={"description": "a of Nu = a Re^b Pr^c (mu/mu_w)^0.14 at the wall"})
+    ua = Quantity("thermal conductance", load_default=None, minimum=0, exclusive_minimum=True,
+                  description="measured UA of the surface (give this or overall_coefficient)")
+    ua_interval = fields.List(Quantity("thermal conductance", minimum=0, exclusive_minimum=True), load_default=None,
+                              validate=validate.Length(equal=2),
+                              metadata={"description": "95 % interval of ua, e.g. /v1/ua-fit's ua_interval"})
+    overall_coefficient = Quantity("heat-transfer coefficient", load_default=None, minimum=0, exclusive_minimum=True,
+                                   description="measured U on the surface's process-side area at the measured fill")
+    overall_coefficient_interval = fields.List(
+        Quantity("heat-transfer coefficient", minimum=0, exclusive_minimum=True), load_default=None,
+        validate=validate.Length(equal=2), metadata={"description": "95 % interval of overall_coefficient"})
+    relative_uncertainty = finite_float(load_default=None, validate=validate.Range(0, 1, min_inclusive=True,
+                                                                                   max_inclusive=False),
+                                        metadata={"description": "instead of an interval: the 95 % half-width "
+                                                                 "as a fraction of the value (0.1 = +-10 %)"})
+    surface = fields.String(load_default="jacket", validate=validate.OneOf(sorted(MEASURED_SURFACES)),
+                            metadata={"description": "what was measured: the jacket, or the coils together"})
+    agitator_speed = Quantity("agitator speed", load_default=None, minimum=0, exclusive_minimum=True,
+                              description="during the measurement (default: the vessel's speed)")
+    process_temperature = absolute_temperature(required=True, description="contents' temperature during the "
+                                                                          "measurement")
+    charge = fields.Nested(ChargeSchema, required=True, metadata={"description": "the charge measured (often water)"})
+    coolant = fields.Nested(CoolantSchema, required=True, metadata={
+        "description": "coolant during the measurement: fluid, inlet temperature, flow"})
+
+    @validates_schema
+    def _one(self, data, **kwargs):
+        quantities = [name for name in ("ua", "overall_coefficient") if data.get(name) is not None]
+        if len(quantities) != 1:
+            raise ValidationError("give exactly one of ua and overall_coefficient", "ua")
+        name = quantities[0]
+        other = "overall_coefficient" if name == "ua" else "ua"
+        if data.get(f"{other}_interval") is not None:
+            raise ValidationError(f"the interval must be of {name}", f"{other}_interval")
+        interval = data.get(f"{name}_interval")
+        if (interval is None) == (data.get("relative_uncertainty") is None):
+            raise ValidationError(f"state the measurement's uncertainty: give exactly one of {name}_interval and "
+                                  "relative_uncertainty", f"{name}_interval")
+        if interval is not None and not interval[0] <= data[name] <= interval[1]:
+            raise ValidationError(f"must be [low, high] around {name}", f"{name}_interval")
+
+    @post_load
+    def _build(self, data, **kwargs):
+        quantity = "ua" if data["ua"] is not None else "overall_coefficient"
+        value = data[quantity]
+        interval = data[f"{quantity}_interval"]
+        if interval is None:
+            interval = (value * (1.0 - data["relative_uncertainty"]), value * (1.0 + data["relative_uncertainty"]))
+        return Measurement(value, tuple(interval), data["process_temperature"], data["charge"], data["coolant"],
+                           quantity, data["surface"], data["agitator_speed"])
+
+
+class CalibrationSchema(StrictSchema):
+    """A vessel's own measured heat transfer: the calibration object of /v1/wilson-plot, or one measured UA."""
+
+    process_constant = finite_float(load_default=None, validate=validate.Range(0, 100, min_inclusive=False),
+                                    metadata={"description": "a of Nu = a Re^b Pr^c (mu/mu_w)^0.14 at the wall "
+                                                             "(give this or measurement)"})
     process_constant_interval = fields.List(finite_float(allow_none=True), load_default=None,
                                             validate=validate.Length(equal=2))
     exponent = finite_float(load_default=2.0 / 3.0, validate=validate.Range(0.3, 1.0))
@@ -87,9 +144,25 @@ class CalibrationSchema(StrictSchema):
                                     description="measured wall + fouling + coolant film of the jacket")
     remaining_resistance_interval = fields.List(Quantity("fouling resistance"), load_default=None,
                                                 validate=validate.Length(equal=2))
+    measurement = fields.Nested(MeasurementSchema, load_default=None, metadata={
+        "description": "one measured UA (or U) at stated conditions: the multiplier on the published process-side "
+                       "constant that reproduces it is backed out, and the margin band spans the measurement's "
+                       "interval (instead of process_constant)"})
+
+    @validates_schema
+    def _one(self, data, **kwargs):
+        if (data.get("process_constant") is None) == (data.get("measurement") is None):
+            raise ValidationError("give exactly one of process_constant (a Wilson plot) and measurement",
+                                  "process_constant")
+        if data.get("measurement") is not None:
+            for name in ("process_constant_interval", "remaining_resistance", "remaining_resistance_interval"):
+                if data.get(name) is not None:
+                    raise ValidationError("belongs to a Wilson plot's calibration, not to a measurement", name)
 
     @post_load
     def _build(self, data, **kwargs):
+        if data["measurement"] is not None:
+            return Calibration(measurement=data["measurement"])
         interval = data["process_constant_interval"]
         if interval is not None:
             interval = tuple(float("inf") if v is None else v for v in interval)
@@ -110,8 +183,9 @@ class HeatTransferRequestSchema(_AgitatedVesselSchema):
     coolant = fields.Nested(CoolantSchema, required=True)
     correlations = fields.Nested(CorrelationsSchema, load_default=None)
     calibration = fields.Nested(CalibrationSchema, load_default=None, metadata={
-        "description": "the vessel's own measured constants (from /v1/wilson-plot): results say calibrated and "
-                       "the margin band spans the fit's intervals"})
+        "description": "the vessel's own measured constants (from /v1/wilson-plot) or one measured UA at stated "
+                       "conditions: results say calibrated and the margin band spans the fit's or the measurement's "
+                       "interval"})
 
     @post_load
     def _choose(self, data, **kwargs):
@@ -260,7 +334,8 @@ class TransitionSchema(StrictSchema):
 
 
 class WallAlternativeSchema(StrictSchema):
-    id = fields.String(metadata={"description": "what correlations.process_wall takes"})
+    id = fields.String(metadata={"description": "what correlations.process_wall (coil_alternatives: process_coil) "
+                                                "takes"})
     constants = fields.List(fields.Nested(FilmConstantsSchema))
     transitions = fields.List(fields.Nested(TransitionSchema))
 
@@ -282,6 +357,9 @@ class ImpellerSchema(StrictSchema):
                        "chooses one"})
     bottom_head = fields.List(fields.Nested(FilmConstantsSchema))
     coil = fields.List(fields.Nested(FilmConstantsSchema))
+    coil_alternatives = fields.List(fields.Nested(WallAlternativeSchema), metadata={
+        "description": "every published helical-coil constant set ('default' is the coil's, or its stand-in's); "
+                       "correlations.process_coil chooses one"})
     source = fields.String(attribute="wall_source")
 
     @pre_dump
@@ -293,7 +371,9 @@ class ImpellerSchema(StrictSchema):
         return shaped | {
             "wall_transitions": process_side.transitions(info.wall),
             "wall_alternatives": [{"id": key, "constants": bands, "transitions": process_side.transitions(bands)}
-                                  for key, bands in process_side.wall_alternatives(info.id).items()]}
+                                  for key, bands in process_side.wall_alternatives(info.id).items()],
+            "coil_alternatives": [{"id": key, "constants": bands, "transitions": process_side.transitions(bands)}
+                                  for key, bands in process_side.coil_alternatives(info.id).items()]}
 
 
 class CorrelationAlternativeSchema(StrictSchema):

@@ -98,3 +98,39 @@ def test_unknown_alternative_is_a_422_naming_the_field(client):
     assert r.get_json()["errors"][0]["field"] == "correlations.process_wall"
     r = client.post("/v1/heat-transfer", json=_body("rushton_turbine", 120.0, 2.5, correlations={"channel": "bent"}))
     assert r.status_code == 422 and r.get_json()["errors"][0]["field"] == "correlations.channel"
+
+
+COIL = {"tube_outer_diameter": 0.06, "tube_wall": 0.003, "helix_diameter": 1.1, "turns": 6, "pitch": 0.12,
+        "elevation": 0.3}
+
+
+def test_coil_alternative_rederived_from_oldshue_gretton_original(client):
+    # Oldshue & Gretton (1954), their own form (from memory, as restated in McCabe, Smith & Harriott, ch. 15):
+    # h d_o/k = 0.17 Re^0.67 Pr^0.37 (D/T)^0.1 (d_o/T)^0.5, no viscosity or height factor. Chosen over HTTP it
+    # gives exactly that film; the default (Handbook of Industrial Mixing, 0.03 Re^(2/3) Pr^(1/3) at the standard
+    # geometry, (H/T)^-0.15) differs, and both are listed by /v1/correlations with their constants.
+    items = [i for i in client.get("/v1/correlations").get_json()["items"]
+             if i["resistance"] == "process_coil" and i["applies_to"].endswith("rushton_turbine")]
+    assert {i["id"] for i in items} == {"default", "oldshue_gretton_1954_original"}
+    listed = next(i for i in items if i["id"] == "oldshue_gretton_1954_original")["constants"]["band_0"]
+    assert (listed["b"], listed["c"], listed["d"], listed["e"]) == (0.67, 0.37, 0.0, 0.0)
+    assert listed["a"] == pytest.approx(0.17 * (1 / 3) ** 0.1 * 0.04 ** 0.5, rel=1e-12)  # normalised geometry
+    films = {}
+    for option in ("default", "oldshue_gretton_1954_original"):
+        body = _body("rushton_turbine", 120.0, 2.5, correlations={"process_coil": option})
+        body["vessel"]["coils"] = [COIL]
+        result = client.post("/v1/heat-transfer", json=body).get_json()
+        films[option] = result["film_coefficients"]["process_coil"]
+    Re = result["agitation"]["reynolds"]
+    Pr = LIQUID["heat_capacity"] * LIQUID["viscosity"] / LIQUID["thermal_conductivity"]
+    nu = 0.17 * Re ** 0.67 * Pr ** 0.37 * (0.5 / 1.5) ** 0.1 * (0.06 / 1.5) ** 0.5
+    assert films["oldshue_gretton_1954_original"] == pytest.approx(nu * LIQUID["thermal_conductivity"] / 0.06,
+                                                                   rel=1e-9)
+    assert films["default"] != pytest.approx(films["oldshue_gretton_1954_original"], rel=0.05)
+
+
+def test_unknown_coil_alternative_is_a_422_naming_the_field(client):
+    body = _body("rushton_turbine", 120.0, 2.5, correlations={"process_coil": "uhl_1955"})
+    body["vessel"]["coils"] = [COIL]
+    r = client.post("/v1/heat-transfer", json=body)
+    assert r.status_code == 422 and r.get_json()["errors"][0]["field"] == "correlations.process_coil"

@@ -57,7 +57,9 @@ def test_annular_band_spans_lehrer_and_stein_schmidt():
     band = _check(_lab_annular()).margin_band
     kinds = {(m.resistance, m.alternative) for m in band.members}
     assert ("annular_jacket", "stein_schmidt_1993") in kinds
-    assert ("process_coil", "constant_x0.75") in kinds and ("coil_tube", "mori_nakayama_1967") in kinds
+    # the disc turbine's coil has a published alternative (Oldshue & Gretton's own form), so no +-25 % members
+    assert ("process_coil", "oldshue_gretton_1954_original") in kinds and ("coil_tube", "mori_nakayama_1967") in kinds
+    assert not any(m.resistance == "process_coil" and m.alternative.startswith("constant_x") for m in band.members)
     assert any(m.resistance == "joint" for m in band.members)
 
 
@@ -163,3 +165,20 @@ def test_simulation_with_a_calibration_says_so_and_uses_it(client):
     assert "calibrated" in {w["code"] for w in calibrated["warnings"]}
     assert "calibrated" not in {w["code"] for w in plain["warnings"]}
     assert calibrated["summary"]["maximum_temperature"] > plain["summary"]["maximum_temperature"]
+
+
+def test_fouling_members_are_the_check_with_the_stated_fouling_doubled_and_clean():
+    # Issue 12: the band reflects the process-side fouling uncertainty. Each labelled member equals the plain check
+    # of the same vessel with its stated process fouling doubled, or zero (a clean wall), set on the vessel itself.
+    args = _lab_annular()
+    vessel = replace(args["vessel"], fouling=replace(args["vessel"].fouling, process=4e-4))
+    band = _check(args, vessel=vessel).margin_band
+    members = {m.alternative: m.margin for m in band.members if m.resistance == "process_fouling"}
+    assert set(members) == {"doubled", "clean"}
+    for label, resistance in (("doubled", 8e-4), ("clean", 0.0)):
+        plain = _check(args, vessel=replace(vessel, fouling=replace(vessel.fouling, process=resistance)), band=False)
+        assert members[label] == pytest.approx(plain.margin, rel=1e-8)
+    assert members["doubled"] < _check(args, vessel=vessel, band=False).margin < members["clean"]
+    # a clean wall stated has nothing to vary; a calibration's measurement includes the fouling of its day
+    clean = replace(vessel, fouling=replace(vessel.fouling, process=0.0))
+    assert not any(m.resistance == "process_fouling" for m in _check(args, vessel=clean).margin_band.members)

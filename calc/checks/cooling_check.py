@@ -137,6 +137,7 @@ class CoolingCheck:
     cautions: tuple[str, ...] = COOLING_CHECK
     margin_band: MarginBand | None = None  # the margin over the published alternatives (calc.checks.margin_band)
     calibrated: bool = False
+    calibration_basis: str | None = None  # what the calibration changes and where it comes from
 
     @property
     def limit_values(self) -> LimitValues:
@@ -434,6 +435,7 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     """
     safety_factor = _check_safety_factor(safety_factor)
     network = assemble(vessel, charge, coolant, process_temperature)
+    vessel = network.vessel  # with a single-point calibration backed out
     result = solve(network)
     load = heat_load(heat_release, charge_mass(result), process_temperature, result.agitation.power)
     capacity = result.duty
@@ -475,10 +477,10 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     cal = vessel.correlations.calibration
     calibrated = cal is not None
     if cal is not None:
-        warnings.add(CalcWarning("calibrated", f"calibrated: the process film uses the vessel's own constant a = "
-                                               f"{cal.process_constant:.4g}" + (
+        warnings.add(CalcWarning("calibrated", f"calibrated: the process film uses {cal.summary}" + (
             "" if vessel.correlations.remaining_resistance is None else
             f" and the measured remaining resistance {vessel.correlations.remaining_resistance:.4g} m2 K/W")
-            + "; the margin band spans the fit's 95 % intervals"))
+            + ("; the margin band spans the measurement's 95 % interval" if cal.measurement is not None
+               else "; the margin band spans the fit's 95 % intervals")))
     return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings,
-                        check_cautions(heat_release), spread, calibrated)
+                        check_cautions(heat_release), spread, calibrated, None if cal is None else cal.summary)

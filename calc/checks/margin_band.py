@@ -9,9 +9,16 @@ ensemble entry; the joint members in a second) with one resistance's correlation
 * process side at the wall: every other published constant set of the impeller
   (``calc.films.process_side.wall_alternatives``); where none is published, the constant a times
   1 -+ CONSTANT_SCATTER (the spread between handbooks, common practice, no source);
-* process side at coils: a times 1 -+ CONSTANT_SCATTER (one published constant set per impeller);
+* process side at coils: every other published constant set (``calc.films.process_side.coil_alternatives``);
+  where none is published, a times 1 -+ CONSTANT_SCATTER;
 * service side: the other annular-jacket correlation; the other channel treatment (half pipe, spiral
   baffle); the other coil-tube turbulent correlation (coils, curved channels);
+* process-side fouling: the stated resistance doubled and a clean wall (``FOULING_MEMBERS``), labelled
+  ``process_fouling``. Fouling is an input, not a correlation, but its uncertainty is of the same size
+  (a stated 0.0002 m2 K/W is 20 % of 1/U at U = 1000 W/(m2 K)) and it moves with the product, not the
+  vessel: a margin that vanishes when the wall fouls twice as much as assumed is not one to defend. Only when
+  the stated process fouling is above zero (a clean wall stated has nothing to vary: state the fouling you
+  expect), and not with a calibration (the measurement includes the fouling of its day);
 * two joint members: the alternatives that lowered the margin most for each resistance, all together,
   and those that raised it most (only when more than one resistance moved that way).
 
@@ -38,9 +45,11 @@ from calc.network.heat_transfer import HeatTransferResult
 from calc.network.vectorised import heat_transfer_many
 from calc.vessel.model import Charge, Coolant, Vessel
 
+#: The fouling members: the stated process-side fouling resistance doubled, and a clean wall (factor 0).
+FOULING_MEMBERS = (("doubled", 2.0), ("clean", 0.0))
 #: Cooling-check margins of members are capacity / load; these name the resistance a member varies.
-RESISTANCES = ("process_wall", "process_coil", "annular_jacket", "channel", "coil_tube",
-               "calibrated_process_constant", "calibrated_remaining_resistance")
+RESISTANCES = ("process_wall", "process_coil", "annular_jacket", "channel", "coil_tube", "process_fouling",
+               "calibrated_process_constant", "calibrated_remaining_resistance", "calibrated_process_factor")
 
 
 @dataclass(frozen=True)
@@ -81,14 +90,25 @@ def published_members(result: HeatTransferResult, vessel: Vessel) -> list[tuple[
     coils = any(stream.name.startswith("coil") for stream in result.streams)
     jacket_type = vessel.jacket.type if vessel.jacket is not None else None
     calibration = base.calibration
-    if jacket and calibration is not None:
+    measured = None if calibration is None or calibration.measurement is None else calibration.measurement.surface
+    if measured is not None and calibration is not None and calibration.factor_interval is not None:
+        # a measured UA: the factor backed out at each end of the measurement's interval; the measured surface's
+        # published alternatives are replaced by it (each would reproduce the same measurement)
+        name = calibration.measurement.factor_field if calibration.measurement is not None else "process_factor"
+        members += [("calibrated_process_factor", f"factor={f:.4g}", base.with_factor(name, f))
+                    for f in calibration.factor_interval]
+        if measured == "jacket":
+            jacket = False
+        else:
+            coils = False
+    if jacket and calibration is not None and measured is None:
         if calibration.process_constant_interval is not None:
             members += [("calibrated_process_constant", f"a={a:.4g}", replace(base, process_constants=calibration.constants(a)))
                         for a in calibration.process_constant_interval if math.isfinite(a) and a > 0]
         if base.remaining_resistance is not None and calibration.remaining_resistance_interval is not None:
             members += [("calibrated_remaining_resistance", f"R={r:.4g}", replace(base, remaining_resistance=r))
                         for r in calibration.remaining_resistance_interval if r >= 0]
-    if jacket and calibration is None:
+    if jacket and (calibration is None or measured is not None):
         options = [key for key in process_side.wall_alternatives(vessel.agitator.impeller) if key != base.process_wall]
         if options:
             members += [("process_wall", key, replace(base, process_wall=key)) for key in options]
@@ -104,11 +124,19 @@ def published_members(result: HeatTransferResult, vessel: Vessel) -> list[tuple[
             members += [("channel", key, replace(base, channel=key)) for key in CHANNEL_TREATMENTS
                         if key != base.channel]
     if coils:
-        members += _scatter("coil_process_factor", base, "process_coil")
+        coil_options = [key for key in process_side.coil_alternatives(vessel.agitator.impeller)
+                        if key != base.process_coil]
+        if coil_options:
+            members += [("process_coil", key, replace(base, process_coil=key)) for key in coil_options]
+        else:
+            members += _scatter("coil_process_factor", base, "process_coil")
     if coils or (jacket and jacket_type in ("half_pipe", "annular_spiral_baffle") and base.channel == "curved"):
         from calc.films.coil_side import COIL_CORRELATIONS
         members += [("coil_tube", key, replace(base, coil_tube=key)) for key in COIL_CORRELATIONS
                     if key != base.coil_tube]
+    if (jacket or coils) and calibration is None and vessel.fouling.process > 0.0:
+        members += [("process_fouling", label, replace(base, process_fouling_factor=factor))
+                    for label, factor in FOULING_MEMBERS]
     return members
 
 
@@ -169,7 +197,10 @@ def margin_band(vessel: Vessel, charge: Charge, coolant: Coolant, process_temper
 
     adequate = nominal_margin >= safety_factor
     holds = (low >= safety_factor) if adequate else (high < safety_factor)
-    what = "the fit's 95 % intervals" if basis == "calibration" else "the published alternatives"
+    calibration = vessel.correlations.calibration
+    what = ("the published alternatives and the fouling range" if basis != "calibration" else
+            "the measurement's 95 % interval" if calibration is not None and calibration.measurement is not None
+            else "the fit's 95 % intervals")
     if adequate and holds:
         statement = (f"the verdict holds across the band: over {what} the margin stays between {low:.3g} and "
                      f"{high:.3g}, at least the safety factor {safety_factor:g}")

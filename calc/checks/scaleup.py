@@ -44,7 +44,9 @@ from calc.cautions import COOLING_CHECK
 from calc.checks.cooling_check import (DEFAULT_SAFETY_FACTOR, CoolingCheck, _check_safety_factor, check_cautions,
                                        cooling_check, evaluate, margin_of)
 from calc.checks.heat_load import HeatRelease, heat_load
+from calc.fits.single_point import carried
 from calc.network import vectorised
+from calc.network.heat_transfer import calibrated
 from calc.properties import LiquidProperties
 from calc.sizing.jacket_sizing import SizedDesign, jacket_sizing
 from calc.validity import CalcWarning, CalculationError, InputError, TooLarge, Warnings, fields_renamed
@@ -384,13 +386,20 @@ def scale_up(reference: Vessel, targets: Iterable[Target], rule: str, charge: Ch
     targets = _check_targets(targets, max_targets)
     warnings = Warnings()
 
+    with fields_renamed({"vessel": "reference"}):
+        reference = calibrated(reference)  # a measured UA is backed out on the reference, where it was measured
+    targets = [(carried(t[0], reference), t[1]) if isinstance(t, tuple) else
+               carried(t, reference) if isinstance(t, Vessel) else t for t in targets]
     calibration = reference.correlations.calibration
     if calibration is not None:
+        what = (f"multiplier {calibration.factor:.4g} on the published process-side constant (backed out from its "
+                "measured UA)" if calibration.measurement is not None else
+                f"process constant a = {calibration.process_constant:.4g} (its own Wilson plot)")
         warnings.add(CalcWarning(
             "calibration_carried",
-            f"the reference vessel's calibrated process constant a = {calibration.process_constant:.4g} (its own "
-            "Wilson plot) is carried to the larger similar vessels, which share impeller and geometry ratios; their "
-            "wall, fouling and coolant film are computed from the published correlations"))
+            f"the reference vessel's calibrated {what} is carried to the larger similar vessels, which share "
+            "impeller and geometry ratios; their wall, fouling and coolant film are computed from the published "
+            "correlations"))
     with fields_renamed({"vessel": "reference"}):
         first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits,
                               deadline)

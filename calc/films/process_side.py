@@ -396,6 +396,39 @@ def process_film_jacket(impeller: str, Re: float, props_bulk: LiquidProperties, 
                  {"H_over_T": liquid_height / tank_diameter}, warnings, factor)
 
 
+#: The other published constant sets for helical coils, per impeller (after a stand-in, ``COIL_STAND_INS``):
+#: {alternative id: bands}. The library's constants (``IMPELLERS[...].coil``) are the alternative ``"default"``.
+#: Oldshue & Gretton's own form, 0.17 Re^0.67 Pr^0.37 (D/T)^0.1 (d_o/T)^0.5 with no viscosity or liquid-height
+#: factor (constants from memory, as restated in McCabe, Smith & Harriott, Unit Operations, ch. 15), is written
+#: in the library's normalised geometry factors: a = 0.17 (1/3)^0.1 0.04^0.5 = 0.03046, c = 0.37, d = 0, e = 0.
+#: Against the Handbook of Industrial Mixing's restatement (the default: a = 0.03, c = 1/3, d = 0.14,
+#: e = -0.15) it differs by Pr^0.037 (x1.07 at Pr = 6, x1.24 at Pr = 300), by (H/T)^0.15 and by the
+#: viscosity ratio: a published spread, not a guess.
+OLDSHUE_GRETTON_ORIGINAL_A = 0.17 * (1.0 / 3.0) ** 0.1 * 0.04 ** 0.5
+COIL_ALTERNATIVES: dict[str, dict[str, tuple[FilmConstants, ...]]] = {
+    "rushton_turbine": {
+        "oldshue_gretton_1954_original": (FilmConstants(
+            "oldshue_gretton_1954", OLDSHUE_GRETTON_ORIGINAL_A, 0.67, 0.37, 0.0,
+            "Oldshue & Gretton, Chem. Eng. Prog. 50, 615 (1954), their own form 0.17 Re^0.67 Pr^0.37 (D/T)^0.1 "
+            f"(d_o/T)^0.5, no viscosity or height factor, baffled, turbulent; {MEMORY}", 0.0),),
+    },
+}
+
+
+def coil_alternatives(impeller: str) -> dict[str, tuple[FilmConstants, ...]]:
+    """Every coil constant set of ``impeller`` (or of its stand-in): ``"default"`` and the published others.
+
+    Empty for an impeller with neither published coil constants nor a stand-in (the anchor).
+    """
+    info = impeller_info(impeller)
+    if not info.coil:
+        stand_in = COIL_STAND_INS.get(impeller)
+        if stand_in is None:
+            return {}
+        info = IMPELLERS[stand_in]
+    return {"default": info.coil} | COIL_ALTERNATIVES.get(info.id, {})
+
+
 # Impellers with no published coil constants, and the published impeller whose flow pattern is closest
 # (axial-flow impellers: the propeller; a low-speed radial retreat curve: the flat paddle). The result
 # carries a warning saying so. An anchor sweeps the wall and leaves no room for a coil: it has no stand-in.
@@ -405,14 +438,16 @@ COIL_STAND_INS = {"pitched_blade_turbine": "marine_propeller", "hydrofoil": "mar
 
 def process_film_coil(impeller: str, Re: float, props_bulk: LiquidProperties, mu_wall: float,
                       tank_diameter: float, liquid_height: float, tube_outer_diameter: float,
-                      impeller_diameter: float, baffled: bool = True, factor: float = 1.0) -> ProcessFilm:
+                      impeller_diameter: float, baffled: bool = True, factor: float = 1.0,
+                      alternative: str = "default") -> ProcessFilm:
     """Film coefficient from the vessel contents to the outside of a helical coil [W/(m2 K)].
 
     Published for the disc turbine and the propeller (Oldshue & Gretton 1954 form) and the paddle
     (Chilton, Drew & Jebens 1944, Nu on the tank diameter). Pitched-blade turbines, hydrofoils and
     retreat-curve impellers use the constants of the closest published impeller (``COIL_STAND_INS``)
     with a ``coil_constants_borrowed`` warning; an anchor raises :class:`InputError` on ``vessel.coils``.
-    ``factor`` multiplies the constant a (the margin band's scatter members, a calibration).
+    ``factor`` multiplies the constant a (the margin band's scatter members, a calibration);
+    ``alternative`` names a coil constant set of :func:`coil_alternatives`.
 
     >>> from calc.properties import LiquidProperties
     >>> water = LiquidProperties(298.15, 997.0, 4180.0, 0.00089, 0.6)
@@ -439,7 +474,11 @@ def process_film_coil(impeller: str, Re: float, props_bulk: LiquidProperties, mu
         info = IMPELLERS[stand_in]
     geometry = {"H_over_T": liquid_height / tank_diameter, "D_over_T": impeller_diameter / tank_diameter,
                 "do_over_T": tube_outer_diameter / tank_diameter}
-    return _film(info, info.coil, "helical coil", Re, props_bulk, mu_wall, baffled,
+    options = coil_alternatives(info.id)
+    if alternative not in options:
+        raise InputError("correlations.process_coil", f"no coil constants {alternative!r} for the {info.id}; "
+                                                      f"published: {', '.join(options)}")
+    return _film(info, options[alternative], "helical coil", Re, props_bulk, mu_wall, baffled,
                  {"tank_diameter": tank_diameter, "tube_outer_diameter": tube_outer_diameter},
                  geometry, warnings, factor)
 

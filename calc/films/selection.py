@@ -24,26 +24,78 @@ from calc.validity import Correlation, InputError
 from calc.vessel.agitation import IMPELLERS, FilmConstants
 
 
-@dataclass(frozen=True)
-class Calibration:
-    """A vessel's own measured heat transfer (a Wilson plot, ``calc.fits.wilson``), with its 95 % intervals.
+#: Surfaces a single-point measurement can calibrate, and the factor of CorrelationChoice each one sets.
+MEASURED_SURFACES = {"jacket": "process_factor", "coils": "coil_process_factor"}
 
-    ``process_constant`` is a of Nu = a Re^b Pr^c (mu/mu_w)^0.14 at the wall (Nu = h T/k, no H/T factor:
-    the vessel's own fill); ``remaining_resistance`` (m2 K/W, optional) the wall + fouling + coolant film
-    of the surface it was measured on (the jacket).
+
+@dataclass(frozen=True)
+class Measurement:
+    """A measured UA (or U) of one surface at stated conditions: the single-point calibration's input.
+
+    ``value`` and ``interval`` (95 %, the measurement's stated uncertainty) are W/K for ``quantity = "ua"``
+    and W/(m2 K) on the surface's process-side area for ``"overall_coefficient"``. The conditions are those of
+    the measurement: the charge (often water), the contents' temperature (K), the coolant (fluid, inlet
+    temperature, flow) and the agitator speed (rev/s; None: the vessel's own). ``calc.fits.single_point``
+    backs out what the measurement implies.
     """
 
-    process_constant: float
+    value: float
+    interval: tuple[float, float]
+    process_temperature: float
+    charge: Any
+    coolant: Any
+    quantity: str = "ua"  # or "overall_coefficient"
+    surface: str = "jacket"  # a key of MEASURED_SURFACES
+    agitator_speed: float | None = None
+
+    @property
+    def factor_field(self) -> str:
+        """The field of :class:`CorrelationChoice` the backed-out multiplier sets."""
+        return MEASURED_SURFACES[self.surface]
+
+
+@dataclass(frozen=True)
+class Calibration:
+    """A vessel's own measured heat transfer, with its 95 % intervals.
+
+    Either a Wilson plot (``calc.fits.wilson``): ``process_constant`` is a of Nu = a Re^b Pr^c
+    (mu/mu_w)^0.14 at the wall (Nu = h T/k, no H/T factor: the vessel's own fill) and
+    ``remaining_resistance`` (m2 K/W, optional) the wall + fouling + coolant film of the surface it was
+    measured on (the jacket). Or a single measured UA at stated conditions (``measurement``): the multiplier
+    on the published process-side constant that reproduces it (``factor``, with ``factor_interval`` from the
+    measurement's interval) is backed out by :func:`calc.fits.single_point.resolved` (``basis`` says how).
+    """
+
+    process_constant: float | None = None
     process_constant_interval: tuple[float, float] | None = None
     exponent: float = 2.0 / 3.0
     prandtl_exponent: float = 1.0 / 3.0
     remaining_resistance: float | None = None
     remaining_resistance_interval: tuple[float, float] | None = None
+    measurement: Measurement | None = None
+    factor: float | None = None  # backed out from ``measurement`` (None until resolved)
+    factor_interval: tuple[float, float] | None = None
+    basis: str = ""
 
     def constants(self, a: float | None = None) -> FilmConstants:
-        return FilmConstants("chilton_drew_jebens_1944", self.process_constant if a is None else a, self.exponent,
+        value = self.process_constant if a is None else a
+        if value is None:
+            raise ValueError("a calibration by a measured UA has no fitted constant set")
+        return FilmConstants("chilton_drew_jebens_1944", value, self.exponent,
                              self.prandtl_exponent, 0.14, "calibration: the vessel's own Wilson plot",
                              baffled=None)
+
+    @property
+    def pending(self) -> bool:
+        """A measurement whose factor has not been backed out yet."""
+        return self.measurement is not None and self.factor is None
+
+    @property
+    def summary(self) -> str:
+        """What the calibration changes, for the ``calibrated`` warnings."""
+        if self.measurement is not None:
+            return self.basis or "a measured UA (not yet evaluated)"
+        return f"the vessel's own process constant a = {self.process_constant:.4g} (Wilson plot)"
 
 
 @dataclass(frozen=True)
@@ -54,8 +106,10 @@ class CorrelationChoice:
     annular_jacket: str = "lehrer_1970"  # calc.films.jacket_side.ANNULAR_CORRELATIONS
     channel: str = "curved"  # half pipe and spiral baffle: calc.films.jacket_side.CHANNEL_TREATMENTS
     coil_tube: str = "schmidt_1967"  # coil tubes and curved channels above 2.2e4: coil_side.COIL_CORRELATIONS
+    process_coil: str = "default"  # a key of calc.films.process_side.coil_alternatives(impeller)
     process_factor: float = 1.0  # multiplies the wall's (and bottom head's) process constant a
     coil_process_factor: float = 1.0  # multiplies the coil's process constant a
+    process_fouling_factor: float = 1.0  # multiplies the stated process-side fouling (band: 0 clean, 2 doubled)
     process_constants: FilmConstants | None = None  # a vessel's own fitted wall constants (calibration)
     remaining_resistance: float | None = None  # m2 K/W, jacket wall + fouling + coolant film (calibration)
     calibration: Calibration | None = None  # where the two above come from, with their intervals
@@ -66,8 +120,21 @@ class CorrelationChoice:
 
         if calibration is None:
             return self
+        if calibration.measurement is not None:  # the factor is backed out where the vessel is known
+            chosen = replace(self, calibration=calibration)
+            if calibration.factor is None:
+                return chosen
+            return chosen.with_factor(calibration.measurement.factor_field, calibration.factor)
         return replace(self, process_constants=calibration.constants(), calibration=calibration,
                        remaining_resistance=calibration.remaining_resistance if remaining else None)
+
+    def with_factor(self, name: str, value: float) -> "CorrelationChoice":
+        """This choice with ``name`` (``process_factor`` or ``coil_process_factor``) set to ``value``."""
+        from dataclasses import replace
+
+        if name == "coil_process_factor":
+            return replace(self, coil_process_factor=value)
+        return replace(self, process_factor=value)
 
     def validate(self, impeller: str | None = None) -> "CorrelationChoice":
         """Raise :class:`InputError` naming ``correlations.<field>`` for an unknown option."""
@@ -76,15 +143,19 @@ class CorrelationChoice:
                                      ("coil_tube", self.coil_tube, coil_side.COIL_CORRELATIONS)):
             if value not in options:
                 raise InputError(f"correlations.{name}", f"unknown option {value!r}; known: {', '.join(options)}")
-        for name in ("process_factor", "coil_process_factor"):
+        for name in ("process_factor", "coil_process_factor", "process_fouling_factor"):
             value = getattr(self, name)
-            if not (math.isfinite(value) and value > 0):
+            if not (math.isfinite(value) and (value > 0 or (value == 0 and name == "process_fouling_factor"))):
                 raise InputError(f"correlations.{name}", f"must be a positive number, got {value!r}")
         if impeller is not None and impeller in IMPELLERS:
             walls = process_side.wall_alternatives(impeller)
             if self.process_wall not in walls:
                 raise InputError("correlations.process_wall", f"no wall constants {self.process_wall!r} for the "
                                                               f"{impeller}; published: {', '.join(walls)}")
+            coils = process_side.coil_alternatives(impeller)
+            if coils and self.process_coil not in coils:
+                raise InputError("correlations.process_coil", f"no coil constants {self.process_coil!r} for the "
+                                                              f"{impeller}; published: {', '.join(coils)}")
         return self
 
     def jacket(self, spec: JacketSpec) -> JacketSpec:
@@ -123,6 +194,17 @@ def alternatives() -> list[Alternative]:
                 "process_wall", key, f"{info.name}: " + ("library constants" if key == "default" else key),
                 key == "default", f"vessel wall, impeller {impeller}", "; ".join(dict.fromkeys(c.source for c in bands)),
                 {"Re": [bands[0].re_low, bands[-1].re_high]}, constants))
+    for impeller, info in IMPELLERS.items():
+        for key, bands in process_side.coil_alternatives(impeller).items():
+            coil_constants: dict[str, dict[str, object]] = {
+                f"band_{i}": {"a": c.a, "b": c.b, "c": c.c, "d": c.d, "e": c.height_exponent, "re_low": c.re_low,
+                              "re_high": c.re_high, "equation": process_side.CORRELATIONS[c.correlation].equation}
+                for i, c in enumerate(bands)}
+            out.append(Alternative(
+                "process_coil", key, f"{info.name}, helical coil: " + ("library constants" if key == "default" else key),
+                key == "default", f"outside helical coils, impeller {impeller}",
+                "; ".join(dict.fromkeys(c.source for c in bands)), {"Re": [bands[0].re_low, bands[-1].re_high]},
+                coil_constants))
     for key in jacket_side.ANNULAR_CORRELATIONS:
         entry = jacket_side.CORRELATIONS[key]
         out.append(Alternative("annular_jacket", key, entry.name, key == CorrelationChoice.annular_jacket,

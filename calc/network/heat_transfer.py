@@ -369,8 +369,27 @@ def _outer_diameter(vessel: Vessel) -> float:
     return vessel.shape.diameter + 2.0 * (spec.thickness + lining)
 
 
+def calibrated(vessel: Vessel) -> Vessel:
+    """``vessel`` with a pending single-point calibration resolved (``calc.fits.single_point.resolved``)."""
+    calibration = vessel.correlations.calibration
+    if calibration is None or not calibration.pending:
+        return vessel
+    from calc.fits.single_point import resolved  # the back-out solves this network: imported on use
+
+    return resolved(vessel)
+
+
 def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> Network:
-    """Check the inputs and set up the vessel's network at ``process_temperature`` (K), unsolved."""
+    """Check the inputs and set up the vessel's network at ``process_temperature`` (K), unsolved.
+
+    A single-point calibration (a measured UA at stated conditions) is backed out here first, once per
+    vessel (``calc.fits.single_point``); ``Network.vessel`` carries the result.
+    """
+    vessel = calibrated(vessel)
+    if vessel.correlations.process_fouling_factor != 1.0:  # the margin band's fouling members
+        vessel = replace(vessel, fouling=replace(vessel.fouling, process=vessel.fouling.process
+                                                 * vessel.correlations.process_fouling_factor),
+                         correlations=replace(vessel.correlations, process_fouling_factor=1.0))
     warnings = Warnings()
     if coolant.inlet_temperature >= process_temperature:
         raise InputError("coolant.inlet_temperature",
@@ -442,7 +461,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
             lambda mu_w, _coil=coil: process_side.process_film_coil(
                 agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
                 _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled,
-                factor=choice.coil_process_factor),
+                factor=choice.coil_process_factor, alternative=choice.process_coil),
             lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
                 _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
                 pitch=_coil.pitch, correlation=choice.coil_tube),
@@ -520,14 +539,15 @@ def lumped_exchange(vessel: Vessel, charge: Charge, coolant: Coolant, process_te
     The dynamic balances hold UA constant over a run: films change with the contents' temperature
     and viscosity, so this is the vessel's UA at the state given (normally the start of the run).
     """
+    vessel = calibrated(vessel)
     result = heat_transfer(vessel, charge, coolant, process_temperature)
     warnings = Warnings(result.warnings)
     warnings.add(CalcWarning("ua_held_constant",
                              f"UA = {result.ua:.4g} W/K from the heat-transfer network at "
                              f"{process_temperature - 273.15:.2f} degC is held constant over the simulation"))
     if vessel.correlations.calibration is not None:
-        warnings.add(CalcWarning("calibrated", "calibrated: UA uses the vessel's own measured process constant "
-                                               f"a = {vessel.correlations.calibration.process_constant:.4g}"))
+        warnings.add(CalcWarning("calibrated", "calibrated: UA uses "
+                                               f"{vessel.correlations.calibration.summary}"))
     main = result.stream("jacket") or (result.streams[0] if result.streams else None)
     if main is None:
         return LumpedExchange(0.0, coolant.mass_flow(), coolant.liquid.at(coolant.inlet_temperature).heat_capacity,

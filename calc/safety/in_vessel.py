@@ -38,7 +38,7 @@ def simulate_in_vessel(inp: SimulationInput, given: RunVessel | None) -> Simulat
         return simulate(inp)
     contents = Charge(given.contents, mass=inp.charge.mass)
     # the request's own paths: the vessel and its coolant sit under "vessel", the start state under "charge"
-    with fields_renamed({"vessel": "vessel.vessel", "coolant": "vessel.coolant",
+    with fields_renamed({"vessel": "vessel.vessel", "coolant": "vessel.coolant", "calibration": "vessel.calibration",
                          "process_temperature": "charge.temperature"}):
         exchange = lumped_exchange(given.vessel, contents, given.coolant, inp.charge.temperature)
     jacket = Jacket(exchange.ua, exchange.coolant_flow, exchange.coolant_heat_capacity, exchange.inlet_temperature)
