@@ -93,3 +93,24 @@ def flow_limit(streams, coolant: Coolant) -> FlowLimit:
     if best is None:
         return FlowLimit(None, None, None)
     return FlowLimit(*best)
+
+
+def within_limits(streams, coolant: Coolant) -> bool:
+    """True when the given ``coolant.flow`` keeps every stream within the utility's limits, judged as
+    :func:`flow_limit` judges (properties at the inlet temperature): its limit is then at least the given
+    flow, and a caller that only cuts flows back need not search for it."""
+    maximum = coolant.maximum_mass_flow()
+    if maximum is not None and sum(s.mass_flow for s in streams) > maximum:
+        return False
+    if coolant.available_pressure_drop is None and coolant.maximum_velocity is None:
+        return True
+    props = coolant.liquid.at(coolant.inlet_temperature, field="coolant.inlet_temperature")
+    for stream in streams:
+        if stream.path is None:
+            continue
+        hydraulics = paths.pressure_drop(stream.path, stream.mass_flow, props)
+        if coolant.maximum_velocity is not None and hydraulics.velocity > coolant.maximum_velocity:
+            return False
+        if coolant.available_pressure_drop is not None and hydraulics.pressure_drop > coolant.available_pressure_drop:
+            return False
+    return True
