@@ -19,6 +19,7 @@ from calc.validity import CalcWarning, InputError, Warnings, require_positive
 #: Largest Biot number h t / k of a fin for one-dimensional conduction along it (Incropera & DeWitt, section 3.6,
 #: from memory).
 FIN_BIOT_LIMIT = 0.1
+FIN_BIOT_WARNING = "fin_biot_high"  # one per jacket, whichever of its surfaces exceeds the limit
 #: The half-pipe treatment's sources (:func:`half_pipe_surface_efficiency`).
 HALF_PIPE_SOURCE = ("Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, 6th ed., 2007, Table 3.4 (straight fin, "
                     "adiabatic tip) and eq. 11.3 (overall surface efficiency), from memory; the fin treatment of the "
@@ -424,10 +425,10 @@ def overall_from_layers(h_process, h_service, layers: WallLayers, warnings: Warn
             resistances[name] = resistances[name] / coverage
         biot = layers.wall / face  # h' t / k of the land (t/k is the wall's resistance)
         if not arrays.is_array(biot) and biot > FIN_BIOT_LIMIT and layers.land > 0:
-            warnings.add(CalcWarning("fin_biot_high",
+            warnings.add(CalcWarning(FIN_BIOT_WARNING,
                                      f"half-pipe jacket: the wall between turns is treated as a one-dimensional "
-                                     f"fin, but its Biot number h t/k = {biot:.2g} exceeds {FIN_BIOT_LIMIT:g}; "
-                                     "the fin efficiency is approximate (likely a little optimistic)"))
+                                     f"fin, but its Biot number h t/k exceeds {FIN_BIOT_LIMIT:g}; the fin "
+                                     "efficiency is approximate (likely a little optimistic)"))
     total = sum(resistances.values())
     controlling = ""
     if not arrays.is_array(total):

@@ -340,7 +340,8 @@ def _finish_stream(name: str, surfaces: list[Surface], balance: coolant_balance.
         # The same correlation warns alike on every surface; the wall's verdict is the surface's own.
         warnings.extend_unique(surface.process_film.warnings)
         warnings.extend_unique(surface.service_film.warnings)
-        warnings.extend_unique(CalcWarning(w.code, f"{surface.name.replace('_', ' ')}: {w.message}")
+        warnings.extend_unique(w if w.code == wall.FIN_BIOT_WARNING else
+                               CalcWarning(w.code, f"{surface.name.replace('_', ' ')}: {w.message}")
                                for w in surface.overall.warnings)
     warnings.extend_unique(balance.warnings)
     hydraulics = None
