@@ -174,6 +174,11 @@ def test_candidates_solved_at_once_match_the_scalar_network():
         assert c.overall_coefficient == pytest.approx(scalar.overall_coefficient, rel=1e-9)
         assert c.pressure_drop == pytest.approx(max(s.pressure_drop for s in scalar.streams), rel=1e-9)
         assert set(c.warning_codes) == {w.code for w in scalar.warnings}
+        half_pipe = c.jacket is not None and c.jacket.type == "half_pipe"
+        assert (c.surface_efficiency is not None) == half_pipe
+        if half_pipe:
+            shell = next(s for s in scalar.surfaces if s.name == "jacket_shell")
+            assert c.surface_efficiency == pytest.approx(shell.overall.surface_efficiency, rel=1e-6)
 
 
 def test_a_coil_close_to_a_jacketed_wall_is_flagged(client):

@@ -411,7 +411,7 @@ def _candidate(index: int, setup: _SetUp, result: HeatTransferResult, capacity: 
             key = "jacket" if stream.name == "jacket" else "coil"
             if films[key] is None or surface.name == "jacket_shell":
                 films[key] = surface.process_film.h
-            if surface.name == "jacket_shell":
+            if surface.name == "jacket_shell" and d.jacket is not None and d.jacket.type == "half_pipe":
                 efficiency = surface.overall.surface_efficiency
     feasible = margin is None or margin >= safety_factor
     flow = result.streams[0].mass_flow if result.streams else 0.0
