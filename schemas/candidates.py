@@ -53,6 +53,14 @@ class CandidateSchema(StrictSchema):
     process_film_jacket = Quantity("heat-transfer coefficient", allow_none=True)
     process_film_coil = Quantity("heat-transfer coefficient", allow_none=True)
     warning_codes = fields.List(fields.String())
+    surface_efficiency = fields.Float(allow_none=True, metadata={
+        "description": "half-pipe jackets: overall surface efficiency of the jacketed wall (channel coverage plus "
+                       "the wall between turns as fins; resistances.surface_efficiency of the cooling check)"})
+    # by name: schemas.cooling (which defines it) imports this module
+    margin_band = fields.Nested("MarginBandSchema", allow_none=True, metadata={
+        "description": "the margin over the published alternatives of every resistance, as the cooling check "
+                       "gives it; computed for the smallest feasible design of each type (the recommendation "
+                       "among them), null for the others"})
 
 
 class RecommendationSchema(StrictSchema):

@@ -253,6 +253,17 @@ class ResistancesSchema(StrictSchema):
     service_fouling = _resistance("service_fouling")
     service_film = _resistance("service_film")
     controlling = fields.String()
+    channel_coverage = fields.Float(metadata={
+        "description": "half-pipe jackets: share of the jacketed wall under the coolant channel (wetted width / "
+                       "pitch); the wall, service fouling and coolant film above are referred to the jacketed area "
+                       "through it (GET /v1/correlations, half_pipe_wall). 1: wetted all over"})
+    fin_efficiency = fields.Float(metadata={
+        "description": "half-pipe jackets: tanh(mL)/(mL) of the wall between turns as a straight fin, "
+                       "L = (pitch - width)/2, m = (h'/(k t))^0.5, h' the process film, fouling and lining in series "
+                       "(Incropera & DeWitt, Table 3.4). 1 without lands"})
+    surface_efficiency = fields.Float(metadata={
+        "description": "half-pipe jackets: coverage + (1 - coverage) x fin_efficiency; the conduction along the "
+                       "lands, (1/surface_efficiency - 1)(1/h' ), is in the wall resistance above"})
 
 
 class StreamSchema(StrictSchema):

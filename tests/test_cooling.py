@@ -74,7 +74,8 @@ def test_margin_is_capacity_over_load_and_the_verdict_flips_at_the_safety_factor
     assert just_in.adequate and not just_out.adequate
 
 
-@pytest.mark.parametrize("heat_release", [DOSE, SpecificPower(40.0), SpecificPower(10.0)])
+# 30 W/kg: adequate at a coolant inlet above freezing (40 W/kg was, before the half-pipe fins between turns)
+@pytest.mark.parametrize("heat_release", [DOSE, SpecificPower(30.0), SpecificPower(10.0)])
 def test_each_solved_limit_fed_back_gives_the_safety_factor(heat_release):
     # definition of each limit: the value at which margin == safety factor
     r = check(heat_release, limits=True)

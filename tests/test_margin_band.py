@@ -118,7 +118,9 @@ def test_calibrated_film_and_u_rederived_by_hand(client):
     h = 0.5 * Re ** (2 / 3) * Pr ** (1 / 3) * 0.15 / 1.5
     assert heat["film_coefficients"]["process_jacket"] == pytest.approx(h, rel=1e-9)
     shell = heat["resistances"]
-    assert sum(v for k, v in shell.items() if k not in ("process_film", "controlling")) == pytest.approx(1e-3, rel=1e-9)
+    beyond = ("process_fouling", "lining", "wall", "service_fouling", "service_film")
+    assert sum(shell[k] for k in beyond) == pytest.approx(1e-3, rel=1e-9)
+    assert shell["surface_efficiency"] == 1.0  # an annular jacket wets the whole wall
 
 
 def test_calibrated_band_is_the_fit_interval_and_shrinks_with_it(client):

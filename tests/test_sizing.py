@@ -51,6 +51,12 @@ def test_sizing_answers_ranked_candidates_and_the_recommendation_checks_again(cl
         drops = [s["pressure_drop"] for s in check["heat_transfer"]["streams"]]
         assert max(drops) == pytest.approx(candidate["pressure_drop"], rel=1e-9)
         assert max(drops) <= 1.5e5 * (1 + 1e-9)  # within the utility's available pressure difference
+        # the band is the cooling check's own (calc.checks.margin_band, the same members and load)
+        band = candidate["margin_band"]
+        assert band is not None and band["low"] <= candidate["margin"] <= band["high"]
+        assert (band["low"], band["high"]) == pytest.approx((check["margin_band"]["low"], check["margin_band"]["high"]),
+                                                            rel=1e-9)
+    assert all(c["margin_band"] is None for c in candidates if c["index"] not in smallest.values())
 
 
 def test_every_candidate_respects_the_utility_limits():
@@ -133,6 +139,66 @@ def test_smaller_gap_raises_pressure_drop_and_capacity(flow, gap):
     assert narrow.cooling_capacity > wide.cooling_capacity
 
 
+@given(flow=st.floats(3.0, 12.0), ratio=st.floats(1.2, 2.5), nps=st.sampled_from(["1-1/2", "2", "3"]))
+@settings(max_examples=15, deadline=None, derandomize=True)
+def test_wider_half_pipe_pitch_lowers_capacity_and_pressure_drop(flow, ratio, nps):
+    # The same pipe at a wider pitch: fewer turns (a shorter path: less friction) and less of the wall under the
+    # coolant, the rest reached through the wall as fins (calc.films.wall.half_pipe_surface_efficiency): less
+    # capacity at the same flow (physics; the area is the same jacketed wall).
+    from calc.sizing.pipes import pipe_size
+
+    size = pipe_size(nps)
+    spec = JacketSpec("half_pipe", pipe_diameter=size.inner_diameter("40"), pipe_pitch=ratio * size.outer_diameter)
+    narrow, wide = _evaluate(spec, flow), _evaluate(replace(spec, pipe_pitch=1.15 * spec.pipe_pitch), flow)
+    assert wide.surface_efficiency < narrow.surface_efficiency < 1.0
+    assert wide.pressure_drop < narrow.pressure_drop
+    assert wide.cooling_capacity < narrow.cooling_capacity
+    assert wide.heat_transfer_area == pytest.approx(narrow.heat_transfer_area, rel=1e-12)
+
+
+def test_candidates_solved_at_once_match_the_scalar_network():
+    # The vectorised pass (calc.network.vectorised) against the readable scalar path, candidate by candidate:
+    # the same fixed point to 1e-9 (definition of the two paths), flow-limited candidates at their cut-back flow.
+    from calc.network.heat_transfer import heat_transfer
+
+    options = sizing.SizingOptions(gaps=(0.025, 0.075), baffle_pitches=(0.15,), pipe_sizes=("2", "4"), zones=(1, 3),
+                                   coil_tube_sizes=("1-1/2",))
+    result = sizing.jacket_sizing(SHELL, ARGS["charge"], ARGS["coolant"], ARGS["process_temperature"],
+                                  ARGS["heat_release"], 1.3, options)
+    assert len(result.candidates) >= 10 and any(c.flow_limited for c in result.candidates)
+    for c in result.candidates:
+        design = replace(SHELL, jacket=c.jacket, coils=() if c.coil is None else (c.coil,), coverage=c.coverage)
+        coolant = ARGS["coolant"].with_mass_flow(c.coolant_flow) if c.flow_limited else ARGS["coolant"]
+        scalar = heat_transfer(design, ARGS["charge"], coolant, ARGS["process_temperature"])
+        assert c.cooling_capacity == pytest.approx(scalar.duty, rel=1e-9)
+        assert c.overall_coefficient == pytest.approx(scalar.overall_coefficient, rel=1e-9)
+        assert c.pressure_drop == pytest.approx(max(s.pressure_drop for s in scalar.streams), rel=1e-9)
+        assert set(c.warning_codes) == {w.code for w in scalar.warnings}
+        half_pipe = c.jacket is not None and c.jacket.type == "half_pipe"
+        assert (c.surface_efficiency is not None) == half_pipe
+        if half_pipe:
+            shell = next(s for s in scalar.surfaces if s.name == "jacket_shell")
+            assert c.surface_efficiency == pytest.approx(shell.overall.surface_efficiency, rel=1e-6)
+
+
+def test_a_coil_close_to_a_jacketed_wall_is_flagged(client):
+    # A coil within a tube diameter of the jacketed wall slows the flow along it (common practice, no source);
+    # the wall film is computed as without the coil, so the check says so. A coil into the wall is refused.
+    body = _feed_back({"jacket": {"type": "annular", "gap": "50 mm", "inlet_diameter": "78 mm"}, "coil": None,
+                       "coolant_flow": EXAMPLE["coolant"]["flow"]})
+    close = dict(tube_outer_diameter="48.3 mm", tube_wall="2.77 mm", turns=8, pitch="100 mm")
+    body["vessel"]["coils"] = [dict(close, helix_diameter="1.72 m")]  # 16 mm from the 1.8 m shell
+    codes = [w["code"] for w in client.post("/v1/cooling-check", json=body).json["warnings"]]
+    assert "coil_close_to_wall" in codes
+    body["vessel"]["coils"] = [dict(close, helix_diameter="1.5 m")]  # 126 mm from the wall
+    codes = [w["code"] for w in client.post("/v1/cooling-check", json=body).json["warnings"]]
+    assert "coil_close_to_wall" not in codes
+    body["vessel"]["coils"] = [dict(close, helix_diameter="1.76 m")]  # into the wall
+    response = client.post("/v1/cooling-check", json=body)
+    assert response.status_code == 422
+    assert [e["field"] for e in response.json["errors"]] == ["vessel.coils[0].helix_diameter"]
+
+
 @given(flow=st.floats(3.0, 12.0), zones=st.integers(1, 3), nps=st.sampled_from(["1-1/2", "2", "3"]))
 @settings(max_examples=15, deadline=None, derandomize=True)
 def test_more_zones_lower_pressure_drop_and_capacity(flow, zones, nps):
@@ -209,6 +275,13 @@ def test_readme_walk_through_matches_the_service(client):
     assert f"{body['candidates_evaluated']} candidates are evaluated and {feasible} are feasible" in readme
     assert chosen["description"] == "annular jacket, gap 25 mm, spiral baffle pitch 100 mm"
     assert f"(margin {chosen['margin']:.2f}, {chosen['pressure_drop'] / 1e5:.2f} bar)" in readme
+    band = chosen["margin_band"]
+    assert f"{band['low']:.2f}-{band['high']:.2f} over the published alternatives" in readme
+    best = max((c for c in body["candidates"] if c["type"] == "half_pipe"), key=lambda c: c["margin"])
+    assert not best["feasible"] and best["flow_limited"]
+    assert best["description"] == "half-pipe jacket NPS 1-1/2, pitch 60 mm, 4 parallel zones"
+    assert f"reaches margin {best['margin']:.2f} at {best['pressure_drop'] / 1e5:.2f} bar" in readme
+    assert f"`surface_efficiency` {best['surface_efficiency']:.2f}" in readme
     assert not any(c["feasible"] for c in body["candidates"] if c["type"] == "annular")
 
 

@@ -163,3 +163,75 @@ def test_former_material_id_is_an_alias_with_a_warning(client):
     assert "deprecated_material_id" in {w["code"] for w in former["warnings"]}
     assert "deprecated_material_id" not in {w["code"] for w in current["warnings"]}
     assert "hastelloy_c276" not in {m["id"] for m in client.get("/v1/materials").json["items"]}
+
+
+# ---------------------------------------------------------------- half-pipe channels: the wall between turns as fins
+
+HALF_PIPE_WALL = WallSpec(0.012, "stainless_316l")
+
+
+def test_half_pipe_overall_coefficient_by_hand():
+    # Hand calculation, finned-wall overall coefficient with the overall surface efficiency (Incropera & DeWitt,
+    # 6th ed., Table 3.4 adiabatic-tip fin and eq. 11.3, from memory): flat 12 mm 316L wall (k = 13.4 W/(m K),
+    # library value), h_p = 1000, h_s = 3000 W/(m2 K), no fouling; channels 100 mm wide at 140 mm pitch.
+    #   w/p = 0.714286, L = 0.020 m, m = (1000 / (13.4 x 0.012))^0.5 = 78.8600 1/m, mL = 1.577201,
+    #   tanh(mL) = 0.918164, eta_f = 0.582148, eta_o = 0.714286 + 0.285714 x 0.582148 = 0.880614,
+    #   1/U = 0.001 / 0.880614 + (0.012/13.4 + 1/3000) / 0.714286 = 0.00113557 + 0.00172040 = 0.00285597,
+    #   U = 350.14 W/(m2 K)
+    r = overall_coefficient(1000.0, 3000.0, HALF_PIPE_WALL, channel=(0.1, 0.14))
+    assert r.channel_coverage == pytest.approx(0.714286, rel=1e-6)
+    assert r.fin_efficiency == pytest.approx(0.582148, rel=2e-6)
+    assert r.surface_efficiency == pytest.approx(0.880614, rel=2e-6)
+    assert 1.0 / r.U == pytest.approx(0.00285597, rel=2e-6) and r.U == pytest.approx(350.14, abs=0.01)
+    # the process film keeps its own resistance (its flux meets the face's mean temperature); the fins' share
+    # joins the wall's
+    assert r.resistances["process_film"] == 0.001
+    assert sum(r.resistances.values()) == pytest.approx(1.0 / r.U, rel=1e-12)
+    plain = overall_coefficient(1000.0, 3000.0, HALF_PIPE_WALL)
+    assert plain.surface_efficiency == plain.channel_coverage == 1.0 and r.U < plain.U
+
+
+def test_fin_efficiency_is_the_fin_equation_solved_numerically():
+    # Independent of the closed form: the fin equation theta'' = m^2 theta, theta(0) = 1, theta'(L) = 0 solved
+    # by scipy's boundary-value solver; eta_f = heat through the base / (h' L theta_b) (Incropera sec. 3.6).
+    import numpy as np
+    from scipy.integrate import solve_bvp
+
+    from calc.films.wall import fin_efficiency_straight
+
+    for mL in (0.05, 0.5, 1.5772, 4.0):
+        x = np.linspace(0.0, 1.0, 50)  # in units of L: theta'' = (mL)^2 theta
+        solution = solve_bvp(lambda _, y, mL=mL: np.vstack([y[1], mL ** 2 * y[0]]),
+                             lambda a, b: np.array([a[0] - 1.0, b[1]]), x, np.vstack([np.ones_like(x), -x]),
+                             tol=1e-8)
+        assert solution.success
+        assert fin_efficiency_straight(mL) == pytest.approx(-solution.sol(0.0)[1] / mL ** 2, rel=1e-5)
+        assert fin_efficiency_straight(np.array([mL]))[0] == pytest.approx(fin_efficiency_straight(mL), rel=1e-14)
+
+
+@settings(max_examples=50, deadline=None)
+@given(films, films, st.floats(min_value=0.03, max_value=0.12), st.floats(min_value=1.0, max_value=3.0),
+       st.floats(min_value=1.01, max_value=1.5))
+def test_wider_pitch_at_the_same_channel_gives_less_effective_area(h_p, h_s, width, ratio, wider):
+    # Physics (common practice, no source): at the same channel width, a wider pitch leaves more of the wall
+    # to fins and less under the coolant, so the coverage, the surface efficiency and U all fall.
+    narrow = overall_coefficient(h_p, h_s, HALF_PIPE_WALL, channel=(width, ratio * width))
+    wide = overall_coefficient(h_p, h_s, HALF_PIPE_WALL, channel=(width, wider * ratio * width))
+    assert wide.channel_coverage < narrow.channel_coverage or ratio == 1.0
+    assert wide.surface_efficiency < narrow.surface_efficiency
+    assert wide.fin_efficiency <= narrow.fin_efficiency
+    assert wide.U < narrow.U
+
+
+@settings(max_examples=50, deadline=None)
+@given(films, films, st.floats(min_value=0.03, max_value=0.12), st.floats(min_value=1e-9, max_value=1e-3))
+def test_pitch_down_to_the_channel_width_covers_the_whole_wall(h_p, h_s, width, gap):
+    # Limit (definition): turns that touch leave no land; fin efficiency -> 1, surface efficiency -> 1 and U
+    # -> the wall wetted all over, continuously (no jump where the land vanishes).
+    plain = overall_coefficient(h_p, h_s, HALF_PIPE_WALL)
+    touching = overall_coefficient(h_p, h_s, HALF_PIPE_WALL, channel=(width, width))
+    assert touching.U == pytest.approx(plain.U, rel=1e-12) and touching.surface_efficiency == 1.0
+    near = overall_coefficient(h_p, h_s, HALF_PIPE_WALL, channel=(width, width * (1.0 + gap)))
+    assert 1.0 - 1.01 * gap < near.surface_efficiency <= 1.0
+    assert near.fin_efficiency > 1.0 - gap
+    assert near.U == pytest.approx(plain.U, rel=2.0 * gap)

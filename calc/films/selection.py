@@ -18,7 +18,7 @@ import math
 from dataclasses import dataclass
 from typing import Any
 
-from calc.films import coil_side, jacket_side, process_side
+from calc.films import coil_side, jacket_side, process_side, wall
 from calc.films.jacket_side import JacketSpec
 from calc.validity import Correlation, InputError
 from calc.vessel.agitation import IMPELLERS, FilmConstants
@@ -224,6 +224,14 @@ def alternatives() -> list[Alternative]:
         {"Re_laminar": [None, jacket_side.LAMINAR_LIMIT], "Re_turbulent": [jacket_side.TURBULENT_LIMIT, None]},
         {"laminar": "Nu = max[1.86 (Re Pr De/L)^(1/3), 3.66]", "transition": "linear in Re from 2100 to 1e4",
          "turbulent": "Nu = 0.027 Re^0.8 Pr^(1/3) (1 + 3.5 De/D_c)"}))
+    out.append(Alternative(
+        "half_pipe_wall", "fins", "the wall between half-pipe turns as straight fins (the one treatment)", True,
+        "half-pipe jackets: the jacketed wall's resistances", wall.HALF_PIPE_SOURCE,
+        {"Biot": [None, wall.FIN_BIOT_LIMIT]},
+        {"coverage": "w/p (w the half pipe's wetted width, p the pitch)",
+         "fin_efficiency": "tanh(mL)/(mL), L = (p - w)/2, m = (h'/(k t))^0.5, h' = 1/(1/h_p + R_f,p + R_lining)",
+         "surface_efficiency": "w/p + (1 - w/p) fin_efficiency",
+         "overall": "1/U = (1/h_p + R_f,p + R_lining)/surface_efficiency + (R_wall + R_f,s + 1/h_s)/(w/p)"}))
     for key in coil_side.COIL_CORRELATIONS:
         entry = coil_side.CORRELATIONS[key]
         out.append(Alternative("coil_tube", key, entry.name, key == CorrelationChoice.coil_tube,

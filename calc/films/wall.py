@@ -10,12 +10,20 @@ is R = (1/h or R_f) r_ref / r (Incropera & DeWitt, *Fundamentals of Heat and Mas
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import NamedTuple, cast
 
 from calc import arrays
 from calc.validity import CalcWarning, InputError, Warnings, require_positive
 
+#: Largest Biot number h t / k of a fin for one-dimensional conduction along it (Incropera & DeWitt, section 3.6,
+#: from memory).
+FIN_BIOT_LIMIT = 0.1
+FIN_BIOT_WARNING = "fin_biot_high"  # one per jacket, whichever of its surfaces exceeds the limit
+#: The half-pipe treatment's sources (:func:`half_pipe_surface_efficiency`).
+HALF_PIPE_SOURCE = ("Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, 6th ed., 2007, Table 3.4 (straight fin, "
+                    "adiabatic tip) and eq. 11.3 (overall surface efficiency), from memory; the fin treatment of the "
+                    "wall between half-pipe turns as in Bondy & Lippa, Chem. Eng. 90(7), 62 (1983), from memory")
 #: Order of the resistances from the process to the coolant.
 LAYERS = ("process_film", "process_fouling", "lining", "wall", "service_fouling", "service_film")
 
@@ -105,6 +113,12 @@ class OverallResult:
     reference_radius: float  # m, radius of the process-side surface (inf for a flat wall)
     service_radius: float  # m, radius of the service-side surface
     warnings: Warnings = field(default_factory=Warnings)
+    #: Half-pipe jackets (:func:`half_pipe_surface_efficiency`): the share of the process-side area the coolant
+    #: channel covers, the fin efficiency of the land between turns and the overall surface efficiency; 1 for a
+    #: wall the coolant wets all over. The resistances above already include them.
+    channel_coverage: float = 1.0
+    fin_efficiency: float = 1.0
+    surface_efficiency: float = 1.0
 
 
 @dataclass(frozen=True)
@@ -188,7 +202,7 @@ def _resolve(wall: WallSpec, field_name: str) -> tuple[float, float, float, floa
 
 def overall_coefficient(h_process: float, h_service: float, wall: WallSpec, fouling: Fouling | None = None,
                         process_radius: float = math.inf, process_side: str = "inside",
-                        field_name: str = "vessel.wall") -> OverallResult:
+                        field_name: str = "vessel.wall", channel: tuple[float, float] | None = None) -> OverallResult:
     """Overall heat-transfer coefficient through films, fouling, lining and wall (series resistances).
 
     1/U = 1/h_p + R_f,p + R_lining + R_wall + R_f,s r_p/r_s + (1/h_s) r_p/r_s, each layer term
@@ -212,6 +226,9 @@ def overall_coefficient(h_process: float, h_service: float, wall: WallSpec, foul
         (process outside the tube, coolant inside), [-]
     field_name : str
         Request path of the wall, used in error messages, [-]
+    channel : (float, float), optional
+        Wetted width and pitch of half-pipe channels on the service side, [m]
+        (:func:`half_pipe_surface_efficiency`); None: the coolant wets the whole wall
 
     Returns
     -------
@@ -237,7 +254,7 @@ def overall_coefficient(h_process: float, h_service: float, wall: WallSpec, foul
     """
     require_positive("process_film", h_process)
     require_positive("service_film", h_service)
-    layers, warnings = wall_layers(wall, fouling, process_radius, process_side, field_name)
+    layers, warnings = wall_layers(wall, fouling, process_radius, process_side, field_name, channel)
     return overall_from_layers(h_process, h_service, layers, warnings)
 
 
@@ -251,11 +268,20 @@ class WallLayers(NamedTuple):
     area_ratio: float  # process-side over service-side radius (1 for a flat wall)
     reference_radius: float  # m
     service_radius: float  # m
+    # half-pipe channels welded on the wall (:func:`half_pipe_surface_efficiency`); defaults: wetted all over
+    channel_coverage: float = 1.0  # share of the process-side area under the coolant channel
+    land: float = 0.0  # m, half the width of the wall between neighbouring channels (the fin's length)
+    fin_conductance: float = 1.0  # W/K, conductivity x thickness of the metal wall (the fin's k t)
 
 
 def wall_layers(wall: WallSpec, fouling: Fouling | None = None, process_radius: float = math.inf,
-                process_side: str = "inside", field_name: str = "vessel.wall") -> tuple[WallLayers, Warnings]:
-    """The fixed resistances of :func:`overall_coefficient` (checked once), and the wall's warnings."""
+                process_side: str = "inside", field_name: str = "vessel.wall",
+                channel: tuple[float, float] | None = None) -> tuple[WallLayers, Warnings]:
+    """The fixed resistances of :func:`overall_coefficient` (checked once), and the wall's warnings.
+
+    ``channel`` = (wetted width, pitch) [m] of a half-pipe channel welded on the wall (the coolant wets
+    only that width of every pitch; :func:`half_pipe_surface_efficiency`); None: wetted all over.
+    """
     fouling = Fouling() if fouling is None else fouling
     for side, value in (("process", fouling.process), ("service", fouling.service)):
         if not (math.isfinite(value) and value >= 0):
@@ -280,7 +306,98 @@ def wall_layers(wall: WallSpec, fouling: Fouling | None = None, process_radius: 
     else:
         raise InputError("process_side", f"unknown option {process_side!r}; known: inside, outside")
     area_ratio = 1.0 if math.isinf(r_p) else r_p / r_s  # service surface to process surface, per area
-    return WallLayers(fouling.process, lining, metal, fouling.service * area_ratio, area_ratio, r_p, r_s), warnings
+    coverage, land = 1.0, 0.0
+    if channel is not None:
+        width, pitch = channel
+        coverage, land = min(width / pitch, 1.0), max(pitch - width, 0.0) / 2.0
+    return WallLayers(fouling.process, lining, metal, fouling.service * area_ratio, area_ratio, r_p, r_s,
+                      coverage, land, k * thickness), warnings
+
+
+def fin_efficiency_straight(mL: float) -> float:
+    """Efficiency of a straight fin of uniform section with an adiabatic tip (floats or arrays).
+
+    eta_f = tanh(mL) / (mL),  m = (h P / (k A_c))^0.5;  eta_f -> 1 as mL -> 0
+
+    Parameters
+    ----------
+    mL : float
+        Fin parameter m times the fin length, [-]
+
+    Returns
+    -------
+    eta_f : float
+        Heat the fin transfers over what it would transfer were it all at its base temperature, [-]
+
+    Notes
+    -----
+    One-dimensional conduction along the fin: valid while the fin's Biot number h t / k is small
+    (below about 0.1, Incropera & DeWitt section 3.6, from memory); beyond that the temperature across the
+    fin's thickness varies and the result is approximate (reported by :func:`half_pipe_surface_efficiency`).
+
+    Examples
+    --------
+    >>> round(fin_efficiency_straight(1.0), 6), fin_efficiency_straight(0.0)
+    (0.761594, 1.0)
+
+    References
+    ----------
+    Incropera, F. P.; DeWitt, D. P. *Fundamentals of Heat and Mass Transfer*, 6th ed. Wiley, 2007, Table 3.4
+    (case B, adiabatic tip) and eq. 3.89 (from memory).
+    """
+    if arrays.is_array(mL):
+        import numpy as np
+
+        x = np.asarray(mL, dtype=float)
+        small = x < 1e-6
+        return cast(float, np.where(small, 1.0 - x * x / 3.0, np.tanh(x) / np.where(small, 1.0, x)))
+    return 1.0 - mL * mL / 3.0 if mL < 1e-6 else math.tanh(mL) / mL
+
+
+def half_pipe_surface_efficiency(face_resistance: float, layers: WallLayers) -> tuple[float, float]:
+    """(fin efficiency of the land, overall surface efficiency) of a wall under half-pipe channels.
+
+    A half-pipe jacket wets only the width w under each turn of pitch p: the coolant film acts on the
+    share w/p of the jacketed area, and the wall between turns (the land, p - w wide) passes its heat
+    sideways to the channels as a straight fin of the wall's thickness t, fed on its process face and
+    adiabatic at mid-land (symmetry between two turns):
+
+        L = (p - w)/2,  m = [h' / (k t)]^0.5,  h' = 1/(1/h_p + R_f,p + R_lining),
+        eta_f = tanh(mL)/(mL),  eta_o = w/p + (1 - w/p) eta_f,
+
+    and, referred to the jacketed (process-side) area, the process-face resistances divide by eta_o and the
+    wall, the service fouling and the coolant film by w/p (the overall coefficient of a finned wall with
+    the overall surface efficiency, Incropera & DeWitt eq. 11.3; the channel's base is the wall under it):
+
+        1/U = (1/h_p + R_f,p + R_lining)/eta_o + (R_wall + R_f,s + 1/h_s)/(w/p).
+
+    :func:`overall_from_layers` reports the process film, fouling and lining at their own values (the
+    film's flux then meets the face's mean temperature) and adds the fins' share,
+    (1/eta_o - 1)(1/h_p + R_f,p + R_lining), to the wall's resistance: conduction along the wall.
+
+    ``face_resistance`` = 1/h' (floats or arrays). Smooth in the pitch; at p = w (turns touching) eta_o
+    = 1 and w/p = 1: the wall is wetted all over. The half pipe's own walls, which also conduct heat into
+    the coolant, and conduction along the lining are left out (conservative).
+
+    Examples
+    --------
+    100 mm wide channels at 140 mm pitch on a 12 mm 316L wall (k t = 0.1608 W/K), h' = 500 W/(m2 K):
+    m = (500 / 0.1608)^0.5 = 55.76 1/m, L = 0.02 m, mL = 1.1152, tanh(mL) = 0.8059, eta_f = 0.7226,
+    eta_o = 100/140 + (40/140) 0.7226 = 0.9208
+
+    >>> layers = WallLayers(0.0, 0.0, 0.0, 0.0, 1.0, math.inf, math.inf, 100 / 140, 0.02, 13.4 * 0.012)
+    >>> [round(x, 4) for x in half_pipe_surface_efficiency(1 / 500, layers)]
+    [0.7226, 0.9208]
+
+    References
+    ----------
+    Incropera, F. P.; DeWitt, D. P. *Fundamentals of Heat and Mass Transfer*, 6th ed. Wiley, 2007, Table 3.4
+    and section 11.2, eq. 11.3 (from memory). The fin treatment of the wall between half-pipe turns is
+    the one described for half-pipe jackets by Bondy, F.; Lippa, S. "Heat transfer in agitated vessels".
+    Chem. Eng. 90(7), 62-71 (1983) (from memory; their chart is not reproduced here).
+    """
+    fin = fin_efficiency_straight(layers.land * (1.0 / (face_resistance * layers.fin_conductance)) ** 0.5)
+    return fin, layers.channel_coverage + (1.0 - layers.channel_coverage) * fin
 
 
 def overall_from_layers(h_process: float, h_service: float, layers: WallLayers,
@@ -298,6 +415,21 @@ def overall_from_layers(h_process: float, h_service: float, layers: WallLayers,
         "service_fouling": layers.service_fouling,
         "service_film": layers.area_ratio / h_service,
     }
+    coverage, fin, efficiency = layers.channel_coverage, 1.0, 1.0
+    if arrays.is_array(coverage) or coverage < 1.0:  # half-pipe channels: the wall between turns as fins
+        face = resistances["process_film"] + layers.process_fouling + layers.lining
+        fin, efficiency = half_pipe_surface_efficiency(face, layers)
+        # the films and fouling keep their own resistance (the process film's is on the mean surface temperature
+        # of the face); the conduction along the lands (fins) joins the wall's, through the covered share
+        resistances["wall"] = layers.wall / coverage + (1.0 / efficiency - 1.0) * face
+        for name in LAYERS[4:]:
+            resistances[name] = resistances[name] / coverage
+        biot = layers.wall / face  # h' t / k of the land (t/k is the wall's resistance)
+        if not arrays.is_array(biot) and biot > FIN_BIOT_LIMIT and layers.land > 0:
+            warnings.add(CalcWarning(FIN_BIOT_WARNING,
+                                     f"half-pipe jacket: the wall between turns is treated as a one-dimensional "
+                                     f"fin, but its Biot number h t/k exceeds {FIN_BIOT_LIMIT:g}; the fin "
+                                     "efficiency is approximate (likely a little optimistic)"))
     total = sum(resistances.values())
     controlling = ""
     if not arrays.is_array(total):
@@ -307,7 +439,7 @@ def overall_from_layers(h_process: float, h_service: float, layers: WallLayers,
                                      f"the {controlling} is the largest resistance: better films or colder coolant "
                                      "gain little"))
     return OverallResult(1.0 / total, resistances, controlling, layers.reference_radius, layers.service_radius,
-                         warnings)
+                         warnings, coverage, fin, efficiency)
 
 
 def with_remaining_resistance(result: OverallResult, remaining: float) -> OverallResult:
@@ -329,8 +461,7 @@ def with_remaining_resistance(result: OverallResult, remaining: float) -> Overal
                  for k, v in others.items()}
     resistances = {"process_film": result.resistances["process_film"]} | share
     controlling = "" if arrays.is_array(remaining, total) else max(resistances, key=lambda k: float(resistances[k]))
-    return OverallResult(1.0 / sum(resistances.values()), resistances, controlling, result.reference_radius,
-                         result.service_radius, result.warnings)
+    return replace(result, U=1.0 / sum(resistances.values()), resistances=resistances, controlling=controlling)
 
 
 def interface_temperatures(result: OverallResult, process_temperature: float,

@@ -32,12 +32,16 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 from functools import lru_cache
+from typing import TYPE_CHECKING
 
 from scipy.optimize import brentq
 
 from calc.films.selection import Measurement
 from calc.validity import InputError, fields_renamed
 from calc.vessel.model import Vessel
+
+if TYPE_CHECKING:
+    from calc.network.heat_transfer import HeatTransferResult
 
 #: The bracket of the multiplier on the process-side constant.
 FACTOR_RANGE = (1e-3, 1e3)
@@ -48,7 +52,7 @@ _RENAMED = {"coolant": "calibration.measurement.coolant", "charge": "calibration
             "vessel.agitator.speed": "calibration.measurement.agitator_speed"}
 
 
-def measured_surface(result, surface: str) -> tuple[float, float]:
+def measured_surface(result: HeatTransferResult, surface: str) -> tuple[float, float]:
     """(UA in W/K, process-side area in m2) of the measured ``surface`` ("jacket" or "coils") in a solved network."""
     streams = [s for s in result.streams if (s.name == "jacket") == (surface == "jacket")]
     return sum(s.ua for s in streams), sum(x.area for s in streams for x in s.surfaces)

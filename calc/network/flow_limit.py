@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Sequence
+from typing import Protocol, Sequence
 
 from scipy.optimize import brentq
 
@@ -56,7 +56,18 @@ def _pressure_limit(path: paths.FlowPath, props: LiquidProperties, ratio: float,
     return math.exp(brentq(excess, low, high, xtol=1e-12, rtol=1e-12))
 
 
-def flow_limit(streams: Sequence[Stream], coolant: Coolant) -> FlowLimit:
+class _Flowing(Protocol):
+    """What the limits read of a stream: a solved :class:`Stream` or an assembled ``StreamModel``."""
+
+    @property
+    def name(self) -> str: ...
+    @property
+    def mass_flow(self) -> float: ...
+    @property
+    def path(self) -> paths.FlowPath | None: ...
+
+
+def flow_limit(streams: Sequence[_Flowing], coolant: Coolant) -> FlowLimit:
     """The largest ``coolant.flow`` [kg/s] that keeps every stream (``calc.heat_transfer.Stream``, with its
     path and flow at the given ``coolant.flow``) within the utility's limits.
 
@@ -96,3 +107,24 @@ def flow_limit(streams: Sequence[Stream], coolant: Coolant) -> FlowLimit:
     if best is None:
         return FlowLimit(None, None, None)
     return FlowLimit(*best)
+
+
+def within_limits(streams: Sequence[_Flowing], coolant: Coolant) -> bool:
+    """True when the given ``coolant.flow`` keeps every stream within the utility's limits, judged as
+    :func:`flow_limit` judges (properties at the inlet temperature): its limit is then at least the given
+    flow, and a caller that only cuts flows back need not search for it."""
+    maximum = coolant.maximum_mass_flow()
+    if maximum is not None and sum(s.mass_flow for s in streams) > maximum:
+        return False
+    if coolant.available_pressure_drop is None and coolant.maximum_velocity is None:
+        return True
+    props = coolant.liquid.at(coolant.inlet_temperature, field="coolant.inlet_temperature")
+    for stream in streams:
+        if stream.path is None:
+            continue
+        hydraulics = paths.pressure_drop(stream.path, stream.mass_flow, props)
+        if coolant.maximum_velocity is not None and hydraulics.velocity > coolant.maximum_velocity:
+            return False
+        if coolant.available_pressure_drop is not None and hydraulics.pressure_drop > coolant.available_pressure_drop:
+            return False
+    return True

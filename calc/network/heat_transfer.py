@@ -31,11 +31,14 @@ from calc.films.process_side import ProcessFilm
 from calc.cautions import HEAT_TRANSFER
 from calc.hydraulics import paths
 from calc.properties import LiquidProperties
-from calc.validity import CalcWarning, InputError, Warnings, fields_renamed
+from calc.validity import CalcWarning, InputError, Warnings, fields_renamed, require_positive
 from calc.vessel.model import Charge, Coolant, Vessel
 
 TOLERANCE = 1e-6  # K
 MAX_ITERATIONS = 60
+#: Free space between a coil and the wall, in tube outside diameters, below which the coil shields the jacketed
+#: wall's process film (common practice, no source; the sizing keeps this much, ``calc.sizing.jacket_sizing``).
+COIL_WALL_CLEARANCE = 1.0
 
 
 @dataclass(frozen=True)
@@ -238,6 +241,7 @@ class _SurfaceModel:
     service_film: Callable[..., CoolantFilm]  # props, mu_wall, rho_wall -> coolant film
     service_formula: jacket_side.FilmFormula  # the same coolant film, for arrays of states (vectorised network)
     remaining_resistance: float | None = None  # m2 K/W measured beyond the process film (calibration)
+    channel: tuple[float, float] | None = None  # half pipe: (wetted width, pitch), m; the wall between turns as fins
 
 
 @dataclass(frozen=True)
@@ -301,34 +305,67 @@ def _coolant_state(coolant: Coolant, temperature: float) -> LiquidProperties:
     return coolant.liquid.at(temperature, field="coolant.inlet_temperature")
 
 
+def _freezing_point(coolant: Coolant) -> float | None:
+    return coolant.liquid.liquid_range()[0] if hasattr(coolant.liquid, "liquid_range") else None
+
+
+def _state_at(models: list[_SurfaceModel], charge: Charge, coolant: Coolant, mass_flow: float,
+              process_temperature: float, fouling: wall.Fouling, warnings: Warnings, mean: float,
+              walls: list[tuple[float, float]]) -> tuple[list[Surface], coolant_balance.CoolantBalance]:
+    """A stream's surfaces and coolant balance with the coolant's mean temperature ``mean`` and the wall
+    temperatures ``walls`` ((process side, service side) per surface), K: one step of the iteration."""
+    state = _coolant_state(coolant, mean)
+    surfaces = []
+    for model, (process_wall, service_wall) in zip(models, walls):
+        process_film = model.process_film(_process_viscosity(charge, process_wall, warnings))
+        service_wall_state = _coolant_state(coolant, service_wall)
+        service_film = model.service_film(state, service_wall_state.viscosity, service_wall_state.density)
+        overall = wall.overall_coefficient(process_film.h, service_film.h, model.wall, fouling,
+                                           process_radius=model.process_radius, process_side=model.process_side,
+                                           channel=model.channel)
+        if model.remaining_resistance is not None:
+            overall = wall.with_remaining_resistance(overall, model.remaining_resistance)
+        surfaces.append(Surface(model.name, model.area, process_film, service_film, overall,
+                                process_wall, service_wall))
+    ua = sum(s.ua for s in surfaces)
+    balance = coolant_balance.coolant_balance(process_temperature, coolant.inlet_temperature, ua, mass_flow,
+                                              state.heat_capacity, _freezing_point(coolant))
+    return surfaces, balance
+
+
+def _finish_stream(name: str, surfaces: list[Surface], balance: coolant_balance.CoolantBalance, coolant: Coolant,
+                   mass_flow: float, mean: float, iterations: int, warnings: Warnings,
+                   path: paths.FlowPath | None) -> Stream:
+    """The solved stream: its films' and balance's warnings collected, its pressure drop at ``mean``."""
+    for surface in surfaces:
+        # The same correlation warns alike on every surface; the wall's verdict is the surface's own.
+        warnings.extend_unique(surface.process_film.warnings)
+        warnings.extend_unique(surface.service_film.warnings)
+        warnings.extend_unique(w if w.code == wall.FIN_BIOT_WARNING else
+                               CalcWarning(w.code, f"{surface.name.replace('_', ' ')}: {w.message}")
+                               for w in surface.overall.warnings)
+    warnings.extend_unique(balance.warnings)
+    hydraulics = None
+    if path is not None:
+        hydraulics = paths.pressure_drop(path, mass_flow, _coolant_state(coolant, mean))
+        warnings.extend_unique(CalcWarning(w.code, f"{name} pressure drop: {w.message}") for w in hydraulics.warnings)
+        warnings.extend_unique(paths.limit_warnings(hydraulics, name, coolant.available_pressure_drop,
+                                                    coolant.maximum_velocity))
+    return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations, hydraulics, path)
+
+
 def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolant: Coolant, mass_flow: float,
                   process_temperature: float, fouling: wall.Fouling, warnings: Warnings,
                   path: paths.FlowPath | None = None) -> Stream:
     inlet = coolant.inlet_temperature
-    freezing = None
-    if hasattr(coolant.liquid, "liquid_range"):
-        freezing = coolant.liquid.liquid_range()[0]
     mean = inlet
     walls = [(0.5 * (process_temperature + inlet),) * 2 for _ in models]
     surfaces: list[Surface] = []
     balance = None
     iterations = 0
     for iterations in range(1, MAX_ITERATIONS + 1):  # noqa: B007 - the count after the loop is reported
-        state = _coolant_state(coolant, mean)
-        surfaces = []
-        for model, (process_wall, service_wall) in zip(models, walls):
-            process_film = model.process_film(_process_viscosity(charge, process_wall, warnings))
-            service_wall_state = _coolant_state(coolant, service_wall)
-            service_film = model.service_film(state, service_wall_state.viscosity, service_wall_state.density)
-            overall = wall.overall_coefficient(process_film.h, service_film.h, model.wall, fouling,
-                                               process_radius=model.process_radius, process_side=model.process_side)
-            if model.remaining_resistance is not None:
-                overall = wall.with_remaining_resistance(overall, model.remaining_resistance)
-            surfaces.append(Surface(model.name, model.area, process_film, service_film, overall,
-                                    process_wall, service_wall))
-        ua = sum(s.ua for s in surfaces)
-        balance = coolant_balance.coolant_balance(process_temperature, inlet, ua, mass_flow,
-                                                         state.heat_capacity, freezing)
+        surfaces, balance = _state_at(models, charge, coolant, mass_flow, process_temperature, fouling, warnings,
+                                      mean, walls)
         new_mean = 0.5 * (inlet + balance.outlet_temperature)
         new_walls = []
         for surface in surfaces:
@@ -343,21 +380,21 @@ def _solve_stream(name: str, models: list[_SurfaceModel], charge: Charge, coolan
         warnings.add(CalcWarning("iteration_not_converged",
                                  f"{name}: coolant and wall temperatures did not settle within "
                                  f"{MAX_ITERATIONS} iterations; results are approximate"))
-    for surface in surfaces:
-        # The same correlation warns alike on every surface; the wall's verdict is the surface's own.
-        warnings.extend_unique(surface.process_film.warnings)
-        warnings.extend_unique(surface.service_film.warnings)
-        warnings.extend_unique(CalcWarning(w.code, f"{surface.name.replace('_', ' ')}: {w.message}")
-                               for w in surface.overall.warnings)
     assert balance is not None  # MAX_ITERATIONS >= 1: the loop ran
-    warnings.extend_unique(balance.warnings)
-    hydraulics = None
-    if path is not None:
-        hydraulics = paths.pressure_drop(path, mass_flow, _coolant_state(coolant, mean))
-        warnings.extend_unique(CalcWarning(w.code, f"{name} pressure drop: {w.message}") for w in hydraulics.warnings)
-        warnings.extend_unique(paths.limit_warnings(hydraulics, name, coolant.available_pressure_drop,
-                                                    coolant.maximum_velocity))
-    return Stream(name, mass_flow, tuple(surfaces), balance, mean, iterations, hydraulics, path)
+    return _finish_stream(name, surfaces, balance, coolant, mass_flow, mean, iterations, warnings, path)
+
+
+def stream_at(network: Network, index: int, mean: float, walls: list[tuple[float, float]], iterations: int,
+              warnings: Warnings) -> Stream:
+    """Stream ``index`` of ``network`` evaluated once at a state the vectorised network solved (coolant mean
+    temperature and wall temperatures, K): films, balance, warnings and pressure drop as the scalar path
+    reports them. Its duty agrees with the scalar solve to the iteration's tolerance (the vectorised
+    result's own duty is the scalar one's to 1e-9)."""
+    stream = network.streams[index]
+    surfaces, balance = _state_at(list(stream.surfaces), network.charge, network.coolant, stream.mass_flow,
+                                  network.process_temperature, network.vessel.fouling, warnings, mean, walls)
+    return _finish_stream(stream.name, surfaces, balance, network.coolant, stream.mass_flow, mean, iterations,
+                          warnings, stream.path)
 
 
 def _outer_diameter(vessel: Vessel) -> float:
@@ -420,12 +457,20 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         outer = _outer_diameter(vessel)
 
         chosen_jacket = choice.jacket(jacket)
+        jacket_formula, geometry_warnings = jacket_side.jacket_film_formula(chosen_jacket, outer,
+                                                                            max(jacket_height, 1e-3))
+        jacket_flow = require_positive("coolant.flow", coolant.mass_flow())
 
         def service(props_c: LiquidProperties, mu_w: float, rho_w: float | None,
-                    _jacket: jacket_side.JacketSpec = chosen_jacket) -> CoolantFilm:
-            return jacket_side.service_film_jacket(_jacket, props_c, coolant.mass_flow(), mu_w, outer,
-                                                    max(jacket_height, 1e-3), rho_wall=rho_w)
-        jacket_formula, _ = jacket_side.jacket_film_formula(chosen_jacket, outer, max(jacket_height, 1e-3))
+                    _formula: jacket_side.FilmFormula = jacket_formula) -> CoolantFilm:
+            # jacket_side.service_film_jacket with the geometry checked once, here
+            return _formula.film(props_c, jacket_flow, require_positive("coolant", mu_w), rho_w,
+                                 Warnings(geometry_warnings))
+        channel = None  # a half pipe wets only its width of every pitch; the wall between turns acts as fins
+        if chosen_jacket.type == "half_pipe":
+            assert chosen_jacket.pipe_diameter is not None and chosen_jacket.pipe_pitch is not None  # schema-checked
+            channel = (chosen_jacket.pipe_diameter * math.sin(chosen_jacket.pipe_section_angle / 2.0),
+                       chosen_jacket.pipe_pitch)
 
         models = []
         for name, area, surface, radius in (("jacket_shell", shell_area, "wall", shape.diameter / 2.0),
@@ -438,7 +483,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
                     agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
                     baffled=agitator.baffled, surface=_surface, alternative=choice.process_wall,
                     factor=choice.process_factor, constants=choice.process_constants),
-                service, jacket_formula, choice.remaining_resistance))
+                service, jacket_formula, choice.remaining_resistance, channel))
         streams.append(StreamModel("jacket", coolant.mass_flow(), tuple(models),
                                    paths.jacket_path(jacket, outer, max(jacket_height, 1e-3))))
     elif vessel.jacket is not None:
@@ -450,6 +495,13 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         coil_area_total += area
         if area <= 0:
             continue
+        gap = (shape.diameter - coil.helix_diameter - coil.tube_outer_diameter) / 2.0
+        if jacket is not None and gap < COIL_WALL_CLEARANCE * coil.tube_outer_diameter:
+            warnings.add(CalcWarning(
+                "coil_close_to_wall",
+                f"coil {index}: {gap * 1e3:.3g} mm between the tube and the wall, less than "
+                f"{COIL_WALL_CLEARANCE:g} tube diameter: the coil slows the flow along the jacketed wall, whose "
+                "process film is computed as without the coil (optimistic there; common practice, no source)"))
         coil_wall = replace(vessel.wall, thickness=coil.tube_wall, lining_thickness=0.0, lining_conductivity=None)
         if wall.material(coil_wall.material).lining_thickness:  # a glass-lined vessel's coils are alloy
             coil_wall = replace(coil_wall, material="stainless_316l")

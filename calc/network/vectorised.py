@@ -23,7 +23,8 @@ Entry points
     assembled once.
 
 Both return :class:`ManyResult`: arrays of duty, UA, area, outlet temperature of the main stream,
-iterations and a convergence flag, one element per state. Warnings are not collected per element (a
+iterations and a convergence flag, one element per state; ``rows`` (:class:`StreamRows`) holds each
+stream's flow, duty, UA, outlet and mean temperature and each surface's wall temperatures. Warnings are not collected per element (a
 grid of 2,500 points would repeat the same few thousands of times): the assembly's warnings are on
 each network, and a caller that reports one state in full runs the scalar path there.
 
@@ -57,9 +58,29 @@ class ManyResult:
     controlling: np.ndarray  # the largest resistance on the surface with the most U A ("none": no surface)
     networks: tuple[Network, ...]
     network_index: np.ndarray  # which network each state solved
+    rows: StreamRows | None = None  # every stream and surface of every state (None when nothing is wetted)
 
     def __len__(self) -> int:
         return len(self.duty)
+
+
+@dataclass(frozen=True)
+class StreamRows:
+    """The solved streams and surfaces of every state (SI units), for callers that report streams one by one.
+
+    Stream rows are grouped by state in the order of each network's streams (``Network.streams``); surface
+    rows are grouped by stream in each stream's own order. ``state`` and ``stream`` index back.
+    """
+
+    state: np.ndarray  # per stream row: the state it belongs to
+    mass_flow: np.ndarray  # kg/s
+    duty: np.ndarray  # W
+    ua: np.ndarray  # W/K
+    outlet_temperature: np.ndarray  # K
+    mean_temperature: np.ndarray  # K, the coolant's mean temperature (its properties are taken there)
+    stream: np.ndarray  # per surface row: its stream row
+    process_wall_temperature: np.ndarray  # K
+    service_wall_temperature: np.ndarray  # K
 
 
 def _range(liquid) -> tuple[float, float]:
@@ -154,7 +175,7 @@ class Prepared:
                 for model in stream.surfaces:
                     film = model.process_film(props.viscosity)  # at ratio 1: the correlation's other arguments
                     layer, _ = wall.wall_layers(model.wall, network.vessel.fouling, model.process_radius,
-                                                model.process_side)
+                                                model.process_side, channel=model.channel)
                     surfaces.append(len(surfaces_t))
                     surfaces_t.append((streams[-1], model.area, charge_i, props, film, model.service_formula, layer,
                                        model.remaining_resistance))
@@ -378,8 +399,9 @@ class Prepared:
         layers = np.array([np.broadcast_to(overall.resistances[name], sid.shape) for name in wall.LAYERS])
         controlling = np.full(size, "none", dtype=object)
         controlling[row_state[first]] = np.array(wall.LAYERS, dtype=object)[np.argmax(layers[:, first], axis=0)]
+        rows = StreamRows(stream_state, m, duty, ua, outlet, mean, sid, process_wall, service_wall)
         return ManyResult(total_duty, total_ua, total_area, main_outlet, most, ~unsettled, controlling,
-                          self.networks, network_index)
+                          self.networks, network_index, rows)
 
 
 def solve_many(networks: Sequence[Network], network_index=None, inlet_temperature=None,

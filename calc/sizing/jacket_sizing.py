@@ -33,13 +33,20 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field, replace
 
+from typing import Any, NamedTuple
+
+import numpy as np
+
 from calc.cautions import COOLING_CHECK
 from calc.checks.cooling_check import charge_mass, check_cautions, margin_of
 from calc.checks.heat_load import HeatLoad, HeatRelease, heat_load
+from calc.checks.margin_band import MarginBand, margin_band
 from calc.deadline import NEVER, Deadline
 from calc.films.jacket_side import JacketSpec
-from calc.network.flow_limit import flow_limit
-from calc.network.heat_transfer import HeatTransferResult, assemble, heat_transfer
+from calc.network.flow_limit import FlowLimit, flow_limit, within_limits
+from calc.network.heat_transfer import (COIL_WALL_CLEARANCE, MAX_ITERATIONS, HeatTransferResult, Network, assemble,
+                                        stream_at)
+from calc.network.vectorised import Prepared
 from calc.sizing import pipes
 from calc.validity import CalcWarning, InputError, Warnings
 from calc.vessel import geometry
@@ -52,7 +59,7 @@ PREFERENCE = ("annular", "annular_spiral_baffle", "half_pipe", "jacket_and_coil"
 NOZZLE_VELOCITY = 2.5  # m/s, common practice, no source
 PITCH_RATIOS = (1.25, 1.5, 2.0)  # half-pipe pitch over the pipe's outside diameter, common practice
 COIL_PITCH_RATIO = 2.0  # coil pitch over tube OD, common practice, no source
-COIL_CLEARANCE_RATIO = 1.0  # free space on each side of a coil tube, in tube ODs, common practice
+COIL_CLEARANCE_RATIO = COIL_WALL_CLEARANCE  # free space on each side of a coil tube, in tube ODs, common practice
 TURN_FRACTIONS = (0.25, 0.5, 0.75, 1.0)
 HALF_PIPE_SCHEDULE, COIL_SCHEDULE = "40", "10S"
 DEFAULT_COIL_TUBE_SIZES = ("1", "1-1/2", "2", "3")
@@ -109,9 +116,15 @@ class Candidate:
     reason: str
     warning_codes: tuple[str, ...] = ()
     coverage: geometry.JacketCoverage = field(default_factory=geometry.JacketCoverage)
+    #: half pipes: the overall surface efficiency of the jacketed wall (channel coverage and the fins between
+    #: turns, :func:`calc.films.wall.half_pipe_surface_efficiency`); None for other designs
+    surface_efficiency: float | None = None
+    #: the margin over the published alternatives of every resistance (:mod:`calc.checks.margin_band`): given for
+    #: the smallest feasible design of each type (so for the recommendation), None for the others
+    margin_band: MarginBand | None = None
 
     @property
-    def jacket_geometry(self) -> dict | None:
+    def jacket_geometry(self) -> dict[str, Any] | None:
         """The jacket as a request's ``vessel.jacket`` gives it (so the design can be checked again)."""
         if self.jacket is None:
             return None
@@ -147,7 +160,7 @@ class SmallestFeasible:
 class JacketSizing:
     candidates: tuple[Candidate, ...]
     recommendation: Recommendation
-    smallest_feasible: dict  # type -> candidate index or None
+    smallest_feasible: dict[str, int | None]  # type -> candidate index or None
     heat_load: HeatLoad | None
     duty: float  # W, heat load x safety factor
     safety_factor: float
@@ -271,7 +284,7 @@ def _coils(vessel: Vessel, charge: Charge, process_temperature: float, options: 
 def _jackets(vessel: Vessel, coolant: Coolant, options: SizingOptions) -> list[tuple[str, str | None, JacketSpec]]:
     volume_flow = coolant.mass_flow() / coolant.liquid.at(coolant.inlet_temperature).density
     nozzle = pipes.nozzle_for(volume_flow, NOZZLE_VELOCITY).inner_diameter("40")
-    out = []
+    out: list[tuple[str, str | None, JacketSpec]] = []
     if "annular" in options.types:
         out += [("annular", None, JacketSpec("annular", gap=g, inlet_diameter=nozzle)) for g in options.gaps]
     if "annular_spiral_baffle" in options.types:
@@ -294,51 +307,117 @@ def _jackets(vessel: Vessel, coolant: Coolant, options: SizingOptions) -> list[t
 def describe(jacket: JacketSpec | None, coil: geometry.HelicalCoil | None, nps: str | None,
              coil_nps: str | None) -> str:
     parts = []
+    mm = {name: 1e3 * (getattr(jacket, name, None) or 0.0) for name in ("gap", "baffle_pitch", "pipe_pitch")}
     if jacket is not None and jacket.type == "annular":
-        parts.append(f"annular jacket, gap {jacket.gap * 1e3:.0f} mm")
+        parts.append(f"annular jacket, gap {mm['gap']:.0f} mm")
     elif jacket is not None and jacket.type == "annular_spiral_baffle":
-        parts.append(f"annular jacket, gap {jacket.gap * 1e3:.0f} mm, spiral baffle pitch {jacket.baffle_pitch * 1e3:.0f} mm")
+        parts.append(f"annular jacket, gap {mm['gap']:.0f} mm, spiral baffle pitch {mm['baffle_pitch']:.0f} mm")
     elif jacket is not None:
         zones = "1 zone" if jacket.passes == 1 else f"{jacket.passes} parallel zones"
-        parts.append(f"half-pipe jacket NPS {nps}, pitch {jacket.pipe_pitch * 1e3:.0f} mm, {zones}")
+        parts.append(f"half-pipe jacket NPS {nps}, pitch {mm['pipe_pitch']:.0f} mm, {zones}")
     if coil is not None:
         parts.append(f"coil NPS {coil_nps}, {coil.turns:g} turns on {coil.helix_diameter:.3g} m")
     return " + ".join(parts)
 
 
-def evaluate_candidate(index: int, kind: str, vessel: Vessel, charge: Charge, coolant: Coolant,
-                       process_temperature: float, heat_release: HeatRelease, safety_factor: float,
-                       jacket: JacketSpec | None, coil: geometry.HelicalCoil | None, nps: str | None = None,
-                       coil_nps: str | None = None) -> tuple[Candidate, HeatTransferResult | None, HeatLoad | None]:
-    """Evaluate one design at the utility's flow, cut back to what the utility can push."""
-    description = describe(jacket, coil, nps, coil_nps)
-    design = replace(vessel, jacket=jacket, coils=() if coil is None else (coil,))
+@dataclass(frozen=True)
+class Design:
+    """One candidate design before evaluation: a jacket, a coil or both, with the nominal sizes named."""
+
+    kind: str
+    jacket: JacketSpec | None
+    coil: geometry.HelicalCoil | None
+    nps: str | None = None
+    coil_nps: str | None = None
+
+
+@dataclass(frozen=True)
+class _SetUp:
+    """A design's network assembled at the flow the utility can push through it (or why it cannot be)."""
+
+    design: Design
+    vessel: Vessel
+    network: Network | None
+    limit: FlowLimit | None
+    limited: bool
+    error: str | None
+
+
+def _set_up(design: Design, shell: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> _SetUp:
+    vessel = replace(shell, jacket=design.jacket, coils=() if design.coil is None else (design.coil,))
     try:
-        # the flow limit needs only the paths (no solve): solve once, at the flow the utility can push
-        limit = flow_limit(assemble(design, charge, coolant, process_temperature).streams, coolant)
-        limited = limit.mass_flow is not None and limit.mass_flow < coolant.mass_flow() * (1.0 - 1e-9)
+        network = assemble(vessel, charge, coolant, process_temperature)
+        # the flow limit needs only the paths (no solve): the network is assembled again at the flow it allows
+        limit = None if within_limits(network.streams, coolant) else flow_limit(network.streams, coolant)
+        limited = limit is not None and limit.mass_flow is not None and \
+            limit.mass_flow < coolant.mass_flow() * (1.0 - 1e-9)
         if limited:
-            coolant = coolant.with_mass_flow(limit.mass_flow)
-        result = heat_transfer(design, charge, coolant, process_temperature)
+            assert limit is not None and limit.mass_flow is not None
+            network = assemble(vessel, charge, coolant.with_mass_flow(limit.mass_flow), process_temperature)
     except InputError as exc:
-        return Candidate(index, kind, description, jacket, coil, nps or coil_nps, 0.0, 0.0, 0.0, None, 0.0, 0.0,
-                         0.0, 0.0, 0.0, 0.0, 0.0, None, None, False, False, f"not evaluated: {exc.message}", (),
-                         vessel.coverage), None, None
-    load = heat_load(heat_release, charge_mass(result), process_temperature, result.agitation.power)
-    capacity = result.duty
+        return _SetUp(design, vessel, None, None, False, exc.message)
+    return _SetUp(design, vessel, network, limit, limited, None)
+
+
+def _solved(setups: list[_SetUp]) -> dict[int, tuple[HeatTransferResult, float]]:
+    """Every assembled design solved in one pass of the vectorised network: position in ``setups`` ->
+    (the result stream by stream, evaluated once at the solved state; the solved duty, W)."""
+    ready = [i for i, s in enumerate(setups) if s.network is not None]
+    if not ready:
+        return {}
+    networks = [n for n in (setups[i].network for i in ready) if n is not None]
+    many = Prepared(networks).solve()
+    rows = many.rows
+    out: dict[int, tuple[HeatTransferResult, float]] = {}
+    stream_first = np.searchsorted(rows.state, np.arange(len(ready))) if rows is not None else None
+    surface_first = np.searchsorted(rows.stream, np.arange(rows.state.size)) if rows is not None else None
+    for k, i in enumerate(ready):
+        network = networks[k]
+        warnings = Warnings(network.warnings)
+        streams = []
+        for j, model in enumerate(network.streams):
+            assert rows is not None and stream_first is not None and surface_first is not None
+            row = int(stream_first[k]) + j
+            first = int(surface_first[row])
+            walls = [(float(rows.process_wall_temperature[first + n]), float(rows.service_wall_temperature[first + n]))
+                     for n in range(len(model.surfaces))]
+            streams.append(stream_at(network, j, float(rows.mean_temperature[row]), walls, int(many.iterations[k]),
+                                     warnings))
+        if not bool(many.converged[k]):
+            warnings.add(CalcWarning("iteration_not_converged", "coolant and wall temperatures did not settle within "
+                                                                f"{MAX_ITERATIONS} iterations; results are approximate"))
+        out[i] = (HeatTransferResult(network.process_temperature, network.process_properties, network.fill,
+                                     network.agitation, tuple(streams), warnings), float(many.duty[k]))
+    return out
+
+
+def _not_evaluated(index: int, setup: _SetUp, coverage: geometry.JacketCoverage) -> Candidate:
+    d = setup.design
+    return Candidate(index, d.kind, describe(d.jacket, d.coil, d.nps, d.coil_nps), d.jacket, d.coil,
+                     d.nps or d.coil_nps, 0.0, 0.0, 0.0, None, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, None, None, False,
+                     False, f"not evaluated: {setup.error}", (), coverage)
+
+
+def _candidate(index: int, setup: _SetUp, result: HeatTransferResult, capacity: float, load: HeatLoad,
+               safety_factor: float, coverage: geometry.JacketCoverage) -> Candidate:
+    d = setup.design
     margin = margin_of(capacity, load.total)
     streams = [s for s in result.streams if s.hydraulics is not None]
-    worst = max(streams, key=lambda s: s.pressure_drop) if streams else None
-    films = {"jacket": None, "coil": None}
+    worst = max(streams, key=lambda s: s.pressure_drop or 0.0) if streams else None
+    films: dict[str, float | None] = {"jacket": None, "coil": None}
+    efficiency = None
     for stream in result.streams:
         for surface in stream.surfaces:
             key = "jacket" if stream.name == "jacket" else "coil"
             if films[key] is None or surface.name == "jacket_shell":
                 films[key] = surface.process_film.h
+            if surface.name == "jacket_shell" and d.jacket is not None and d.jacket.type == "half_pipe":
+                efficiency = surface.overall.surface_efficiency
     feasible = margin is None or margin >= safety_factor
     flow = result.streams[0].mass_flow if result.streams else 0.0
-    at = (f"at {flow:.3g} kg/s" + (f" (cut back by {limit.reason})" if limited else "")
-          + (f", {worst.pressure_drop / 1e5:.3g} bar" if worst is not None else ""))
+    drop = 0.0 if worst is None else (worst.pressure_drop or 0.0)
+    at = (f"at {flow:.3g} kg/s" + (f" (cut back by {setup.limit.reason})" if setup.limited and setup.limit else "")
+          + (f", {drop / 1e5:.3g} bar" if worst is not None else ""))
     if margin is None:
         reason = "no net heat load to remove"
     elif feasible:
@@ -347,20 +426,63 @@ def evaluate_candidate(index: int, kind: str, vessel: Vessel, charge: Charge, co
         reason = (f"falls short: capacity {capacity / 1e3:.4g} kW against {safety_factor:g} x "
                   f"{load.total / 1e3:.4g} kW (margin {margin:.3g}) {at}")
     codes = tuple(dict.fromkeys(w.code for w in result.warnings))
-    candidate = Candidate(
-        index, kind, description, jacket, coil, nps or coil_nps, result.area, result.overall_coefficient, capacity,
-        margin, flow, sum(s.mass_flow for s in result.streams),
-        max((s.velocity for s in streams), default=0.0), 0.0 if worst is None else worst.pressure_drop,
-        0.0 if worst is None else worst.path_length, result.fill.displaced_volume,
-        sum(s.path.area * s.path.length * s.path.branches for s in streams), films["jacket"], films["coil"],
-        limited, feasible, reason, codes, vessel.coverage)
-    return candidate, result, load
+    return Candidate(
+        index, d.kind, describe(d.jacket, d.coil, d.nps, d.coil_nps), d.jacket, d.coil, d.nps or d.coil_nps,
+        result.area, result.ua / result.area if result.area > 0 else 0.0, capacity, margin, flow,
+        sum(s.mass_flow for s in result.streams), max((s.velocity or 0.0 for s in streams), default=0.0), drop,
+        0.0 if worst is None else (worst.path_length or 0.0), result.fill.displaced_volume,
+        sum(s.path.area * s.path.length * s.path.branches for s in streams if s.path is not None), films["jacket"],
+        films["coil"], setup.limited, feasible, reason, codes, coverage, surface_efficiency=efficiency)
+
+
+def _load(heat_release: HeatRelease, result: HeatTransferResult, process_temperature: float) -> HeatLoad:
+    return heat_load(heat_release, charge_mass(result), process_temperature, result.agitation.power)
+
+
+class Evaluated(NamedTuple):
+    candidate: Candidate
+    result: HeatTransferResult | None  # None: not evaluated
+    load: HeatLoad | None
+    network: Network | None  # as solved (at the flow the utility can push)
+
+
+def evaluate_designs(designs: list[Design], vessel: Vessel, charge: Charge, coolant: Coolant,
+                     process_temperature: float, heat_release: HeatRelease, safety_factor: float, first_index: int = 0,
+                     deadline: Deadline = NEVER) -> list[Evaluated]:
+    """Evaluate designs at the utility's flow, each cut back to what the utility can push through it: every
+    network assembled (one by one, checking ``deadline``), then all solved in one vectorised pass."""
+    setups = []
+    for design in designs:
+        deadline.check()
+        setups.append(_set_up(design, vessel, charge, coolant, process_temperature))
+    deadline.check()
+    solved = _solved(setups)
+    out: list[Evaluated] = []
+    for i, setup in enumerate(setups):
+        if i not in solved:
+            out.append(Evaluated(_not_evaluated(first_index + i, setup, vessel.coverage), None, None, None))
+            continue
+        result, capacity = solved[i]
+        load = _load(heat_release, result, process_temperature)
+        out.append(Evaluated(_candidate(first_index + i, setup, result, capacity, load, safety_factor,
+                                        vessel.coverage), result, load, setup.network))
+    return out
+
+
+def evaluate_candidate(index: int, kind: str, vessel: Vessel, charge: Charge, coolant: Coolant,
+                       process_temperature: float, heat_release: HeatRelease, safety_factor: float,
+                       jacket: JacketSpec | None, coil: geometry.HelicalCoil | None, nps: str | None = None,
+                       coil_nps: str | None = None) -> tuple[Candidate, HeatTransferResult | None, HeatLoad | None]:
+    """Evaluate one design at the utility's flow, cut back to what the utility can push."""
+    evaluated = evaluate_designs([Design(kind, jacket, coil, nps, coil_nps)], vessel, charge, coolant,
+                                 process_temperature, heat_release, safety_factor, index)[0]
+    return evaluated.candidate, evaluated.result, evaluated.load
 
 
 # ---------------------------------------------------------------- the whole sizing
 
 
-def _rank_key(candidate: Candidate) -> tuple:
+def _rank_key(candidate: Candidate) -> tuple[float, int, float, float, int]:
     return (round(candidate.heat_transfer_area, 6), PREFERENCE.index(candidate.type), round(candidate.holdup_volume, 6),
             candidate.pressure_drop, candidate.index)
 
@@ -382,18 +504,6 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     # what no design changes (coolant colder than the contents, the charge fits, the agitator) is checked once
     # here, so it is refused as the request's error rather than reported against every candidate
     assemble(shell, charge, coolant, process_temperature)  # its warnings are each candidate's
-    candidates: list[Candidate] = []
-    load = None
-
-    def add(kind, jacket, coil, nps=None, coil_nps=None):
-        nonlocal load
-        deadline.check()
-        candidate, _, this_load = evaluate_candidate(len(candidates), kind, shell, charge, coolant, process_temperature,
-                                                     heat_release, safety_factor, jacket, coil, nps, coil_nps)
-        load = load or this_load
-        candidates.append(candidate)
-        return candidate
-
     jackets = _jackets(shell, coolant, options)
     coils = _coils(shell, charge, process_temperature, options, warnings) \
         if any(t in options.types for t in ("coil", "jacket_and_coil")) else []
@@ -401,20 +511,25 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     if most > MAX_CANDIDATES:
         raise InputError("options", f"up to {most} candidates: at most {MAX_CANDIDATES} per sizing; "
                                     "give shorter lists")
-    for kind, nps, jacket in jackets:
-        add(kind, jacket, None, nps)
+    designs = [Design(kind, jacket, None, nps) for kind, nps, jacket in jackets]
     if "coil" in options.types:
-        for coil_nps, coil in coils:
-            add("coil", None, coil, None, coil_nps)
-    jackets_alone = [c for c in candidates if c.type in JACKET_TYPES]
+        designs += [Design("coil", None, coil, None, coil_nps) for coil_nps, coil in coils]
+    evaluated = evaluate_designs(designs, shell, charge, coolant, process_temperature, heat_release, safety_factor,
+                                 deadline=deadline)
+    jackets_alone = [e.candidate for e in evaluated if e.candidate.type in JACKET_TYPES]
     if "jacket_and_coil" in options.types and not any(c.feasible for c in jackets_alone):
+        combos = []
         for kind in JACKET_TYPES:
             of_kind = [c for c in jackets_alone if c.type == kind and c.cooling_capacity > 0]
             if not of_kind:
                 continue
             best = max(of_kind, key=lambda c: c.cooling_capacity)
-            for coil_nps, coil in coils:
-                add("jacket_and_coil", best.jacket, coil, best.pipe_size if kind == "half_pipe" else None, coil_nps)
+            combos += [Design("jacket_and_coil", best.jacket, coil, best.pipe_size if kind == "half_pipe" else None,
+                              coil_nps) for coil_nps, coil in coils]
+        evaluated += evaluate_designs(combos, shell, charge, coolant, process_temperature, heat_release,
+                                      safety_factor, len(evaluated), deadline)
+    candidates = [e.candidate for e in evaluated]
+    load = next((e.load for e in evaluated if e.load is not None), None)
     if not candidates:
         raise InputError("options.types", "no candidate to evaluate: choose at least one type")
     if any(c.type == "jacket_and_coil" for c in candidates):
@@ -426,15 +541,27 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     for kind in TYPES:
         feasible = [c for c in candidates if c.type == kind and c.feasible]
         smallest[kind] = min(feasible, key=_rank_key).index if feasible else None
+    for index in dict.fromkeys(i for i in smallest.values() if i is not None):
+        deadline.check()
+        candidates[index] = replace(candidates[index], margin_band=_band(evaluated[index], safety_factor))
     recommendation = _recommend(candidates, smallest, safety_factor)
     duty = safety_factor * load.total if load is not None else 0.0
     cautions = check_cautions(heat_release) + (SIZING_CAUTION,)
     return JacketSizing(tuple(candidates), recommendation, smallest, load, duty, safety_factor, warnings, cautions)
 
 
-def _recommend(candidates: list[Candidate], smallest: dict, safety_factor: float) -> Recommendation:
+def _band(evaluated: Evaluated, safety_factor: float) -> MarginBand | None:
+    """The margin band of an evaluated design (:func:`calc.checks.margin_band.margin_band`, as the cooling check)."""
+    network, result, load = evaluated.network, evaluated.result, evaluated.load
+    if network is None or result is None or load is None:
+        return None
+    return margin_band(network.vessel, network.charge, network.coolant, network.process_temperature, result,
+                       load.total, evaluated.candidate.margin, safety_factor)
+
+
+def _recommend(candidates: list[Candidate], smallest: dict[str, int | None], safety_factor: float) -> Recommendation:
     for group in (JACKET_TYPES, ("jacket_and_coil",), ("coil",)):
-        chosen = [candidates[smallest[k]] for k in group if smallest.get(k) is not None]
+        chosen = [candidates[i] for i in (smallest.get(k) for k in group) if i is not None]
         if not chosen:
             continue
         best = min(chosen, key=_rank_key)
