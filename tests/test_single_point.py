@@ -80,7 +80,8 @@ def test_backed_out_factor_by_hand_from_the_series_resistances(client):
     plain["process_temperature"] = 60.0
     free = client.post("/v1/heat-transfer", json=plain).get_json()
     h_p = free["film_coefficients"]["process_jacket"]
-    r_rest = sum(v for k, v in free["resistances"].items() if k not in ("process_film", "controlling"))
+    r_rest = sum(free["resistances"][k] for k in ("process_fouling", "lining", "wall", "service_fouling",
+                                                  "service_film"))  # annular: the whole wall wetted
     area = free["geometry"]["jacketed_area"]
     ua_measured = 0.7 * free["ua"]
     f_hand = 1.0 / (h_p * (area / ua_measured - r_rest))

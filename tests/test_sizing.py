@@ -276,7 +276,7 @@ def test_readme_walk_through_matches_the_service(client):
     assert chosen["description"] == "annular jacket, gap 25 mm, spiral baffle pitch 100 mm"
     assert f"(margin {chosen['margin']:.2f}, {chosen['pressure_drop'] / 1e5:.2f} bar)" in readme
     band = chosen["margin_band"]
-    assert f"{band['low']:.2f}-{band['high']:.2f} over the published alternatives" in readme
+    assert f"{band['low']:.2f}-{band['high']:.2f} over the published alternatives and the fouling range" in readme
     best = max((c for c in body["candidates"] if c["type"] == "half_pipe"), key=lambda c: c["margin"])
     assert not best["feasible"] and best["flow_limited"]
     assert best["description"] == "half-pipe jacket NPS 1-1/2, pitch 60 mm, 4 parallel zones"
