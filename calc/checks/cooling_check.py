@@ -44,7 +44,7 @@ from calc.cautions import COOLING_CHECK, DOSING, ENDOTHERMIC
 from calc.deadline import NEVER, Deadline
 from calc.network import coolant_balance, vectorised
 from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
-from calc.checks.margin_band import MarginBand, band_steps, margin_bands
+from calc.checks.margin_band import BandSteps, MarginBand, band_start, band_step, band_steps
 from calc.network.flow_limit import FlowLimit, flow_limit
 from calc.network.heat_transfer import HeatTransferResult, Network, assemble, heat_transfer, solve
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings
@@ -323,14 +323,25 @@ def _search(searches: list[_Search], evaluate, deadline: Deadline = NEVER) -> No
     """
     for _ in range(MAX_PASSES):
         deadline.check()
-        wanted = [(i, x) for i, search in enumerate(searches) if not search.done
-                  for x in search.next_points(SPREAD)]
+        wanted = _wanted(searches)
         if not wanted:
             return
-        for (i, x), value in zip(wanted, evaluate(wanted)):
-            searches[i].known[x] = float(value)
-    unfinished = [search for search in searches if not search.done]
-    if unfinished:  # pragma: no cover - the secant passes converge long before
+        _record(searches, wanted, evaluate(wanted))
+    _unfinished(searches)
+
+
+def _wanted(searches: list[_Search]) -> list[tuple[int, float]]:
+    """The next points of every unfinished search, as (search index, x)."""
+    return [(i, x) for i, search in enumerate(searches) if not search.done for x in search.next_points(SPREAD)]
+
+
+def _record(searches: list[_Search], wanted: list[tuple[int, float]], values) -> None:
+    for (i, x), value in zip(wanted, values):
+        searches[i].known[x] = float(value)
+
+
+def _unfinished(searches: list[_Search]) -> None:
+    if any(not search.done for search in searches):  # pragma: no cover - the secant passes converge long before
         raise CalculationError(f"limit search did not converge in {MAX_PASSES} passes")
 
 
@@ -357,11 +368,13 @@ def _inlet_search(network: Network, coolant: Coolant, target: float, capacity: f
                    {given: capacity / target - 1.0}), floor
 
 
-def _solve_limits(checks: list[tuple[Network, HeatTransferResult, float, FlowLimit]],
-                  deadline: Deadline = NEVER) -> list[tuple[Limit, Limit]]:
+def _solve_limits(checks: list[tuple[Network, HeatTransferResult, float, FlowLimit]], bands: list[BandSteps],
+                  deadline: Deadline = NEVER) -> tuple[list[tuple[Limit, Limit]], list[MarginBand]]:
     """Warmest coolant inlet and required coolant flow of each ``(network, result, target, flow limit)``,
-    searched together on the vectorised network: every pass solves the candidates of all of them in one call
-    (each state converges on its own, so an answer does not depend on the others in the call)."""
+    and the margin ``bands`` (:func:`calc.checks.margin_band.band_steps`), solved together on the vectorised
+    network: every pass solves the candidates of all searches and the members every band asks for in one
+    call (each state converges on its own, so an answer does not depend on the others in the call; the
+    searches start warm from the nominal states, band members cold, as the scalar path)."""
     prepared = vectorised.Prepared([network for network, _, _, _ in checks])
     prepared.warm_start([result for _, result, _, _ in checks])
     searches: list[_Search] = []
@@ -395,15 +408,32 @@ def _solve_limits(checks: list[tuple[Network, HeatTransferResult, float, FlowLim
     targets = np.array([target for _, _, target, _ in checks])
     given_inlets = np.array([network.coolant.inlet_temperature for network, _, _, _ in checks])
 
-    def evaluate(points):
-        index = np.array([owners[i][0] for i, _ in points], dtype=int)
-        inlets = np.array([x if owners[i][3] else given_inlets[owners[i][0]] for i, x in points])
-        factors = np.array([owners[i][1] if owners[i][3] else math.exp(x - owners[i][2]) for i, x in points])
-        return prepared.solve(index, inlets, factors).duty / targets[index] - 1.0
-
-    _search(searches, evaluate, deadline)
-    return [_limits_found(searches[2 * k], searches[2 * k + 1], target, limit, *notes[k][1:])
-            for k, (_, _, target, limit) in enumerate(checks)]
+    found: list[MarginBand | None] = [None] * len(bands)
+    asked = band_start(bands, found)
+    for _ in range(MAX_PASSES):
+        deadline.check()
+        wanted = _wanted(searches)
+        if not wanted and not asked:
+            break
+        index = np.array([owners[i][0] for i, _ in wanted], dtype=int)
+        inlets = np.array([x if owners[i][3] else given_inlets[owners[i][0]] for i, x in wanted])
+        factors = np.array([owners[i][1] if owners[i][3] else math.exp(x - owners[i][2]) for i, x in wanted])
+        solver = prepared
+        cases = [case for batch in asked.values() for case in batch]
+        if cases:  # the band members join the pass: networks of their own, started cold, at their own coolant
+            members, member_index = vectorised.assemble_cases(cases)
+            solver = vectorised.Prepared(prepared.networks + tuple(members))
+            solver.warm_start([result for _, result, _, _ in checks] + [None] * len(members))
+            index = np.r_[index, len(checks) + member_index]
+            inlets = np.r_[inlets, [members[m].coolant.inlet_temperature for m in member_index]]
+            factors = np.r_[factors, np.ones(member_index.size)]
+        duty = solver.solve(index, inlets, factors).duty if index.size else np.zeros(0)
+        _record(searches, wanted, duty[:len(wanted)] / targets[index[:len(wanted)]] - 1.0)
+        asked = band_step(bands, found, asked, duty[len(wanted):])
+    _unfinished(searches)
+    assert all(band is not None for band in found)  # MAX_PASSES exceeds the band's two passes
+    return ([_limits_found(searches[2 * k], searches[2 * k + 1], target, limit, *notes[k][1:])
+             for k, (_, _, target, limit) in enumerate(checks)], [band for band in found if band is not None])
 
 
 def _limits_found(inlet: _Search, flow: _Search, target: float, limit: FlowLimit, floor: str,
@@ -491,12 +521,13 @@ def _begin(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature
 def _finish(pending: list[_Pending], deadline: Deadline = NEVER) -> list[CoolingCheck]:
     """The limit searches of all ``pending`` checks together, then all their bands together."""
     searched = [(p, p.limit) for p in pending if p.limit is not None and p.args[5] * p.load.total > 0.0]
-    found = dict(zip((id(p) for p, _ in searched), _solve_limits(
-        [(p.network, p.result, p.args[5] * p.load.total, limit) for p, limit in searched], deadline)))
     banded = [p for p in pending if p.band]
-    spreads = dict(zip(map(id, banded), margin_bands(
+    limits, bands = _solve_limits(
+        [(p.network, p.result, p.args[5] * p.load.total, limit) for p, limit in searched],
         [band_steps(p.args[0], p.args[1], p.args[2], p.args[3], p.result, p.load.total, p.margin, p.args[5])
-         for p in banded])))
+         for p in banded], deadline)
+    found = dict(zip((id(p) for p, _ in searched), limits))
+    spreads = dict(zip(map(id, banded), bands))
     return [_checked(p, found.get(id(p)), spreads.get(id(p))) for p in pending]
 
 

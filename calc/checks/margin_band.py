@@ -140,26 +140,31 @@ BandSteps = Generator[list[tuple], np.ndarray, MarginBand]
 def margin_bands(steps: list[BandSteps]) -> list[MarginBand]:
     """Run several bands together: each pass solves the members of every band in one vectorised call."""
     bands: list[MarginBand | None] = [None] * len(steps)
-    wanted: dict[int, list[tuple]] = {}
-    for i, step in enumerate(steps):
+    asked = band_start(steps, bands)
+    while asked:
+        cases = [case for batch in asked.values() for case in batch]
+        asked = band_step(steps, bands, asked, heat_transfer_many(cases).duty if cases else np.zeros(0))
+    return [band for band in bands if band is not None]
+
+
+def band_start(steps: list[BandSteps], bands: list[MarginBand | None]) -> dict[int, list[tuple]]:
+    """The first cases each band asks for, by band; a band that needs no solve goes straight into ``bands``."""
+    return band_step(steps, bands, {i: [] for i in range(len(steps))}, None)
+
+
+def band_step(steps: list[BandSteps], bands: list[MarginBand | None], asked: dict[int, list[tuple]],
+              duty: np.ndarray | None) -> dict[int, list[tuple]]:
+    """Hand each band the duties of the cases it ``asked`` for (in order, concatenated; None to start them) and
+    collect what each asks for next; finished bands go into ``bands``."""
+    following: dict[int, list[tuple]] = {}
+    start = 0
+    for i, batch in asked.items():
         try:
-            wanted[i] = next(step)
+            following[i] = next(steps[i]) if duty is None else steps[i].send(duty[start:start + len(batch)])
         except StopIteration as done:
             bands[i] = done.value
-    while wanted:
-        cases = [case for batch in wanted.values() for case in batch]
-        duty = heat_transfer_many(cases).duty if cases else np.zeros(0)
-        following: dict[int, list[tuple]] = {}
-        start = 0
-        for i, batch in wanted.items():
-            try:
-                following[i] = steps[i].send(duty[start:start + len(batch)])
-            except StopIteration as done:
-                bands[i] = done.value
-            start += len(batch)
-        wanted = following
-    assert all(band is not None for band in bands)  # every generator ran to its return
-    return [band for band in bands if band is not None]
+        start += len(batch)
+    return following
 
 
 def band_steps(vessel, charge, coolant, process_temperature: float, result: HeatTransferResult, load_total: float,

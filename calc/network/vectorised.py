@@ -203,15 +203,24 @@ class Prepared:
         self.charge_range = np.array([_range(liquid) for liquid in charge_liquids]) + [1e-3, -1e-2]
 
     def warm_start(self, results: Sequence) -> None:
-        """Start later solves from solved states (one scalar ``HeatTransferResult`` per network, in order).
+        """Start later solves from solved states (one scalar ``HeatTransferResult`` per network, in order;
+        None for a network that starts cold, where the scalar path starts).
 
         Each stream starts with its mean coolant and wall temperatures at the same fractions of the
         driving force T_r - T_in as in the solved state, which cuts the iterations for nearby states
         (the limit searches). The answer stays the fixed point to ``TOLERANCE``; it is no longer the
         scalar path's iterate bit for bit, so grids that must match the scalar path start cold.
         """
-        mean, process, service = [], [], []
+        mean: list[float] = []
+        process: list[float] = []
+        service: list[float] = []
         for network, result in zip(self.networks, results):
+            if result is None:
+                mean += [np.nan] * len(network.streams)
+                count = sum(len(stream.surfaces) for stream in network.streams)
+                process += [np.nan] * count
+                service += [np.nan] * count
+                continue
             for stream in result.streams:
                 driving = network.process_temperature - stream.balance.inlet_temperature
                 mean.append((network.process_temperature - stream.mean_temperature) / driving)
@@ -308,14 +317,16 @@ class Prepared:
         c_low_rows, c_high_rows = c_low[sid], c_high[sid]
         t_r_rows = t_r[sid]
 
-        if self.start is None:  # where the scalar path starts
-            mean = t_in.copy()
-            process_wall = 0.5 * (t_r_rows + t_in[sid])
-            service_wall = process_wall.copy()
-        else:
-            mean = t_r - self.start[0][tstream] * (t_r - t_in)
-            process_wall = t_r_rows - self.start[1][tsurface] * (t_r_rows - t_in[sid])
-            service_wall = t_r_rows - self.start[2][tsurface] * (t_r_rows - t_in[sid])
+        mean = t_in.copy()  # where the scalar path starts
+        process_wall = 0.5 * (t_r_rows + t_in[sid])
+        service_wall = process_wall.copy()
+        if self.start is not None:  # warm, except the networks started cold (NaN fractions)
+            fraction = self.start[0][tstream]
+            mean = np.where(np.isnan(fraction), mean, t_r - fraction * (t_r - t_in))
+            fraction = self.start[1][tsurface]
+            process_wall = np.where(np.isnan(fraction), process_wall, t_r_rows - fraction * (t_r_rows - t_in[sid]))
+            fraction = self.start[2][tsurface]
+            service_wall = np.where(np.isnan(fraction), service_wall, t_r_rows - fraction * (t_r_rows - t_in[sid]))
         active = np.ones(n_streams, dtype=bool)
         duty = np.zeros(n_streams)
         ua = np.zeros(n_streams)
@@ -388,8 +399,9 @@ def solve_many(networks: Sequence[Network], network_index=None, inlet_temperatur
     return Prepared(networks).solve(network_index, inlet_temperature, flow_factor)
 
 
-def heat_transfer_many(cases: Iterable[tuple]) -> ManyResult:
-    """Solve ``(vessel, charge, coolant, process_temperature)`` cases at once (equal cases assembled once)."""
+def assemble_cases(cases: Iterable[tuple]) -> tuple[list[Network], np.ndarray]:
+    """The networks of ``(vessel, charge, coolant, process_temperature)`` cases (equal cases assembled once)
+    and which network each case is."""
     networks: list[Network] = []
     seen: dict = {}
     index = []
@@ -399,4 +411,9 @@ def heat_transfer_many(cases: Iterable[tuple]) -> ManyResult:
             seen[key] = len(networks)
             networks.append(assemble(vessel, charge, coolant, process_temperature))
         index.append(seen[key])
-    return solve_many(networks, np.array(index, dtype=int))
+    return networks, np.array(index, dtype=int)
+
+
+def heat_transfer_many(cases: Iterable[tuple]) -> ManyResult:
+    """Solve ``(vessel, charge, coolant, process_temperature)`` cases at once (equal cases assembled once)."""
+    return solve_many(*assemble_cases(cases))
