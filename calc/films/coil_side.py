@@ -14,6 +14,8 @@ import math
 
 from typing import NamedTuple
 
+import numpy as np
+
 from calc import arrays
 from calc.films.jacket_side import VDI_HEAT_ATLAS, FilmFormula, CoolantFilm, flow_warnings
 from calc.properties import LiquidProperties
@@ -280,9 +282,17 @@ def coil_flow(props, mass_flow, mu_wall, rho_wall, d, D_c, correlation, area=Non
     r = d / D_c
     Re_crit = coil_critical_reynolds_Schmidt_1967(r)
     turbulent = CORRELATIONS[correlation].function
-    Nu = arrays.where(Re < Re_crit, Nu_coil_laminar_Schmidt_1967(Re, Pr, r),
-                      arrays.where(Re < COIL_TURBULENT_REYNOLDS, Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent),
-                                   turbulent(Re, Pr, r)))
+    # only the regimes present are evaluated (the same numbers as evaluating all three and choosing)
+    if not arrays.is_array(Re, Pr, r):
+        Nu = (Nu_coil_laminar_Schmidt_1967(Re, Pr, r) if Re < Re_crit else
+              Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent) if Re < COIL_TURBULENT_REYNOLDS else
+              turbulent(Re, Pr, r))
+    elif np.all(Re >= COIL_TURBULENT_REYNOLDS):
+        Nu = turbulent(Re, Pr, r)
+    else:
+        Nu = arrays.where(Re < Re_crit, Nu_coil_laminar_Schmidt_1967(Re, Pr, r),
+                          arrays.where(Re < COIL_TURBULENT_REYNOLDS,
+                                       Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent), turbulent(Re, Pr, r)))
     Nu = Nu * (props.viscosity / mu_wall) ** 0.14
     return _CoilFlow(Nu * props.thermal_conductivity / d, Re, velocity, Nu, Re_crit)
 

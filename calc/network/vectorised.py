@@ -88,6 +88,27 @@ class _ByLiquid:
                 target[mask] = values
         return LiquidProperties(temperature, *out)
 
+    def viscosity(self, temperature: np.ndarray) -> np.ndarray:
+        """The viscosity alone (a table look-up where the liquid has a table), as in :meth:`states`."""
+        return self._each(temperature, lambda table, t: table.viscosities(t), lambda s: s.viscosity)
+
+    def density(self, temperature: np.ndarray) -> np.ndarray:
+        """The density alone, as in :meth:`states`."""
+        return self._each(temperature, lambda table, t: table.densities(t), lambda s: s.density)
+
+    def _each(self, temperature: np.ndarray, from_table, from_states) -> np.ndarray:
+        if self.masks is None:
+            return self._one(self.liquids[0], temperature, from_table, from_states)
+        out = np.empty_like(temperature)
+        for liquid, mask in zip(self.liquids, self.masks):
+            out[mask] = self._one(liquid, temperature[mask], from_table, from_states)
+        return out
+
+    @staticmethod
+    def _one(liquid, temperature: np.ndarray, from_table, from_states) -> np.ndarray:
+        table = getattr(liquid, "table", None)
+        return from_states(liquid.states(temperature)) if table is None else from_table(table(), temperature)
+
 
 def _index(items: list, item) -> int:
     for i, known in enumerate(items):
@@ -337,20 +358,21 @@ class Prepared:
         starts = np.flatnonzero(np.r_[True, sid[1:] != sid[:-1]])
         for iteration in range(1, MAX_ITERATIONS + 1):
             state = coolant.states(np.clip(mean, c_low, c_high))
-            ratio = mu_bulk / charge.states(np.clip(process_wall, p_low, p_high)).viscosity
+            ratio = mu_bulk / charge.viscosity(np.clip(process_wall, p_low, p_high))
             for function, rows, arguments in process:
                 if rows is None:
                     h_process[:] = function(viscosity_ratio=ratio, **arguments) * k_bulk
                 else:
                     h_process[rows] = function(viscosity_ratio=ratio[rows], **arguments) * k_bulk[rows]
-            at_wall = coolant_rows.states(np.clip(service_wall, c_low_rows, c_high_rows))
+            at_wall = np.clip(service_wall, c_low_rows, c_high_rows)
+            wall_viscosity, wall_density = coolant_rows.viscosity(at_wall), coolant_rows.density(at_wall)
             bulk = _take(state, sid)
             for function, rows, fixed in service:
                 if rows is None:
-                    h_service[:] = function(bulk, flow_rows, at_wall.viscosity, at_wall.density, **fixed)[0]
+                    h_service[:] = function(bulk, flow_rows, wall_viscosity, wall_density, **fixed)[0]
                 else:
-                    h_service[rows] = function(_take(bulk, rows), flow_rows[rows], at_wall.viscosity[rows],
-                                               at_wall.density[rows], **fixed)[0]
+                    h_service[rows] = function(_take(bulk, rows), flow_rows[rows], wall_viscosity[rows],
+                                               wall_density[rows], **fixed)[0]
             overall = wall.overall_from_layers(h_process, h_service, layers)
             if remaining is not None:
                 overall = wall.with_remaining_resistance(overall, remaining)
