@@ -34,6 +34,7 @@ import threading
 from bisect import bisect_right
 from dataclasses import dataclass, field
 from functools import lru_cache
+from typing import Any
 
 import CoolProp.CoolProp as CP
 import numpy as np
@@ -236,9 +237,9 @@ class PropertyTable:
         """
         T = np.asarray(temperature, dtype=float)
         # LiquidProperties of arrays, one element per state (its fields are annotated as the scalar case)
-        return LiquidProperties(T, self.densities(T),  # type: ignore[arg-type]
-                                np.interp(T, self.temperature, self.heat_capacity),
-                                self.viscosities(T), np.interp(T, self.temperature, self.conductivity))
+        fields: tuple[Any, ...] = (T, self.densities(T), np.interp(T, self.temperature, self.heat_capacity),
+                                   self.viscosities(T), np.interp(T, self.temperature, self.conductivity))
+        return LiquidProperties(*fields)
 
     def viscosities(self, temperature: np.ndarray) -> np.ndarray:
         """Viscosity alone at an array of temperatures (K), as in :meth:`states`."""

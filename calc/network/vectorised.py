@@ -34,7 +34,7 @@ N x (surfaces per state).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Iterable, Sequence
+from typing import Any, Iterable, Sequence
 
 import numpy as np
 
@@ -86,7 +86,7 @@ class _ByLiquid:
             s = liquid.states(temperature[mask])
             for target, values in zip(out, (s.density, s.heat_capacity, s.viscosity, s.thermal_conductivity)):
                 target[mask] = values
-        return LiquidProperties(temperature, *out)
+        return _liquid_arrays(temperature, *out)
 
     def viscosity(self, temperature: np.ndarray) -> np.ndarray:
         """The viscosity alone (a table look-up where the liquid has a table), as in :meth:`states`."""
@@ -127,7 +127,7 @@ def _stack(dicts: list[dict]) -> dict:
     return out
 
 
-def _groups(keys: list) -> list[tuple[object, np.ndarray]]:
+def _groups(keys: list) -> list[tuple[Any, np.ndarray]]:
     """(key, row indices) for each distinct key, in order of first appearance."""
     found: dict = {}
     for i, key in enumerate(keys):
@@ -135,9 +135,14 @@ def _groups(keys: list) -> list[tuple[object, np.ndarray]]:
     return [(key, np.array(rows)) for key, rows in found.items()]
 
 
-def _take(props: LiquidProperties, rows) -> LiquidProperties:
-    return LiquidProperties(props.temperature[rows], props.density[rows], props.heat_capacity[rows],
-                            props.viscosity[rows], props.thermal_conductivity[rows])
+def _liquid_arrays(*values: Any) -> LiquidProperties:
+    """A :class:`LiquidProperties` of arrays, one element per state (its fields are annotated for one state)."""
+    return LiquidProperties(*values)
+
+
+def _take(props: Any, rows: np.ndarray) -> LiquidProperties:
+    return _liquid_arrays(props.temperature[rows], props.density[rows], props.heat_capacity[rows],
+                          props.viscosity[rows], props.thermal_conductivity[rows])
 
 
 class Prepared:
@@ -151,8 +156,8 @@ class Prepared:
         self.networks = tuple(networks)
         charge_liquids: list = []
         coolant_liquids: list = []
-        streams_t: list[tuple] = []  # (flow, per volume?, coolant liquid index, process temperature)
-        surfaces_t: list[tuple] = []  # (stream template, area, charge liquid, bulk props, film, formula, layers,
+        streams_t: list[tuple[Any, ...]] = []  # (flow, per volume?, coolant liquid index, process temperature)
+        surfaces_t: list[tuple[Any, ...]] = []  # (stream template, area, charge liquid, bulk props, film, formula, layers,
         #                               remaining resistance of a calibration or None)
         self.network_streams: list[np.ndarray] = []
         self.network_surfaces: list[np.ndarray] = []
@@ -184,8 +189,9 @@ class Prepared:
             self.network_local.append(np.searchsorted(streams, [surfaces_t[t][0] for t in surfaces]).astype(int))
         self.charge_liquids, self.coolant_liquids = charge_liquids, coolant_liquids
         if streams_t:
-            flows, per_volume, coolant_of, temperatures, follows = (np.array(column) for column in zip(*streams_t))
-            self.flows, self.per_volume, self.follows = flows.astype(float), per_volume.astype(bool), follows.astype(bool)
+            flows, volumes, coolant_of, temperatures, jacket_flow = (np.array(column) for column in zip(*streams_t))
+            self.flows, self.per_volume = flows.astype(float), volumes.astype(bool)
+            self.follows = jacket_flow.astype(bool)
             self.coolant_of, self.temperatures = coolant_of.astype(int), temperatures.astype(float)
         if not surfaces_t:
             return
@@ -194,7 +200,8 @@ class Prepared:
         self.mu_bulk = np.array([t[3].viscosity for t in surfaces_t])
         self.k_bulk = np.array([t[3].thermal_conductivity / t[4].length for t in surfaces_t])
         self.share = np.array([t[5].flow_share for t in surfaces_t])
-        self.layers = wall.WallLayers(*(np.array(column) for column in zip(*(t[6] for t in surfaces_t))))
+        columns: Any = (np.array(column) for column in zip(*(t[6] for t in surfaces_t)))
+        self.layers: Any = wall.WallLayers(*columns)  # of arrays, one element per template
         # calibration: the measured resistance beyond the process film; NaN where the surface has none
         self.remaining = np.array([np.nan if t[7] is None else t[7] for t in surfaces_t], dtype=float)
         self.calibrated = bool(np.isfinite(self.remaining).any())
@@ -219,7 +226,7 @@ class Prepared:
             numbers = _stack([{k: v for k, v in surfaces_t[t][5].fixed.items() if not isinstance(v, str)}
                               for t in templates])
             self.service_groups.append((key[0], numbers, dict(key[1])))
-        self.start = None  # warm start: see warm_start
+        self.start: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None  # warm start: see warm_start
         self.coolant_range = np.array([_range(liquid) for liquid in coolant_liquids]) + [1e-3, -1e-2]
         self.charge_range = np.array([_range(liquid) for liquid in charge_liquids]) + [1e-3, -1e-2]
 
@@ -272,7 +279,10 @@ class Prepared:
             np.broadcast_to(np.asarray(coil_flow_factor, dtype=float), (size,))
 
         # rows: one per stream of each state, one per surface of each stream (a stream's surfaces adjacent)
-        stream_rows, stream_state, surface_rows, surface_stream = [], [], [], []
+        stream_rows: list[np.ndarray] = []
+        state_rows: list[np.ndarray] = []
+        surface_rows: list[np.ndarray] = []
+        surface_stream: list[np.ndarray] = []
         first_stream = np.full(size, -1)
         offset = 0
         for n, (streams, surfaces, local) in enumerate(zip(self.network_streams, self.network_surfaces,
@@ -282,7 +292,7 @@ class Prepared:
                 continue
             k = streams.size
             stream_rows.append(np.tile(streams, states.size))
-            stream_state.append(np.repeat(states, k))
+            state_rows.append(np.repeat(states, k))
             first_stream[states] = offset + k * np.arange(states.size)
             surface_rows.append(np.tile(surfaces, states.size))
             surface_stream.append(offset + np.repeat(k * np.arange(states.size), surfaces.size)
@@ -294,7 +304,7 @@ class Prepared:
                               np.zeros(size, dtype=int), np.ones(size, dtype=bool),
                               np.full(size, "none", dtype=object), networks, network_index)
         tstream = np.concatenate(stream_rows)
-        stream_state = np.concatenate(stream_state)
+        stream_state = np.concatenate(state_rows)
         tsurface = np.concatenate(surface_rows)
         sid = np.concatenate(surface_stream)
         if len(networks) > 1:
@@ -318,7 +328,8 @@ class Prepared:
         mu_bulk = self.mu_bulk[tsurface]
         k_bulk = self.k_bulk[tsurface]
         flow_rows = m[sid] * self.share[tsurface]
-        layers = wall.WallLayers(*(column[tsurface] for column in self.layers))
+        columns: Any = (column[tsurface] for column in self.layers)
+        layers = wall.WallLayers(*columns)
         remaining = self.remaining[tsurface] if self.calibrated else None
         process = []
         for g, (function, stacked) in enumerate(self.process_groups):
@@ -408,9 +419,9 @@ class Prepared:
         row_state = stream_state[sid]
         order = np.lexsort((np.arange(sid.size), -(overall.U * area), row_state))
         first = order[np.r_[True, row_state[order][1:] != row_state[order][:-1]]]
-        layers = np.array([np.broadcast_to(overall.resistances[name], sid.shape) for name in wall.LAYERS])
+        resistances = np.array([np.broadcast_to(overall.resistances[name], sid.shape) for name in wall.LAYERS])
         controlling = np.full(size, "none", dtype=object)
-        controlling[row_state[first]] = np.array(wall.LAYERS, dtype=object)[np.argmax(layers[:, first], axis=0)]
+        controlling[row_state[first]] = np.array(wall.LAYERS, dtype=object)[np.argmax(resistances[:, first], axis=0)]
         return ManyResult(total_duty, total_ua, total_area, main_outlet, most, ~unsettled, controlling,
                           self.networks, network_index)
 
