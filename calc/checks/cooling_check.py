@@ -28,7 +28,10 @@ heat-transfer network, because properties, films and U change with the quantity 
 Both are searched together on the vectorised network (``calc.network.vectorised``): each pass solves
 every candidate of both in one call, a grid around the closed-form estimates until the sign changes,
 then Newton steps with slopes from neighbouring points (three or four passes in all, instead of a
-dozen scalar solves).
+dozen scalar solves). The margin band's members (``calc.checks.margin_band``) ride in the same passes,
+and a scale-up (``calc.checks.scaleup``) searches the limits and bands of all its scales together
+(``begin_check`` each check, then one ``finish_checks`` for all): each state converges on its own, so the
+answers are those of one check at a time.
 
 When the given flow is beyond the utility's limits, the coolant-temperature limit is solved at the
 largest flow the utility allows, and the check warns (the capacity itself stays at the given flow).
@@ -471,8 +474,8 @@ def _limits_found(inlet: _Search, flow: _Search, target: float, limit: FlowLimit
 
 
 @dataclass
-class _Pending:
-    """A cooling check up to its limit searches and margin band, which :func:`_finish` solves with others'."""
+class PendingCheck:
+    """A cooling check up to its limit searches and margin band, which :func:`finish_checks` solves with others'."""
 
     args: tuple  # (vessel, charge, coolant, process_temperature, heat_release, safety_factor)
     network: Network
@@ -486,8 +489,8 @@ class _Pending:
     band: bool
 
 
-def _begin(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
-           heat_release: HeatRelease, safety_factor: float, limits: bool, band: bool) -> _Pending:
+def begin_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
+                heat_release: HeatRelease, safety_factor: float, limits: bool, band: bool) -> PendingCheck:
     """Everything of a check but its limit searches and band: the network, the load, the margin, warnings."""
     safety_factor = _check_safety_factor(safety_factor)
     network = assemble(vessel, charge, coolant, process_temperature)
@@ -514,11 +517,11 @@ def _begin(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature
         if isinstance(heat_release, Dosing):
             dosing = _minimum_dosing_time(heat_release, process_temperature, result.duty, load.agitator,
                                           safety_factor)
-    return _Pending((vessel, charge, coolant, process_temperature, heat_release, safety_factor), network, result,
+    return PendingCheck((vessel, charge, coolant, process_temperature, heat_release, safety_factor), network, result,
                     load, margin, warnings, outlet, limit, dosing, band)
 
 
-def _finish(pending: list[_Pending], deadline: Deadline = NEVER) -> list[CoolingCheck]:
+def finish_checks(pending: list[PendingCheck], deadline: Deadline = NEVER) -> list[CoolingCheck]:
     """The limit searches of all ``pending`` checks together, then all their bands together."""
     searched = [(p, p.limit) for p in pending if p.limit is not None and p.args[5] * p.load.total > 0.0]
     banded = [p for p in pending if p.band]
@@ -531,7 +534,7 @@ def _finish(pending: list[_Pending], deadline: Deadline = NEVER) -> list[Cooling
     return [_checked(p, found.get(id(p)), spreads.get(id(p))) for p in pending]
 
 
-def _checked(p: _Pending, found: tuple[Limit, Limit] | None, spread: MarginBand | None) -> CoolingCheck:
+def _checked(p: PendingCheck, found: tuple[Limit, Limit] | None, spread: MarginBand | None) -> CoolingCheck:
     vessel, _, _, process_temperature, heat_release, safety_factor = p.args
     warnings = p.warnings
     solved = None
@@ -563,5 +566,5 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     ``band=False`` the margin band, for callers that need only the verdict. The limit searches stop with
     :class:`calc.deadline.OutOfTime` once ``deadline`` has passed.
     """
-    return _finish([_begin(vessel, charge, coolant, process_temperature, heat_release, safety_factor, limits, band)],
-                   deadline)[0]
+    return finish_checks([begin_check(vessel, charge, coolant, process_temperature, heat_release, safety_factor,
+                                      limits, band)], deadline)[0]

@@ -42,8 +42,8 @@ from calc.deadline import NEVER, Deadline
 from calc.vessel import agitation
 from calc.vessel import geometry
 from calc.cautions import COOLING_CHECK
-from calc.checks.cooling_check import (DEFAULT_SAFETY_FACTOR, CoolingCheck, _begin, _check_safety_factor, _finish,
-                                       _Pending, check_cautions, evaluate, margin_of)
+from calc.checks.cooling_check import (DEFAULT_SAFETY_FACTOR, CoolingCheck, PendingCheck, _check_safety_factor,
+                                       begin_check, check_cautions, evaluate, finish_checks, margin_of)
 from calc.checks.heat_load import HeatRelease, heat_load
 from calc.network import vectorised
 from calc.properties import LiquidProperties
@@ -281,7 +281,7 @@ def _scan(reference: _Reference, rule: str, coolant_rule: str, safety_factor: fl
 
 def _target_scale(ref: _Reference, target, own_coolant: Coolant | None, i: int, rule: str, coolant_flow_rule: str,
                   process_temperature: float, safety_factor: float, limits: bool, deadline: Deadline,
-                  warnings: Warnings, size_jacket: bool = False) -> tuple[_Pending, Callable[..., ScaleResult]]:
+                  warnings: Warnings, size_jacket: bool = False) -> tuple[PendingCheck, Callable[..., ScaleResult]]:
     """The cooling check of target ``i`` (an explicit vessel, with its own coolant if given, or a volume) up to
     its limits and band, and the scale's result waiting for its finished ``check``."""
     generated = not isinstance(target, Vessel)
@@ -291,7 +291,7 @@ def _target_scale(ref: _Reference, target, own_coolant: Coolant | None, i: int, 
         case = _given(ref, target, i, rule, coolant_flow_rule, warnings)
         if own_coolant is not None:
             case = replace(case, coolant=own_coolant)
-    check = _begin(case.vessel, case.charge, case.coolant, process_temperature, case.heat_release, safety_factor,
+    check = begin_check(case.vessel, case.charge, case.coolant, process_temperature, case.heat_release, safety_factor,
                    limits, True)
     design = None
     if size_jacket and generated:
@@ -391,7 +391,8 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
             "Wilson plot) is carried to the larger similar vessels, which share impeller and geometry ratios; their "
             "wall, fouling and coolant film are computed from the published correlations"))
     with fields_renamed({"vessel": "reference"}):
-        pending = _begin(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits, True)
+        pending = begin_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits,
+                              True)
     result = pending.result
     ref = _Reference(reference, charge, coolant, heat_release, process_temperature, result.fill.brim_volume,
                      result.fill.volume, result.fill.heat_transfer_area, result.process_properties,
@@ -399,7 +400,7 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
     if not ref.area > 0.0 and coolant_flow_rule == "scale_with_area":
         raise InputError("reference", "the reference vessel has no heat-transfer area at its fill; "
                                    "the coolant flow cannot be scaled with the area")
-    scales: list[tuple[_Pending, Callable[..., ScaleResult]]] = [
+    scales: list[tuple[PendingCheck, Callable[..., ScaleResult]]] = [
         (pending, partial(ScaleResult, reference.name, ref.volume, ref.charge_volume, 1.0, False,
                           reference.agitator.speed, reference, coolant))]
     for i, target in enumerate(targets):
@@ -416,7 +417,7 @@ def scale_up(reference: Vessel, targets, rule: str, charge: Charge, coolant: Coo
                                         safety_factor, limits, deadline, warnings, size_jacket))
 
     # the limit searches and margin bands of every scale together: one vectorised pass serves all scales
-    results = [make(check=check) for (_, make), check in zip(scales, _finish([p for p, _ in scales], deadline))]
+    results = [make(check=check) for (_, make), check in zip(scales, finish_checks([p for p, _ in scales], deadline))]
     first = results[0].check
     largest_target = max((s.volume for s in results), default=ref.volume)
     upper = max(ref.volume * SEARCH_RATIO, 10.0 * largest_target)

@@ -156,9 +156,11 @@ class Prepared:
         self.networks = tuple(networks)
         charge_liquids: list = []
         coolant_liquids: list = []
-        streams_t: list[tuple[Any, ...]] = []  # (flow, per volume?, coolant liquid index, process temperature)
-        surfaces_t: list[tuple[Any, ...]] = []  # (stream template, area, charge liquid, bulk props, film, formula, layers,
-        #                               remaining resistance of a calibration or None)
+        # (flow, per volume?, coolant liquid index, process temperature)
+        streams_t: list[tuple[Any, ...]] = []
+        # (stream template, area, charge liquid, bulk props, film, formula, layers, remaining resistance of a
+        # calibration or None)
+        surfaces_t: list[tuple[Any, ...]] = []
         self.network_streams: list[np.ndarray] = []
         self.network_surfaces: list[np.ndarray] = []
         self.network_local: list[np.ndarray] = []
