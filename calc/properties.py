@@ -239,10 +239,17 @@ class PropertyTable:
         """
         T = np.asarray(temperature, dtype=float)
         # LiquidProperties of arrays, one element per state (its fields are annotated as the scalar case)
-        return LiquidProperties(T, np.interp(T, self.temperature, self.density),  # type: ignore[arg-type]
-                                np.interp(T, self.temperature, self.heat_capacity),
-                                np.exp(np.interp(-1.0 / T, self.inverse_temperature, self.log_viscosity)),
-                                np.interp(T, self.temperature, self.conductivity))
+        fields: tuple[Any, ...] = (T, self.densities(T), np.interp(T, self.temperature, self.heat_capacity),
+                                   self.viscosities(T), np.interp(T, self.temperature, self.conductivity))
+        return LiquidProperties(*fields)
+
+    def viscosities(self, temperature: np.ndarray) -> np.ndarray:
+        """Viscosity alone at an array of temperatures (K), as in :meth:`states`."""
+        return np.asarray(np.exp(np.interp(-1.0 / temperature, self.inverse_temperature, self.log_viscosity)))
+
+    def densities(self, temperature: np.ndarray) -> np.ndarray:
+        """Density alone at an array of temperatures (K), as in :meth:`states`."""
+        return np.asarray(np.interp(temperature, self.temperature, self.density))
 
     def state(self, temperature: float) -> LiquidProperties:
         """Properties at one temperature (K), floats: the arithmetic of ``numpy.interp`` (which :meth:`states`

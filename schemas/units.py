@@ -282,13 +282,32 @@ def _bound_pint_caches() -> None:
             setattr(cache, name, dict(baseline))
 
 
+#: Refusals of :func:`_conversion` by (kind, unit) -> message, so a unit tried as another kind first (a volume
+#: flow where a flow may be a mass or a volume flow) costs pint once; cleared when it reaches the limit.
+_REFUSED: dict[tuple[str, str], str] = {}
+REFUSED_LIMIT = 1024
+
+
 @lru_cache(maxsize=1024)
 def _conversion(kind_name: str, unit: str) -> tuple[float, float]:
     """(factor, offset) taking a number in ``unit`` to the kind's SI unit; pint decides, once per unit.
 
     Every unit pint knows is affine (scale and offset), so two conversions fix it. Raises
-    ValidationError for an unknown unit or a wrong dimension (errors are not cached).
+    ValidationError for an unknown unit or a wrong dimension (the refusal is remembered too).
     """
+    refused = _REFUSED.get((kind_name, unit))
+    if refused is not None:
+        raise ValidationError(refused)
+    try:
+        return _convert(kind_name, unit)
+    except ValidationError as error:
+        if len(_REFUSED) >= REFUSED_LIMIT:
+            _REFUSED.clear()
+        _REFUSED[(kind_name, unit)] = error.messages[0]
+        raise
+
+
+def _convert(kind_name: str, unit: str) -> tuple[float, float]:
     kind = KINDS[kind_name]
     _bound_pint_caches()
     try:

@@ -28,7 +28,10 @@ heat-transfer network, because properties, films and U change with the quantity 
 Both are searched together on the vectorised network (``calc.network.vectorised``): each pass solves
 every candidate of both in one call, a grid around the closed-form estimates until the sign changes,
 then Newton steps with slopes from neighbouring points (three or four passes in all, instead of a
-dozen scalar solves).
+dozen scalar solves). The margin band's members (``calc.checks.margin_band``) ride in the same passes,
+and a scale-up (``calc.checks.scaleup``) searches the limits and bands of all its scales together
+(``begin_check`` each check, then one ``finish_checks`` for all): each state converges on its own, so the
+answers are those of one check at a time.
 
 When the given flow is beyond the utility's limits, the coolant-temperature limit is solved at the
 largest flow the utility allows, and the check warns (the capacity itself stays at the given flow).
@@ -45,7 +48,7 @@ from calc.cautions import COOLING_CHECK, DOSING, ENDOTHERMIC
 from calc.deadline import NEVER, Deadline
 from calc.network import coolant_balance, vectorised
 from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
-from calc.checks.margin_band import MarginBand, margin_band
+from calc.checks.margin_band import BandSteps, MarginBand, band_start, band_step, band_steps
 from calc.network.flow_limit import FlowLimit, flow_limit
 from calc.network.heat_transfer import HeatTransferResult, Network, assemble, heat_transfer, solve
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings
@@ -326,14 +329,25 @@ def _search(searches: list[_Search], evaluate: Callable[[list[tuple[int, float]]
     """
     for _ in range(MAX_PASSES):
         deadline.check()
-        wanted = [(i, x) for i, search in enumerate(searches) if not search.done
-                  for x in search.next_points(SPREAD)]
+        wanted = _wanted(searches)
         if not wanted:
             return
-        for (i, x), value in zip(wanted, evaluate(wanted)):
-            searches[i].known[x] = float(value)
-    unfinished = [search for search in searches if not search.done]
-    if unfinished:  # pragma: no cover - the secant passes converge long before
+        _record(searches, wanted, evaluate(wanted))
+    _unfinished(searches)
+
+
+def _wanted(searches: list[_Search]) -> list[tuple[int, float]]:
+    """The next points of every unfinished search, as (search index, x)."""
+    return [(i, x) for i, search in enumerate(searches) if not search.done for x in search.next_points(SPREAD)]
+
+
+def _record(searches: list[_Search], wanted: list[tuple[int, float]], values: Iterable[float]) -> None:
+    for (i, x), value in zip(wanted, values):
+        searches[i].known[x] = float(value)
+
+
+def _unfinished(searches: list[_Search]) -> None:
+    if any(not search.done for search in searches):  # pragma: no cover - the secant passes converge long before
         raise CalculationError(f"limit search did not converge in {MAX_PASSES} passes")
 
 
@@ -360,39 +374,77 @@ def _inlet_search(network: Network, coolant: Coolant, target: float, capacity: f
                    {given: capacity / target - 1.0}), floor
 
 
-def _solve_limits(network: Network, result: HeatTransferResult, target: float, limit: FlowLimit,
-                  deadline: Deadline = NEVER) -> tuple[Limit, Limit]:
-    """Warmest coolant inlet and required coolant flow, searched together on the vectorised network."""
-    coolant = network.coolant
-    given = coolant.mass_flow()
-    log_given = math.log(given)
-    prepared = vectorised.Prepared([network])
-    prepared.warm_start([result])
-    capacity = result.duty
-    inlet_flow = 1.0  # the inlet-temperature limit's flow, over the given
-    at_flow = "at the given flow"
-    if limit.mass_flow is not None and limit.mass_flow < given:
-        inlet_flow = limit.mass_flow / given
-        capacity = float(prepared.solve(np.zeros(1, dtype=int), None, np.array([inlet_flow])).duty[0])
-        at_flow = (f"at {limit.mass_flow:.4g} kg/s, the largest flow within {limit.reason} "
-                   "(the given flow is beyond it)")
-    inlet, floor = _inlet_search(network, coolant, target, capacity)
-    estimate = math.log(_flow_estimate(result, target)) if result.streams else log_given
-    high = math.log(given * FLOW_SEARCH_CAP if limit.mass_flow is None else limit.mass_flow)
-    low = log_given - 30.0 * math.log(10.0)
-    # U A rises with the flow, so the fixed-U A estimate is low; the grid around it brackets the root
-    flow = _Search(low, high, min(max(estimate, low), high), math.log(1.2), True, 1e-10,
-                   {log_given: result.duty / target - 1.0} if log_given <= high else {})
-    if not flow.known:  # the given flow is beyond the utility's limit: start from the limit
-        flow.known[high] = float(prepared.solve(np.zeros(1, dtype=int), None,
-                                                np.array([math.exp(high - log_given)])).duty[0]) / target - 1.0
+def _solve_limits(checks: list[tuple[Network, HeatTransferResult, float, FlowLimit]], bands: list[BandSteps],
+                  deadline: Deadline = NEVER) -> tuple[list[tuple[Limit, Limit]], list[MarginBand]]:
+    """Warmest coolant inlet and required coolant flow of each ``(network, result, target, flow limit)``,
+    and the margin ``bands`` (:func:`calc.checks.margin_band.band_steps`), solved together on the vectorised
+    network: every pass solves the candidates of all searches and the members every band asks for in one
+    call (each state converges on its own, so an answer does not depend on the others in the call; the
+    searches start warm from the nominal states, band members cold, as the scalar path)."""
+    prepared = vectorised.Prepared([network for network, _, _, _ in checks])
+    prepared.warm_start([result for _, result, _, _ in checks])
+    searches: list[_Search] = []
+    owners: list[tuple[int, float, float, bool]] = []  # (network, inlet flow factor, log given flow, inlet search?)
+    notes: list[tuple[float, str, str]] = []  # (given flow, floor text, at-flow text)
+    for k, (network, result, target, limit) in enumerate(checks):
+        coolant = network.coolant
+        given = coolant.mass_flow()
+        log_given = math.log(given)
+        capacity = result.duty
+        inlet_flow = 1.0  # the inlet-temperature limit's flow, over the given
+        at_flow = "at the given flow"
+        if limit.mass_flow is not None and limit.mass_flow < given:
+            inlet_flow = limit.mass_flow / given
+            capacity = float(prepared.solve(np.array([k]), None, np.array([inlet_flow])).duty[0])
+            at_flow = (f"at {limit.mass_flow:.4g} kg/s, the largest flow within {limit.reason} "
+                       "(the given flow is beyond it)")
+        inlet, floor = _inlet_search(network, coolant, target, capacity)
+        estimate = math.log(_flow_estimate(result, target)) if result.streams else log_given
+        high = math.log(given * FLOW_SEARCH_CAP if limit.mass_flow is None else limit.mass_flow)
+        low = log_given - 30.0 * math.log(10.0)
+        # U A rises with the flow, so the fixed-U A estimate is low; the grid around it brackets the root
+        flow = _Search(low, high, min(max(estimate, low), high), math.log(1.2), True, 1e-10,
+                       {log_given: result.duty / target - 1.0} if log_given <= high else {})
+        if not flow.known:  # the given flow is beyond the utility's limit: start from the limit
+            flow.known[high] = float(prepared.solve(np.array([k]), None,
+                                                    np.array([math.exp(high - log_given)])).duty[0]) / target - 1.0
+        searches += [inlet, flow]
+        owners += [(k, inlet_flow, log_given, True), (k, inlet_flow, log_given, False)]
+        notes.append((given, floor, at_flow))
+    targets = np.array([target for _, _, target, _ in checks])
+    given_inlets = np.array([network.coolant.inlet_temperature for network, _, _, _ in checks])
 
-    def evaluate(points: list[tuple[int, float]]) -> Iterable[float]:
-        inlets = np.array([x if i == 0 else coolant.inlet_temperature for i, x in points])
-        factors = np.array([inlet_flow if i == 0 else math.exp(x - log_given) for i, x in points])
-        return prepared.solve(np.zeros(len(points), dtype=int), inlets, factors).duty / target - 1.0
+    found: list[MarginBand | None] = [None] * len(bands)
+    asked = band_start(bands, found)
+    for _ in range(MAX_PASSES):
+        deadline.check()
+        wanted = _wanted(searches)
+        if not wanted and not asked:
+            break
+        index = np.array([owners[i][0] for i, _ in wanted], dtype=int)
+        inlets = np.array([x if owners[i][3] else given_inlets[owners[i][0]] for i, x in wanted])
+        factors = np.array([owners[i][1] if owners[i][3] else math.exp(x - owners[i][2]) for i, x in wanted])
+        solver = prepared
+        cases = [case for batch in asked.values() for case in batch]
+        if cases:  # the band members join the pass: networks of their own, started cold, at their own coolant
+            members, member_index = vectorised.assemble_cases(cases)
+            solver = vectorised.Prepared(prepared.networks + tuple(members))
+            solver.warm_start([result for _, result, _, _ in checks] + [None] * len(members))
+            index = np.r_[index, len(checks) + member_index]
+            inlets = np.r_[inlets, [members[m].coolant.inlet_temperature for m in member_index]]
+            factors = np.r_[factors, np.ones(member_index.size)]
+        duty = solver.solve(index, inlets, factors).duty if index.size else np.zeros(0)
+        _record(searches, wanted, duty[:len(wanted)] / targets[index[:len(wanted)]] - 1.0)
+        asked = band_step(bands, found, asked, duty[len(wanted):])
+    _unfinished(searches)
+    assert all(band is not None for band in found)  # MAX_PASSES exceeds the band's two passes
+    return ([_limits_found(searches[2 * k], searches[2 * k + 1], target, limit, *notes[k][1:])
+             for k, (_, _, target, limit) in enumerate(checks)], [band for band in found if band is not None])
 
-    _search([inlet, flow], evaluate, deadline)
+
+def _limits_found(inlet: _Search, flow: _Search, target: float, limit: FlowLimit, floor: str,
+                  at_flow: str) -> tuple[Limit, Limit]:
+    """The two limits from their finished searches."""
     assert inlet.value is not None and flow.value is not None  # _search evaluates every search
     if inlet.root is None and inlet.value >= 0.0:
         warmest = Limit(inlet.high, True, "every inlet temperature up to the process temperature (or the coolant's "
@@ -424,23 +476,31 @@ def _solve_limits(network: Network, result: HeatTransferResult, target: float, l
     return warmest, needed
 
 
-def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
-                  heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
-                  limits: bool = True, deadline: Deadline = NEVER, band: bool = True) -> CoolingCheck:
-    """Compare the cooling capacity at ``process_temperature`` (K) with the heat load.
+@dataclass
+class PendingCheck:
+    """A cooling check up to its limit searches and margin band, which :func:`finish_checks` solves with others'."""
 
-    ``limits=False`` skips the three solved limits (``CoolingCheck.limits`` is then None), and
-    ``band=False`` the margin band, for callers that need only the verdict. The limit searches stop with
-    :class:`calc.deadline.OutOfTime` once ``deadline`` has passed.
-    """
+    args: tuple[Vessel, Charge, Coolant, float, HeatRelease, float]  # process temperature K, safety factor
+    network: Network
+    result: HeatTransferResult
+    load: HeatLoad
+    margin: float | None
+    warnings: Warnings
+    outlet: float | None
+    limit: FlowLimit | None  # None: no limits wanted
+    dosing: Limit | None
+    band: bool
+
+
+def begin_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
+                heat_release: HeatRelease, safety_factor: float, limits: bool, band: bool) -> PendingCheck:
+    """Everything of a check but its limit searches and band: the network, the load, the margin, warnings."""
     safety_factor = _check_safety_factor(safety_factor)
     network = assemble(vessel, charge, coolant, process_temperature)
     vessel = network.vessel  # with a single-point calibration backed out
     result = solve(network)
     load = heat_load(heat_release, charge_mass(result), process_temperature, result.agitation.power)
-    capacity = result.duty
-    margin = margin_of(capacity, load.total)
-    adequate = margin is None or margin >= safety_factor
+    margin = margin_of(result.duty, load.total)
     warnings = Warnings()
     warnings.extend_unique(result.warnings)
     warnings.extend_unique(load.warnings)
@@ -455,32 +515,60 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     if maximum is not None and total_flow > maximum * (1 + 1e-9):
         warnings.add(CalcWarning("flow_exceeds_maximum", f"the coolant flow to all circuits ({total_flow:.4g} kg/s) "
                                                          f"exceeds the utility's maximum ({maximum:.4g} kg/s)"))
-    solved = None
+    limit = dosing = None
     if limits:
         limit = flow_limit(result.streams, coolant)
-        target = safety_factor * load.total
-        dosing = None
         if isinstance(heat_release, Dosing):
-            dosing = _minimum_dosing_time(heat_release, process_temperature, capacity, load.agitator, safety_factor)
-        if target <= 0.0:
-            warmest = Limit(process_temperature, True, "no net heat load: any coolant colder than the contents "
-                                                       "will do")
-            needed = Limit(0.0, True, "no net heat load: no coolant flow is needed")
-        else:
-            warmest, needed = _solve_limits(network, result, target, limit, deadline)
-        solved = Limits(dosing, warmest, needed)
-    spread = None
-    if band:
-        spread = margin_band(vessel, charge, coolant, process_temperature, result, load.total, margin, safety_factor)
-        if not spread.holds_across_band:
-            warnings.add(CalcWarning("verdict_not_robust", spread.statement))
+            dosing = _minimum_dosing_time(heat_release, process_temperature, result.duty, load.agitator,
+                                          safety_factor)
+    return PendingCheck((vessel, charge, coolant, process_temperature, heat_release, safety_factor), network, result,
+                    load, margin, warnings, outlet, limit, dosing, band)
+
+
+def finish_checks(pending: list[PendingCheck], deadline: Deadline = NEVER) -> list[CoolingCheck]:
+    """The limit searches of all ``pending`` checks together, then all their bands together."""
+    searched = [(p, p.limit) for p in pending if p.limit is not None and p.args[5] * p.load.total > 0.0]
+    banded = [p for p in pending if p.band]
+    limits, bands = _solve_limits(
+        [(p.network, p.result, p.args[5] * p.load.total, limit) for p, limit in searched],
+        [band_steps(p.args[0], p.args[1], p.args[2], p.args[3], p.result, p.load.total, p.margin, p.args[5])
+         for p in banded], deadline)
+    found = dict(zip((id(p) for p, _ in searched), limits))
+    spreads = dict(zip(map(id, banded), bands))
+    return [_checked(p, found.get(id(p)), spreads.get(id(p))) for p in pending]
+
+
+def _checked(p: PendingCheck, found: tuple[Limit, Limit] | None, spread: MarginBand | None) -> CoolingCheck:
+    vessel, _, _, process_temperature, heat_release, safety_factor = p.args
+    warnings = p.warnings
+    solved = None
+    if p.limit is not None:
+        if found is None:  # no net load
+            found = (Limit(process_temperature, True, "no net heat load: any coolant colder than the contents will do"),
+                     Limit(0.0, True, "no net heat load: no coolant flow is needed"))
+        solved = Limits(p.dosing, *found)
+    if spread is not None and not spread.holds_across_band:
+        warnings.add(CalcWarning("verdict_not_robust", spread.statement))
     cal = vessel.correlations.calibration
-    calibrated = cal is not None
     if cal is not None:
         warnings.add(CalcWarning("calibrated", f"calibrated: the process film uses {cal.summary}" + (
             "" if vessel.correlations.remaining_resistance is None else
             f" and the measured remaining resistance {vessel.correlations.remaining_resistance:.4g} m2 K/W")
             + ("; the margin band spans the measurement's 95 % interval" if cal.measurement is not None
                else "; the margin band spans the fit's 95 % intervals")))
-    return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings,
-                        check_cautions(heat_release), spread, calibrated, None if cal is None else cal.summary)
+    adequate = p.margin is None or p.margin >= safety_factor
+    return CoolingCheck(adequate, p.margin, safety_factor, p.load, p.result.duty, p.outlet, p.result, solved, warnings,
+                        check_cautions(heat_release), spread, cal is not None, None if cal is None else cal.summary)
+
+
+def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
+                  heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
+                  limits: bool = True, deadline: Deadline = NEVER, band: bool = True) -> CoolingCheck:
+    """Compare the cooling capacity at ``process_temperature`` (K) with the heat load.
+
+    ``limits=False`` skips the three solved limits (``CoolingCheck.limits`` is then None), and
+    ``band=False`` the margin band, for callers that need only the verdict. The limit searches stop with
+    :class:`calc.deadline.OutOfTime` once ``deadline`` has passed.
+    """
+    return finish_checks([begin_check(vessel, charge, coolant, process_temperature, heat_release, safety_factor,
+                                      limits, band)], deadline)[0]

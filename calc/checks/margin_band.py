@@ -37,7 +37,10 @@ warnings appear when it is chosen alone.
 from __future__ import annotations
 
 import math
+from collections.abc import Generator
 from dataclasses import dataclass, replace
+
+import numpy as np
 
 from calc.films import process_side
 from calc.films.selection import CorrelationChoice
@@ -156,6 +159,49 @@ def margin_band(vessel: Vessel, charge: Charge, coolant: Coolant, process_temper
                 nominal: float | None, safety_factor: float,
                 members: list[tuple[str, str, CorrelationChoice]] | None = None) -> MarginBand:
     """The band around ``nominal`` (capacity/load of ``result``); ``members`` default: :func:`published_members`."""
+    return margin_bands([band_steps(vessel, charge, coolant, process_temperature, result, load_total, nominal,
+                                    safety_factor, members)])[0]
+
+
+#: The steps of one band: yields the network cases of a pass, receives their duties, returns the band.
+NetworkCase = tuple[Vessel, Charge, Coolant, float]  # (vessel, charge, coolant, process temperature in K)
+BandSteps = Generator[list[NetworkCase], np.ndarray, MarginBand]
+
+
+def margin_bands(steps: list[BandSteps]) -> list[MarginBand]:
+    """Run several bands together: each pass solves the members of every band in one vectorised call."""
+    bands: list[MarginBand | None] = [None] * len(steps)
+    asked = band_start(steps, bands)
+    while asked:
+        cases = [case for batch in asked.values() for case in batch]
+        asked = band_step(steps, bands, asked, heat_transfer_many(cases).duty if cases else np.zeros(0))
+    return [band for band in bands if band is not None]
+
+
+def band_start(steps: list[BandSteps], bands: list[MarginBand | None]) -> dict[int, list[NetworkCase]]:
+    """The first cases each band asks for, by band; a band that needs no solve goes straight into ``bands``."""
+    return band_step(steps, bands, {i: [] for i in range(len(steps))}, None)
+
+
+def band_step(steps: list[BandSteps], bands: list[MarginBand | None], asked: dict[int, list[NetworkCase]],
+              duty: np.ndarray | None) -> dict[int, list[NetworkCase]]:
+    """Hand each band the duties of the cases it ``asked`` for (in order, concatenated; None to start them) and
+    collect what each asks for next; finished bands go into ``bands``."""
+    following: dict[int, list[NetworkCase]] = {}
+    start = 0
+    for i, batch in asked.items():
+        try:
+            following[i] = next(steps[i]) if duty is None else steps[i].send(duty[start:start + len(batch)])
+        except StopIteration as done:
+            bands[i] = done.value
+        start += len(batch)
+    return following
+
+
+def band_steps(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float, result: HeatTransferResult, load_total: float,
+               nominal: float | None, safety_factor: float,
+               members: list[tuple[str, str, CorrelationChoice]] | None = None) -> BandSteps:
+    """:func:`margin_band` as steps for :func:`margin_bands` (the members of several checks in one pass)."""
     basis = "published_alternatives" if vessel.correlations.calibration is None else "calibration"
     if members is None:
         members = published_members(result, vessel)
@@ -164,16 +210,15 @@ def margin_band(vessel: Vessel, charge: Charge, coolant: Coolant, process_temper
                           ())
     nominal_margin: float = nominal
 
-    def solve(batch: list[tuple[str, str, CorrelationChoice]]) -> list[BandMember]:
-        """Every member of ``batch`` in one pass of the vectorised network (the public ensemble entry)."""
-        if not batch:
-            return []
-        duty = heat_transfer_many([(replace(vessel, correlations=choice), charge, coolant, process_temperature)
-                                   for _, _, choice in batch]).duty
+    def cases(batch: list[tuple[str, str, CorrelationChoice]]) -> list[NetworkCase]:
+        """The network cases of ``batch``: solved in one pass of the vectorised network (the ensemble entry)."""
+        return [(replace(vessel, correlations=choice), charge, coolant, process_temperature) for _, _, choice in batch]
+
+    def solved_members(batch: list[tuple[str, str, CorrelationChoice]], duty: np.ndarray) -> list[BandMember]:
         return [BandMember(resistance, alternative, float(d) / load_total, choice)
                 for (resistance, alternative, choice), d in zip(batch, duty)]
 
-    solved = solve(members)
+    solved = solved_members(members, (yield cases(members)) if members else np.zeros(0))
     base = vessel.correlations
     joints = []
     for direction in (min, max):
@@ -186,7 +231,7 @@ def margin_band(vessel: Vessel, charge: Charge, coolant: Coolant, process_temper
         if len(picks) > 1:
             label = " + ".join(f"{m.resistance}={m.alternative}" for m in picks)
             joints.append(("joint", label, _joint(base, picks)))
-    solved += solve(joints)
+    solved += solved_members(joints, (yield cases(joints)) if joints else np.zeros(0))
     margins = [nominal_margin] + [m.margin for m in solved]
     low, high = min(margins), max(margins)
 

@@ -33,7 +33,8 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
-from typing import Iterable, Union
+from functools import partial
+from typing import Callable, Iterable, Union
 
 from scipy.optimize import brentq
 
@@ -41,8 +42,8 @@ from calc.deadline import NEVER, Deadline
 from calc.vessel import agitation
 from calc.vessel import geometry
 from calc.cautions import COOLING_CHECK
-from calc.checks.cooling_check import (DEFAULT_SAFETY_FACTOR, CoolingCheck, _check_safety_factor, check_cautions,
-                                       cooling_check, evaluate, margin_of)
+from calc.checks.cooling_check import (DEFAULT_SAFETY_FACTOR, CoolingCheck, PendingCheck, _check_safety_factor,
+                                       begin_check, check_cautions, evaluate, finish_checks, margin_of)
 from calc.checks.heat_load import HeatRelease, heat_load
 from calc.fits.single_point import carried
 from calc.network import vectorised
@@ -282,10 +283,11 @@ def _scan(reference: _Reference, rule: str, coolant_rule: str, safety_factor: fl
         memo[x] = (value, solved.controlling[i])
 
 
-def _target_scale(ref: _Reference, target: float | Vessel, own_coolant: Coolant | None, i: int, rule: str,
-                  coolant_flow_rule: str, process_temperature: float, safety_factor: float, limits: bool,
-                  deadline: Deadline, warnings: Warnings, size_jacket: bool = False) -> ScaleResult:
-    """The cooling check of target ``i``: an explicit vessel (with its own coolant, if given) or a volume."""
+def _target_scale(ref: _Reference, target: float | Vessel, own_coolant: Coolant | None, i: int, rule: str, coolant_flow_rule: str,
+                  process_temperature: float, safety_factor: float, limits: bool, deadline: Deadline,
+                  warnings: Warnings, size_jacket: bool = False) -> tuple[PendingCheck, Callable[..., ScaleResult]]:
+    """The cooling check of target ``i`` (an explicit vessel, with its own coolant if given, or a volume) up to
+    its limits and band, and the scale's result waiting for its finished ``check``."""
     generated = not isinstance(target, Vessel)
     if not isinstance(target, Vessel):
         case = _similar(ref, float(target), rule, coolant_flow_rule)
@@ -293,14 +295,14 @@ def _target_scale(ref: _Reference, target: float | Vessel, own_coolant: Coolant 
         case = _given(ref, target, i, rule, coolant_flow_rule, warnings)
         if own_coolant is not None:
             case = replace(case, coolant=own_coolant)
-    check = cooling_check(case.vessel, case.charge, case.coolant, process_temperature, case.heat_release,
-                          safety_factor, limits, deadline)
+    check = begin_check(case.vessel, case.charge, case.coolant, process_temperature, case.heat_release, safety_factor,
+                   limits, True)
     design = None
     if size_jacket and generated:
         design = jacket_sizing(case.vessel, case.charge, case.coolant, process_temperature, case.heat_release,
                                safety_factor, deadline=deadline).recommended
-    return ScaleResult(case.vessel.name, case.volume, case.charge_volume, case.scale_factor, generated,
-                       case.vessel.agitator.speed, case.vessel, case.coolant, check, design)
+    return check, partial(ScaleResult, case.vessel.name, case.volume, case.charge_volume, case.scale_factor,
+                          generated, case.vessel.agitator.speed, case.vessel, case.coolant, jacket_design=design)
 
 
 def _family_search(reference: _Reference, rule: str, coolant_rule: str, safety_factor: float, upper: float,
@@ -401,17 +403,18 @@ def scale_up(reference: Vessel, targets: Iterable[Target], rule: str, charge: Ch
             "impeller and geometry ratios; their wall, fouling and coolant film are computed from the published "
             "correlations"))
     with fields_renamed({"vessel": "reference"}):
-        first = cooling_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits,
-                              deadline)
-    result = first.heat_transfer
+        pending = begin_check(reference, charge, coolant, process_temperature, heat_release, safety_factor, limits,
+                              True)
+    result = pending.result
     ref = _Reference(reference, charge, coolant, heat_release, process_temperature, result.fill.brim_volume,
                      result.fill.volume, result.fill.heat_transfer_area, result.process_properties,
                      result.agitation.power_per_volume)
     if not ref.area > 0.0 and coolant_flow_rule == "scale_with_area":
         raise InputError("reference", "the reference vessel has no heat-transfer area at its fill; "
                                    "the coolant flow cannot be scaled with the area")
-    scales = [ScaleResult(reference.name, ref.volume, ref.charge_volume, 1.0, False, reference.agitator.speed,
-                          reference, coolant, first)]
+    scales: list[tuple[PendingCheck, Callable[..., ScaleResult]]] = [
+        (pending, partial(ScaleResult, reference.name, ref.volume, ref.charge_volume, 1.0, False,
+                          reference.agitator.speed, reference, coolant))]
     for i, target in enumerate(targets):
         deadline.check()
         own_coolant = None
@@ -425,10 +428,13 @@ def scale_up(reference: Vessel, targets: Iterable[Target], rule: str, charge: Ch
             scales.append(_target_scale(ref, target, own_coolant, i, rule, coolant_flow_rule, process_temperature,
                                         safety_factor, limits, deadline, warnings, size_jacket))
 
-    largest_target = max((s.volume for s in scales), default=ref.volume)
+    # the limit searches and margin bands of every scale together: one vectorised pass serves all scales
+    results = [make(check=check) for (_, make), check in zip(scales, finish_checks([p for p, _ in scales], deadline))]
+    first = results[0].check
+    largest_target = max((s.volume for s in results), default=ref.volume)
     upper = max(ref.volume * SEARCH_RATIO, 10.0 * largest_target)
     family_rule = "constant_speed" if rule == "as_given" else rule
     largest, beyond, message, switches = _family_search(ref, family_rule, coolant_flow_rule, safety_factor, upper,
                                                         first, warnings, deadline)
-    return ScaleUp(tuple(scales), largest, beyond, upper, message, switches, rule, coolant_flow_rule, safety_factor,
+    return ScaleUp(tuple(results), largest, beyond, upper, message, switches, rule, coolant_flow_rule, safety_factor,
                    warnings, check_cautions(heat_release))

@@ -14,6 +14,8 @@ import math
 
 from typing import Callable, NamedTuple
 
+import numpy as np
+
 from calc import arrays
 from calc.films.jacket_side import (VDI_HEAT_ATLAS, CoolantFilm, FilmFormula, channel_reynolds, flow_warnings,
                                     require_coolant_flow, wall_corrected)
@@ -282,10 +284,18 @@ def coil_flow(props: LiquidProperties, mass_flow: float, mu_wall: float, rho_wal
     r = d / D_c
     Re_crit = coil_critical_reynolds_Schmidt_1967(r)
     turbulent = CORRELATIONS[correlation].function
-    h, Nu = wall_corrected(arrays.where(Re < Re_crit, Nu_coil_laminar_Schmidt_1967(Re, Pr, r),
-                                        arrays.where(Re < COIL_TURBULENT_REYNOLDS,
-                                                     Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent),
-                                                     turbulent(Re, Pr, r))), props, mu_wall, d)
+    # only the regimes present are evaluated (the same numbers as evaluating all three and choosing)
+    if not arrays.is_array(Re, Pr, r):
+        Nu = (Nu_coil_laminar_Schmidt_1967(Re, Pr, r) if Re < Re_crit else
+              Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent) if Re < COIL_TURBULENT_REYNOLDS else
+              turbulent(Re, Pr, r))
+    elif np.all(Re >= COIL_TURBULENT_REYNOLDS):
+        Nu = turbulent(Re, Pr, r)
+    else:
+        Nu = arrays.where(Re < Re_crit, Nu_coil_laminar_Schmidt_1967(Re, Pr, r),
+                          arrays.where(Re < COIL_TURBULENT_REYNOLDS,
+                                       Nu_coil_transition_Gnielinski_1986(Re, Pr, r, turbulent), turbulent(Re, Pr, r)))
+    h, Nu = wall_corrected(Nu, props, mu_wall, d)
     return _CoilFlow(h, Re, velocity, Nu, Re_crit)
 
 

@@ -19,7 +19,6 @@ from typing import Protocol, Sequence
 from scipy.optimize import brentq
 
 from calc.hydraulics import paths
-from calc.network.heat_transfer import Stream
 from calc.properties import LiquidProperties
 from calc.vessel.model import Coolant
 

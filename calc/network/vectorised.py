@@ -35,7 +35,7 @@ N x (surfaces per state).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Iterable, Sequence
+from typing import Any, Iterable, Sequence
 
 import numpy as np
 
@@ -107,7 +107,28 @@ class _ByLiquid:
             s = liquid.states(temperature[mask])
             for target, values in zip(out, (s.density, s.heat_capacity, s.viscosity, s.thermal_conductivity)):
                 target[mask] = values
-        return LiquidProperties(temperature, *out)
+        return _liquid_arrays(temperature, *out)
+
+    def viscosity(self, temperature: np.ndarray) -> np.ndarray:
+        """The viscosity alone (a table look-up where the liquid has a table), as in :meth:`states`."""
+        return self._each(temperature, lambda table, t: table.viscosities(t), lambda s: s.viscosity)
+
+    def density(self, temperature: np.ndarray) -> np.ndarray:
+        """The density alone, as in :meth:`states`."""
+        return self._each(temperature, lambda table, t: table.densities(t), lambda s: s.density)
+
+    def _each(self, temperature: np.ndarray, from_table, from_states) -> np.ndarray:
+        if self.masks is None:
+            return self._one(self.liquids[0], temperature, from_table, from_states)
+        out = np.empty_like(temperature)
+        for liquid, mask in zip(self.liquids, self.masks):
+            out[mask] = self._one(liquid, temperature[mask], from_table, from_states)
+        return out
+
+    @staticmethod
+    def _one(liquid, temperature: np.ndarray, from_table, from_states) -> np.ndarray:
+        table = getattr(liquid, "table", None)
+        return from_states(liquid.states(temperature)) if table is None else from_table(table(), temperature)
 
 
 def _index(items: list, item) -> int:
@@ -127,7 +148,7 @@ def _stack(dicts: list[dict]) -> dict:
     return out
 
 
-def _groups(keys: list) -> list[tuple[object, np.ndarray]]:
+def _groups(keys: list) -> list[tuple[Any, np.ndarray]]:
     """(key, row indices) for each distinct key, in order of first appearance."""
     found: dict = {}
     for i, key in enumerate(keys):
@@ -135,9 +156,14 @@ def _groups(keys: list) -> list[tuple[object, np.ndarray]]:
     return [(key, np.array(rows)) for key, rows in found.items()]
 
 
-def _take(props: LiquidProperties, rows) -> LiquidProperties:
-    return LiquidProperties(props.temperature[rows], props.density[rows], props.heat_capacity[rows],
-                            props.viscosity[rows], props.thermal_conductivity[rows])
+def _liquid_arrays(*values: Any) -> LiquidProperties:
+    """A :class:`LiquidProperties` of arrays, one element per state (its fields are annotated for one state)."""
+    return LiquidProperties(*values)
+
+
+def _take(props: Any, rows: np.ndarray) -> LiquidProperties:
+    return _liquid_arrays(props.temperature[rows], props.density[rows], props.heat_capacity[rows],
+                          props.viscosity[rows], props.thermal_conductivity[rows])
 
 
 class Prepared:
@@ -151,9 +177,11 @@ class Prepared:
         self.networks = tuple(networks)
         charge_liquids: list = []
         coolant_liquids: list = []
-        streams_t: list[tuple] = []  # (flow, per volume?, coolant liquid index, process temperature)
-        surfaces_t: list[tuple] = []  # (stream template, area, charge liquid, bulk props, film, formula, layers,
-        #                               remaining resistance of a calibration or None)
+        # (flow, per volume?, coolant liquid index, process temperature)
+        streams_t: list[tuple[Any, ...]] = []
+        # (stream template, area, charge liquid, bulk props, film, formula, layers, remaining resistance of a
+        # calibration or None)
+        surfaces_t: list[tuple[Any, ...]] = []
         self.network_streams: list[np.ndarray] = []
         self.network_surfaces: list[np.ndarray] = []
         self.network_local: list[np.ndarray] = []
@@ -184,8 +212,9 @@ class Prepared:
             self.network_local.append(np.searchsorted(streams, [surfaces_t[t][0] for t in surfaces]).astype(int))
         self.charge_liquids, self.coolant_liquids = charge_liquids, coolant_liquids
         if streams_t:
-            flows, per_volume, coolant_of, temperatures, follows = (np.array(column) for column in zip(*streams_t))
-            self.flows, self.per_volume, self.follows = flows.astype(float), per_volume.astype(bool), follows.astype(bool)
+            flows, volumes, coolant_of, temperatures, jacket_flow = (np.array(column) for column in zip(*streams_t))
+            self.flows, self.per_volume = flows.astype(float), volumes.astype(bool)
+            self.follows = jacket_flow.astype(bool)
             self.coolant_of, self.temperatures = coolant_of.astype(int), temperatures.astype(float)
         if not surfaces_t:
             return
@@ -194,7 +223,8 @@ class Prepared:
         self.mu_bulk = np.array([t[3].viscosity for t in surfaces_t])
         self.k_bulk = np.array([t[3].thermal_conductivity / t[4].length for t in surfaces_t])
         self.share = np.array([t[5].flow_share for t in surfaces_t])
-        self.layers = wall.WallLayers(*(np.array(column) for column in zip(*(t[6] for t in surfaces_t))))
+        columns: Any = (np.array(column) for column in zip(*(t[6] for t in surfaces_t)))
+        self.layers: Any = wall.WallLayers(*columns)  # of arrays, one element per template
         # calibration: the measured resistance beyond the process film; NaN where the surface has none
         self.remaining = np.array([np.nan if t[7] is None else t[7] for t in surfaces_t], dtype=float)
         self.calibrated = bool(np.isfinite(self.remaining).any())
@@ -219,20 +249,29 @@ class Prepared:
             numbers = _stack([{k: v for k, v in surfaces_t[t][5].fixed.items() if not isinstance(v, str)}
                               for t in templates])
             self.service_groups.append((key[0], numbers, dict(key[1])))
-        self.start = None  # warm start: see warm_start
+        self.start: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None  # warm start: see warm_start
         self.coolant_range = np.array([_range(liquid) for liquid in coolant_liquids]) + [1e-3, -1e-2]
         self.charge_range = np.array([_range(liquid) for liquid in charge_liquids]) + [1e-3, -1e-2]
 
     def warm_start(self, results: Sequence) -> None:
-        """Start later solves from solved states (one scalar ``HeatTransferResult`` per network, in order).
+        """Start later solves from solved states (one scalar ``HeatTransferResult`` per network, in order;
+        None for a network that starts cold, where the scalar path starts).
 
         Each stream starts with its mean coolant and wall temperatures at the same fractions of the
         driving force T_r - T_in as in the solved state, which cuts the iterations for nearby states
         (the limit searches). The answer stays the fixed point to ``TOLERANCE``; it is no longer the
         scalar path's iterate bit for bit, so grids that must match the scalar path start cold.
         """
-        mean, process, service = [], [], []
+        mean: list[float] = []
+        process: list[float] = []
+        service: list[float] = []
         for network, result in zip(self.networks, results):
+            if result is None:
+                mean += [np.nan] * len(network.streams)
+                count = sum(len(stream.surfaces) for stream in network.streams)
+                process += [np.nan] * count
+                service += [np.nan] * count
+                continue
             for stream in result.streams:
                 driving = network.process_temperature - stream.balance.inlet_temperature
                 mean.append((network.process_temperature - stream.mean_temperature) / driving)
@@ -263,7 +302,10 @@ class Prepared:
             np.broadcast_to(np.asarray(coil_flow_factor, dtype=float), (size,))
 
         # rows: one per stream of each state, one per surface of each stream (a stream's surfaces adjacent)
-        stream_rows, stream_state, surface_rows, surface_stream = [], [], [], []
+        stream_rows: list[np.ndarray] = []
+        state_rows: list[np.ndarray] = []
+        surface_rows: list[np.ndarray] = []
+        surface_stream: list[np.ndarray] = []
         first_stream = np.full(size, -1)
         offset = 0
         for n, (streams, surfaces, local) in enumerate(zip(self.network_streams, self.network_surfaces,
@@ -273,7 +315,7 @@ class Prepared:
                 continue
             k = streams.size
             stream_rows.append(np.tile(streams, states.size))
-            stream_state.append(np.repeat(states, k))
+            state_rows.append(np.repeat(states, k))
             first_stream[states] = offset + k * np.arange(states.size)
             surface_rows.append(np.tile(surfaces, states.size))
             surface_stream.append(offset + np.repeat(k * np.arange(states.size), surfaces.size)
@@ -285,7 +327,7 @@ class Prepared:
                               np.zeros(size, dtype=int), np.ones(size, dtype=bool),
                               np.full(size, "none", dtype=object), networks, network_index)
         tstream = np.concatenate(stream_rows)
-        stream_state = np.concatenate(stream_state)
+        stream_state = np.concatenate(state_rows)
         tsurface = np.concatenate(surface_rows)
         sid = np.concatenate(surface_stream)
         if len(networks) > 1:
@@ -309,7 +351,8 @@ class Prepared:
         mu_bulk = self.mu_bulk[tsurface]
         k_bulk = self.k_bulk[tsurface]
         flow_rows = m[sid] * self.share[tsurface]
-        layers = wall.WallLayers(*(column[tsurface] for column in self.layers))
+        columns: Any = (column[tsurface] for column in self.layers)
+        layers = wall.WallLayers(*columns)
         remaining = self.remaining[tsurface] if self.calibrated else None
         process = []
         for g, (function, stacked) in enumerate(self.process_groups):
@@ -329,14 +372,16 @@ class Prepared:
         c_low_rows, c_high_rows = c_low[sid], c_high[sid]
         t_r_rows = t_r[sid]
 
-        if self.start is None:  # where the scalar path starts
-            mean = t_in.copy()
-            process_wall = 0.5 * (t_r_rows + t_in[sid])
-            service_wall = process_wall.copy()
-        else:
-            mean = t_r - self.start[0][tstream] * (t_r - t_in)
-            process_wall = t_r_rows - self.start[1][tsurface] * (t_r_rows - t_in[sid])
-            service_wall = t_r_rows - self.start[2][tsurface] * (t_r_rows - t_in[sid])
+        mean = t_in.copy()  # where the scalar path starts
+        process_wall = 0.5 * (t_r_rows + t_in[sid])
+        service_wall = process_wall.copy()
+        if self.start is not None:  # warm, except the networks started cold (NaN fractions)
+            fraction = self.start[0][tstream]
+            mean = np.where(np.isnan(fraction), mean, t_r - fraction * (t_r - t_in))
+            fraction = self.start[1][tsurface]
+            process_wall = np.where(np.isnan(fraction), process_wall, t_r_rows - fraction * (t_r_rows - t_in[sid]))
+            fraction = self.start[2][tsurface]
+            service_wall = np.where(np.isnan(fraction), service_wall, t_r_rows - fraction * (t_r_rows - t_in[sid]))
         active = np.ones(n_streams, dtype=bool)
         duty = np.zeros(n_streams)
         ua = np.zeros(n_streams)
@@ -347,20 +392,21 @@ class Prepared:
         starts = np.flatnonzero(np.r_[True, sid[1:] != sid[:-1]])
         for iteration in range(1, MAX_ITERATIONS + 1):
             state = coolant.states(np.clip(mean, c_low, c_high))
-            ratio = mu_bulk / charge.states(np.clip(process_wall, p_low, p_high)).viscosity
+            ratio = mu_bulk / charge.viscosity(np.clip(process_wall, p_low, p_high))
             for function, rows, arguments in process:
                 if rows is None:
                     h_process[:] = function(viscosity_ratio=ratio, **arguments) * k_bulk
                 else:
                     h_process[rows] = function(viscosity_ratio=ratio[rows], **arguments) * k_bulk[rows]
-            at_wall = coolant_rows.states(np.clip(service_wall, c_low_rows, c_high_rows))
+            at_wall = np.clip(service_wall, c_low_rows, c_high_rows)
+            wall_viscosity, wall_density = coolant_rows.viscosity(at_wall), coolant_rows.density(at_wall)
             bulk = _take(state, sid)
             for function, rows, fixed in service:
                 if rows is None:
-                    h_service[:] = function(bulk, flow_rows, at_wall.viscosity, at_wall.density, **fixed)[0]
+                    h_service[:] = function(bulk, flow_rows, wall_viscosity, wall_density, **fixed)[0]
                 else:
-                    h_service[rows] = function(_take(bulk, rows), flow_rows[rows], at_wall.viscosity[rows],
-                                               at_wall.density[rows], **fixed)[0]
+                    h_service[rows] = function(_take(bulk, rows), flow_rows[rows], wall_viscosity[rows],
+                                               wall_density[rows], **fixed)[0]
             overall = wall.overall_from_layers(h_process, h_service, layers)
             if remaining is not None:
                 overall = wall.with_remaining_resistance(overall, remaining)
@@ -396,9 +442,9 @@ class Prepared:
         row_state = stream_state[sid]
         order = np.lexsort((np.arange(sid.size), -(overall.U * area), row_state))
         first = order[np.r_[True, row_state[order][1:] != row_state[order][:-1]]]
-        layers = np.array([np.broadcast_to(overall.resistances[name], sid.shape) for name in wall.LAYERS])
+        resistances = np.array([np.broadcast_to(overall.resistances[name], sid.shape) for name in wall.LAYERS])
         controlling = np.full(size, "none", dtype=object)
-        controlling[row_state[first]] = np.array(wall.LAYERS, dtype=object)[np.argmax(layers[:, first], axis=0)]
+        controlling[row_state[first]] = np.array(wall.LAYERS, dtype=object)[np.argmax(resistances[:, first], axis=0)]
         rows = StreamRows(stream_state, m, duty, ua, outlet, mean, sid, process_wall, service_wall)
         return ManyResult(total_duty, total_ua, total_area, main_outlet, most, ~unsettled, controlling,
                           self.networks, network_index, rows)
@@ -410,8 +456,9 @@ def solve_many(networks: Sequence[Network], network_index=None, inlet_temperatur
     return Prepared(networks).solve(network_index, inlet_temperature, flow_factor)
 
 
-def heat_transfer_many(cases: Iterable[tuple]) -> ManyResult:
-    """Solve ``(vessel, charge, coolant, process_temperature)`` cases at once (equal cases assembled once)."""
+def assemble_cases(cases: Iterable[tuple]) -> tuple[list[Network], np.ndarray]:
+    """The networks of ``(vessel, charge, coolant, process_temperature)`` cases (equal cases assembled once)
+    and which network each case is."""
     networks: list[Network] = []
     seen: dict = {}
     index = []
@@ -421,4 +468,9 @@ def heat_transfer_many(cases: Iterable[tuple]) -> ManyResult:
             seen[key] = len(networks)
             networks.append(assemble(vessel, charge, coolant, process_temperature))
         index.append(seen[key])
-    return solve_many(networks, np.array(index, dtype=int))
+    return networks, np.array(index, dtype=int)
+
+
+def heat_transfer_many(cases: Iterable[tuple]) -> ManyResult:
+    """Solve ``(vessel, charge, coolant, process_temperature)`` cases at once (equal cases assembled once)."""
+    return solve_many(*assemble_cases(cases))
