@@ -44,7 +44,7 @@ from calc.cautions import COOLING_CHECK, DOSING, ENDOTHERMIC
 from calc.deadline import NEVER, Deadline
 from calc.network import coolant_balance, vectorised
 from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
-from calc.checks.margin_band import MarginBand, margin_band
+from calc.checks.margin_band import BandCase, MarginBand, margin_bands
 from calc.network.flow_limit import FlowLimit, flow_limit
 from calc.network.heat_transfer import HeatTransferResult, Network, assemble, heat_transfer, solve
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings
@@ -357,39 +357,84 @@ def _inlet_search(network: Network, coolant: Coolant, target: float, capacity: f
                    {given: capacity / target - 1.0}), floor
 
 
+@dataclass(frozen=True)
+class LimitCase:
+    """One vessel's limit searches: its network, solved state, target (load x safety factor, W) and flow limit."""
+
+    network: Network
+    result: HeatTransferResult
+    target: float
+    limit: FlowLimit
+
+
 def _solve_limits(network: Network, result: HeatTransferResult, target: float, limit: FlowLimit,
                   deadline: Deadline = NEVER) -> tuple[Limit, Limit]:
     """Warmest coolant inlet and required coolant flow, searched together on the vectorised network."""
-    coolant = network.coolant
-    given = coolant.mass_flow()
-    log_given = math.log(given)
-    prepared = vectorised.Prepared([network])
-    prepared.warm_start([result])
-    capacity = result.duty
-    inlet_flow = 1.0  # the inlet-temperature limit's flow, over the given
-    at_flow = "at the given flow"
-    if limit.mass_flow is not None and limit.mass_flow < given:
-        inlet_flow = limit.mass_flow / given
-        capacity = float(prepared.solve(np.zeros(1, dtype=int), None, np.array([inlet_flow])).duty[0])
-        at_flow = (f"at {limit.mass_flow:.4g} kg/s, the largest flow within {limit.reason} "
-                   "(the given flow is beyond it)")
-    inlet, floor = _inlet_search(network, coolant, target, capacity)
-    estimate = math.log(_flow_estimate(result, target)) if result.streams else log_given
-    high = math.log(given * FLOW_SEARCH_CAP if limit.mass_flow is None else limit.mass_flow)
-    low = log_given - 30.0 * math.log(10.0)
-    # U A rises with the flow, so the fixed-U A estimate is low; the grid around it brackets the root
-    flow = _Search(low, high, min(max(estimate, low), high), math.log(1.2), True, 1e-10,
-                   {log_given: result.duty / target - 1.0} if log_given <= high else {})
-    if not flow.known:  # the given flow is beyond the utility's limit: start from the limit
-        flow.known[high] = float(prepared.solve(np.zeros(1, dtype=int), None,
-                                                np.array([math.exp(high - log_given)])).duty[0]) / target - 1.0
+    return solve_limits_many([LimitCase(network, result, target, limit)], deadline)[0]
+
+
+def solve_limits_many(cases: list[LimitCase], deadline: Deadline = NEVER) -> list[tuple[Limit, Limit]]:
+    """Warmest coolant inlet and required coolant flow of every case (any mix of vessels), searched together.
+
+    One :class:`calc.network.vectorised.Prepared` holds every case's network; each pass of the searches
+    solves the next points of every case's two searches in one call. Each search sees only its own
+    points, and each state of a vector solve settles on its own, so a case's limits are the same
+    whether it is searched alone (a cooling check) or with a fleet (a screening).
+    """
+    if not cases:
+        return []
+    prepared = vectorised.Prepared([case.network for case in cases])
+    prepared.warm_start([case.result for case in cases])
+    given = [case.network.coolant.mass_flow() for case in cases]
+    log_given = [math.log(flow) for flow in given]
+    # the inlet limit's flow (over the given) and the flow search's upper end
+    inlet_flow = [1.0 if c.limit.mass_flow is None or c.limit.mass_flow >= g else c.limit.mass_flow / g
+                  for c, g in zip(cases, given)]
+    high = [math.log(g * FLOW_SEARCH_CAP if c.limit.mass_flow is None else c.limit.mass_flow)
+            for c, g in zip(cases, given)]
+    # states needed before the searches start: the capacity at the utility's largest flow, where the given
+    # flow is beyond it (for the inlet search, and as the flow search's first point)
+    beyond = [i for i, factor in enumerate(inlet_flow) if factor != 1.0 or log_given[i] > high[i]]
+    first: dict[tuple[int, str], float] = {}
+    if beyond:
+        points = [(i, "inlet", inlet_flow[i]) for i in beyond if inlet_flow[i] != 1.0] + \
+                 [(i, "flow", math.exp(high[i] - log_given[i])) for i in beyond if log_given[i] > high[i]]
+        duty = prepared.solve(np.array([i for i, _, _ in points], dtype=int), None,
+                              np.array([factor for _, _, factor in points])).duty
+        first = {(i, kind): float(d) for (i, kind, _), d in zip(points, duty)}
+    searches: list[_Search] = []
+    notes = []
+    for i, case in enumerate(cases):
+        result, target, coolant = case.result, case.target, case.network.coolant
+        capacity = first.get((i, "inlet"), result.duty)
+        at_flow = "at the given flow" if inlet_flow[i] == 1.0 else (
+            f"at {case.limit.mass_flow:.4g} kg/s, the largest flow within {case.limit.reason} "
+            "(the given flow is beyond it)")
+        inlet, floor = _inlet_search(case.network, coolant, target, capacity)
+        estimate = math.log(_flow_estimate(result, target)) if result.streams else log_given[i]
+        low = log_given[i] - 30.0 * math.log(10.0)
+        # U A rises with the flow, so the fixed-U A estimate is low; the grid around it brackets the root
+        flow = _Search(low, high[i], min(max(estimate, low), high[i]), math.log(1.2), True, 1e-10,
+                       {log_given[i]: result.duty / target - 1.0} if log_given[i] <= high[i] else {})
+        if not flow.known:  # the given flow is beyond the utility's limit: start from the limit
+            flow.known[high[i]] = first[(i, "flow")] / target - 1.0
+        searches += [inlet, flow]
+        notes.append((at_flow, floor))
 
     def evaluate(points):
-        inlets = np.array([x if i == 0 else coolant.inlet_temperature for i, x in points])
-        factors = np.array([inlet_flow if i == 0 else math.exp(x - log_given) for i, x in points])
-        return prepared.solve(np.zeros(len(points), dtype=int), inlets, factors).duty / target - 1.0
+        case = np.array([i // 2 for i, _ in points], dtype=int)
+        inlets = np.array([x if i % 2 == 0 else cases[i // 2].network.coolant.inlet_temperature for i, x in points])
+        factors = np.array([inlet_flow[i // 2] if i % 2 == 0 else math.exp(x - log_given[i // 2]) for i, x in points])
+        targets = np.array([cases[i // 2].target for i, _ in points])
+        return prepared.solve(case, inlets, factors).duty / targets - 1.0
 
-    _search([inlet, flow], evaluate, deadline)
+    _search(searches, evaluate, deadline)
+    return [_limits_found(case, searches[2 * i], searches[2 * i + 1], *notes[i]) for i, case in enumerate(cases)]
+
+
+def _limits_found(case: LimitCase, inlet: _Search, flow: _Search, at_flow: str, floor: str) -> tuple[Limit, Limit]:
+    """The two limits from their finished searches, each with what it means."""
+    target, limit = case.target, case.limit
     assert inlet.value is not None and flow.value is not None  # _search evaluates every search
     if inlet.root is None and inlet.value >= 0.0:
         warmest = Limit(inlet.high, True, "every inlet temperature up to the process temperature (or the coolant's "
@@ -421,22 +466,35 @@ def _solve_limits(network: Network, result: HeatTransferResult, target: float, l
     return warmest, needed
 
 
-def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
-                  heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
-                  limits: bool = True, deadline: Deadline = NEVER, band: bool = True) -> CoolingCheck:
-    """Compare the cooling capacity at ``process_temperature`` (K) with the heat load.
+@dataclass(frozen=True)
+class CheckCase:
+    """One check of a batch (:func:`cooling_checks`): a vessel with its coolant, the step's charge and release."""
 
-    ``limits=False`` skips the three solved limits (``CoolingCheck.limits`` is then None), and
-    ``band=False`` the margin band, for callers that need only the verdict. The limit searches stop with
-    :class:`calc.deadline.OutOfTime` once ``deadline`` has passed.
-    """
-    safety_factor = _check_safety_factor(safety_factor)
-    network = assemble(vessel, charge, coolant, process_temperature)
+    vessel: Vessel
+    charge: Charge
+    coolant: Coolant
+    process_temperature: float  # K
+    heat_release: HeatRelease
+
+
+@dataclass
+class _Nominal:
+    """A case at its given state, before its limits and band."""
+
+    case: CheckCase
+    network: Network
+    result: HeatTransferResult
+    load: HeatLoad
+    margin: float | None
+    warnings: Warnings
+
+
+def _nominal(case: CheckCase) -> _Nominal:
+    """The network solved at the given state (the scalar path: every film with its warnings) and the load."""
+    network = assemble(case.vessel, case.charge, case.coolant, case.process_temperature)
     result = solve(network)
-    load = heat_load(heat_release, charge_mass(result), process_temperature, result.agitation.power)
-    capacity = result.duty
-    margin = margin_of(capacity, load.total)
-    adequate = margin is None or margin >= safety_factor
+    load = heat_load(case.heat_release, charge_mass(result), case.process_temperature, result.agitation.power)
+    margin = margin_of(result.duty, load.total)
     warnings = Warnings()
     warnings.extend_unique(result.warnings)
     warnings.extend_unique(load.warnings)
@@ -444,39 +502,105 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
         warnings.add(CalcWarning("no_net_heat_load",
                                  f"the heat load is {load.total:.4g} W: nothing needs removing, so the margin "
                                  "is unbounded (reported as null)"))
-    stream = result.stream("jacket") or (result.streams[0] if result.streams else None)
-    outlet = stream.balance.outlet_temperature if stream is not None else None
     total_flow = sum(s.mass_flow for s in result.streams)
-    maximum = coolant.maximum_mass_flow()
+    maximum = case.coolant.maximum_mass_flow()
     if maximum is not None and total_flow > maximum * (1 + 1e-9):
         warnings.add(CalcWarning("flow_exceeds_maximum", f"the coolant flow to all circuits ({total_flow:.4g} kg/s) "
                                                          f"exceeds the utility's maximum ({maximum:.4g} kg/s)"))
-    solved = None
-    if limits:
-        limit = flow_limit(result.streams, coolant)
-        target = safety_factor * load.total
-        dosing = None
-        if isinstance(heat_release, Dosing):
-            dosing = _minimum_dosing_time(heat_release, process_temperature, capacity, load.agitator, safety_factor)
-        if target <= 0.0:
-            warmest = Limit(process_temperature, True, "no net heat load: any coolant colder than the contents "
-                                                       "will do")
-            needed = Limit(0.0, True, "no net heat load: no coolant flow is needed")
-        else:
-            warmest, needed = _solve_limits(network, result, target, limit, deadline)
-        solved = Limits(dosing, warmest, needed)
-    spread = None
-    if band:
-        spread = margin_band(vessel, charge, coolant, process_temperature, result, load.total, margin, safety_factor)
-        if not spread.holds_across_band:
-            warnings.add(CalcWarning("verdict_not_robust", spread.statement))
-    cal = vessel.correlations.calibration
-    calibrated = cal is not None
+    return _Nominal(case, network, result, load, margin, warnings)
+
+
+def _limits(item: _Nominal, safety_factor: float) -> tuple[Limit | None, LimitCase | None, Limits | None]:
+    """The dosing-time limit (closed form), and the searches still to run (or the limits when none are needed)."""
+    case, load = item.case, item.load
+    dosing = None
+    if isinstance(case.heat_release, Dosing):
+        dosing = _minimum_dosing_time(case.heat_release, case.process_temperature, item.result.duty, load.agitator,
+                                      safety_factor)
+    target = safety_factor * load.total
+    if target <= 0.0:
+        warmest = Limit(case.process_temperature, True, "no net heat load: any coolant colder than the contents "
+                                                        "will do")
+        needed = Limit(0.0, True, "no net heat load: no coolant flow is needed")
+        return dosing, None, Limits(dosing, warmest, needed)
+    return dosing, LimitCase(item.network, item.result, target, flow_limit(item.result.streams, case.coolant)), None
+
+
+def _finished(item: _Nominal, safety_factor: float, solved: Limits | None, spread: MarginBand | None) -> CoolingCheck:
+    case, result, warnings = item.case, item.result, item.warnings
+    adequate = item.margin is None or item.margin >= safety_factor
+    if spread is not None and not spread.holds_across_band:
+        warnings.add(CalcWarning("verdict_not_robust", spread.statement))
+    stream = result.stream("jacket") or (result.streams[0] if result.streams else None)
+    outlet = stream.balance.outlet_temperature if stream is not None else None
+    cal = case.vessel.correlations.calibration
     if cal is not None:
         warnings.add(CalcWarning("calibrated", f"calibrated: the process film uses the vessel's own constant a = "
                                                f"{cal.process_constant:.4g}" + (
-            "" if vessel.correlations.remaining_resistance is None else
-            f" and the measured remaining resistance {vessel.correlations.remaining_resistance:.4g} m2 K/W")
+            "" if case.vessel.correlations.remaining_resistance is None else
+            f" and the measured remaining resistance {case.vessel.correlations.remaining_resistance:.4g} m2 K/W")
             + "; the margin band spans the fit's 95 % intervals"))
-    return CoolingCheck(adequate, margin, safety_factor, load, capacity, outlet, result, solved, warnings,
-                        check_cautions(heat_release), spread, calibrated)
+    return CoolingCheck(adequate, item.margin, safety_factor, item.load, result.duty, outlet, result, solved,
+                        warnings, check_cautions(case.heat_release), spread, cal is not None)
+
+
+def cooling_checks(cases: list[CheckCase], safety_factor: float = DEFAULT_SAFETY_FACTOR, limits: bool = True,
+                   deadline: Deadline = NEVER, band: bool = True) -> list[CoolingCheck | InputError | CalculationError]:
+    """The cooling check of many cases at once: each case's answer, or the error that case alone raised.
+
+    Each case is solved at its given state on the scalar path (its warnings), then the limit searches of
+    every case run together on the vectorised network (:func:`solve_limits_many`) and the margin bands of
+    every case in one ensemble (:func:`calc.checks.margin_band.margin_bands`). A case's answer is the one
+    :func:`cooling_check` gives for it alone. ``deadline`` is checked between cases and in every pass of
+    the searches (:class:`calc.deadline.OutOfTime` ends the whole batch).
+    """
+    safety_factor = _check_safety_factor(safety_factor)
+    answers: list[CoolingCheck | InputError | CalculationError | None] = [None] * len(cases)
+    items: dict[int, _Nominal] = {}
+    for index, case in enumerate(cases):
+        if index:  # a lone check keeps its whole budget for the searches
+            deadline.check()
+        try:
+            items[index] = _nominal(case)
+        except (InputError, CalculationError) as error:
+            answers[index] = error
+    solved: dict[int, Limits | None] = {index: None for index in items}
+    if limits:
+        pending: dict[int, tuple[Limit | None, LimitCase]] = {}
+        for index, item in items.items():
+            dosing, search, done = _limits(item, safety_factor)
+            if search is None:
+                solved[index] = done
+            else:
+                pending[index] = (dosing, search)
+        found = solve_limits_many([search for _, search in pending.values()], deadline)
+        for (index, (dosing, _)), (warmest, needed) in zip(pending.items(), found):
+            solved[index] = Limits(dosing, warmest, needed)
+    spreads: dict[int, MarginBand | None] = {index: None for index in items}
+    if band:
+        if len(cases) > 1:
+            deadline.check()
+        bands = margin_bands([BandCase(item.case.vessel, item.case.charge, item.case.coolant,
+                                       item.case.process_temperature, item.result, item.load.total, item.margin,
+                                       safety_factor) for item in items.values()])
+        spreads = dict(zip(items, bands))
+    for index, item in items.items():
+        answers[index] = _finished(item, safety_factor, solved[index], spreads[index])
+    return [answer for answer in answers if answer is not None]
+
+
+def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
+                  heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
+                  limits: bool = True, deadline: Deadline = NEVER, band: bool = True) -> CoolingCheck:
+    """Compare the cooling capacity at ``process_temperature`` (K) with the heat load.
+
+    ``limits=False`` skips the three solved limits (``CoolingCheck.limits`` is then None), and
+    ``band=False`` the margin band, for callers that need only the verdict. The limit searches stop with
+    :class:`calc.deadline.OutOfTime` once ``deadline`` has passed. Many cases at once:
+    :func:`cooling_checks`.
+    """
+    (answer,) = cooling_checks([CheckCase(vessel, charge, coolant, process_temperature, heat_release)],
+                               safety_factor, limits, deadline, band)
+    if isinstance(answer, (InputError, CalculationError)):
+        raise answer
+    return answer

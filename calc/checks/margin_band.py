@@ -3,8 +3,9 @@
 The nominal margin uses one correlation per resistance. The published alternatives disagree by more
 than the safety factor usually allows for (``calc.films.selection``), so every check also reports the
 spread of the margin over them: an ensemble, each member one solve of the heat-transfer network
-(all members in one pass of ``calc.network.vectorised.heat_transfer_many``, the network's public
-ensemble entry; the joint members in a second) with one resistance's correlation replaced:
+(all members in one pass of ``calc.network.vectorised.solve_many``, with the contents, fill and
+agitation of the nominal network; the joint members in a second; the bands of many checks together:
+``margin_bands``) with one resistance's correlation replaced:
 
 * process side at the wall: every other published constant set of the impeller
   (``calc.films.process_side.wall_alternatives``); where none is published, the constant a times
@@ -31,11 +32,14 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, replace
+from typing import Any
+
+import numpy as np
 
 from calc.films import process_side
 from calc.films.selection import CorrelationChoice
-from calc.network.heat_transfer import HeatTransferResult
-from calc.network.vectorised import heat_transfer_many
+from calc.network.heat_transfer import HeatTransferResult, Network, assemble
+from calc.network.vectorised import solve_many
 
 #: Cooling-check margins of members are capacity / load; these name the resistance a member varies.
 RESISTANCES = ("process_wall", "process_coil", "annular_jacket", "channel", "coil_tube",
@@ -122,41 +126,90 @@ def _joint(base: CorrelationChoice, picks: list[BandMember]) -> CorrelationChoic
     return replace(base, **changes)
 
 
+@dataclass(frozen=True)
+class BandCase:
+    """What :func:`margin_band` takes, for one case of :func:`margin_bands`."""
+
+    vessel: Any
+    charge: Any
+    coolant: Any
+    process_temperature: float
+    result: HeatTransferResult
+    load_total: float
+    nominal: float | None
+    safety_factor: float
+    members: list[tuple[str, str, CorrelationChoice]] | None = None
+
+
 def margin_band(vessel, charge, coolant, process_temperature: float, result: HeatTransferResult, load_total: float,
                 nominal: float | None, safety_factor: float,
                 members: list[tuple[str, str, CorrelationChoice]] | None = None) -> MarginBand:
     """The band around ``nominal`` (capacity/load of ``result``); ``members`` default: :func:`published_members`."""
-    basis = "published_alternatives" if vessel.correlations.calibration is None else "calibration"
-    if members is None:
-        members = published_members(result, vessel)
-    if nominal is None or load_total <= 0.0:
-        return MarginBand(None, None, basis, "", "", True, "no net heat load: nothing needs removing, no band",
-                          ())
-    nominal_margin: float = nominal
+    return margin_bands([BandCase(vessel, charge, coolant, process_temperature, result, load_total, nominal,
+                                  safety_factor, members)])[0]
 
-    def solve(batch: list[tuple[str, str, CorrelationChoice]]) -> list[BandMember]:
-        """Every member of ``batch`` in one pass of the vectorised network (the public ensemble entry)."""
-        if not batch:
-            return []
-        duty = heat_transfer_many([(replace(vessel, correlations=choice), charge, coolant, process_temperature)
-                                   for _, _, choice in batch]).duty
-        return [BandMember(resistance, alternative, float(d) / load_total, choice)
-                for (resistance, alternative, choice), d in zip(batch, duty)]
 
-    solved = solve(members)
-    base = vessel.correlations
+def _solve(batch: list[tuple[BandCase, str, str, CorrelationChoice]]) -> list[BandMember]:
+    """Every member of ``batch`` (of any cases) in one pass of the vectorised network."""
+    if not batch:
+        return []
+    networks: list[Network] = []
+    seen: dict = {}
+    index = []
+    for case, _, _, choice in batch:  # each distinct member once; contents, fill and agitation from the nominal
+        vessel = replace(case.vessel, correlations=choice)
+        key = (vessel, case.charge, case.coolant, case.process_temperature)
+        if key not in seen:
+            seen[key] = len(networks)
+            networks.append(assemble(vessel, case.charge, case.coolant, case.process_temperature, like=case.result))
+        index.append(seen[key])
+    duty = solve_many(networks, np.array(index, dtype=int)).duty
+    return [BandMember(resistance, alternative, float(d) / case.load_total, choice)
+            for (case, resistance, alternative, choice), d in zip(batch, duty)]
+
+
+def _joints(base: CorrelationChoice, solved: list[BandMember], nominal: float) -> list[tuple[str, str, CorrelationChoice]]:
+    """The joint members: the alternatives that lowered the margin most for each resistance, all together, and
+    those that raised it most (each only when more than one resistance moved that way)."""
     joints = []
     for direction in (min, max):
         picks = []
         for resistance in dict.fromkeys(m.resistance for m in solved):
             group = [m for m in solved if m.resistance == resistance]
             best = direction(group, key=lambda m: m.margin)
-            if (best.margin < nominal_margin) if direction is min else (best.margin > nominal_margin):
+            if (best.margin < nominal) if direction is min else (best.margin > nominal):
                 picks.append(best)
         if len(picks) > 1:
             label = " + ".join(f"{m.resistance}={m.alternative}" for m in picks)
             joints.append(("joint", label, _joint(base, picks)))
-    solved += solve(joints)
+    return joints
+
+
+def margin_bands(cases: list[BandCase]) -> list[MarginBand]:
+    """The band of every case (any mix of vessels): the single members of all cases in one pass of the
+    vectorised network, their joint members in a second; each band as :func:`margin_band` gives it alone."""
+    members = [published_members(case.result, case.vessel) if case.members is None else case.members
+               for case in cases]
+    live = [i for i, case in enumerate(cases) if case.nominal is not None and case.load_total > 0.0]
+    singles = _solve([(cases[i], *member) for i in live for member in members[i]])
+    solved: dict[int, list[BandMember]] = {}
+    for i in live:
+        solved[i], singles = singles[:len(members[i])], singles[len(members[i]):]
+    joints = {i: _joints(cases[i].vessel.correlations, solved[i], float(cases[i].nominal or 0.0)) for i in live}
+    together = _solve([(cases[i], *joint) for i in live for joint in joints[i]])
+    for i in live:
+        solved[i] = solved[i] + together[:len(joints[i])]
+        together = together[len(joints[i]):]
+    return [_band(case, solved.get(i)) for i, case in enumerate(cases)]
+
+
+def _band(case: BandCase, solved: list[BandMember] | None) -> MarginBand:
+    basis = "published_alternatives" if case.vessel.correlations.calibration is None else "calibration"
+    if solved is None or case.nominal is None:
+        return MarginBand(None, None, basis, "", "", True, "no net heat load: nothing needs removing, no band",
+                          ())
+    nominal_margin: float = case.nominal
+    safety_factor = case.safety_factor
     margins = [nominal_margin] + [m.margin for m in solved]
     low, high = min(margins), max(margins)
 

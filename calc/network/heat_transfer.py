@@ -368,19 +368,28 @@ def _outer_diameter(vessel: Vessel) -> float:
     return vessel.shape.diameter + 2.0 * (spec.thickness + lining)
 
 
-def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> Network:
-    """Check the inputs and set up the vessel's network at ``process_temperature`` (K), unsolved."""
+def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
+             like: Network | HeatTransferResult | None = None) -> Network:
+    """Check the inputs and set up the vessel's network at ``process_temperature`` (K), unsolved.
+
+    ``like``: a network (or its solved result) of the same vessel geometry and agitator, charge and
+    process temperature, differing only in correlation choice or coolant: its contents' properties, fill
+    and agitation are taken over instead of computed again (the margin band's members).
+    """
     warnings = Warnings()
     if coolant.inlet_temperature >= process_temperature:
         raise InputError("coolant.inlet_temperature",
                          "must be below the process temperature for cooling "
                          f"({coolant.inlet_temperature - 273.15:.2f} degC >= {process_temperature - 273.15:.2f} degC)")
-    props = charge.liquid.at(process_temperature, field="process_temperature")
-    volume = charge.liquid_volume(process_temperature)
-    filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume,
-                           field="charge.volume" if charge.volume is not None else "charge.mass")
+    if like is not None:
+        props, filled, stirred = like.process_properties, like.fill, like.agitation
+    else:
+        props = charge.liquid.at(process_temperature, field="process_temperature")
+        volume = charge.liquid_volume(process_temperature)
+        filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume,
+                               field="charge.volume" if charge.volume is not None else "charge.mass")
+        stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
     warnings.extend_unique(filled.warnings)
-    stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
     warnings.extend_unique(stirred.warnings)
     shape, agitator, level = vessel.shape, vessel.agitator, filled.liquid_level
     choice = vessel.correlations.validate(agitator.impeller)
