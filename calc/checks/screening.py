@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Any
+from typing import Any, Callable
 
 from calc.checks.cooling_check import CheckCase, CoolingCheck, cooling_checks
 from calc.checks.heat_load import HeatRelease
@@ -66,12 +66,13 @@ BATCH = 50
 
 
 def screen(candidates: list[Candidate], charge: Charge, process_temperature: float, heat_release: HeatRelease,
-           safety_factor: float, deadline: Deadline = NEVER) -> Screening:
+           safety_factor: float, deadline: Deadline = NEVER,
+           progress: Callable[[int, int], None] | None = None) -> Screening:
     """Cooling check of the step in every candidate; once ``deadline`` passes, the rest are not evaluated.
 
     The checks run in batches of :data:`BATCH` vessels (``cooling_checks``: the limit searches and margin
     bands of a batch on the vectorised network together); each row equals the cooling check of its
-    vessel alone.
+    vessel alone. ``progress(done, total)`` is called after each batch (a job reports it).
     """
     rows: list[ScreeningRow | None] = [None] * len(candidates)
     ready = []
@@ -103,4 +104,6 @@ def screen(candidates: list[Candidate], charge: Charge, process_temperature: flo
                 rows[i] = ScreeningRow(candidates[i].key, None, ("(calculation)", str(answer)), True)
             else:
                 rows[i] = ScreeningRow(candidates[i].key, answer, None, True)
+        if progress is not None:
+            progress(min(start + BATCH, len(ready)), len(ready))
     return Screening(tuple(rank([row for row in rows if row is not None])), safety_factor, complete)
