@@ -22,7 +22,7 @@ from schemas.vessel import CoolantSchema, VesselSchema
 
 from . import charts, security
 from .errors import ProblemError
-from .http import answer, presentation, presented, request_object, requested_format
+from .http import Report, answer, presentation, presented, request_object, requested_format
 from .records import store
 from .runtime import deadline
 from .references import records_used, resolve
@@ -229,11 +229,15 @@ def chart(payload: dict, fmt: str, units: dict) -> bytes:
     return charts.render(fig, fmt)
 
 
+#: The printable report of a screening (``format=html``/``pdf``, :func:`api.http.respond`'s ``report``); none yet.
+REPORT: Report | None = None
+
+
 def _answer(payload: dict, status: int = 200) -> Response:
     """The stored screening (rows dumped in the default API units when it ran) in the negotiated format, with
     the presentation the query asks for (output units, digits, decimal comma), as every calculation."""
-    response = answer(*presented(clean(payload), _result), rows="rows", lead=LEAD, chart=chart, status=status,
-                      records=False)
+    response = answer(*presented(clean(payload), _result), rows="rows", lead=LEAD, chart=chart, report=REPORT,
+                      status=status, records=False)
     if status == 201:
         response.headers["Location"] = f"/v1/screenings/{payload['id']}"
     return response
@@ -241,8 +245,11 @@ def _answer(payload: dict, status: int = 200) -> Response:
 
 @bp.post("/screenings")
 def create():
-    presentation(_result)  # a wrong output unit or digits is answered before the screening runs and is stored
-    requested_format()
+    # a wrong output unit, digits or format is answered before the screening runs and is stored
+    presentation(_result)
+    if requested_format() in ("html", "pdf") and REPORT is None:
+        raise ProblemError(422, "a screening has no printable report yet; use format json, csv, svg or png",
+                           [{"field": "format", "message": "no report for this resource"}])
     payload, status = run(request_object())
     return _answer(payload, status)
 
