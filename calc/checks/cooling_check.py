@@ -28,7 +28,9 @@ heat-transfer network, because properties, films and U change with the quantity 
 Both are searched together on the vectorised network (``calc.network.vectorised``): each pass solves
 every candidate of both in one call, a grid around the closed-form estimates until the sign changes,
 then Newton steps with slopes from neighbouring points (three or four passes in all, instead of a
-dozen scalar solves).
+dozen scalar solves). Many checks at once (:func:`cooling_checks`, a fleet screening) search every
+case's limits in the same passes and build every case's margin band in one ensemble; a case's answer
+is the one it gets alone.
 
 When the given flow is beyond the utility's limits, the coolant-temperature limit is solved at the
 largest flow the utility allows, and the check warns (the capacity itself stays at the given flow).
