@@ -199,3 +199,28 @@ def test_a_batch_of_checks_answers_each_case_as_alone():
         assert all(a == pytest.approx(b, rel=1e-9) for a, b in values)
         assert vars(answer.limit_values).keys() == vars(alone.limit_values).keys()
         assert [w.code for w in answer.warnings] == [w.code for w in alone.warnings]
+
+
+def test_a_failed_search_in_a_screening_batch_costs_only_its_own_row(monkeypatch):
+    """A limit search that does not converge raises for the whole batch; the screening then checks each vessel
+    alone, so the others keep their verdicts (the lone check's, to 1e-9) and only that vessel says why it has
+    none. Common practice, no source: one bad item never hides a fleet's answers."""
+    from calc.checks import cooling_check as module
+    from calc.checks.screening import Candidate, screen
+    from calc.validity import CalculationError
+
+    searched = module.solve_limits_many
+
+    def failing(cases, deadline=module.NEVER):
+        if any(case.network.vessel.name == "stubborn" for case in cases):
+            raise CalculationError("limit search did not converge in 16 passes")
+        return searched(cases, deadline)
+
+    monkeypatch.setattr(module, "solve_limits_many", failing)
+    stubborn = replace(VESSEL, name="stubborn")
+    rows = {row.key: row for row in screen([Candidate("good", VESSEL, WATER), Candidate("bad", stubborn, WATER)],
+                                           CHARGE, T_R, DOSE, SF).rows}
+    assert rows["bad"].check is None and rows["bad"].problem == ("(calculation)",
+                                                                 "limit search did not converge in 16 passes")
+    assert rows["good"].check.margin == pytest.approx(check(DOSE).margin, rel=1e-9)
+    assert rows["good"].check.limits is not None

@@ -65,6 +65,13 @@ NOT_EVALUATED = ("(budget)", "not evaluated: the screening's time budget was spe
 BATCH = 50
 
 
+def _alone(case: CheckCase, safety_factor: float, deadline: Deadline) -> Any:
+    try:
+        return cooling_checks([case], safety_factor, deadline=deadline)[0]
+    except CalculationError as error:
+        return error
+
+
 def screen(candidates: list[Candidate], charge: Charge, process_temperature: float, heat_release: HeatRelease,
            safety_factor: float, deadline: Deadline = NEVER,
            progress: Callable[[int, int], None] | None = None) -> Screening:
@@ -85,11 +92,14 @@ def screen(candidates: list[Candidate], charge: Charge, process_temperature: flo
     for start in range(0, len(ready), BATCH):
         batch = ready[start:start + BATCH]
         answers: list = []
+        cases = [CheckCase(candidates[i].vessel, charge, candidates[i].coolant,  # type: ignore[arg-type]
+                           process_temperature, heat_release) for i in batch]
         if complete and not deadline.expired():
             try:
-                answers = cooling_checks([CheckCase(candidates[i].vessel, charge, candidates[i].coolant,  # type: ignore[arg-type]
-                                                    process_temperature, heat_release) for i in batch],
-                                         safety_factor, deadline=deadline)
+                try:
+                    answers = cooling_checks(cases, safety_factor, deadline=deadline)
+                except CalculationError:  # a search that failed the batch: each vessel alone, its own error kept
+                    answers = [_alone(case, safety_factor, deadline) for case in cases]
             except OutOfTime:
                 answers = []
         if not answers:
