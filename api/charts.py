@@ -55,3 +55,26 @@ def readable(values, unit: str) -> tuple[list, str]:
     """``values`` (None kept) and their axis unit: W drawn as kW, s as h, Pa as bar; other units as given."""
     shown, factor = _READABLE.get(unit, (unit, 1.0))
     return [None if v is None else v * factor for v in values], shown
+
+
+def margins(axis, positions, values, bands, adequate, *, horizontal: bool = False,
+            band_label: str = "margin band (published alternatives)") -> None:
+    """Margins as verdict markers with their band as error bars, the same in every chart that shows verdicts.
+
+    Adequate: filled teal circles; not adequate: open amber triangles labelled "NOT adequate" in the
+    legend (never colour alone). ``positions`` place the points along the other axis (a volume, a rank);
+    ``bands`` are the answers' ``margin_band`` objects (None, or without low/high: no bar);
+    ``horizontal`` draws the margin along x.
+    """
+    lows = [b.get("low") if b and b.get("low") is not None else m for b, m in zip(bands, values)]
+    highs = [b.get("high") if b and b.get("high") is not None else m for b, m in zip(bands, values)]
+    spread = [[m - lo for m, lo in zip(values, lows)], [hi - m for m, hi in zip(values, highs)]]
+    x, y = (values, positions) if horizontal else (positions, values)
+    axis.errorbar(x, y, **{"xerr" if horizontal else "yerr": spread}, fmt="none", ecolor="#777777",
+                  elinewidth=1.0, capsize=3, zorder=2, label=band_label)
+    for verdict, marker, face, legend in ((True, "o", TEAL, "adequate"), (False, "v", "white", "NOT adequate")):
+        colour = TEAL if verdict else AMBER
+        chosen = [(a, b) for a, b, ok in zip(x, y, adequate) if bool(ok) == verdict]
+        if chosen:
+            axis.scatter([a for a, _ in chosen], [b for _, b in chosen], marker=marker, s=42, zorder=3,
+                         edgecolors=colour, facecolors=face, linewidths=1.4, label=legend)

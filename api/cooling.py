@@ -86,20 +86,7 @@ def scale_up_chart(payload: dict, fmt: str, units: dict) -> bytes:
     top.set_yscale("log")
     top.set_ylabel(power_unit)
     margins = [s["margin"] if s["margin"] is not None else float("nan") for s in scales]
-    bands = [s.get("margin_band") or {} for s in scales]
-    lows = [b.get("low") if b.get("low") is not None else m for b, m in zip(bands, margins)]
-    highs = [b.get("high") if b.get("high") is not None else m for b, m in zip(bands, margins)]
-    bottom.errorbar(volumes, margins, yerr=[[m - lo for m, lo in zip(margins, lows)],
-                                            [hi - m for m, hi in zip(margins, highs)]],
-                    fmt="none", ecolor="#777777", elinewidth=1.0, capsize=3, zorder=2,
-                    label="margin band (published alternatives)")
-    # adequate: filled teal circles; not adequate: open amber triangles, and the label says so
-    for adequate, marker, colour, face, legend in ((True, "o", charts.TEAL, charts.TEAL, "adequate"),
-                                                   (False, "v", charts.AMBER, "white", "NOT adequate")):
-        chosen = [(v, m) for v, m, s in zip(volumes, margins, scales) if bool(s["adequate"]) == adequate]
-        if chosen:
-            bottom.scatter([v for v, _ in chosen], [m for _, m in chosen], marker=marker, s=42, zorder=3,
-                           edgecolors=colour, facecolors=face, linewidths=1.4, label=legend)
+    charts.margins(bottom, volumes, margins, [s.get("margin_band") for s in scales], [s["adequate"] for s in scales])
     for index, (volume, margin, scale) in enumerate(zip(volumes, margins, scales)):
         label = f"{volume:.3g} {volume_unit}" if scale["generated"] else scale["name"].split(",")[0][:24]
         if not scale["adequate"]:

@@ -222,6 +222,10 @@ def to_csv(rows: list[dict], units: dict[str, str], lead: tuple[str, ...] = (),
     columns: list[str] = []
     for flat in flat_rows:
         columns.extend(c for c in flat if c not in columns)
+    # an object that is null in some rows (``margin_band`` of a row without a verdict) keeps only its own
+    # columns (``margin_band.low``), empty in those rows
+    columns = [c for c in columns if not (any(other.startswith(c + ".") for other in columns)
+                                          and all(flat.get(c) is None for flat in flat_rows))]
     columns = [c for c in lead if c in columns] + [c for c in columns if c not in lead]
     header = []
     for column in columns:
@@ -260,17 +264,25 @@ def text_value(value: Any, view: Presentation) -> str:
 
 def shaped(result: Any, schema: Schema) -> tuple[Any, dict[str, str], Presentation]:
     """Dump ``result`` with ``schema`` in the units and figures the query asks for: (payload, units, view)."""
+    return presented(clean(schema.dump(result)), schema)
+
+
+def presented(payload: Any, schema: Schema) -> tuple[Any, dict[str, str], Presentation]:
+    """An answer already dumped by ``schema`` (in the default API units, e.g. one stored earlier) in the units
+    and figures the query asks for: (payload, units, view)."""
     view = presentation(schema)
-    payload, units = view.convert(clean(schema.dump(result)), units_of(schema))
+    payload, units = view.convert(payload, units_of(schema))
     return payload, units, view
 
 
 Table = Callable[[dict], tuple[list[dict], dict[str, str]]]
+Chart = Callable[[dict, str, dict], bytes]
+Report = Callable[[dict, dict, dict, Presentation], Any]
 
 
 def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple[str, ...] = (),
-            table: Table | None = None, chart: Callable[[dict, str, dict], bytes] | None = None,
-            report: Callable[[dict, dict, dict, Presentation], Any] | None = None, status: int = 200) -> Response:
+            table: Table | None = None, chart: Chart | None = None, report: Report | None = None,
+            status: int = 200) -> Response:
     """Dump ``result`` (a calc result) with ``schema`` and answer in the negotiated format.
 
     ``rows`` names the list that becomes one CSV row per item (e.g. ``"scales"``), with the ``lead``
@@ -278,7 +290,17 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple
     ``chart`` draws the dumped payload (with its units) as SVG or PNG; ``report`` builds an
     :class:`api.reports.Report` from (request as given, payload, units, presentation).
     """
-    payload, units, view = shaped(result, schema)
+    return answer(*shaped(result, schema), rows=rows, lead=lead, table=table, chart=chart, report=report,
+                  status=status)
+
+
+def answer(payload: Any, units: dict[str, str], view: Presentation, *, rows: str | None = None,
+           lead: tuple[str, ...] = (), table: Table | None = None, chart: Chart | None = None,
+           report: Report | None = None, status: int = 200, records: bool = True) -> Response:
+    """Answer a presented payload (:func:`shaped`, :func:`presented`) in the negotiated format; see :func:`respond`.
+
+    ``records=False`` keeps the payload's own ``records`` (a stored answer names what it used).
+    """
     field = request.args.get("field")
     if field:
         value = pick(payload, field)
@@ -313,7 +335,7 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple
         response.headers["Content-Disposition"] = f'inline; filename="{name}"'
         return response
     body = dict(payload)
-    used = records_used()
+    used = records_used() if records else []
     if used:
         body["records"] = used
     body["units"] = units

@@ -14,7 +14,7 @@ from flask import Blueprint, Response, current_app, request
 from marshmallow import ValidationError
 
 from calc.checks import screening as screening_calc
-from schemas.base import clean, unit_map
+from schemas.base import clean
 from schemas.records import RecordQuerySchema
 from schemas.screening import (SCREENING_CAUTIONS, ScreeningListSchema, ScreeningRequestSchema,
                                ScreeningResultSchema, screening_row)
@@ -22,7 +22,7 @@ from schemas.vessel import CoolantSchema, VesselSchema
 
 from . import charts, security
 from .errors import ProblemError
-from .http import request_object, requested_format, to_csv
+from .http import Report, answer, presentation, presented, request_object, requested_format
 from .records import store
 from .runtime import deadline
 from .references import records_used, resolve
@@ -30,11 +30,9 @@ from .storage import NotFound, RevisionView, request_key
 
 bp = Blueprint("screenings", __name__, url_prefix="/v1")
 _request, _result, _list = ScreeningRequestSchema(), ScreeningResultSchema(), ScreeningListSchema()
-_UNITS = unit_map(_result)
-_ROW_UNITS = {k[len("rows."):]: v for k, v in _UNITS.items() if k.startswith("rows.")}
 _PAGE = RecordQuerySchema(only=("limit", "offset"))
 LEAD = ("rank", "tag", "verdict", "margin", "minimum_dosing_time", "maximum_coolant_inlet_temperature",
-        "controlling")
+        "controlling", "margin_band.low", "margin_band.high", "verdict_not_robust")
 
 
 def _select(selection, limit: int) -> list[RevisionView]:
@@ -203,40 +201,43 @@ def _shaped(stored: dict) -> dict:
             "author": stored["author"], **stored["result"]}
 
 
-def chart(payload: dict, fmt: str) -> bytes:
-    """Margin of every vessel (bars, ranked) with the safety factor as a line."""
-    rows = payload["rows"]
+def chart(payload: dict, fmt: str, units: dict) -> bytes:
+    """Margin of every vessel (ranked, best at the top) with its band and the safety factor as a line."""
+    rows = payload["rows"][::-1]
     fig, (axis,) = charts.figure(1)
-    fig.set_size_inches(7.5, 1.2 + 0.32 * max(len(rows), 3))
-    labels = [row["tag"] for row in rows][::-1]
-    margins = [row["margin"] if row["margin"] is not None else 0.0 for row in rows][::-1]
-    colours = [charts.COLOURS[2] if row["verdict"] == "adequate" else
-               charts.COLOURS[1] if row["verdict"] == "not adequate" else "#bbbbbb" for row in rows][::-1]
-    axis.barh(labels, margins, color=colours, zorder=3)
-    for position, row in enumerate(rows[::-1]):
+    fig.set_size_inches(7.5, 1.4 + 0.32 * max(len(rows), 3))
+    positions = list(range(len(rows)))
+    labels = [row["tag"] + (" (NOT adequate)" if row["verdict"] == "not adequate" else "") for row in rows]
+    scored = [(p, row) for p, row in zip(positions, rows) if row["margin"] is not None]
+    charts.margins(axis, [p for p, _ in scored], [row["margin"] for _, row in scored],
+                   [row.get("margin_band") for _, row in scored], [row["verdict"] == "adequate" for _, row in scored],
+                   horizontal=True)
+    for position, row in zip(positions, rows):
         if row["margin"] is None:
             note = "unbounded (no net load)" if row["verdict"] == "adequate" else row["verdict"]
             axis.annotate(note, (0, position), xytext=(4, -3), textcoords="offset points", fontsize=7,
-                          color="#555555")
+                          color="#555555", xycoords=("axes fraction", "data"))
     factor = payload["safety_factor"]
     axis.axvline(factor, color="#555555", linestyle="--", linewidth=1.0, label=f"safety factor {factor:g}")
+    axis.set_yticks(positions, labels)
+    axis.set_ylim(-0.7, len(rows) - 0.3)
     axis.set_xlabel("margin (cooling capacity / heat load)")
     step = payload.get("step")
     axis.set_title(f"Screening of step {step['tag'] if step else '(inline)'} over {len(rows)} vessels", fontsize=10)
-    axis.legend(fontsize=7, frameon=False, loc="lower right")
+    axis.legend(fontsize=7, frameon=False, loc="best")
     charts.footnote(fig)
     return charts.render(fig, fmt)
 
 
+#: The printable report of a screening (``format=html``/``pdf``, :func:`api.http.respond`'s ``report``); none yet.
+REPORT: Report | None = None
+
+
 def _answer(payload: dict, status: int = 200) -> Response:
-    fmt = requested_format()
-    if fmt == "csv":
-        response = Response(to_csv(payload["rows"], _ROW_UNITS, LEAD), status=status, mimetype="text/csv")
-    elif fmt in ("svg", "png"):
-        response = Response(chart(payload, fmt), status=status, mimetype=f"image/{'svg+xml' if fmt == 'svg' else 'png'}")
-    else:
-        body = clean(payload) | {"units": _UNITS}  # rows were dumped (to API units) when the screening ran
-        response = Response(json.dumps(body, allow_nan=False), status=status, mimetype="application/json")
+    """The stored screening (rows dumped in the default API units when it ran) in the negotiated format, with
+    the presentation the query asks for (output units, digits, decimal comma), as every calculation."""
+    response = answer(*presented(clean(payload), _result), rows="rows", lead=LEAD, chart=chart, report=REPORT,
+                      status=status, records=False)
     if status == 201:
         response.headers["Location"] = f"/v1/screenings/{payload['id']}"
     return response
@@ -244,6 +245,11 @@ def _answer(payload: dict, status: int = 200) -> Response:
 
 @bp.post("/screenings")
 def create():
+    # a wrong output unit, digits or format is answered before the screening runs and is stored
+    presentation(_result)
+    if requested_format() in ("html", "pdf") and REPORT is None:
+        raise ProblemError(422, "a screening has no printable report yet; use format json, csv, svg or png",
+                           [{"field": "format", "message": "no report for this resource"}])
     payload, status = run(request_object())
     return _answer(payload, status)
 

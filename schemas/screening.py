@@ -6,7 +6,7 @@ from marshmallow import ValidationError, fields, validate
 from calc import cautions
 
 from .base import StrictSchema
-from .cooling import CoolingCheckRequestSchema, HeatReleaseSchema
+from .cooling import CoolingCheckRequestSchema, HeatReleaseSchema, MarginBandSchema
 from .heat_transfer import WarningSchema
 from .records import RecordQuerySchema, ReferenceSchema, TAG_PATTERN
 from .units import Quantity, absolute_temperature
@@ -81,6 +81,13 @@ class ScreeningRowSchema(StrictSchema):
     verdict = fields.String(validate=validate.OneOf(["adequate", "not adequate", "no verdict", "not evaluated"]))
     adequate = fields.Boolean(allow_none=True)
     margin = fields.Float(allow_none=True, metadata={"description": "cooling capacity / heat load"})
+    margin_band = fields.Nested(MarginBandSchema(exclude=("members",)), allow_none=True, metadata={
+        "description": "the margin over the published alternatives of each resistance (or the calibration's "
+                       "intervals), as the cooling check gives it; members are left out (the check of the vessel "
+                       "lists them); null without a verdict or without a net load"})
+    verdict_not_robust = fields.Boolean(allow_none=True, metadata={
+        "description": "true when the band crosses the safety factor: the verdict rests on the choice of "
+                       "correlation (a measured UA would settle it); null without a verdict"})
     heat_load = Quantity("power", allow_none=True)
     cooling_capacity = Quantity("power", allow_none=True)
     minimum_dosing_time = Quantity("time", allow_none=True,
@@ -175,11 +182,14 @@ def screening_row(row, info: dict) -> dict:
     if check is None:
         field, message = row.problem
         return out | {"verdict": "no verdict" if row.evaluated else "not evaluated", "adequate": None,
-                      "margin": None, "problem": {"field": field, "message": message}}
+                      "margin": None, "margin_band": None, "verdict_not_robust": None,
+                      "problem": {"field": field, "message": message}}
     heat = check.heat_transfer
+    band = check.margin_band
     return out | {
         "verdict": "adequate" if check.adequate else "not adequate", "adequate": check.adequate,
-        "margin": check.margin, "heat_load": check.heat_load.total, "cooling_capacity": check.cooling_capacity,
+        "margin": check.margin, "margin_band": band if band is None or band.low is not None else None,
+        "verdict_not_robust": None if band is None else not band.holds_across_band, "heat_load": check.heat_load.total, "cooling_capacity": check.cooling_capacity,
         "minimum_dosing_time": _limit(check, "minimum_dosing_time"),
         "maximum_coolant_inlet_temperature": _limit(check, "maximum_coolant_inlet_temperature"),
         "required_coolant_flow": _limit(check, "required_coolant_flow"),

@@ -168,3 +168,60 @@ def test_bad_input_names_the_field(kw, field):
     with pytest.raises(InputError) as info:
         cooling_check(**args)
     assert info.value.field == field
+
+
+def test_a_batch_of_checks_answers_each_case_as_alone():
+    """cooling_checks (the screening's path: limit searches and margin bands of every case in the same
+    vectorised passes) gives each case the answer of its lone check, to 1e-9, and keeps one case's input error
+    to that case. Oracle: the lone cooling_check, whose numbers the tests above pin to CoolProp and closure."""
+    from calc.checks.cooling_check import CheckCase, cooling_checks
+
+    brine = Coolant(LibraryLiquid("water"), K + 5, 2.0, maximum_flow=1.5)  # beyond the header's flow
+    small = replace(VESSEL, shape=geometry.VesselShape(1.2, 1.2, "torispherical_fd"), name="small")
+    cases = [CheckCase(VESSEL, CHARGE, WATER, T_R, DOSE), CheckCase(VESSEL, CHARGE, brine, T_R, DOSE),
+             CheckCase(small, CHARGE, WATER, T_R, DOSE),  # 5 m3 does not fit: an InputError of its own
+             CheckCase(VESSEL, CHARGE, WATER, T_R, TotalPower(-50e3)),  # no net load: no searches, no band
+             CheckCase(VESSEL, CHARGE, WATER, T_R, SpecificPower(40.0))]
+    batch = cooling_checks(cases, SF)
+    assert isinstance(batch[2], InputError) and batch[2].field == "charge.volume"
+    assert batch[3].margin is None and "flow_exceeds_maximum" in [w.code for w in batch[1].warnings]
+    for case, answer in zip(cases, batch):
+        if isinstance(answer, InputError):
+            continue
+        alone = cooling_check(case.vessel, case.charge, case.coolant, case.process_temperature, case.heat_release,
+                              SF)
+        assert (answer.margin is None) == (alone.margin is None) and answer.adequate == alone.adequate
+        values = [(answer.cooling_capacity, alone.cooling_capacity)]
+        values += [(a, b) for a, b in zip(vars(answer.limit_values).values(), vars(alone.limit_values).values())
+                   if isinstance(b, float)]
+        if alone.margin is not None:
+            values += [(answer.margin, alone.margin), (answer.margin_band.low, alone.margin_band.low),
+                       (answer.margin_band.high, alone.margin_band.high)]
+        assert all(a == pytest.approx(b, rel=1e-9) for a, b in values)
+        assert vars(answer.limit_values).keys() == vars(alone.limit_values).keys()
+        assert [w.code for w in answer.warnings] == [w.code for w in alone.warnings]
+
+
+def test_a_failed_search_in_a_screening_batch_costs_only_its_own_row(monkeypatch):
+    """A limit search that does not converge raises for the whole batch; the screening then checks each vessel
+    alone, so the others keep their verdicts (the lone check's, to 1e-9) and only that vessel says why it has
+    none. Common practice, no source: one bad item never hides a fleet's answers."""
+    from calc.checks import cooling_check as module
+    from calc.checks.screening import Candidate, screen
+    from calc.validity import CalculationError
+
+    searched = module._solve_limits
+
+    def failing(checks, bands, deadline=module.NEVER):
+        if any(network.vessel.name == "stubborn" for network, _, _, _ in checks):
+            raise CalculationError("limit search did not converge in 16 passes")
+        return searched(checks, bands, deadline)
+
+    monkeypatch.setattr(module, "_solve_limits", failing)
+    stubborn = replace(VESSEL, name="stubborn")
+    rows = {row.key: row for row in screen([Candidate("good", VESSEL, WATER), Candidate("bad", stubborn, WATER)],
+                                           CHARGE, T_R, DOSE, SF).rows}
+    assert rows["bad"].check is None and rows["bad"].problem == ("(calculation)",
+                                                                 "limit search did not converge in 16 passes")
+    assert rows["good"].check.margin == pytest.approx(check(DOSE).margin, rel=1e-9)
+    assert rows["good"].check.limits is not None

@@ -561,6 +561,43 @@ def _checked(p: PendingCheck, found: tuple[Limit, Limit] | None, spread: MarginB
                         check_cautions(heat_release), spread, cal is not None, None if cal is None else cal.summary)
 
 
+@dataclass(frozen=True)
+class CheckCase:
+    """One check of a batch (:func:`cooling_checks`): a vessel with its coolant, the step's charge and release."""
+
+    vessel: Vessel
+    charge: Charge
+    coolant: Coolant
+    process_temperature: float  # K
+    heat_release: HeatRelease
+
+
+def cooling_checks(cases: list[CheckCase], safety_factor: float = DEFAULT_SAFETY_FACTOR, limits: bool = True,
+                   deadline: Deadline = NEVER, band: bool = True) -> list[CoolingCheck | InputError | CalculationError]:
+    """The cooling check of many cases at once (a screening): each case's answer, or the input error that case
+    alone raised.
+
+    Each case is begun on its own (:func:`begin_check`: its network, load and warnings); then the limit
+    searches and margin bands of every case share the vectorised passes (:func:`finish_checks`), where each
+    state settles on its own, so a case's answer is the one :func:`cooling_check` gives for it alone.
+    ``deadline`` is checked between cases and in every pass (:class:`calc.deadline.OutOfTime` ends the batch);
+    a search that fails raises :class:`CalculationError` for the whole batch.
+    """
+    answers: list[CoolingCheck | InputError | CalculationError | None] = [None] * len(cases)
+    pending: dict[int, PendingCheck] = {}
+    for index, case in enumerate(cases):
+        if index:  # a lone check keeps its whole budget for the searches
+            deadline.check()
+        try:
+            pending[index] = begin_check(case.vessel, case.charge, case.coolant, case.process_temperature,
+                                         case.heat_release, safety_factor, limits, band)
+        except (InputError, CalculationError) as error:
+            answers[index] = error
+    for index, answer in zip(pending, finish_checks(list(pending.values()), deadline)):
+        answers[index] = answer
+    return [answer for answer in answers if answer is not None]
+
+
 def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
                   heat_release: HeatRelease, safety_factor: float = DEFAULT_SAFETY_FACTOR,
                   limits: bool = True, deadline: Deadline = NEVER, band: bool = True) -> CoolingCheck:

@@ -85,6 +85,28 @@ def _post(base: str, path: str, body: dict) -> dict:
         return json.loads(response.read())
 
 
+def _calc_only(client) -> float:
+    """Median time of the screening's calculation alone (calc.checks.screening.screen of the same 100 vessels),
+    without the catalogue, the schemas or the answer: the share of the time the physics takes."""
+    from calc.checks import screening
+    from schemas.screening import ScreeningStepSchema
+    from schemas.vessel import CoolantSchema, VesselSchema
+
+    step = record("step", STEP)
+    step = ScreeningStepSchema().load({k: step[k] for k in ("charge", "process_temperature", "heat_release",
+                                                            "safety_factor")})
+    candidates = [screening.Candidate(index, VesselSchema().load(vessel["vessel"]),
+                                      CoolantSchema().load(record("utility", vessel["utility"])["coolant"]))
+                  for index, vessel in enumerate(_fleet())]
+    times = []
+    for _ in range(3):
+        started = time.perf_counter()
+        screening.screen(candidates, step["charge"], step["process_temperature"], step["heat_release"],
+                         step["safety_factor"])
+        times.append(time.perf_counter() - started)
+    return statistics.median(times)
+
+
 def measure(backend: str, url: str, seconds: float, clients: int, repeats: int) -> dict:
     from api import create_app
 
@@ -92,11 +114,12 @@ def measure(backend: str, url: str, seconds: float, clients: int, repeats: int) 
     client = app.test_client()
     _seed(client)
     screening = {"step": {"ref": STEP}}
-    in_process = []
+    in_process, cpu = [], []
     for _ in range(repeats):
-        started = time.perf_counter()
+        started, started_cpu = time.perf_counter(), time.process_time()
         answer = client.post("/v1/screenings", json=screening)
         in_process.append(time.perf_counter() - started)
+        cpu.append(time.process_time() - started_cpu)
         assert answer.status_code == 201 and answer.json["counts"]["screened"] == VESSELS, answer.json
     step = record("step", STEP)
     vessel = _fleet()[0]
@@ -106,7 +129,8 @@ def measure(backend: str, url: str, seconds: float, clients: int, repeats: int) 
     assert client.post("/v1/cooling-check", json=inline).json["margin"] == \
         client.post("/v1/cooling-check", json=by_ref).json["margin"]
     app.extensions["coolmargin.catalogue"].dispose()
-    out = {"screen_in_process": statistics.median(in_process)}
+    out = {"screen_in_process": statistics.median(in_process), "screen_first": in_process[0],
+           "screen_cpu": statistics.median(cpu), "screen_calc": _calc_only(client)}
     with gunicorn(env={"COOLMARGIN_DATABASE_URL": url}, workers=2) as base:
         over_http = []
         for _ in range(repeats):
@@ -142,11 +166,18 @@ def main(argv: list[str] | None = None) -> int:
     print(f"catalogue benchmark: {VESSELS} stored vessels, step {STEP}, {args.clients} clients x {args.seconds:g} s")
     print(f"  {'':<44} {'SQLite':>10} {'PostgreSQL':>11}")
     rows = [("screening of 100 vessels, in-process (s)", "screen_in_process", "{:.2f}"),
+            ("  the same, first run (s)", "screen_first", "{:.2f}"),
+            ("  the same, CPU time of this process (s)", "screen_cpu", "{:.2f}"),
+            ("  its calculation alone (calc, s)", "screen_calc", "{:.2f}"),
             ("screening of 100 vessels, HTTP, 2 workers (s)", "screen_http", "{:.2f}"),
             ("cooling check inline (requests/s)", "inline_rps", "{:.1f}"),
             ("cooling check by reference (requests/s)", "by_ref_rps", "{:.1f}")]
     for label, key, fmt in rows:
         print(f"  {label:<44} {fmt.format(results['sqlite'][key]):>10} {fmt.format(results['postgresql'][key]):>11}")
+    for backend, figures in results.items():
+        took = figures["screen_in_process"]
+        print(f"  screening in-process on {backend}: {took:.2f} s ({'meets' if took < 1.0 else 'MISSES'} the goal < 1 s "
+              f"of issue 11; CPU {figures['screen_cpu']:.2f} s: on a shared machine the wall time includes waiting)")
     worst = EXIT = 0
     for backend, figures in results.items():
         ratio = figures["by_ref_rps"] / figures["inline_rps"]
