@@ -184,3 +184,22 @@ def test_compose_worker_command_runs_natively(tmp_path):
     finally:
         jobs.queue(app).delete(delete_jobs=True)
         app.extensions["coolmargin.catalogue"].dispose()
+
+
+def test_job_answers_conform_to_the_contract(queued):
+    import json
+
+    from openapi_core import Config, OpenAPI
+    from test_openapi import SPEC_PATH, check_contract
+
+    app, client = queued
+    contract = OpenAPI.from_file_path(str(SPEC_PATH), config=Config(extra_media_type_deserializers={
+        "application/problem+json": json.loads}))
+    body = STEP | {"vessels": ["Puffin", "Lark"]}
+    accepted = client.post("/v1/screenings", json=body, headers=ASYNC)
+    check_contract(contract, accepted, body)
+    check_contract(contract, client.get(accepted.headers["Location"]))
+    check_contract(contract, client.get("/v1/screenings"))
+    check_contract(contract, client.get(accepted.headers["Location"] + "?format=csv"))
+    jobs.work(app, burst=True, fork=False)
+    check_contract(contract, client.get(accepted.headers["Location"]))
