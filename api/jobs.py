@@ -77,6 +77,10 @@ def reason(vessels: int) -> str | None:
 
 def unavailable_warning() -> dict | None:
     """What a screening answered in the request says about the queue (None when all is as asked)."""
+    if g.get("queue_unreachable"):
+        return {"code": "job_queue_unreachable",
+                "message": f"the job queue could not be reached ({g.queue_unreachable}); the screening ran in the "
+                           "request instead of as a job"}
     if current_app.config.get("QUEUE_URL"):
         return None
     if prefers_async():
@@ -97,6 +101,7 @@ def submit(body: dict, previous_id: str | None, total: int) -> dict | None:
         work.connection.ping()
     except redis.RedisError as exc:
         log.warning("job queue unreachable (%s); the screening runs in the request", exc)
+        g.queue_unreachable = type(exc).__name__
         return None
     catalogue = store()
     stored = catalogue.save_screening(request=body, used=[], result={"status": "queued"}, author=security.author(),

@@ -154,6 +154,7 @@ def test_an_unreachable_queue_leaves_the_screening_in_the_request(database_url):
         load_plant(client)
         answer = client.post("/v1/screenings", json=STEP | {"vessels": ["Puffin"]}, headers=ASYNC)
         assert answer.status_code == 201 and answer.json["status"] == "complete"
+        assert "job_queue_unreachable" in {w["code"] for w in answer.json["warnings"]}
     finally:
         app.extensions["coolmargin.catalogue"].dispose()
 
