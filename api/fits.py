@@ -20,6 +20,7 @@ from schemas.fits import (SERIES_COLUMNS, UAFitRequestSchema, UAFitResultSchema,
 from . import charts
 from .errors import ProblemError
 from .http import RESERVED_PARAMETERS, request_object, respond
+from .references import resolve
 
 bp = Blueprint("fits", __name__, url_prefix="/v1")
 _request, _result = UAFitRequestSchema(), UAFitResultSchema()
@@ -84,7 +85,7 @@ def ua_fit_chart(payload: dict, fmt: str, units: dict | None = None) -> bytes:
 
 @bp.route("/ua-fit", methods=["GET", "POST"])
 def ua_fit():
-    args = _request.load(_ua_fit_object())
+    args = _request.load(resolve(_ua_fit_object(), _request, own_utility=False))
     series = args["series"]
     fitted = plant_runs.fit_run(series["time"], series["contents_temperature"], series["coolant_inlet_temperature"],
                                 args["charge"], args["mode"], series["coolant_outlet_temperature"], args["coolant"],
@@ -112,7 +113,7 @@ def wilson_chart(payload: dict, fmt: str, units: dict | None = None) -> bytes:
 
 @bp.route("/wilson-plot", methods=["GET", "POST"])
 def wilson():
-    args = _wilson_request.load(request_object())
+    args = _wilson_request.load(resolve(request_object(), _wilson_request, own_utility=False))
     result = plant_runs.wilson_from_runs(args["vessel"], args["charge"], args["process_temperature"], args["runs"],
                                          args["coolant"], args["exponent"], args["prandtl_exponent"])
     return respond(wilson_dict(result, CAUTIONS), _wilson_result, chart=wilson_chart)

@@ -111,7 +111,9 @@ class HeatTransferRequestSchema(_AgitatedVesselSchema):
     correlations = fields.Nested(CorrelationsSchema, load_default=None)
     calibration = fields.Nested(CalibrationSchema, load_default=None, metadata={
         "description": "the vessel's own measured constants (from /v1/wilson-plot): results say calibrated and "
-                       "the margin band spans the fit's intervals"})
+                       "the margin band spans the fit's intervals. A stored vessel ({\"ref\": ...}) with a "
+                       "calibration attached uses it by default (records names the vessel revision); send null "
+                       "to use the published correlations instead"})
 
     @post_load
     def _choose(self, data, **kwargs):
