@@ -26,6 +26,7 @@ from typing import Any, Callable
 import redis
 from flask import Flask, current_app, g, request
 from rq import Queue, SimpleWorker, Worker
+from rq.exceptions import NoSuchJobError
 from rq.job import Job as RqJob
 from rq.job import JobStatus
 
@@ -140,7 +141,7 @@ def refresh(stored: dict) -> dict:
         status = job.get_status(refresh=True)
     except redis.RedisError:
         return stored  # cannot tell; the stored state stands
-    except Exception:  # rq.exceptions.NoSuchJobError: expired or never there
+    except NoSuchJobError:  # expired, or the queue was flushed
         status = None
     if status is None or status in _LOST:
         fail(stored["id"], f"the job was lost ({status or 'not on the queue'}): the worker stopped or the "

@@ -125,6 +125,12 @@ def test_a_job_lost_by_the_queue_is_reported_failed(queued):
     RqJob.fetch(accepted.json["id"], connection=jobs.queue(app).connection).cancel()
     lost = client.get(accepted.headers["Location"]).json
     assert lost["status"] == "failed" and "lost" in lost["failure"]
+    flushed = client.post("/v1/screenings", json=STEP, headers=ASYNC)
+    RqJob.fetch(flushed.json["id"], connection=jobs.queue(app).connection).delete()  # as if Redis was emptied
+    gone = client.get(flushed.headers["Location"]).json
+    assert gone["status"] == "failed" and "not on the queue" in gone["failure"]
+    jobs.work(app, burst=True, fork=False)  # nothing left to run: the failed screenings stay failed
+    assert client.get(accepted.headers["Location"]).json["status"] == "failed"
 
 
 def test_without_a_queue_the_screening_runs_in_the_request_and_says_so(store_client):
