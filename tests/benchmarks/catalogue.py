@@ -31,6 +31,7 @@ if not __package__:  # run as a script: import from tests/ and the project, not 
     sys.path[:0] = [str(_HERE.parent), str(_HERE.parents[1])]
 
 from benchmarks.load import run_load  # noqa: E402
+from benchmarks.margin_band import timed  # noqa: E402
 from benchmarks.requests import Example  # noqa: E402
 from plant import PLANT, record  # noqa: E402
 from serving import gunicorn  # noqa: E402
@@ -127,15 +128,6 @@ def measure(backend: str, url: str, seconds: float, clients: int, repeats: int) 
     return out
 
 
-def _median_time(call, times: int) -> float:
-    spent = []
-    for _ in range(times):
-        started = time.perf_counter()
-        call()
-        spent.append(time.perf_counter() - started)
-    return statistics.median(spent)
-
-
 def _interleaved(app, client, inline: dict, by_ref: dict, rounds: int = 8, times: int = 15) -> dict:
     """In-process seconds per check, inline and by reference, in alternating rounds; and resolve() alone."""
     from api.references import resolve
@@ -145,9 +137,9 @@ def _interleaved(app, client, inline: dict, by_ref: dict, rounds: int = 8, times
     schema = CoolingCheckRequestSchema()
     for _ in range(rounds):
         for name, body in (("inline", inline), ("by_ref", by_ref)):
-            medians[name].append(_median_time(lambda body=body: client.post("/v1/cooling-check", json=body), times))
+            medians[name].append(timed(lambda body=body: client.post("/v1/cooling-check", json=body), times))
         with app.test_request_context():
-            medians["resolve"].append(_median_time(lambda: resolve(by_ref, schema), times))
+            medians["resolve"].append(timed(lambda: resolve(by_ref, schema), times))
     return {f"{name}_s": statistics.median(values) for name, values in medians.items()}
 
 
