@@ -210,3 +210,14 @@ def test_job_answers_conform_to_the_contract(queued):
     check_contract(contract, client.get(accepted.headers["Location"] + "?format=csv"))
     jobs.work(app, burst=True, fork=False)
     check_contract(contract, client.get(accepted.headers["Location"]))
+
+
+def test_worker_command_without_a_reachable_queue_says_so(tmp_path, monkeypatch, capsys):
+    from api.cli import EXIT_INVALID, EXIT_UNREACHABLE, main
+
+    monkeypatch.delenv("COOLMARGIN_QUEUE_URL", raising=False)
+    database = ["--database-url", f"sqlite:///{tmp_path}/catalogue.sqlite3"]
+    assert main(["worker", *database]) == EXIT_INVALID
+    assert "COOLMARGIN_QUEUE_URL" in capsys.readouterr().err
+    assert main(["worker", *database, "--queue-url", "redis://127.0.0.1:1/0", "--burst"]) == EXIT_UNREACHABLE
+    assert "unreachable" in capsys.readouterr().err
