@@ -37,7 +37,11 @@ DEFAULTS = {
     "DATABASE_URL": "",  # SQLAlchemy URL of the plant catalogue; empty: a SQLite file in the user's data dir
     "MIGRATE_ON_START": 1,  # bring the catalogue's schema up to date when the app is built
     "MAX_SCREENING_VESSELS": 200,  # vessels in one screening (413 above)
-    "SCREENING_WALL_TIME": 20.0,  # s of computing per screening request; past it the answer is partial
+    "SCREENING_WALL_TIME": 20.0,  # s of computing per screening request; past it the answer is partial (or a job)
+    "QUEUE_URL": "",  # redis:// URL of the job queue for large screenings (api/jobs.py); empty: no jobs
+    "QUEUE_NAME": "coolmargin-screenings",  # the rq queue's name on that Redis
+    "SCREENING_SYNC_VESSELS": 100,  # with a queue, screenings of more vessels than this run as jobs
+    "SCREENING_JOB_WALL_TIME": 1800.0,  # s of computing per screening job; past it the job's answer is partial
     "RATE_LIMIT": "600 per minute",  # per client (token, else address); ';' between limits; empty: off
     "RATE_LIMIT_STORAGE": "memory://",  # or a redis:// URL shared by every process and replica
     "RATE_LIMIT_PREFIX": "coolmargin",  # key prefix in that storage

@@ -9,6 +9,9 @@ The plant catalogue (COOLMARGIN_DATABASE_URL, or ``--database-url``): ``coolmarg
 the migrations; ``coolmargin export [FILE]`` writes every record with its history as JSON;
 ``coolmargin import FILE`` restores an export or creates the records of a hand-written file (a ``.csv``
 file is a vessel list from a spreadsheet); ``--if-empty`` imports only into an empty catalogue.
+
+``coolmargin worker`` runs the jobs of large screenings from the Redis queue named by COOLMARGIN_QUEUE_URL
+(one process per job); ``--burst`` stops once the queue is empty.
 """
 from __future__ import annotations
 
@@ -172,6 +175,24 @@ def _db(args: argparse.Namespace) -> int:
     print(f"catalogue at schema revision {catalogue.schema_revision()}: "
           + ", ".join(f"{n} {k}" for k, n in sorted(catalogue.counts().items()) or [("records", 0)]))
     catalogue.dispose()
+    return EXIT_OK
+
+
+def _worker(args: argparse.Namespace) -> int:
+    from . import create_app, jobs
+
+    settings = {"QUEUE_URL": args.queue_url} if args.queue_url else {}
+    if args.database_url:
+        settings["DATABASE_URL"] = args.database_url
+    app = create_app(settings)
+    if not app.config["QUEUE_URL"]:
+        print("coolmargin: no job queue: set COOLMARGIN_QUEUE_URL (a redis:// URL) or --queue-url", file=sys.stderr)
+        return EXIT_INVALID
+    try:
+        jobs.work(app, burst=args.burst)
+    except jobs.redis.RedisError as error:
+        print(f"coolmargin: the job queue at {app.config['QUEUE_URL']} is unreachable: {error}", file=sys.stderr)
+        return EXIT_UNREACHABLE
     return EXIT_OK
 
 
@@ -363,6 +384,10 @@ def build_parser() -> argparse.ArgumentParser:
     load.add_argument("--replace", action="store_true", help="CSV: revise vessels whose tag exists already")
     load.add_argument("--author", default=None, help="name recorded with the new revisions; default $USER")
     load.set_defaults(handler=_import)
+    worker = commands.add_parser("worker", parents=[database], help="run the jobs of large screenings (Redis queue)")
+    worker.add_argument("--queue-url", default=None, help="redis:// URL of the queue; default COOLMARGIN_QUEUE_URL")
+    worker.add_argument("--burst", action="store_true", help="stop once the queue is empty")
+    worker.set_defaults(handler=_worker)
     return parser
 
 

@@ -98,7 +98,7 @@ def _fit_run(args: dict) -> plant_runs.RunFit:
 
 @bp.route("/ua-fit", methods=["GET", "POST"])
 def ua_fit():
-    return calculate(_request, _fit_run, _result, read=_ua_fit_object, chart=ua_fit_chart)
+    return calculate(_request, _fit_run, _result, read=_ua_fit_object, own_utility=False, chart=ua_fit_chart)
 
 
 def wilson_chart(payload: dict, fmt: str, units: dict) -> bytes:
@@ -128,4 +128,4 @@ def _wilson(args: dict) -> plant_runs.WilsonRuns:
 
 @bp.route("/wilson-plot", methods=["GET", "POST"])
 def wilson():
-    return calculate(_wilson_request, _wilson, _wilson_result, chart=wilson_chart)
+    return calculate(_wilson_request, _wilson, _wilson_result, own_utility=False, chart=wilson_chart)

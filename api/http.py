@@ -420,14 +420,16 @@ def _not_computed(index: int, total: int) -> dict:
 
 
 def calculate(schema: Schema, compute: Callable[[Any], Any], result_schema: Schema, *, batch: bool = False,
-              read: Callable[[], dict] = request_object, **respond_options: Any) -> Response:
+              read: Callable[[], dict] = request_object, own_utility: bool = True,
+              **respond_options: Any) -> Response:
     """The whole life of a calculation request: load, compute (calc), dump and negotiate the format.
 
     Every calculation resource answers through here. ``compute`` takes what ``schema`` loads and
     returns a calc result that ``result_schema`` dumps. With ``batch``, a POST of
     ``{"cases": [...]}`` answers each case on its own. ``read`` gives the request's input object
     (JSON body or query by default; a resource that also takes another body, such as a CSV log,
-    passes its own).
+    passes its own). ``own_utility=False``: a stored vessel's utility does not stand in for a missing
+    coolant (:func:`api.references.resolve`; the plant-data fits, whose coolant is the logged run's).
     """
     data = read()
     if batch and request.method == "POST" and "cases" in data:
@@ -435,7 +437,7 @@ def calculate(schema: Schema, compute: Callable[[Any], Any], result_schema: Sche
             raise ProblemError(422, "a batch body holds only 'cases'",
                                [{"field": sorted(set(data) - {"cases"})[0], "message": "not allowed beside cases"}])
         return batch_response(data["cases"], schema, compute, result_schema)
-    resolved = resolve(data, schema)
+    resolved = resolve(data, schema, own_utility)
     return respond(_run(compute, schema.load(resolved), resolved), result_schema, **respond_options)
 
 

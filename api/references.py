@@ -73,7 +73,7 @@ def _declared(schema: Schema | None) -> set[str]:
     return set(schema.fields) if schema is not None else set()
 
 
-def _walk(node: dict, schema: Schema | None, path: str, used: list[dict]) -> dict:
+def _walk(node: dict, schema: Schema | None, path: str, used: list[dict], own_utility: bool = True) -> dict:
     out = dict(node)
     declared = _declared(schema)
     for key, value in node.items():
@@ -84,20 +84,21 @@ def _walk(node: dict, schema: Schema | None, path: str, used: list[dict]) -> dic
             out[key] = _content(kind, revision.body)
             used.append(_used(revision, field))
             if kind == "vessel":
-                _defaults(out, node, revision, declared, path, used)
+                _defaults(out, node, revision, declared, path, used, own_utility)
         elif isinstance(value, list) and key in declared:
             inner = getattr(schema.fields[key], "inner", None)
             nested = getattr(inner, "schema", None)
-            out[key] = [_walk(item, nested, f"{field}[{i}]", used) if isinstance(item, dict) else item
+            out[key] = [_walk(item, nested, f"{field}[{i}]", used, own_utility) if isinstance(item, dict) else item
                         for i, item in enumerate(value)]
     return out
 
 
-def _defaults(out: dict, given: dict, vessel: RevisionView, declared: set[str], path: str, used: list) -> None:
+def _defaults(out: dict, given: dict, vessel: RevisionView, declared: set[str], path: str, used: list,
+              own_utility: bool = True) -> None:
     """The vessel record's utility and calibration, where the request declares but does not give them."""
     prefix = f"{path}." if path else ""
     utility = vessel.body.get("utility")
-    if "coolant" in declared and "coolant" not in given and utility is not None:
+    if own_utility and "coolant" in declared and "coolant" not in given and utility is not None:
         revision = _fetch("utility", {"ref": utility}, f"{prefix}vessel.utility")
         out["coolant"] = revision.body["coolant"]
         used.append(_used(revision, f"{prefix}coolant (the vessel's utility)"))
@@ -128,8 +129,12 @@ def _step(data: dict, declared: set[str], used: list[dict]) -> dict:
     return out
 
 
-def resolve(data: dict, schema: Schema) -> dict:
-    """The request with every stored record it names filled in; the records used go to ``g.records_used``."""
+def resolve(data: dict, schema: Schema, own_utility: bool = True) -> dict:
+    """The request with every stored record it names filled in; the records used go to ``g.records_used``.
+
+    ``own_utility=False``: a stored vessel's utility does not fill a missing ``coolant`` (the plant-data fits,
+    whose coolant is the logged run's, not the vessel's design utility).
+    """
     if not _contains_ref(data):
         if "step" in data and "step" not in _declared(schema):
             _step(data, _declared(schema), [])  # explains the one accepted form
@@ -140,7 +145,7 @@ def resolve(data: dict, schema: Schema) -> dict:
     with store().reading():
         if "step" in data and "step" not in _declared(schema):
             data = _step(data, _declared(schema), used)
-        data = _walk(data, schema, "", used)
+        data = _walk(data, schema, "", used, own_utility)
     g.setdefault("records_used", []).extend(used)
     return data
 

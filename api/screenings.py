@@ -4,6 +4,9 @@ A screening is stored with the request, the record revisions it used and its ran
 back and re-run, and every run says what changed since the previous run of the same request (vessels
 added or retired, revisions of vessel, utility or step, margins and verdicts). A screening has a
 computing budget (SCREENING_WALL_TIME); rows past it are marked "not evaluated" and the status is partial.
+With a job queue (QUEUE_URL, see :mod:`api.jobs`) a large screening, one the client prefers asynchronous, or
+one that ran out of its budget becomes a job instead: 202 with Location of the screening, which reports
+its state and progress until it is finished.
 """
 from __future__ import annotations
 
@@ -14,13 +17,14 @@ from flask import Blueprint, Response, current_app, request
 from marshmallow import ValidationError
 
 from calc.checks import screening as screening_calc
+from calc.deadline import Deadline
 from schemas.base import clean
 from schemas.records import RecordQuerySchema
 from schemas.screening import (SCREENING_CAUTIONS, ScreeningListSchema, ScreeningRequestSchema,
                                ScreeningResultSchema, screening_row)
 from schemas.vessel import CoolantSchema, VesselSchema
 
-from . import charts, security
+from . import charts, jobs, security
 from .errors import ProblemError
 from .http import Report, answer, presentation, presented, request_object, requested_format
 from .records import store
@@ -146,18 +150,32 @@ def _fmt(value) -> str:
     return "-" if value is None else f"{value:.3g}"
 
 
-def run(body: dict, previous_id: str | None = None) -> tuple[dict, int]:
-    """Screen, store and shape; returns the stored payload and the HTTP status (201)."""
+def run(body: dict, previous_id: str | None = None, job: jobs.Job | None = None) -> tuple[dict, int]:
+    """Screen, store and shape; returns the stored payload and the HTTP status (201).
+
+    In a request it may instead queue the screening as a job (202 and the pending screening); ``job`` is
+    given when a worker runs it: no budget of the request's, progress reported, the queued row filled.
+    """
     data = resolve(body, _request)
     args = _request.load(data)
     step = args["step"]
     limit = current_app.config["MAX_SCREENING_VESSELS"]
     vessels = _select(args["vessels"], limit)
+    if job is None and jobs.reason(len(vessels)):
+        queued = jobs.submit(body, previous_id, len(vessels))
+        if queued is not None:
+            return jobs.status_view(queued), 202
     candidates, info = _candidates(vessels, args["coolant"])
-    # the screening's own budget, inside the request's (whatever is left of it when the rows start)
-    budget = deadline().within(current_app.config["SCREENING_WALL_TIME"])
-    result = screening_calc.screen(candidates, step["charge"], step["process_temperature"], step["heat_release"],
-                                   step["safety_factor"], budget)
+    # the screening's own budget, inside the request's (whatever is left of it when the rows start); a job's own
+    budget = (deadline().within(current_app.config["SCREENING_WALL_TIME"]) if job is None
+              else Deadline.after(float(current_app.config["SCREENING_JOB_WALL_TIME"])))
+    screen = screening_calc.screen if job is None else job.screen
+    result = screen(candidates, step["charge"], step["process_temperature"], step["heat_release"],
+                    step["safety_factor"], budget)
+    if job is None and not result.complete:  # past the budget: the whole screening as a job, when there is a queue
+        queued = jobs.submit(body, previous_id, len(vessels))
+        if queued is not None:
+            return jobs.status_view(queued), 202
     rows = [screening_row(row, info[row.key]) for row in result.rows]
     rows = clean(_result.dump({"rows": rows})["rows"])
     used = records_used()
@@ -178,11 +196,21 @@ def run(body: dict, previous_id: str | None = None) -> tuple[dict, int]:
                                                     f"{step_ref['revision']}"], "verdict_before": None,
                                         "verdict_after": None, "margin_before": None, "margin_after": None})
     warnings = []
-    if not result.complete:
+    if not result.complete and job is not None:
+        warnings.append({"code": "screening_budget",
+                         "message": "the job's time budget (COOLMARGIN_SCREENING_JOB_WALL_TIME) ran out; rows "
+                                    "marked 'not evaluated' were not checked: narrow the selection or re-run"})
+    elif not result.complete:
         warnings.append({"code": "screening_budget",
                          "message": "the time budget (COOLMARGIN_SCREENING_WALL_TIME, within the request's "
                                     "COOLMARGIN_REQUEST_BUDGET) ran out; rows marked 'not evaluated' were not "
-                                    "checked: narrow the selection or re-run"})
+                                    "checked: narrow the selection or re-run"
+                                    + ("" if current_app.config.get("QUEUE_URL") else
+                                       ", or give the service a job queue (COOLMARGIN_QUEUE_URL) so that large "
+                                       "screenings run as jobs with progress")})
+    queue_note = jobs.unavailable_warning() if job is None else None
+    if queue_note is not None:
+        warnings.append(queue_note)
     payload = {"status": "complete" if result.complete else "partial",
                "step": step_ref, "safety_factor": step["safety_factor"], "counts": counts, "rows": rows,
                "changes": changes, "records": used + [r["vessel"] for r in rows]
@@ -191,14 +219,16 @@ def run(body: dict, previous_id: str | None = None) -> tuple[dict, int]:
     payload["records"] = list({json.dumps(r, sort_keys=True): r for r in payload["records"]}.values())
     stored = catalogue.save_screening(request=body, used=payload["records"], result=payload,
                                       author=security.author(), total=len(rows),
-                                      done=len(rows) - counts["not_evaluated"], previous_id=previous_id)
+                                      done=len(rows) - counts["not_evaluated"], previous_id=previous_id,
+                                      screening_id=job.id if job is not None else None)
     return _shaped(stored), 201
 
 
 def _shaped(stored: dict) -> dict:
     created = stored["created_at"]
     return {"id": stored["id"], "created_at": created.isoformat() if isinstance(created, datetime) else created,
-            "author": stored["author"], **stored["result"]}
+            "author": stored["author"], **stored["result"],
+            "progress": {"done": stored["done"], "total": stored["total"]}}
 
 
 def chart(payload: dict, fmt: str, units: dict) -> bytes:
@@ -233,9 +263,28 @@ def chart(payload: dict, fmt: str, units: dict) -> bytes:
 REPORT: Report | None = None
 
 
+def _pending(view: dict, status: int = 200) -> Response:
+    """A screening that is not finished (queued, running) or failed: its state as JSON, whatever the format."""
+    fmt = requested_format()
+    retry = {"Retry-After": str(jobs.POLL_SECONDS)} if view["status"] in jobs.PENDING else {}
+    if status == 200 and fmt != "json":
+        progress = view["progress"]
+        raise ProblemError(409, f"screening {view['id']} is {view['status']} ({progress['done']} of "
+                                f"{progress['total']} vessels done); its {fmt} exists once the status is complete "
+                                "or partial" + (f": {view['failure']}" if "failure" in view else ""))
+    response = Response(json.dumps(view), status=status, mimetype="application/json", headers=retry)
+    response.headers["Location" if status == 202 else "Content-Location"] = f"/v1/screenings/{view['id']}"
+    if status == 202 and jobs.prefers_async():
+        response.headers["Preference-Applied"] = "respond-async"  # RFC 7240 §3
+    return response
+
+
 def _answer(payload: dict, status: int = 200) -> Response:
     """The stored screening (rows dumped in the default API units when it ran) in the negotiated format, with
-    the presentation the query asks for (output units, digits, decimal comma), as every calculation."""
+    the presentation the query asks for (output units, digits, decimal comma), as every calculation; a job not
+    finished yet answers its state (:func:`_pending`)."""
+    if status == 202:
+        return _pending(payload, status)
     response = answer(*presented(clean(payload), _result), rows="rows", lead=LEAD, chart=chart, report=REPORT,
                       status=status, records=False)
     if status == 201:
@@ -260,14 +309,18 @@ def listing():
     items, total = store().screenings(page["limit"], page["offset"])
     summaries = [{"id": s["id"], "created_at": s["created_at"].isoformat(), "author": s["author"],
                   "status": s["result"].get("status", s["status"]), "step": s["result"].get("step"),
-                  "counts": s["result"].get("counts")} for s in items]
+                  "counts": s["result"].get("counts"), "progress": {"done": s["done"], "total": s["total"]}}
+                 for s in items]
     body = clean(_list.dump({"items": summaries, "total": total, **page}))
     return Response(json.dumps(body), mimetype="application/json")
 
 
 @bp.get("/screenings/<screening_id>")
 def read(screening_id: str):
-    return _answer(_shaped(store().screening(screening_id)))
+    stored = jobs.refresh(store().screening(screening_id))
+    if stored["status"] in jobs.PENDING or stored["status"] == "failed":
+        return _pending(jobs.status_view(stored))
+    return _answer(_shaped(stored))
 
 
 @bp.post("/screenings/<screening_id>/rerun")

@@ -185,7 +185,8 @@ class HeatTransferRequestSchema(_AgitatedVesselSchema):
     calibration = fields.Nested(CalibrationSchema, load_default=None, metadata={
         "description": "the vessel's own measured constants (from /v1/wilson-plot) or one measured UA at stated "
                        "conditions: results say calibrated and the margin band spans the fit's or the measurement's "
-                       "interval"})
+                       "interval. A stored vessel ({\"ref\": ...}) with a calibration attached uses it by default "
+                       "(records names the vessel revision); send null to use the published correlations instead"})
 
     @post_load
     def _choose(self, data, **kwargs):

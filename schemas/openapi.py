@@ -434,6 +434,22 @@ def screening_paths() -> dict:
                       "image/png": {"schema": {"type": "string"}}}}
     created = dict(ok, description="Screened and stored; Location names the stored screening. " + ok["description"],
                    headers={"Location": {"description": "the stored screening", "schema": {"type": "string"}}})
+    accepted = {"description": "Accepted as a job (only with a job queue, COOLMARGIN_QUEUE_URL): the selection holds "
+                               "more vessels than COOLMARGIN_SCREENING_SYNC_VESSELS, the client sent Prefer: "
+                               "respond-async, or the request's budget ran out. The body is the screening's state "
+                               "(status queued, progress done/total); read Location until the status is complete, "
+                               "partial or failed.",
+                "headers": {"Location": {"description": "the screening resource; it answers the finished screening "
+                                                        "once the job is done", "schema": {"type": "string"}},
+                            "Retry-After": {"description": "seconds before reading it again",
+                                            "schema": {"type": "integer"}},
+                            "Preference-Applied": {"description": "respond-async when the Prefer header asked for it "
+                                                                  "(RFC 7240)", "schema": {"type": "string"}}},
+                "content": {"application/json": {"schema": {"$ref": "#/components/schemas/ScreeningResult"}}}}
+    prefer = {"name": "Prefer", "in": "header", "required": False,
+              "description": "respond-async (RFC 7240): run the screening as a job and answer 202 at once; ignored "
+                             "without a job queue (the answer then carries the warning no_job_queue)",
+              "schema": {"type": "string", "maxLength": 200}}
     problems = {"400": _PROBLEM, "401": _PROBLEM, "404": _PROBLEM, "413": _PROBLEM, "415": _PROBLEM,
                 "422": _PROBLEM, "503": _PROBLEM}
     screening_id = {"name": "screening_id", "in": "path", "required": True,
@@ -443,8 +459,12 @@ def screening_paths() -> dict:
                    "given. Rows are ranked: adequate first, then by margin. Each row gives margin, verdict, "
                    "minimum dosing time, warmest coolant inlet, controlling resistance and warnings, or why there "
                    "is no verdict (the charge does not fit). The screening is stored with the revisions it used; "
-                   "`changes` says what differs from the previous run of the same request. Past the computing "
-                   "budget the remaining rows are 'not evaluated' and the status is partial. A screening "
+                   "`changes` says what differs from the previous run of the same request. With a job queue "
+                   "(COOLMARGIN_QUEUE_URL, `coolmargin worker`) a large screening, one sent with Prefer: "
+                   "respond-async, or one that ran out of the request's budget runs as a job: 202 with Location "
+                   "of the screening, whose status goes queued -> running (progress done/total) -> complete, "
+                   "partial or failed. Without a queue, past the computing budget the remaining rows are 'not "
+                   "evaluated' and the status is partial. A screening "
                    "estimate: confirm with reaction calorimetry and plant data; local codes and a licensed "
                    "engineer's review govern.")
     plant = json.loads((EXAMPLES / "plant.json").read_text())
@@ -453,12 +473,12 @@ def screening_paths() -> dict:
         "/v1/screenings": {
             "post": {"tags": ["screening"], "summary": "Which vessels can run this step, and at what dosing time?",
                      "description": description, "operationId": "createScreening",
-                     "parameters": [{"$ref": "#/components/parameters/format"}],
+                     "parameters": [{"$ref": "#/components/parameters/format"}, prefer],
                      "requestBody": {"required": True, "content": {"application/json": {
                          "schema": {"$ref": "#/components/schemas/ScreeningRequest"},
                          "examples": {"demo": {"summary": "the demo plant's step against every vessel",
                                                "value": {"step": {"ref": step}}}}}}},
-                     "responses": {"201": created, **problems}},
+                     "responses": {"201": created, "202": accepted, **problems}},
             "get": {"tags": ["screening"], "summary": "Stored screenings, newest first", "operationId": "listScreenings",
                     "parameters": [{"name": "limit", "in": "query", "schema": {"type": "integer", "minimum": 1,
                                                                                 "maximum": 500}},
@@ -468,14 +488,22 @@ def screening_paths() -> dict:
                         "401": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}},
         },
         "/v1/screenings/{screening_id}": {"get": {
-            "tags": ["screening"], "summary": "A stored screening, as it was answered", "operationId": "readScreening",
+            "tags": ["screening"], "summary": "A stored screening, as it was answered, or a job's state",
+            "description": "A finished screening (status complete or partial) in any format. A job not yet "
+                           "finished answers its state as JSON: status queued or running with progress "
+                           "{done, total} and Retry-After, or failed with `failure` (a job the queue lost, a "
+                           "worker stopped mid-way, is failed too); asked for CSV or a chart it is a 409.",
+            "operationId": "readScreening",
             "parameters": [{"$ref": "#/components/parameters/format"}, screening_id],
-            "responses": {"200": ok, "401": _PROBLEM, "404": _PROBLEM, "422": _PROBLEM, "503": _PROBLEM}}},
+            "responses": {"200": ok, "401": _PROBLEM, "404": _PROBLEM, "409": _PROBLEM, "422": _PROBLEM,
+                          "503": _PROBLEM}}},
         "/v1/screenings/{screening_id}/rerun": {"post": {
             "tags": ["screening"], "summary": "Run a stored screening's request again on the current revisions",
-            "description": "A new stored screening; its `changes` list what differs from the previous run.",
-            "operationId": "rerunScreening", "parameters": [{"$ref": "#/components/parameters/format"}, screening_id],
-            "responses": {"201": created, **problems}}},
+            "description": "A new stored screening; its `changes` list what differs from the previous run. Like a "
+                           "new screening it may run as a job (202).",
+            "operationId": "rerunScreening",
+            "parameters": [{"$ref": "#/components/parameters/format"}, prefer, screening_id],
+            "responses": {"201": created, "202": accepted, **problems}}},
     }
 
 

@@ -6,12 +6,13 @@ sent, units and all, so it reads back exactly as the engineer wrote it.
 """
 from __future__ import annotations
 
-from marshmallow import Schema, fields, validate
+from marshmallow import Schema, ValidationError, fields, validate, validates_schema
 
 from calc.vessel import geometry
 
 from .base import StrictSchema
 from .cooling import CoolingCheckRequestSchema, HeatReleaseSchema
+from .heat_transfer import CalibrationSchema as FitSchema
 from .safety import ThermalSafetyRequestSchema
 from .units import Quantity, absolute_temperature
 from .vessel import ChargeSchema, CoolantSchema, VesselSchema
@@ -40,11 +41,22 @@ class CalibrationSchema(StrictSchema):
                            metadata={"description": "where the numbers come from: /v1/ua-fit, /v1/wilson-plot, "
                                                     "or a plant trial evaluated elsewhere"})
     fit = fields.Dict(keys=fields.String(), required=True,
-                      metadata={"description": "the calibration object as the calculations take it (for "
-                                               "example the result of /v1/ua-fit or /v1/wilson-plot); it is "
+                      metadata={"description": "the calibration object as the calculations take it: the "
+                                               "`calibration` member of a /v1/wilson-plot answer (whose runs may be "
+                                               "/v1/ua-fit logs at several speeds); checked when attached, and "
                                                "passed on unchanged as the request's `calibration`"})
     measured_on = fields.Date(load_default=None, metadata={"description": "date of the plant runs"})
     notes = _notes()
+
+    @validates_schema
+    def _fit(self, data, **kwargs):
+        """The fit must load as a calculation's ``calibration`` now, not fail later in every check that uses it."""
+        fit = data.get("fit")
+        if isinstance(fit, dict):
+            try:
+                FitSchema().load(fit)
+            except ValidationError as error:
+                raise ValidationError({"fit": error.messages}) from None
 
 
 class _RecordContent(StrictSchema):

@@ -130,12 +130,24 @@ class ChangesSchema(StrictSchema):
                                                                                 "changed"})
 
 
+SCREENING_STATES = ["queued", "running", "complete", "partial", "failed"]
+
+
+class ProgressSchema(StrictSchema):
+    done = fields.Integer(metadata={"description": "vessels screened so far"})
+    total = fields.Integer(metadata={"description": "vessels selected"})
+
+
 class ScreeningResultSchema(StrictSchema):
     id = fields.String()
     created_at = fields.String()
     author = fields.String()
-    status = fields.String(validate=validate.OneOf(["complete", "partial"]),
-                           metadata={"description": "partial: the time budget ran out; rows not evaluated say so"})
+    status = fields.String(validate=validate.OneOf(SCREENING_STATES), metadata={
+        "description": "complete; partial: the time budget ran out, rows not evaluated say so; a screening run as "
+                       "a job (202) is first queued, then running (only id, created_at, author, status and "
+                       "progress are given until it is finished), and failed says why in `failure`"})
+    progress = fields.Nested(ProgressSchema, metadata={"description": "vessels done of the total"})
+    failure = fields.String(metadata={"description": "why the job failed (status failed only)"})
     step = fields.Nested(ReferenceSchema, allow_none=True, metadata={"description": "null for an inline step"})
     safety_factor = fields.Float()
     counts = fields.Nested(CountsSchema)
@@ -152,9 +164,10 @@ class ScreeningSummarySchema(StrictSchema):
     id = fields.String()
     created_at = fields.String()
     author = fields.String()
-    status = fields.String()
+    status = fields.String(validate=validate.OneOf(SCREENING_STATES))
     step = fields.Nested(ReferenceSchema, allow_none=True)
-    counts = fields.Nested(CountsSchema)
+    counts = fields.Nested(CountsSchema, allow_none=True, metadata={"description": "null until it is finished"})
+    progress = fields.Nested(ProgressSchema)
 
 
 class ScreeningListSchema(StrictSchema):

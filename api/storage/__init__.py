@@ -344,7 +344,12 @@ class Catalogue:
 
     # ---- screenings -----------------------------------------------------------------------------
     def save_screening(self, *, request: dict, used: list, result: dict, author: str, status: str = "done",
-                       done: int = 0, total: int = 0, previous_id: str | None = None) -> dict:
+                       done: int = 0, total: int = 0, previous_id: str | None = None,
+                       screening_id: str | None = None) -> dict:
+        """Store a screening; with ``screening_id``, fill that row (a queued job's) and keep its creation time."""
+        if screening_id is not None:
+            self.update_screening(screening_id, used=used, result=result, status=status, done=done, total=total)
+            return self.screening(screening_id)
         row = {"id": uuid.uuid4().hex, "request_key": request_key(request), "request": request, "used": used,
                "result": result, "author": author, "created_at": _now(), "previous_id": previous_id,
                "status": status, "done": done, "total": total}
