@@ -307,11 +307,7 @@ def respond(result: Any, schema: Schema, *, rows: str | None = None, lead: tuple
         from . import reports
 
         document = report(request_object(), payload, units, view)
-        body, media = reports.render(document, fmt)
-        response = Response(body, status=status, mimetype=media)
-        name = f"coolmargin-{request.path.rsplit('/', 1)[-1]}-{document.request_hash[:12]}.{fmt}"
-        response.headers["Content-Disposition"] = f'inline; filename="{name}"'
-        return response
+        return reports.response(document, fmt, request.path.rsplit("/", 1)[-1], status)
     body = dict(payload)
     used = records_used()
     if used:

@@ -20,7 +20,7 @@ from schemas.screening import (SCREENING_CAUTIONS, ScreeningListSchema, Screenin
                                ScreeningResultSchema, screening_row)
 from schemas.vessel import CoolantSchema, VesselSchema
 
-from . import charts, security
+from . import charts, report_pages, reports, security
 from .errors import ProblemError
 from .http import request_object, requested_format, to_csv
 from .records import store
@@ -228,9 +228,13 @@ def chart(payload: dict, fmt: str) -> bytes:
     return charts.render(fig, fmt)
 
 
-def _answer(payload: dict, status: int = 200) -> Response:
+def _answer(payload: dict, status: int = 200, request_body: dict | None = None) -> Response:
     fmt = requested_format()
-    if fmt == "csv":
+    if fmt in ("html", "pdf"):  # inputs as given: the request this screening ran
+        document = report_pages.screening_report(request_body or {}, payload, _UNITS, None,
+                                                 draw=lambda shown, form, units: chart(shown, form))
+        response = reports.response(document, fmt, "screening", status)
+    elif fmt == "csv":
         response = Response(to_csv(payload["rows"], _ROW_UNITS, LEAD), status=status, mimetype="text/csv")
     elif fmt in ("svg", "png"):
         response = Response(chart(payload, fmt), status=status, mimetype=f"image/{'svg+xml' if fmt == 'svg' else 'png'}")
@@ -244,8 +248,9 @@ def _answer(payload: dict, status: int = 200) -> Response:
 
 @bp.post("/screenings")
 def create():
-    payload, status = run(request_object())
-    return _answer(payload, status)
+    body = request_object()
+    payload, status = run(body)
+    return _answer(payload, status, body)
 
 
 @bp.get("/screenings")
@@ -261,11 +266,12 @@ def listing():
 
 @bp.get("/screenings/<screening_id>")
 def read(screening_id: str):
-    return _answer(_shaped(store().screening(screening_id)))
+    stored = store().screening(screening_id)
+    return _answer(_shaped(stored), request_body=stored["request"])
 
 
 @bp.post("/screenings/<screening_id>/rerun")
 def rerun(screening_id: str):
     stored = store().screening(screening_id)
     payload, status = run(stored["request"], previous_id=screening_id)
-    return _answer(payload, status)
+    return _answer(payload, status, stored["request"])
