@@ -184,9 +184,9 @@ def window_report(body: dict, payload: dict, units: dict, view: Any, draw: Draw)
     for axis in axes:
         values = [p.get(axis["field"]) for p in points if p.get(axis["field"]) is not None]
         unit = units.get(f"points.{axis['field']}", "")
-        summary.append(Row(f"axis: {axis['quantity']}",
-                           f"{number(min(values), digits)} to {number(max(values), digits)}" if values else "-",
-                           unit, f"{axis.get('points')} points"))
+        span = f"{number(min(values), digits)} to {number(max(values), digits)}" if values else "-"
+        summary.append(Row(f"axis: {axis['quantity']}", "", "",
+                           f"{span} {reports.pretty_unit(unit)}, {axis.get('points')} points"))
     margins = [p for p in points if p.get("margin") is not None]
     summary += [Row("grid points", number(len(points), digits), "",
                     f"{sum(1 for p in points if p.get('margin') is None)} without a cooling state"),
