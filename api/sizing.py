@@ -7,7 +7,7 @@ from calc.sizing import jacket_sizing as sizing
 from schemas.sizing import JacketSizingRequestSchema, JacketSizingResultSchema
 
 from . import charts, report_pages
-from .http import calculate
+from .http import batch_cases, calculate
 from .runtime import deadline
 
 bp = Blueprint("sizing", __name__, url_prefix="/v1")
@@ -66,3 +66,8 @@ def jacket_sizing():
                      report=partial(report_pages.sizing_report, draw=sizing_chart),
                      lead=("index", "type", "description", "feasible", "margin", "cooling_capacity", "pressure_drop",
                            "velocity", "coolant_flow"))
+
+
+@bp.post("/jacket-sizing/batch")
+def jacket_sizing_batch():
+    return batch_cases(_request, _size, _result)
