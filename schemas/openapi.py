@@ -122,7 +122,10 @@ def json_schema(schema_cls: type[Schema], refs: dict[str, type] | None = None, *
                                   "request it describes; members given beside it override it")
         if supplied:
             required = [key for key in required if key not in supplied]
-            out["anyOf"] = [{"required": supplied}, {"required": ["step"]}]
+            # "these members, or a step that supplies them", as a condition rather than a top-level anyOf:
+            # a top-level anyOf makes client generators give up on the body's type (it reads as a union)
+            out["if"] = {"not": {"required": ["step"]}}
+            out["then"] = {"required": supplied}
     if required:
         out["required"] = required
     return out
