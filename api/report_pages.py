@@ -151,7 +151,10 @@ def sizing_report(body: dict, payload: dict, units: dict, view: Any, draw: Draw)
         found = by_index.get(entry.get("index"))
         smallest.append(found if found is not None else {"index": None, "type": entry.get("type"),
                                                          "description": "no feasible design of this type"})
-    is_best = (lambda c: c.get("index") == best)
+
+    def is_best(candidate: dict) -> bool:
+        return candidate.get("index") == best
+
     first = reports.table_section("Smallest feasible design of each type", smallest, SIZING_COLUMNS, units,
                                   digits=digits, marked=is_best)
     every = reports.table_section("Every candidate evaluated (recommended in bold)", candidates,
