@@ -88,20 +88,23 @@ def _chromium() -> str:
     return found
 
 
+def _printed_by_chromium(html: str, folder: Path) -> list[str]:
+    """The pages' text of ``html`` printed to PDF by headless chromium (self-contained: nothing fetched)."""
+    assert "<script" not in html and "<link" not in html and 'src="http' not in html
+    page = folder / "report.html"
+    page.write_text(html)
+    printed = folder / "report.pdf"
+    subprocess.run([_chromium(), "--headless", "--no-sandbox", "--disable-gpu", "--no-pdf-header-footer",
+                    f"--user-data-dir={folder / 'profile'}", f"--print-to-pdf={printed}", page.as_uri()],
+                   check=True, timeout=120, capture_output=True)
+    return _pages(printed.read_bytes())
+
+
 @pytest.mark.slow
 def test_html_report_printed_by_headless_chromium(client, scale_up, tmp_path):
     response = client.post("/v1/scale-up?format=html", json=DEMO)
     assert response.status_code == 200 and response.mimetype == "text/html"
-    html = response.get_data(as_text=True)
-    # Self-contained: no scripts, no stylesheets or images fetched from anywhere.
-    assert "<script" not in html and "<link" not in html and 'src="http' not in html
-    page = tmp_path / "report.html"
-    page.write_text(html)
-    printed = tmp_path / "report.pdf"
-    subprocess.run([_chromium(), "--headless", "--no-sandbox", "--disable-gpu", "--no-pdf-header-footer",
-                    f"--user-data-dir={tmp_path / 'profile'}", f"--print-to-pdf={printed}", page.as_uri()],
-                   check=True, timeout=120, capture_output=True)
-    pages = _pages(printed.read_bytes())
+    pages = _printed_by_chromium(response.get_data(as_text=True), tmp_path)
     _assert_one_page_per_scale(pages, [scale["name"] for scale in scale_up["scales"]])
     assert _canonical_hash(DEMO) in "".join(pages[0].split())  # the hash may wrap: compare without spaces
 
@@ -202,16 +205,8 @@ def test_screening_html_printed_by_headless_chromium(plant_client, tmp_path):
     body = {"step": {"ref": "AC-7-PROD"}}
     response = plant_client.post("/v1/screenings?format=html", json=body)
     assert response.status_code == 201 and response.mimetype == "text/html"
-    html = response.get_data(as_text=True)
-    assert "<script" not in html and "<link" not in html and 'src="http' not in html
     stored = plant_client.get(response.headers["Location"]).json
-    page = tmp_path / "screening.html"
-    page.write_text(html)
-    printed = tmp_path / "screening.pdf"
-    subprocess.run([_chromium(), "--headless", "--no-sandbox", "--disable-gpu", "--no-pdf-header-footer",
-                    f"--user-data-dir={tmp_path / 'profile'}", f"--print-to-pdf={printed}", page.as_uri()],
-                   check=True, timeout=120, capture_output=True)
-    pages = _pages(printed.read_bytes())
+    pages = _printed_by_chromium(response.get_data(as_text=True), tmp_path)
     assert all(CAUTION in " ".join(p.split()) for p in pages)
     text = " ".join(" ".join(pages).split())
     assert _canonical_hash(body) in "".join(text.split())
