@@ -34,6 +34,10 @@ def _check_calls(service, local):
     assert metric["units"]["cooling_capacity"] == "kW"
     assert service.properties("water", "25 degC")["density"] == pytest.approx(997.05, rel=1e-4)  # IAPWS-95, from memory
     assert service.report("cooling-check", CHECK).startswith(b"%PDF")
+    batch = service.cooling_check_batch([CHECK, dict(CHECK, safety_factor=0.5)])  # the second case is invalid
+    assert [case["status"] for case in batch["cases"]] == [200, 422]
+    assert batch["cases"][0]["result"]["margin"] == local["margin"]
+    assert batch["cases"][1]["problem"]["errors"][0]["field"] == "cases[1].safety_factor"
     with pytest.raises(ProblemError) as refused, Client(service.base_url, token="wrong") as stranger:
         stranger.cooling_check(CHECK)
     assert refused.value.status == 401 and refused.value.title
