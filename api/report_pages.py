@@ -114,12 +114,12 @@ SIZING_COLUMNS = [
     Column("feasible", "feasible", text=_feasible),
     Column("margin", "margin", figures=3),
     Column("margin_band", "margin band", text=_band),
-    Column("cooling_capacity", "cooling capacity", "candidates.cooling_capacity"),
+    Column("cooling_capacity", "capacity", "candidates.cooling_capacity"),
     Column("heat_transfer_area", "area", "candidates.heat_transfer_area"),
     Column("overall_coefficient", "U", "candidates.overall_coefficient"),
-    Column("coolant_flow", "coolant flow", "candidates.coolant_flow"),
+    Column("coolant_flow", "flow", "candidates.coolant_flow"),
     Column("velocity", "velocity", "candidates.velocity"),
-    Column("pressure_drop", "pressure drop", "candidates.pressure_drop"),
+    Column("pressure_drop", "drop", "candidates.pressure_drop"),
 ]
 
 
@@ -138,13 +138,10 @@ def sizing_report(body: dict, payload: dict, units: dict, view: Any, draw: Draw)
                Row("candidates evaluated", number(payload.get("candidates_evaluated"), digits)),
                Row("recommended design", "-" if best is None else f"#{best}", "",
                    str(recommendation.get("description") or "none feasible"))]
-    if chosen is not None:
-        summary += [Row("its margin", number(chosen.get("margin"), 3)),
-                    Row("its cooling capacity", number(chosen.get("cooling_capacity"), digits),
-                        units.get("candidates.cooling_capacity", "")),
-                    Row("its pressure drop", number(chosen.get("pressure_drop"), digits),
-                        units.get("candidates.pressure_drop", ""))]
-    reasoning = Section("Why this recommendation", lines=[str(recommendation.get("reasoning") or "-")])
+    reasoning = Section("Why this recommendation", lines=[
+        str(recommendation.get("reasoning") or "-"),
+        "capacity: cooling capacity; flow: coolant flow of the first circuit; drop: pressure drop of the largest "
+        "circuit; cut back: the utility's flow was cut back to its hydraulic limit"])
     by_index = {c.get("index"): c for c in candidates}
     smallest = []
     for entry in payload.get("smallest_feasible") or []:
@@ -159,7 +156,7 @@ def sizing_report(body: dict, payload: dict, units: dict, view: Any, draw: Draw)
                                   digits=digits, marked=is_best)
     every = reports.table_section("Every candidate evaluated (recommended in bold)", candidates,
                                   [c for c in SIZING_COLUMNS if c.key != "type"] + [
-                                      Column("flow_limited", "flow cut back", text=lambda c: "yes" if
+                                      Column("flow_limited", "cut back", text=lambda c: "yes" if
                                              c.get("flow_limited") else "-")],
                                   units, digits=digits, marked=is_best)
     verdict = (f"RECOMMENDED: {recommendation.get('description')}" if chosen is not None
