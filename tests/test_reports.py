@@ -169,12 +169,18 @@ def test_screening_report_reads_back_the_ranked_rows(plant_client):
     assert _canonical_hash(body) in " ".join(" ".join(again).split())
 
 
-def test_sizing_report_reads_back_the_recommendation_and_every_candidate(client):
-    answer = client.post("/v1/jacket-sizing", json=SIZING).json
-    response = client.post("/v1/jacket-sizing?format=pdf", json=SIZING)
+def _answer_and_report(client, path: str, body: dict, query: str = "") -> tuple[dict, str]:
+    """The JSON answer and the PDF report's text (the cautions checked on every page) of one request."""
+    answer = client.post(f"{path}?{query}", json=body).json
+    response = client.post(f"{path}?format=pdf&{query}", json=body)
     assert response.status_code == 200 and response.mimetype == "application/pdf"
     pages, text = _flat_text(response.data)
     assert all(CAUTION in " ".join(page.split()) for page in pages)
+    return answer, text
+
+
+def test_sizing_report_reads_back_the_recommendation_and_every_candidate(client):
+    answer, text = _answer_and_report(client, "/v1/jacket-sizing", SIZING)
     best = answer["candidates"][answer["recommendation"]["index"]]
     assert (f"RECOMMENDED: {' '.join(answer['recommendation']['description'].split())} "
             f"(margin {best['margin']:#.3g} against 1.30)") in text
@@ -186,11 +192,7 @@ def test_sizing_report_reads_back_the_recommendation_and_every_candidate(client)
 
 
 def test_window_report_reads_back_the_current_point_and_boundary(client):
-    answer = client.post("/v1/operating-window?output_units=metric", json=WINDOW).json
-    response = client.post("/v1/operating-window?format=pdf&output_units=metric", json=WINDOW)
-    assert response.status_code == 200 and response.mimetype == "application/pdf"
-    pages, text = _flat_text(response.data)
-    assert all(CAUTION in " ".join(page.split()) for page in pages)
+    answer, text = _answer_and_report(client, "/v1/operating-window", WINDOW, "output_units=metric")
     current = answer["current"]
     assert f"Current point ADEQUATE: margin {current['margin']:#.3g} against 1.30 required" in text
     assert f"share of the grid adequate {100 * answer['adequate_share']:#.3g} %" in text
