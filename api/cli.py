@@ -369,7 +369,7 @@ def _window(answer: dict) -> int:
 
 # command -> (path, help, table printer)
 COMMANDS: dict[str, tuple[str, str, Callable[[dict], int]]] = {
-    "check": ("/v1/cooling-check", "cooling check of one vessel (or {'cases': [...]})", _check),
+    "check": ("/v1/cooling-check", "cooling check of one vessel (or a batch: {'cases': [...]})", _check),
     "scale-up": ("/v1/scale-up", "cooling check at every scale of a scale-up path", _scale_up),
     "thermal-safety": ("/v1/thermal-safety", "cooling-failure assessment: MTSR, T_D24, criticality class",
                        _thermal_safety),
@@ -382,6 +382,10 @@ COMMANDS: dict[str, tuple[str, str, Callable[[dict], int]]] = {
 }
 
 
+#: Commands whose request may be a batch, ``{"cases": [...]}`` (sent to the resource's ``/batch`` route).
+BATCHES = ("check",)
+
+
 def _run(args: argparse.Namespace) -> int:
     path, _, printer = COMMANDS[args.command]
     params = {"output_units": args.units} if args.units else {}
@@ -389,6 +393,8 @@ def _run(args: argparse.Namespace) -> int:
         params["format"] = "csv"
     try:
         body = _read(args.file)
+        if "cases" in body and args.command in BATCHES:  # a batch has its own route
+            path += "/batch"
         answer, media = _call(path, body, args, params)
     except _Failure as failure:
         print(failure, file=sys.stderr)

@@ -124,3 +124,16 @@ def test_sizing_and_window_against_the_live_server(plant_server, monkeypatch, ca
     answer = json.loads(out)
     assert status == (cli.EXIT_OK if answer["current"]["adequate"] else cli.EXIT_INADEQUATE)
     assert answer["units"]["points.dosing_time"] == "min"
+
+
+def test_a_batch_goes_to_its_own_route_and_each_case_keeps_its_verdict(monkeypatch, capsys):
+    check = json.loads((ROOT / "examples" / "cooling_check_production.json").read_text())
+    batch = {"cases": [check, dict(check, safety_factor=3.0)]}  # the recipe's margin 2.2 is short of 3
+    paths = []
+    call = cli._call
+    monkeypatch.setattr(cli, "_call", lambda path, *rest: paths.append(path) or call(path, *rest))
+    status, out, _ = _main(monkeypatch, capsys, ["check", "--output", "json"], stdin=json.dumps(batch))
+    assert paths == ["/v1/cooling-check/batch"]
+    answer = json.loads(out)
+    assert [case["result"]["adequate"] for case in answer["cases"]] == [True, False]
+    assert status == cli.EXIT_INADEQUATE
