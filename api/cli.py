@@ -26,8 +26,10 @@ from typing import Any, Callable
 
 EXIT_OK, EXIT_INADEQUATE, EXIT_INVALID, EXIT_SERVICE, EXIT_UNREACHABLE = 0, 1, 2, 3, 4
 EXIT_CODES = f"""exit status:
-  {EXIT_OK}  adequate at every scale / computed (thermal safety: criticality class 1 or 2)
-  {EXIT_INADEQUATE}  NOT adequate somewhere (thermal safety: criticality class 3 to 5)
+  {EXIT_OK}  adequate at every scale / computed (thermal safety: criticality class 1 or 2; screening: at
+     least one vessel adequate; sizing: a feasible design found; window: the current point adequate)
+  {EXIT_INADEQUATE}  NOT adequate somewhere (thermal safety: criticality class 3 to 5; screening: no vessel
+     adequate; sizing: no feasible design; window: the current point NOT adequate)
   {EXIT_INVALID}  invalid request (unreadable file, not JSON, or a 4xx answer naming the fields)
   {EXIT_SERVICE}  the service refused or failed (401 without a valid token, 5xx)
   {EXIT_UNREACHABLE}  the service could not be reached at --url
@@ -311,14 +313,98 @@ def _simulation(answer: dict) -> int:
     return EXIT_OK
 
 
+def _screening(answer: dict) -> int:
+    units = answer["units"]
+    step = answer.get("step")
+    counts = answer["counts"]
+    print(f"screening of step {step['tag'] + ' revision ' + str(step['revision']) if step else '(inline)'}, "
+          f"safety factor {answer['safety_factor']:g}: {counts['adequate']} of {counts['screened']} vessels "
+          f"adequate ({answer['status']})")
+    _, time_unit = _kw(0.0, units.get("rows.minimum_dosing_time", "s"))
+    inlet_unit = units.get("rows.maximum_coolant_inlet_temperature", "")
+    print(f"  {'rank':>4} {'verdict':<13} {'margin':>7} {'band':>11} {'min dosing':>10} {'warmest':>8}  "
+          f"{'controlling':<16} vessel")
+    print(f"  {'':>4} {'':<13} {'':>7} {'':>11} {time_unit:>10} {inlet_unit:>8}")
+    for row in answer["rows"]:
+        margin = "-" if row["margin"] is None else f"{row['margin']:.3g}"
+        dosing = _kw(row.get("minimum_dosing_time"), units.get("rows.minimum_dosing_time", "s"))[0]
+        inlet = "-" if row.get("maximum_coolant_inlet_temperature") is None else \
+            f"{row['maximum_coolant_inlet_temperature']:.4g}"
+        verdict = row["verdict"].replace("not adequate", "NOT ADEQUATE")
+        print(f"  {row['rank']:>4} {verdict:<13} {margin:>7} {_band(row):>11} {dosing:>10} {inlet:>8}  "
+              f"{row.get('controlling') or '-':<16} {row.get('name') or row['tag']}")  # full name last
+        if row.get("problem"):
+            print(f"       {row['problem']['field']}: {row['problem']['message']}")
+    for warning in answer.get("warnings", []):
+        print(f"  warning: {warning['message']}")
+    print("  " + answer["cautions"][0])
+    return EXIT_OK if counts["adequate"] else EXIT_INADEQUATE
+
+
+def _sizing(answer: dict) -> int:
+    units = answer["units"]
+    recommendation = answer["recommendation"]
+    duty, duty_unit = _kw(answer["duty"], units["duty"])
+    print(f"jacket sizing: duty {duty} {duty_unit} (heat load x safety factor {answer['safety_factor']:g}), "
+          f"{answer['candidates_evaluated']} candidates")
+    by_index = {c["index"]: c for c in answer["candidates"]}
+    _, power_unit = _kw(0.0, units["candidates.cooling_capacity"])
+    _, drop_unit = _kw(0.0, units["candidates.pressure_drop"])
+    print("  smallest feasible design of each type:")
+    print(f"  {'type':<24} {'#':>4} {'margin':>7} {'capacity':>9} {'drop':>8}  design")
+    print(f"  {'':<24} {'':>4} {'':>7} {power_unit:>9} {drop_unit:>8}")
+    for entry in answer["smallest_feasible"]:
+        found = by_index.get(entry["index"])
+        if found is None:
+            print(f"  {entry['type']:<24} {'-':>4}  no feasible design of this type")
+            continue
+        print(f"  {entry['type']:<24} {found['index']:>4} {found['margin']:>7.3g} "
+              f"{_kw(found['cooling_capacity'], units['candidates.cooling_capacity'])[0]:>9} "
+              f"{_kw(found['pressure_drop'], units['candidates.pressure_drop'])[0]:>8}  {found['description']}")
+    print(f"  recommended: {recommendation.get('description') or 'none feasible'}")
+    print(f"  why: {recommendation.get('reasoning', '-')}")
+    for warning in answer.get("warnings", []):
+        print(f"  warning: {warning['message']}")
+    print("  " + answer["cautions"][0])
+    return EXIT_OK if recommendation.get("index") is not None else EXIT_INADEQUATE
+
+
+def _window(answer: dict) -> int:
+    units = answer["units"]
+    current = answer["current"]
+    print(f"operating window: {len(answer['points'])} grid points, {100 * answer['adequate_share']:.3g} % adequate "
+          f"at safety factor {answer['safety_factor']:g}")
+    for axis in answer["axes"]:
+        values = [p[axis["field"]] for p in answer["points"] if p.get(axis["field"]) is not None]
+        print(f"  {axis['quantity']:<28} {min(values):.4g} to {max(values):.4g} "
+              f"{units.get('points.' + axis['field'], '')} ({axis['points']} points)")
+    margin = "-" if current.get("margin") is None else f"{current['margin']:.3g}"
+    verdict = "ADEQUATE" if current.get("adequate") else "NOT ADEQUATE"
+    print(f"  current point: margin {margin}, {verdict}")
+    print(f"  boundary (margin = safety factor): {len(answer['boundary'])} points; --output csv lists the grid")
+    for warning in answer.get("warnings", []):
+        print(f"  warning: {warning['message']}")
+    print("  " + answer["cautions"][0])
+    return EXIT_OK if current.get("adequate") else EXIT_INADEQUATE
+
+
 # command -> (path, help, table printer)
 COMMANDS: dict[str, tuple[str, str, Callable[[dict], int]]] = {
-    "check": ("/v1/cooling-check", "cooling check of one vessel (or {'cases': [...]})", _check),
+    "check": ("/v1/cooling-check", "cooling check of one vessel (or a batch: {'cases': [...]})", _check),
     "scale-up": ("/v1/scale-up", "cooling check at every scale of a scale-up path", _scale_up),
     "thermal-safety": ("/v1/thermal-safety", "cooling-failure assessment: MTSR, T_D24, criticality class",
                        _thermal_safety),
     "simulate": ("/v1/simulations", "dynamic energy and mole balances with the jacket, cooling failure", _simulation),
+    "screening": ("/v1/screenings", "one process step against the stored vessels, ranked (needs the catalogue)",
+                  _screening),
+    "sizing": ("/v1/jacket-sizing", "candidate jackets and coils for a bare vessel shell, with a recommendation",
+               _sizing),
+    "window": ("/v1/operating-window", "the cooling margin over a grid of two operating quantities", _window),
 }
+
+
+#: Commands whose request may be a batch, ``{"cases": [...]}`` (sent to the resource's ``/batch`` route).
+BATCHES = ("check",)
 
 
 def _run(args: argparse.Namespace) -> int:
@@ -328,6 +414,8 @@ def _run(args: argparse.Namespace) -> int:
         params["format"] = "csv"
     try:
         body = _read(args.file)
+        if "cases" in body and args.command in BATCHES:  # a batch has its own route
+            path += "/batch"
         answer, media = _call(path, body, args, params)
     except _Failure as failure:
         print(failure, file=sys.stderr)

@@ -142,8 +142,22 @@ class Client:
         return self.post("/v1/coolant-balance", body, **params)
 
     def cooling_check(self, body: Mapping[str, Any], **params: Any) -> JSON:
-        """Verdict, margin, heat load, capacity and limits; ``{"cases": [...]}`` for a batch."""
+        """Verdict, margin, heat load, capacity and limits of one check."""
         return self.post("/v1/cooling-check", body, **params)
+
+    def cooling_check_batch(self, cases: list[Mapping[str, Any]], **params: Any) -> JSON:
+        """Several checks in one call: ``{"cases": [{"status", "result" or "problem"}, ...]}``."""
+        return self.post("/v1/cooling-check/batch", {"cases": list(cases)}, **params)
+
+    def jacket_sizing(self, body: Mapping[str, Any], **params: Any) -> JSON:
+        return self.post("/v1/jacket-sizing", body, **params)
+
+    def operating_window(self, body: Mapping[str, Any], **params: Any) -> JSON:
+        return self.post("/v1/operating-window", body, **params)
+
+    def screening(self, body: Mapping[str, Any], **params: Any) -> JSON:
+        """Screen one step against the stored vessels; the answer is stored (its ``id``)."""
+        return self.post("/v1/screenings", body, **params)
 
     def scale_up(self, body: Mapping[str, Any], **params: Any) -> JSON:
         return self.post("/v1/scale-up", body, **params)
@@ -162,5 +176,6 @@ class Client:
         return self.get(f"/v1/{name}")["items"]
 
     def report(self, calculation: str, body: Mapping[str, Any], fmt: str = "pdf", **params: Any) -> bytes:
-        """A printable report (``pdf`` or ``html``) of ``cooling-check`` or ``scale-up``."""
+        """A printable report (``pdf`` or ``html``) of ``cooling-check``, ``scale-up``, ``screenings``,
+        ``jacket-sizing`` or ``operating-window``."""
         return self.request("POST", f"/v1/{calculation}", body, {"format": fmt, **params}).content

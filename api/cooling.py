@@ -7,7 +7,7 @@ from schemas.cooling import (CoolingCheckRequestSchema, CoolingCheckResultSchema
                              ScaleUpResultSchema)
 
 from . import charts, reports
-from .http import calculate
+from .http import batch_cases, calculate
 from .runtime import deadline
 
 bp = Blueprint("cooling", __name__, url_prefix="/v1")
@@ -57,6 +57,11 @@ def check_report(body: dict, payload: dict, units: dict, view) -> reports.Report
 @bp.route("/cooling-check", methods=["GET", "POST"])
 def check_cooling():
     return calculate(_request, _check, _result, batch=True, chart=check_chart, report=check_report)
+
+
+@bp.post("/cooling-check/batch")
+def check_cooling_batch():
+    return batch_cases(_request, _check, _result)
 
 
 _scale_request, _scale_result = ScaleUpRequestSchema(), ScaleUpResultSchema()
@@ -154,3 +159,8 @@ def scale_up():
                      report=scale_up_report,
                      lead=("name", "volume", "charge_volume", "scale_factor", "generated", "adequate", "margin",
                            "margin_band.low", "margin_band.high"))
+
+
+@bp.post("/scale-up/batch")
+def scale_up_batch():
+    return batch_cases(_scale_request, _scale_up, _scale_result)

@@ -329,11 +329,7 @@ def answer(payload: Any, units: dict[str, str], view: Presentation, *, rows: str
         from . import reports
 
         document = report(request_object(), payload, units, view)
-        body, media = reports.render(document, fmt)
-        response = Response(body, status=status, mimetype=media)
-        name = f"coolmargin-{request.path.rsplit('/', 1)[-1]}-{document.request_hash[:12]}.{fmt}"
-        response.headers["Content-Disposition"] = f'inline; filename="{name}"'
-        return response
+        return reports.response(document, fmt, request.path.rsplit("/", 1)[-1], status)
     body = dict(payload)
     used = records_used() if records else []
     if used:
@@ -419,6 +415,24 @@ def _not_computed(index: int, total: int) -> dict:
     return {"status": 503, "problem": problem_body(503, detail, [], "Time budget used up")}
 
 
+#: The ``{"cases": [...]}`` body on a calculation's own path is deprecated since this date (RFC 9745's
+#: Deprecation header: ``@`` and seconds since the epoch, 2026-12-03T00:00Z); ``<path>/batch`` replaces it
+#: and the old form goes one release after.
+BATCH_FORM_DEPRECATED = "@1796256000"
+
+
+def batch_cases(schema: Schema, compute: Callable[[Any], Any], result_schema: Schema) -> Response:
+    """``POST <path>/batch``: ``{"cases": [...]}``, each case its result or its own problem."""
+    data = request_object()
+    if "cases" not in data:
+        raise ProblemError(422, "a batch body holds 'cases': a list of requests",
+                           [{"field": "cases", "message": "required"}])
+    if set(data) != {"cases"}:
+        raise ProblemError(422, "a batch body holds only 'cases'",
+                           [{"field": sorted(set(data) - {"cases"})[0], "message": "not allowed beside cases"}])
+    return batch_response(data["cases"], schema, compute, result_schema)
+
+
 def calculate(schema: Schema, compute: Callable[[Any], Any], result_schema: Schema, *, batch: bool = False,
               read: Callable[[], dict] = request_object, own_utility: bool = True,
               **respond_options: Any) -> Response:
@@ -426,17 +440,18 @@ def calculate(schema: Schema, compute: Callable[[Any], Any], result_schema: Sche
 
     Every calculation resource answers through here. ``compute`` takes what ``schema`` loads and
     returns a calc result that ``result_schema`` dumps. With ``batch``, a POST of
-    ``{"cases": [...]}`` answers each case on its own. ``read`` gives the request's input object
+    ``{"cases": [...]}`` still answers each case on its own (deprecated: ``<path>/batch`` is the typed
+    form); the answer says so in its Deprecation and Link headers. ``read`` gives the request's input object
     (JSON body or query by default; a resource that also takes another body, such as a CSV log,
     passes its own). ``own_utility=False``: a stored vessel's utility does not stand in for a missing
     coolant (:func:`api.references.resolve`; the plant-data fits, whose coolant is the logged run's).
     """
     data = read()
     if batch and request.method == "POST" and "cases" in data:
-        if set(data) != {"cases"}:
-            raise ProblemError(422, "a batch body holds only 'cases'",
-                               [{"field": sorted(set(data) - {"cases"})[0], "message": "not allowed beside cases"}])
-        return batch_response(data["cases"], schema, compute, result_schema)
+        response = batch_cases(schema, compute, result_schema)
+        response.headers["Deprecation"] = BATCH_FORM_DEPRECATED
+        response.headers["Link"] = f'<{request.path.rstrip("/")}/batch>; rel="successor-version"'
+        return response
     resolved = resolve(data, schema, own_utility)
     return respond(_run(compute, schema.load(resolved), resolved), result_schema, **respond_options)
 

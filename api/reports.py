@@ -4,8 +4,9 @@ A :class:`Report` is built once from the request as given and the answer (in the
 then written as self-contained HTML (charts inline, print styles: one printed page per scale) or as a
 PDF through fpdf2 (pure Python; charts as PNG; the DejaVu font that matplotlib ships). Any resource
 builds its report from the same pieces: :func:`check_page` for a cooling check (one vessel or one
-scale), :func:`input_rows` for the inputs as given, :func:`build` for the frame (version, date, hash
-of the request, records used, cautions).
+scale), :func:`table_page` for a ranked or gridded answer (screening, jacket sizing, operating window:
+a summary, tables with a column per quantity, the chart), :func:`input_rows` for the inputs as given,
+:func:`build` for the frame (version, date, hash of the request, records used, cautions).
 """
 from __future__ import annotations
 
@@ -17,9 +18,9 @@ import json
 import math
 import os
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, Callable
 
-from flask import render_template
+from flask import Response, render_template
 
 from . import VERSION
 
@@ -41,10 +42,21 @@ class Row:
 
 
 @dataclass(frozen=True)
+class Table:
+    """A table with a column per quantity (one row per vessel, candidate or point), headings with units."""
+    headings: list[str]
+    rows: list[list[str]]
+    numeric: list[bool]  # right-aligned columns
+    marked: list[bool]  # rows printed in bold (the recommended candidate, the current point)
+    widths: list[float]  # share of the page width of each column
+
+
+@dataclass(frozen=True)
 class Section:
     heading: str
     rows: list[Row] = field(default_factory=list)
     lines: list[str] = field(default_factory=list)  # free text: warnings, notes
+    table: Table | None = None
 
 
 @dataclass(frozen=True)
@@ -59,8 +71,9 @@ class Page:
     heading: str
     sections: list[Section]
     verdict: str | None = None  # "ADEQUATE" / "NOT ADEQUATE"
-    adequate: bool | None = None
+    adequate: bool | None = None  # colours the verdict; None: neutral (a screening of many vessels)
     chart: Chart | None = None
+    after: list[Section] = field(default_factory=list)  # printed below the chart (notes, warnings)
 
 
 @dataclass(frozen=True)
@@ -95,6 +108,8 @@ def number(value: Any, digits: int = REPORT_DIGITS) -> str:
         return "yes" if value else "no"
     if not isinstance(value, (int, float)):
         return str(value)
+    if isinstance(value, int):  # counts, ranks, indices: whole numbers as they are
+        return f"{value:,}"
     rounded = float(f"{value:.{digits}g}")
     if rounded == 0 or not math.isfinite(rounded):
         return f"{rounded:g}"
@@ -221,6 +236,103 @@ def check_page(payload: dict, units: dict, heading: str, *, prefix: str = "", di
     return Page(heading, sections, verdict, adequate, chart)
 
 
+def value_at(item: Any, key: str) -> Any:
+    """The value at dotted ``key`` of ``item`` (None where the path ends early)."""
+    for part in key.split("."):
+        item = item.get(part) if isinstance(item, dict) else None
+    return item
+
+
+@dataclass(frozen=True)
+class Column:
+    """A column of a :class:`Table`: the dotted ``key`` of each item's value, its heading, and where its unit is
+    found in the answer's units map (``unit_key``; ``""``: a pure number or text). ``text`` writes a cell
+    that is not a single value (a band "low-high", a verdict)."""
+    key: str
+    heading: str
+    unit_key: str = ""
+    text: Callable[[dict], str] | None = None
+    figures: int | None = None  # significant figures; default the report's
+
+
+def table_section(heading: str, items: list[dict], columns: list[Column], units: dict, *,
+                  digits: int = REPORT_DIGITS, marked: Callable[[dict], bool] | None = None,
+                  lines: list[str] | None = None) -> Section:
+    """``items`` as one table: a row per item, a column per :class:`Column`, units in the headings.
+
+    Columns whose every cell is empty are left out, so fields another release adds (``margin_band``)
+    show up when present and take no room when not.
+    """
+    cells = []
+    for item in items:
+        row = []
+        for column in columns:
+            if column.text is not None:
+                row.append(column.text(item))
+            else:
+                row.append(number(value_at(item, column.key), column.figures or digits))
+        cells.append(row)
+    keep = [i for i in range(len(columns)) if any(row[i] not in ("", "-") for row in cells)]
+    chosen = [columns[i] for i in keep]
+    headings = [c.heading + (f" [{pretty_unit(units[c.unit_key])}]" if units.get(c.unit_key) else "")
+                for c in chosen]
+    rows = [[row[i] for i in keep] for row in cells]
+    numeric = [c.text is None and all(_numeric(row[j]) for row in rows) for j, c in enumerate(chosen)]
+    table = Table(headings, rows, numeric, [bool(marked and marked(item)) for item in items],
+                  _widths(headings, rows, numeric))
+    return Section(heading, lines=list(lines or []), table=table)
+
+
+LINE_CHARACTERS = 125  # characters of table text across the printed width (A4, 7 pt, with cell padding)
+
+
+def _widths(headings: list[str], rows: list[list[str]], numeric: list[bool]) -> list[float]:
+    """Share of the width of each column: numbers and short words never wrap; long text shares what is left."""
+    def length(text: str) -> float:  # capitals are wider
+        return len(text) + 0.35 * sum(1 for c in text if c.isupper())
+
+    need = [max([length(row[j]) for row in rows] + [1.15 * max(length(word) for word in heading.split()) + 1,
+                                                      length(heading) / 3, 5.0]) + 1.5
+            for j, heading in enumerate(headings)]
+    fixed = sum(n for n, number_column in zip(need, numeric) if number_column or n <= 14)
+    text = sum(n for n, number_column in zip(need, numeric) if not number_column and n > 14)
+    if text and fixed + text > LINE_CHARACTERS:  # shrink the long text columns (they wrap), not the numbers
+        squeeze = max(LINE_CHARACTERS - fixed, 14 * sum(1 for n, c in zip(need, numeric) if not c and n > 14)) / text
+        need = [n * squeeze if not number_column and n > 14 else n for n, number_column in zip(need, numeric)]
+    elif sum(need) < LINE_CHARACTERS:  # room to spare: shared alike, so headings of short numbers wrap less
+        need = [n + (LINE_CHARACTERS - sum(need)) / len(need) for n in need]
+    total = sum(need) or 1.0
+    return [n / total for n in need]
+
+
+def _numeric(text: str) -> bool:
+    """A cell written by :func:`number` (``"-"`` for none): right-aligned."""
+    if text == "-":
+        return True
+    try:
+        float(text.replace(",", ""))
+    except ValueError:
+        return False
+    return True
+
+
+def table_page(payload: dict | None, heading: str, *, summary: list[Row], tables: list[Section],
+               notes: list[Section] | None = None, verdict: str | None = None, adequate: bool | None = None,
+               chart: Chart | None = None) -> Page:
+    """One report page of a ranked or gridded answer: a summary, its tables, notes, the answer's warnings.
+
+    Screening, jacket sizing and operating window build their pages here: the summary and the tables,
+    then the chart (on the first printed page with them when it fits), then the notes and warnings.
+    A continuation page (``payload`` None) leaves the warnings to the first page.
+    """
+    after = list(notes or [])
+    if payload is not None:
+        warnings = [w.get("message", "") for w in payload.get("warnings") or [] if isinstance(w, dict)]
+        after.append(Section("Warnings", lines=warnings or ["none"]))
+    return Page(heading, ([Section("Summary", summary)] if summary else []) + list(tables), verdict, adequate, chart,
+                after)
+
+
 def build(title: str, resource: str, body: dict, payload: dict, pages: list[Page], units_note: str = "") -> Report:
     """The frame every report shares: inputs as given, records used, cautions, version, date, request hash."""
     return Report(title=title, resource=resource, pages=pages, inputs=input_rows(body),
@@ -252,6 +364,7 @@ def _font_directory() -> str:
 def to_pdf(report: Report) -> bytes:
     """The same report as PDF (A4), drawn with fpdf2; one page per report page, inputs last."""
     from fpdf import FPDF
+    from fpdf.fonts import FontFace
 
     class _Document(FPDF):
         def footer(self):
@@ -293,25 +406,49 @@ def to_pdf(report: Report) -> bytes:
             for row in rows:
                 grid.row([row.label, row.value, row.unit, row.note][:len(widths)])
 
+    def grid(content: Table) -> None:
+        pdf.set_font("body", "", 6.8)
+        pdf.set_draw_color(205, 213, 219)
+        pdf.set_line_width(0.15)
+        width = pdf.w - pdf.l_margin - pdf.r_margin
+        align = tuple("RIGHT" if n else "LEFT" for n in content.numeric)
+        with pdf.table(col_widths=tuple(w * width for w in content.widths), width=width, line_height=3.2,
+                       cell_fill_mode="NONE", borders_layout="HORIZONTAL_LINES", padding=0.5, text_align=align,
+                       headings_style=FontFace(emphasis="BOLD", fill_color=(238, 243, 246))) as drawn:
+            drawn.row(content.headings)
+            for cells, marked in zip(content.rows, content.marked):
+                drawn.row(cells, style=FontFace(emphasis="BOLD") if marked else None)
+
+    fills = {True: (226, 240, 222), False: (248, 222, 218), None: (236, 239, 242)}
     for page in report.pages:
         header(page.heading)
         if page.verdict:
             pdf.set_font("body", "B", 10)
-            pdf.set_fill_color(*((226, 240, 222) if page.adequate else (248, 222, 218)))
-            pdf.cell(0, 7, page.verdict, fill=True, new_x="LMARGIN", new_y="NEXT")
+            pdf.set_fill_color(*fills[page.adequate])
+            pdf.multi_cell(0, 6, page.verdict, fill=True, new_x="LMARGIN", new_y="NEXT")
             pdf.set_fill_color(255, 255, 255)
-        for section in page.sections:
-            pdf.set_font("body", "B", 8.5)
-            pdf.ln(1)
-            pdf.cell(0, 4.5, section.heading, new_x="LMARGIN", new_y="NEXT")
-            if section.rows:
-                table(section.rows)
-            pdf.set_font("body", "", 7.5)
-            for line in section.lines:
-                pdf.multi_cell(0, 3.6, "- " + line, new_x="LMARGIN", new_y="NEXT")
+        def sections(chosen: list[Section]) -> None:
+            for section in chosen:
+                pdf.set_font("body", "B", 8.5)
+                pdf.ln(1)
+                pdf.cell(0, 4.5, section.heading, new_x="LMARGIN", new_y="NEXT")
+                if section.rows:
+                    table(section.rows)
+                if section.table is not None:
+                    grid(section.table)
+                pdf.set_font("body", "", 7.5)
+                for line in section.lines:
+                    pdf.multi_cell(0, 3.6, "- " + line, new_x="LMARGIN", new_y="NEXT")
+
+        sections(page.sections)
         if page.chart is not None:
             room = pdf.h - 20 - pdf.get_y()
+            if room < 70:  # too little room left for a readable chart: it gets the next page
+                header(page.heading + " (chart)")
+                room = pdf.h - 20 - pdf.get_y()
+            pdf.ln(1)
             pdf.image(io.BytesIO(page.chart.png), w=min(175, room * 7.5 / 5.6), keep_aspect_ratio=True)
+        sections(page.after)
     header("Inputs as given, records used and cautions")
     if report.units_note:
         pdf.set_font("body", "", 7.5)
@@ -334,3 +471,11 @@ def render(report: Report, fmt: str) -> tuple[bytes, str]:
     if fmt == "pdf":
         return to_pdf(report), FORMATS["pdf"]
     return to_html(report).encode("utf-8"), FORMATS["html"]
+
+
+def response(report: Report, fmt: str, name: str, status: int = 200) -> Response:
+    """The report as an HTTP answer, named for saving: ``coolmargin-<name>-<request hash>.<fmt>``."""
+    body, media = render(report, fmt)
+    answer = Response(body, status=status, mimetype=media)
+    answer.headers["Content-Disposition"] = f'inline; filename="coolmargin-{name}-{report.request_hash[:12]}.{fmt}"'
+    return answer

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import json
 from datetime import datetime
+from typing import Any
 
 from flask import Blueprint, Response, current_app, request
 from marshmallow import ValidationError
@@ -24,9 +25,9 @@ from schemas.screening import (SCREENING_CAUTIONS, ScreeningListSchema, Screenin
                                ScreeningResultSchema, screening_row)
 from schemas.vessel import CoolantSchema, VesselSchema
 
-from . import charts, jobs, security
+from . import charts, jobs, report_pages, security
 from .errors import ProblemError
-from .http import Report, answer, presentation, presented, request_object, requested_format
+from .http import answer, presentation, presented, request_object, requested_format
 from .records import store
 from .runtime import deadline
 from .references import records_used, resolve
@@ -259,10 +260,6 @@ def chart(payload: dict, fmt: str, units: dict) -> bytes:
     return charts.render(fig, fmt)
 
 
-#: The printable report of a screening (``format=html``/``pdf``, :func:`api.http.respond`'s ``report``); none yet.
-REPORT: Report | None = None
-
-
 def _pending(view: dict, status: int = 200) -> Response:
     """A screening that is not finished (queued, running) or failed: its state as JSON, whatever the format."""
     fmt = requested_format()
@@ -279,13 +276,18 @@ def _pending(view: dict, status: int = 200) -> Response:
     return response
 
 
-def _answer(payload: dict, status: int = 200) -> Response:
+def _answer(payload: dict, status: int = 200, request_body: dict | None = None) -> Response:
     """The stored screening (rows dumped in the default API units when it ran) in the negotiated format, with
     the presentation the query asks for (output units, digits, decimal comma), as every calculation; a job not
-    finished yet answers its state (:func:`_pending`)."""
+    finished yet answers its state (:func:`_pending`). Its printable report shows ``request_body``, the
+    request the screening ran, as the inputs given."""
     if status == 202:
         return _pending(payload, status)
-    response = answer(*presented(clean(payload), _result), rows="rows", lead=LEAD, chart=chart, report=REPORT,
+
+    def report(_asked: dict, shown: dict, units: dict, view: Any) -> Any:
+        return report_pages.screening_report(request_body or {}, shown, units, view, draw=chart)
+
+    response = answer(*presented(clean(payload), _result), rows="rows", lead=LEAD, chart=chart, report=report,
                       status=status, records=False)
     if status == 201:
         response.headers["Location"] = f"/v1/screenings/{payload['id']}"
@@ -296,11 +298,9 @@ def _answer(payload: dict, status: int = 200) -> Response:
 def create():
     # a wrong output unit, digits or format is answered before the screening runs and is stored
     presentation(_result)
-    if requested_format() in ("html", "pdf") and REPORT is None:
-        raise ProblemError(422, "a screening has no printable report yet; use format json, csv, svg or png",
-                           [{"field": "format", "message": "no report for this resource"}])
-    payload, status = run(request_object())
-    return _answer(payload, status)
+    body = request_object()
+    payload, status = run(body)
+    return _answer(payload, status, body)
 
 
 @bp.get("/screenings")
@@ -320,11 +320,11 @@ def read(screening_id: str):
     stored = jobs.refresh(store().screening(screening_id))
     if stored["status"] in jobs.PENDING or stored["status"] == "failed":
         return _pending(jobs.status_view(stored))
-    return _answer(_shaped(stored))
+    return _answer(_shaped(stored), request_body=stored["request"])
 
 
 @bp.post("/screenings/<screening_id>/rerun")
 def rerun(screening_id: str):
     stored = store().screening(screening_id)
     payload, status = run(stored["request"], previous_id=screening_id)
-    return _answer(payload, status)
+    return _answer(payload, status, stored["request"])

@@ -1,11 +1,13 @@
 """``/v1/jacket-sizing``: candidate jackets and coils for a vessel shell, ranked, with a recommendation."""
+from functools import partial
+
 from flask import Blueprint
 
 from calc.sizing import jacket_sizing as sizing
 from schemas.sizing import JacketSizingRequestSchema, JacketSizingResultSchema
 
-from . import charts
-from .http import calculate
+from . import charts, report_pages
+from .http import batch_cases, calculate
 from .runtime import deadline
 
 bp = Blueprint("sizing", __name__, url_prefix="/v1")
@@ -61,5 +63,11 @@ def sizing_chart(payload: dict, fmt: str, units: dict) -> bytes:
 @bp.route("/jacket-sizing", methods=["GET", "POST"])
 def jacket_sizing():
     return calculate(_request, _size, _result, rows="candidates", chart=sizing_chart,
+                     report=partial(report_pages.sizing_report, draw=sizing_chart),
                      lead=("index", "type", "description", "feasible", "margin", "cooling_capacity", "pressure_drop",
                            "velocity", "coolant_flow"))
+
+
+@bp.post("/jacket-sizing/batch")
+def jacket_sizing_batch():
+    return batch_cases(_request, _size, _result)

@@ -1,11 +1,13 @@
 """``/v1/operating-window``: the cooling check's margin over a grid of two operating quantities."""
+from functools import partial
+
 from flask import Blueprint, current_app
 
 from calc.checks.operating_window import operating_window as window_calculation
 from calc.checks.operating_window import OperatingWindow
 from schemas.window import OperatingWindowRequestSchema, OperatingWindowResultSchema
 
-from . import charts
+from . import charts, report_pages
 from .errors import ProblemError
 from .http import calculate
 from .runtime import deadline
@@ -62,5 +64,6 @@ def window_chart(payload: dict, fmt: str, units: dict) -> bytes:
 @bp.route("/operating-window", methods=["GET", "POST"])
 def operating_window():
     return calculate(_request, _window, _result, rows="points", chart=window_chart,
+                     report=partial(report_pages.window_report, draw=window_chart),
                      lead=("dosing_time", "coolant_inlet_temperature", "coolant_flow", "coolant_volume_flow",
                            "process_temperature", "agitator_speed", "margin", "adequate"))

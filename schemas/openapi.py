@@ -122,7 +122,10 @@ def json_schema(schema_cls: type[Schema], refs: dict[str, type] | None = None, *
                                   "request it describes; members given beside it override it")
         if supplied:
             required = [key for key in required if key not in supplied]
-            out["anyOf"] = [{"required": supplied}, {"required": ["step"]}]
+            # "these members, or a step that supplies them", as a condition rather than a top-level anyOf:
+            # a top-level anyOf makes client generators give up on the body's type (it reads as a union)
+            out["if"] = {"not": {"required": ["step"]}}
+            out["then"] = {"required": supplied}
     if required:
         out["required"] = required
     return out
@@ -165,12 +168,15 @@ def components(request_roots: list[type], response_roots: list[type]) -> dict:
                 "description": "Several independent cases in one call; each gets its result or its own problem.",
                 "properties": {"cases": {"type": "array", "minItems": 1,
                                          "items": {"$ref": f"#/components/schemas/{_name(calc.request)}"}}}}
-    if any(calc.batch for calc in registry.CALCULATIONS):
-        done["BatchResult"] = {"type": "object", "required": ["cases"], "properties": {
-            "cases": {"type": "array", "items": {"type": "object", "required": ["status"], "properties": {
-                "status": {"type": "integer"}, "result": {"type": "object"},
-                "problem": {"$ref": "#/components/schemas/Problem"}}}},
-            "units": {"$ref": "#/components/schemas/Units"}}}
+            done[f"{_name(calc.response)}Batch"] = {
+                "type": "object", "required": ["cases"],
+                "description": "One entry per case, in order: its HTTP status and its result, or its own problem.",
+                "properties": {
+                    "cases": {"type": "array", "items": {"type": "object", "required": ["status"], "properties": {
+                        "status": {"type": "integer", "description": "200, or the status of the case's problem"},
+                        "result": {"$ref": f"#/components/schemas/{_name(calc.response)}"},
+                        "problem": {"$ref": "#/components/schemas/Problem"}}}},
+                    "units": {"$ref": "#/components/schemas/Units"}}}
     done["QuantityText"] = {
         "type": "string", "maxLength": MAX_TEXT, "pattern": QUANTITY_PATTERN,
         "description": "A number and a unit, ASCII only, e.g. '150 rpm', '25 degC', '20 m^3/h', 'W/(m^2*K)'. Unit "
@@ -237,6 +243,11 @@ def _ok(response: type, media: tuple) -> dict:
     return {"description": "The result, with the unit of each quantity in `units`.", "content": content}
 
 
+BATCH_NOTE = (" Several cases in one call: POST {path}/batch. Deprecated: POST {path} with a body of "
+              "{{\"cases\": [...]}} still answers as a batch for one release, with Deprecation and Link headers "
+              "naming {path}/batch.")
+
+
 def paths() -> dict:
     """Path items of every calculation and library resource in the registry."""
     from . import registry
@@ -248,10 +259,23 @@ def paths() -> dict:
         params = [{"$ref": f"#/components/parameters/{name}"} for name in PRESENTATION_PARAMETERS]
         body_schema: dict = {"$ref": f"#/components/schemas/{_name(calc.request)}"}
         ok = _ok(calc.response, calc.media)
-        if calc.batch:
-            body_schema = {"anyOf": [body_schema, {"$ref": f"#/components/schemas/{_name(calc.request)}Batch"}]}
-            ok["content"]["application/json"]["schema"] = {"anyOf": [
-                ok["content"]["application/json"]["schema"], {"$ref": "#/components/schemas/BatchResult"}]}
+        if calc.batch:  # a typed batch of its own; the {"cases": [...]} body here is deprecated
+            common["description"] += BATCH_NOTE.format(path=calc.path)
+            out[f"{calc.path}/batch"] = {"post": {
+                "tags": [calc.tag], "summary": f"A batch of independent cases: {calc.summary[0].lower()}"
+                                              f"{calc.summary[1:]}",
+                "description": "Each case is answered on its own: its result, or its own problem (its fields named "
+                               "cases[i].field); one bad case fails no other. JSON, CSV a row per case, or "
+                               "field= one value per line.",
+                "operationId": "post" + operation_id + "Batch",
+                "parameters": [{"$ref": f"#/components/parameters/{name}"} for name in PRESENTATION_PARAMETERS],
+                "requestBody": {"required": True, "content": {"application/json": {
+                    "schema": {"$ref": f"#/components/schemas/{_name(calc.request)}Batch"}}}},
+                "responses": with_common_problems({"200": {
+                    "description": "Each case's result or problem, in order.", "content": {
+                        "application/json": {"schema": {"$ref": f"#/components/schemas/{_name(calc.response)}Batch"}},
+                        "text/csv": {"schema": {"type": "string"}}, "text/plain": {"schema": {"type": "string"}}}},
+                    "400": _PROBLEM, "401": _PROBLEM, "415": _PROBLEM, "422": _PROBLEM})}}
         body_media: dict = {"schema": body_schema}
         if calc.example is not None:
             body_media["examples"] = {"demo": {"summary": "the demo scenario (examples/)",
@@ -428,10 +452,12 @@ def record_paths() -> dict:
 def screening_paths() -> dict:
     """Path items of /v1/screenings (create, list, read, re-run)."""
     ok = {"description": "The ranked screening: a row per vessel; CSV one row per vessel; SVG/PNG the margins "
-                         "with the safety-factor line.",
+                         "with the safety-factor line; HTML/PDF a printable report (ranked table, records and "
+                         "revisions used, chart, cautions, request hash).",
           "content": {"application/json": {"schema": {"$ref": "#/components/schemas/ScreeningResult"}},
                       "text/csv": {"schema": {"type": "string"}}, "image/svg+xml": {"schema": {"type": "string"}},
-                      "image/png": {"schema": {"type": "string"}}}}
+                      "image/png": {"schema": {"type": "string"}}, "text/html": {"schema": {"type": "string"}},
+                      "application/pdf": {"schema": {"type": "string"}}}}
     created = dict(ok, description="Screened and stored; Location names the stored screening. " + ok["description"],
                    headers={"Location": {"description": "the stored screening", "schema": {"type": "string"}}})
     accepted = {"description": "Accepted as a job (only with a job queue, COOLMARGIN_QUEUE_URL): the selection holds "

@@ -66,8 +66,8 @@ CALCULATIONS = [
                 "Heat load (reaction + agitator - sensible heat of cold feed) against the cooling capacity at the "
                 "process temperature; margin = capacity / load; adequate when margin >= safety_factor (default "
                 "1.3, a conservative engineering choice). Limits are solved: the shortest dosing time, the "
-                "warmest coolant inlet and the coolant flow that restore the safety factor. POST also takes "
-                "{\"cases\": [...]}. format=svg or png draws the heat balance; format=html or pdf gives a printable "
+                "warmest coolant inlet and the coolant flow that restore the safety factor. "
+                "format=svg or png draws the heat balance; format=html or pdf gives a printable "
                 "report (inputs as given, results, limits, warnings, cautions, request hash). A screening estimate: confirm with reaction calorimetry and plant data; "
                 "local codes and a licensed engineer's review govern.",
                 CoolingCheckRequestSchema, CoolingCheckResultSchema, batch=True,
@@ -79,7 +79,7 @@ CALCULATIONS = [
                 "speed, A/V, films, U, the controlling resistance, capacity, load, margin, verdict and limits; "
                 "overall the largest adequate volume solved on the continuous family of similar vessels and "
                 "where the controlling resistance switches. format=csv gives one row per scale; format=svg or "
-                "png a chart; format=html or pdf a printable report (one page per scale). POST also takes {\"cases\": [...]}.",
+                "png a chart; format=html or pdf a printable report (one page per scale).",
                 ScaleUpRequestSchema, ScaleUpResultSchema, media=("text/csv", "text/plain", "image/svg+xml",
                                                                   "image/png", "text/html", "application/pdf"),
                 batch=True,
@@ -92,10 +92,11 @@ CALCULATIONS = [
                 "of the adequate region (margin = safety factor, solved on each grid line where the verdict "
                 "changes) and the request's own point. At most MAX_WINDOW_POINTS grid points (2500; 413 above). "
                 "format=csv gives one row per point; format=svg or png a contour chart with the safety-factor "
-                "line and the current point. A screening estimate: confirm with reaction calorimetry and plant "
+                "line and the current point; format=html or pdf a printable report (grid summary, current point, "
+                "boundary, contours). A screening estimate: confirm with reaction calorimetry and plant "
                 "data; local codes and a licensed engineer's review govern.",
                 OperatingWindowRequestSchema, OperatingWindowResultSchema,
-                media=("text/csv", "text/plain", "image/svg+xml", "image/png"),
+                media=("text/csv", "text/plain", "image/svg+xml", "image/png", "text/html", "application/pdf"),
                 example="operating_window_production.json"),
     Calculation("/v1/jacket-sizing", "cooling check", "Candidate jackets and coils for a vessel shell, ranked",
                 "Annular jackets over gaps (with and without a spiral baffle over pitches), half-pipe jackets over "
@@ -105,11 +106,13 @@ CALCULATIONS = [
                 "available pressure difference, maximum velocity and maximum flow allow, with area, U, capacity, "
                 "margin, flow, velocity and pressure drop. The smallest feasible design of each type and an overall "
                 "recommendation with its reasoning. format=csv gives one row per candidate; format=svg or png "
-                "plots capacity against pressure drop with the duty line. A screening estimate: confirm with "
+                "plots capacity against pressure drop with the duty line; format=html or pdf a printable report "
+                "(recommendation and reasoning, smallest feasible of each type, every candidate). A screening estimate: confirm with "
                 "reaction calorimetry and plant data; the fabricator confirms the mechanical design under the "
                 "pressure-vessel code; local codes and a licensed engineer's review govern.",
                 JacketSizingRequestSchema, JacketSizingResultSchema,
-                media=("text/csv", "text/plain", "image/svg+xml", "image/png"), batch=True,
+                media=("text/csv", "text/plain", "image/svg+xml", "image/png", "text/html", "application/pdf"),
+                batch=True,
                 example="jacket_sizing_request.json"),
     Calculation("/v1/thermal-safety", "thermal safety", "Adiabatic rise, MTSR, T_D24, TMR_ad and criticality class",
                 "Cooling-failure scenario: MTSR = T_p + X_ac dT_ad (Stoessel 1993); T_D24 and the adiabatic time to "

@@ -63,3 +63,77 @@ def test_unreachable_server_is_its_own_exit_status_without_a_traceback():
 def test_unreadable_request_is_invalid(monkeypatch, capsys):
     status, _, err = _main(monkeypatch, capsys, ["check", "-"], stdin="{not json")
     assert status == cli.EXIT_INVALID and "cannot read standard input" in err
+
+
+# ---------------------------------------------------------------- screening, sizing, window against a live server
+
+@pytest.fixture(scope="module")
+def plant_server(tmp_path_factory):
+    """gunicorn over a catalogue holding the demo plant (examples/plant.json), loaded through the API."""
+    from api import create_app
+    from plant import load_plant
+    from serving import gunicorn
+
+    url = f"sqlite:///{tmp_path_factory.mktemp('plant')}/catalogue.sqlite3"
+    loader = create_app({"TESTING": True, "DATABASE_URL": url})
+    load_plant(loader.test_client())
+    loader.extensions["coolmargin.catalogue"].dispose()
+    with gunicorn(env={"COOLMARGIN_DATABASE_URL": url}, workers=1) as base:
+        yield base
+
+
+@pytest.mark.slow
+def test_screening_from_standard_input_against_the_live_server(plant_server, monkeypatch, capsys):
+    # AC-7-FAST: Cormorant is the one adequate vessel of the demo plant (tests/test_screenings.py ranks it)
+    status, out, _ = _main(monkeypatch, capsys, ["screening", "--url", plant_server],
+                           stdin=json.dumps({"step": {"ref": "AC-7-FAST"}}))
+    assert status == cli.EXIT_OK and "1 of 8 vessels adequate" in out
+    assert "Cormorant, 8 m3 reactor with coil" in out and "Gannet, 6.3 m3 production reactor on tower water" in out
+    # none of the vessels chosen is adequate: the exit status says so, whatever the output format
+    body = json.dumps({"step": {"ref": "AC-7-FAST"}, "vessels": ["Puffin", "Gannet"]})
+    status, out, _ = _main(monkeypatch, capsys, ["screening", "-", "--url", plant_server, "--output", "json"],
+                           stdin=body)
+    answer = json.loads(out)
+    assert status == cli.EXIT_INADEQUATE and {row["verdict"] for row in answer["rows"]} == {"not adequate"}
+    status, out, _ = _main(monkeypatch, capsys, ["screening", "--url", plant_server, "--output", "csv"], stdin=body)
+    lines = out.splitlines()
+    assert lines[0].startswith("rank,tag,verdict,margin,minimum_dosing_time [s]") and len(lines) == 3
+    # a vessel the catalogue does not hold: the service's 422 names the field, exit status 2
+    status, _, err = _main(monkeypatch, capsys, ["screening", "--url", plant_server],
+                           stdin=json.dumps({"step": {"ref": "AC-7-FAST"}, "vessels": ["Nowhere"]}))
+    assert status == cli.EXIT_INVALID and "vessels[0]" in err
+
+
+@pytest.mark.slow
+def test_sizing_and_window_against_the_live_server(plant_server, monkeypatch, capsys, app):
+    sizing = ROOT / "examples" / "jacket_sizing_request.json"
+    local = app.test_client().post("/v1/jacket-sizing", json=json.loads(sizing.read_text())).json
+    status, out, _ = _main(monkeypatch, capsys, ["sizing", str(sizing), "--url", plant_server])
+    assert status == cli.EXIT_OK and f"recommended: {local['recommendation']['description']}" in out
+    status, out, _ = _main(monkeypatch, capsys, ["sizing", str(sizing), "--url", plant_server, "--output", "csv"])
+    assert out.startswith("index,type,description,feasible,margin") and len(out.splitlines()) == 1 + len(
+        local["candidates"])
+    # the whole dose in 5 min instead of 80: a heat load no candidate removes, exit status 1
+    demanding = json.loads(sizing.read_text())
+    demanding["heat_release"]["dosing_time"] = "5 min"
+    status, out, _ = _main(monkeypatch, capsys, ["sizing", "--url", plant_server], stdin=json.dumps(demanding))
+    assert status == cli.EXIT_INADEQUATE and "recommended: no feasible design" in out
+    window = ROOT / "examples" / "operating_window_production.json"
+    status, out, _ = _main(monkeypatch, capsys, ["window", str(window), "--url", plant_server, "--output", "json",
+                                                 "--units", "metric"])
+    answer = json.loads(out)
+    assert status == (cli.EXIT_OK if answer["current"]["adequate"] else cli.EXIT_INADEQUATE)
+    assert answer["units"]["points.dosing_time"] == "min"
+
+
+def test_a_batch_goes_to_its_own_route_and_each_case_keeps_its_verdict(monkeypatch, capsys):
+    check = json.loads((ROOT / "examples" / "cooling_check_production.json").read_text())
+    batch = {"cases": [check, dict(check, safety_factor=3.0)]}  # the recipe's margin 2.2 is short of 3
+    paths = []
+    call = cli._call
+    monkeypatch.setattr(cli, "_call", lambda path, *rest: paths.append(path) or call(path, *rest))
+    status, out, _ = _main(monkeypatch, capsys, ["check", "--output", "json"], stdin=json.dumps(batch))
+    assert paths == ["/v1/cooling-check/batch"]
+    answer = json.loads(out)
+    assert [case["result"]["adequate"] for case in answer["cases"]] == [True, False]
+    assert status == cli.EXIT_INADEQUATE

@@ -34,6 +34,10 @@ def _check_calls(service, local):
     assert metric["units"]["cooling_capacity"] == "kW"
     assert service.properties("water", "25 degC")["density"] == pytest.approx(997.05, rel=1e-4)  # IAPWS-95, from memory
     assert service.report("cooling-check", CHECK).startswith(b"%PDF")
+    batch = service.cooling_check_batch([CHECK, dict(CHECK, safety_factor=0.5)])  # the second case is invalid
+    assert [case["status"] for case in batch["cases"]] == [200, 422]
+    assert batch["cases"][0]["result"]["margin"] == local["margin"]
+    assert batch["cases"][1]["problem"]["errors"][0]["field"] == "cases[1].safety_factor"
     with pytest.raises(ProblemError) as refused, Client(service.base_url, token="wrong") as stranger:
         stranger.cooling_check(CHECK)
     assert refused.value.status == 401 and refused.value.title
@@ -89,14 +93,27 @@ def test_a_client_generated_from_the_contract_calls_a_check(server, tmp_path, mo
                     "--output-path", str(tmp_path / "generated_client")], check=True, capture_output=True,
                    timeout=300, cwd=tmp_path)
     monkeypatch.syspath_prepend(str(tmp_path))
-    from generated_client import AuthenticatedClient
-    from generated_client.api.cooling_check import post_cooling_check
+    import inspect
+    import typing
 
+    from generated_client import AuthenticatedClient
+    from generated_client.api.cooling_check import post_cooling_check, post_cooling_check_batch
+    from generated_client.models import CoolingCheckRequest, CoolingCheckRequestBatch, CoolingCheckResultBatch
+
+    # The check's body is a typed model (a batch has its own route and model), not untyped JSON.
+    hints = typing.get_type_hints(post_cooling_check.sync_detailed)
+    assert hints["body"] is CoolingCheckRequest, hints["body"]
+    assert typing.get_type_hints(post_cooling_check_batch.sync_detailed)["body"] is CoolingCheckRequestBatch
+    assert "vessel" in inspect.signature(CoolingCheckRequest).parameters
+    body = CoolingCheckRequest.from_dict(CHECK)
+    assert body.to_dict() == CHECK  # the typed model carries the demo request unchanged
     with AuthenticatedClient(base_url=server, token=TOKEN, raise_on_unexpected_status=True) as client:
-        answer = post_cooling_check.sync_detailed(client=client, body=CHECK)
-    # the body is one check or {"cases": [...]}; the generator types the single check (its vessel may be
-    # a catalogue reference) as plain JSON, which it sends as given
-    assert answer.status_code == 200
+        answer = post_cooling_check.sync_detailed(client=client, body=body)
+        batch = post_cooling_check_batch.sync_detailed(
+            client=client, body=CoolingCheckRequestBatch.from_dict({"cases": [CHECK, CHECK]}))
+    assert answer.status_code == 200 and batch.status_code == 200
+    assert isinstance(batch.parsed, CoolingCheckResultBatch)
+    assert [case.result.margin for case in batch.parsed.cases] == [answer.parsed.margin] * 2
     with Client(server, token=TOKEN) as direct_client:
         direct = direct_client.cooling_check(CHECK)
     assert answer.parsed.margin == direct["margin"] and answer.parsed.adequate is True

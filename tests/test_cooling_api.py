@@ -87,9 +87,20 @@ def test_scale_up_csv_one_row_per_scale_and_charts(client):
 
 def test_scale_up_batch_isolates_a_bad_case(client):
     body = {"cases": [DEMO, dict(DEMO, rule="constant_froude")]}
-    cases = client.post("/v1/scale-up", json=body).json["cases"]
+    response = client.post("/v1/scale-up/batch", json=body)
+    cases = response.json["cases"]
     assert [c["status"] for c in cases] == [200, 422]
     assert cases[1]["problem"]["errors"][0]["field"] == "cases[1].rule"
+    assert "Deprecation" not in response.headers
+    # the older form on the calculation's own path answers the same for one release, marked deprecated
+    # (RFC 9745: Deprecation "@" epoch seconds; RFC 8288 Link to the successor)
+    old = client.post("/v1/scale-up", json=body)
+    assert old.json["cases"][0] == cases[0] and old.json["cases"][1]["status"] == 422
+    assert old.headers["Deprecation"].startswith("@") and int(old.headers["Deprecation"][1:]) > 0
+    assert old.headers["Link"] == '</v1/scale-up/batch>; rel="successor-version"'
+    # the batch route takes only a batch
+    single = client.post("/v1/scale-up/batch", json=DEMO)
+    assert single.status_code == 422 and single.json["errors"][0]["field"] == "cases"
 
 
 def test_cli_scale_up_exit_code(tmp_path):
