@@ -179,15 +179,11 @@ def _rows(payload: dict, units: dict, prefix: str, names: list[tuple[str, str]],
 
 
 def band_section(band: dict, digits: int = REPORT_DIGITS) -> Section:
-    """The margin band in a few rows: its ends (with what sets each), then one line per alternative."""
+    """The margin band in a few lines: its ends with what sets each, and whether the verdict holds across it
+    (each alternative's own margin is in the JSON and CSV answers, ``margin_band.members``)."""
     rows = [Row("lowest margin", number(band.get("low"), digits), "", str(band.get("low_set_by") or "")),
             Row("highest margin", number(band.get("high"), digits), "", str(band.get("high_set_by") or ""))]
-    members = [f"{m.get('resistance')} = {m.get('alternative')}: {number(m.get('margin'), 3)}"
-               for m in band.get("members") or [] if isinstance(m, dict) and m.get("resistance") != "joint"]
-    lines = [str(band["statement"])] if band.get("statement") else []
-    if members:
-        lines.append("margin with each alternative: " + "; ".join(members))
-    return Section("Margin band", rows, lines)
+    return Section("Margin band", rows, [str(band["statement"])] if band.get("statement") else [])
 
 
 def check_page(payload: dict, units: dict, heading: str, *, prefix: str = "", digits: int = REPORT_DIGITS,
