@@ -35,14 +35,23 @@ N x (surfaces per state).
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Any, Iterable, Sequence
+from typing import TYPE_CHECKING, Any, Callable, Iterable, Optional, Sequence
 
 import numpy as np
 
 from calc.films import process_side, wall
 from calc.network.coolant_balance import single_pass
 from calc.network.heat_transfer import MAX_ITERATIONS, TOLERANCE, Network, assemble
-from calc.properties import LiquidProperties
+from calc.properties import Liquid, LiquidProperties, PropertyTable
+
+if TYPE_CHECKING:
+    from calc.network.heat_transfer import HeatTransferResult
+    from calc.vessel.model import Charge, Coolant, Vessel
+
+#: One case of :func:`assemble_cases`: (vessel, charge, coolant, process temperature in K).
+Case = tuple["Vessel", "Charge", "Coolant", float]
+#: An optional per-state array argument of :meth:`Prepared.solve` (None: the default for every state).
+OptionalArray = Optional[np.ndarray]
 
 
 @dataclass(frozen=True)
@@ -83,7 +92,7 @@ class StreamRows:
     service_wall_temperature: np.ndarray  # K
 
 
-def _range(liquid) -> tuple[float, float]:
+def _range(liquid: Liquid) -> tuple[float, float]:
     """The clamp the scalar path applies to computed temperatures of ``liquid`` (none without a range)."""
     liquid_range = getattr(liquid, "liquid_range", None)
     if liquid_range is None:
@@ -92,16 +101,21 @@ def _range(liquid) -> tuple[float, float]:
     return low, high
 
 
+_FromTable = Callable[[PropertyTable, np.ndarray], np.ndarray]
+_FromStates = Callable[[LiquidProperties], Any]
+
+
 class _ByLiquid:
     """Properties of rows that may belong to different liquids: one table look-up per liquid."""
 
-    def __init__(self, liquids: list, row_liquid: np.ndarray):
+    def __init__(self, liquids: list[Liquid], row_liquid: np.ndarray):
         self.liquids = liquids
         self.masks = None if len(liquids) == 1 else [row_liquid == i for i in range(len(liquids))]
 
     def states(self, temperature: np.ndarray) -> LiquidProperties:
         if self.masks is None:
-            return self.liquids[0].states(temperature)
+            states: LiquidProperties = self.liquids[0].states(temperature)
+            return states
         out = [np.empty_like(temperature) for _ in range(4)]
         for liquid, mask in zip(self.liquids, self.masks):
             s = liquid.states(temperature[mask])
@@ -117,7 +131,7 @@ class _ByLiquid:
         """The density alone, as in :meth:`states`."""
         return self._each(temperature, lambda table, t: table.densities(t), lambda s: s.density)
 
-    def _each(self, temperature: np.ndarray, from_table, from_states) -> np.ndarray:
+    def _each(self, temperature: np.ndarray, from_table: _FromTable, from_states: _FromStates) -> np.ndarray:
         if self.masks is None:
             return self._one(self.liquids[0], temperature, from_table, from_states)
         out = np.empty_like(temperature)
@@ -126,12 +140,13 @@ class _ByLiquid:
         return out
 
     @staticmethod
-    def _one(liquid, temperature: np.ndarray, from_table, from_states) -> np.ndarray:
+    def _one(liquid: Liquid, temperature: np.ndarray, from_table: _FromTable, from_states: _FromStates) -> np.ndarray:
         table = getattr(liquid, "table", None)
-        return from_states(liquid.states(temperature)) if table is None else from_table(table(), temperature)
+        found = from_states(liquid.states(temperature)) if table is None else from_table(table(), temperature)
+        return np.asarray(found)
 
 
-def _index(items: list, item) -> int:
+def _index(items: list[Any], item: Any) -> int:
     for i, known in enumerate(items):
         if known == item:
             return i
@@ -139,7 +154,7 @@ def _index(items: list, item) -> int:
     return len(items) - 1
 
 
-def _stack(dicts: list[dict]) -> dict:
+def _stack(dicts: list[dict[str, Any]]) -> dict[str, Any]:
     """One dict of arrays from dicts with the same keys (numbers) ; strings must agree and stay strings."""
     out = {}
     for key in dicts[0]:
@@ -148,9 +163,9 @@ def _stack(dicts: list[dict]) -> dict:
     return out
 
 
-def _groups(keys: list) -> list[tuple[Any, np.ndarray]]:
+def _groups(keys: list[Any]) -> list[tuple[Any, np.ndarray]]:
     """(key, row indices) for each distinct key, in order of first appearance."""
-    found: dict = {}
+    found: dict[Any, list[int]] = {}
     for i, key in enumerate(keys):
         found.setdefault(key, []).append(i)
     return [(key, np.array(rows)) for key, rows in found.items()]
@@ -175,8 +190,8 @@ class Prepared:
 
     def __init__(self, networks: Sequence[Network]):
         self.networks = tuple(networks)
-        charge_liquids: list = []
-        coolant_liquids: list = []
+        charge_liquids: list[Liquid] = []
+        coolant_liquids: list[Liquid] = []
         # (flow, per volume?, coolant liquid index, process temperature)
         streams_t: list[tuple[Any, ...]] = []
         # (stream template, area, charge liquid, bulk props, film, formula, layers, remaining resistance of a
@@ -253,7 +268,7 @@ class Prepared:
         self.coolant_range = np.array([_range(liquid) for liquid in coolant_liquids]) + [1e-3, -1e-2]
         self.charge_range = np.array([_range(liquid) for liquid in charge_liquids]) + [1e-3, -1e-2]
 
-    def warm_start(self, results: Sequence) -> None:
+    def warm_start(self, results: Sequence[HeatTransferResult | None]) -> None:
         """Start later solves from solved states (one scalar ``HeatTransferResult`` per network, in order;
         None for a network that starts cold, where the scalar path starts).
 
@@ -280,8 +295,8 @@ class Prepared:
                     service.append((network.process_temperature - surface.service_wall_temperature) / driving)
         self.start = (np.array(mean), np.array(process), np.array(service))
 
-    def solve(self, network_index=None, inlet_temperature=None, flow_factor=None,
-              coil_flow_factor=None) -> ManyResult:
+    def solve(self, network_index: OptionalArray = None, inlet_temperature: OptionalArray = None,
+              flow_factor: OptionalArray = None, coil_flow_factor: OptionalArray = None) -> ManyResult:
         """Solve N states; see the module notes for the arguments.
 
         ``coil_flow_factor`` (default: ``flow_factor``) multiplies the flow of coils that have a flow of
@@ -336,8 +351,9 @@ class Prepared:
         return self._iterate(size, network_index, inlet, factor, coil_factor, tstream, stream_state, tsurface, sid,
                              first_stream)
 
-    def _iterate(self, size, network_index, inlet, factor, coil_factor, tstream, stream_state, tsurface, sid,
-                 first_stream):
+    def _iterate(self, size: int, network_index: np.ndarray, inlet: np.ndarray, factor: np.ndarray,
+                 coil_factor: np.ndarray, tstream: np.ndarray, stream_state: np.ndarray, tsurface: np.ndarray,
+                 sid: np.ndarray, first_stream: np.ndarray) -> ManyResult:
         n_streams = tstream.size
         t_in = inlet[stream_state]
         t_r = self.temperatures[tstream]
@@ -407,11 +423,11 @@ class Prepared:
                 else:
                     h_service[rows] = function(_take(bulk, rows), flow_rows[rows], wall_viscosity[rows],
                                                wall_density[rows], **fixed)[0]
-            overall = wall.overall_from_layers(h_process, h_service, layers)
+            overall = wall.overall_from_layers(h_process, h_service, layers)  # type: ignore[arg-type]  # arrays
             if remaining is not None:
                 overall = wall.with_remaining_resistance(overall, remaining)
             new_ua = np.bincount(sid, overall.U * area, minlength=n_streams)
-            new_outlet, new_duty, _, _ = single_pass(t_r, t_in, new_ua, m * state.heat_capacity)
+            new_outlet, new_duty, _, _ = single_pass(t_r, t_in, new_ua, m * state.heat_capacity)  # type: ignore[arg-type]
             new_mean = 0.5 * (t_in + new_outlet)
             temperatures = wall.interface_temperatures(overall, t_r_rows, new_mean[sid])
             change = np.maximum(np.abs(new_mean - mean), np.maximum.reduceat(
@@ -445,22 +461,22 @@ class Prepared:
         resistances = np.array([np.broadcast_to(overall.resistances[name], sid.shape) for name in wall.LAYERS])
         controlling = np.full(size, "none", dtype=object)
         controlling[row_state[first]] = np.array(wall.LAYERS, dtype=object)[np.argmax(resistances[:, first], axis=0)]
-        rows = StreamRows(stream_state, m, duty, ua, outlet, mean, sid, process_wall, service_wall)
+        stream_rows = StreamRows(stream_state, m, duty, ua, outlet, mean, sid, process_wall, service_wall)
         return ManyResult(total_duty, total_ua, total_area, main_outlet, most, ~unsettled, controlling,
-                          self.networks, network_index, rows)
+                          self.networks, network_index, stream_rows)
 
 
-def solve_many(networks: Sequence[Network], network_index=None, inlet_temperature=None,
-               flow_factor=None) -> ManyResult:
+def solve_many(networks: Sequence[Network], network_index: OptionalArray = None,
+               inlet_temperature: OptionalArray = None, flow_factor: OptionalArray = None) -> ManyResult:
     """Solve N states of the assembled ``networks`` at once; see the module notes for the arguments."""
     return Prepared(networks).solve(network_index, inlet_temperature, flow_factor)
 
 
-def assemble_cases(cases: Iterable[tuple]) -> tuple[list[Network], np.ndarray]:
+def assemble_cases(cases: Iterable[Case]) -> tuple[list[Network], np.ndarray]:
     """The networks of ``(vessel, charge, coolant, process_temperature)`` cases (equal cases assembled once)
     and which network each case is."""
     networks: list[Network] = []
-    seen: dict = {}
+    seen: dict[Case, int] = {}
     index = []
     for vessel, charge, coolant, process_temperature in cases:
         key = (vessel, charge, coolant, process_temperature)
@@ -471,6 +487,6 @@ def assemble_cases(cases: Iterable[tuple]) -> tuple[list[Network], np.ndarray]:
     return networks, np.array(index, dtype=int)
 
 
-def heat_transfer_many(cases: Iterable[tuple]) -> ManyResult:
+def heat_transfer_many(cases: Iterable[Case]) -> ManyResult:
     """Solve ``(vessel, charge, coolant, process_temperature)`` cases at once (equal cases assembled once)."""
     return solve_many(*assemble_cases(cases))
