@@ -23,6 +23,7 @@ from schemas.base import clean
 from schemas.records import RecordQuerySchema
 from schemas.screening import (SCREENING_CAUTIONS, ScreeningListSchema, ScreeningRequestSchema,
                                ScreeningResultSchema, screening_row)
+from schemas.heat_transfer import CalibrationSchema, with_correlations
 from schemas.vessel import CoolantSchema, VesselSchema
 
 from . import charts, jobs, report_pages, security
@@ -72,7 +73,7 @@ def _candidates(vessels: list[RevisionView], coolant) -> tuple[list, dict]:
     """Calc inputs of every vessel (problems kept per vessel) and what each row says about its records."""
     catalogue = store()
     utilities: dict[str, object] = {}
-    vessel_schema, coolant_schema = VesselSchema(), CoolantSchema()
+    vessel_schema, coolant_schema, calibration_schema = VesselSchema(), CoolantSchema(), CalibrationSchema()
     candidates, info = [], {}
     for revision in vessels:
         body = revision.body
@@ -82,6 +83,8 @@ def _candidates(vessels: list[RevisionView], coolant) -> tuple[list, dict]:
         problem, vessel, own = None, None, coolant
         try:
             vessel = vessel_schema.load(body["vessel"])
+            if body.get("calibration") is not None:  # a fit attached to the vessel: used, as a check by reference
+                vessel = with_correlations(vessel, None, calibration_schema.load(body["calibration"]["fit"]))
             if vessel.agitator is None:
                 problem = ("vessel.agitator", "the vessel has no agitator; the cooling check needs one")
             from calc.vessel import geometry

@@ -101,3 +101,13 @@ def test_an_attached_fit_is_checked_when_it_is_attached(store_client):
     assert bad.status_code == 422
     fields = {e["field"] for e in bad.json["errors"]}
     assert {"calibration.fit.process_constant", "calibration.fit.r_squared"} <= fields, fields
+
+
+def test_a_screening_uses_the_attached_fit_as_a_check_by_reference_does(calibrated):
+    # Oracle: the row of a vessel is the cooling check naming it (issue 14), calibration included.
+    client, _ = calibrated
+    check = client.post("/v1/cooling-check", json=CHECK).json
+    rows = client.post("/v1/screenings", json={"step": {"ref": "AC-7-PROD"}, "vessels": ["Puffin"]}).json["rows"]
+    assert rows[0]["margin"] == pytest.approx(check["margin"], rel=1e-9)
+    assert rows[0]["margin_band"]["low"] == pytest.approx(check["margin_band"]["low"], rel=1e-9)
+    assert "calibrated" in {w["code"] for w in rows[0]["warnings"]}
