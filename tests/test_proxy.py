@@ -206,9 +206,9 @@ def test_rate_backstop_is_429_problem_json(service, tmp_path):
 def test_compose_stack_puts_the_proxy_in_front():
     compose = yaml.safe_load((ROOT / "docker" / "compose.yaml").read_text())
     services = compose["services"]
-    assert set(services) == {"proxy", "coolmargin", "database"}
+    assert set(services) == {"proxy", "coolmargin", "database", "queue", "worker"}  # the job queue and its worker
     assert services["proxy"]["build"]["dockerfile"] == "docker/nginx.Dockerfile"
-    assert "ports" not in services["coolmargin"] and "ports" not in services["database"]  # only the proxy is published
+    assert all("ports" not in services[name] for name in set(services) - {"proxy"})  # only the proxy is published
     assert services["proxy"]["ports"][0].startswith("127.0.0.1:") and services["proxy"]["ports"][0].endswith(":8080")
     env = services["coolmargin"]["environment"]
     assert int(env["COOLMARGIN_MAX_CONTENT_LENGTH"]) == DEFAULTS["MAX_CONTENT_LENGTH"]
