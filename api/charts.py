@@ -13,6 +13,15 @@ COLOURS = ("#2b4c7e", "#d98b2b", "#3a9a8f", "#8a5a9c", "#6b6b6b")
 INK, AMBER, TEAL, PLUM, SLATE = COLOURS
 
 
+def margin_colours():
+    """The colour map of margins: amber below the safety factor, pale at it, teal and ink blue above (the house
+    palette, not red against green); a chart pairs it with a hatch or a label, never colour alone."""
+    from matplotlib.colors import LinearSegmentedColormap
+
+    return LinearSegmentedColormap.from_list("coolmargin_margin",
+                                             [AMBER, "#f2dcb8", "#eef1f2", "#bfe0dc", TEAL, INK])
+
+
 def figure(rows: int, sharex: bool = True):
     """A figure of ``rows`` stacked panels in the house style; returns (figure, axes array)."""
     import matplotlib

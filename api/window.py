@@ -44,14 +44,20 @@ def window_chart(payload: dict, fmt: str, units: dict) -> bytes:
     if finite.size and finite.min() < finite.max():
         top = min(finite.max(), 4.0 * factor)
         levels = np.linspace(min(finite.min(), factor * 0.99), max(top, factor * 1.01), 13)
-        filled = axis.contourf(x, y, np.clip(margin, None, top), levels=levels, cmap="RdYlGn", extend="neither")
+        from matplotlib.colors import TwoSlopeNorm
+
+        norm = TwoSlopeNorm(vcenter=factor, vmin=levels[0], vmax=levels[-1])  # pale exactly at the safety factor
+        filled = axis.contourf(x, y, np.clip(margin, None, top), levels=levels, cmap=charts.margin_colours(),
+                               norm=norm, extend="neither")
         fig.colorbar(filled, ax=axis, label="margin (capacity / load)")
+        if finite.min() < factor:  # the inadequate region hatched as well as coloured
+            axis.contourf(x, y, margin, levels=[levels[0] - 1.0, factor], colors="none", hatches=["///"])
         if finite.min() < factor < finite.max():
             line = axis.contour(x, y, margin, levels=[factor], colors="#222222", linewidths=2.0)
             axis.clabel(line, fmt={factor: f"safety factor {factor:g}"}, fontsize=7)
     current = payload["current"]
     if current.get(first["field"]) is not None and current.get(second["field"]) is not None:
-        axis.plot(current[first["field"]], current[second["field"]], marker="o", markersize=8, color="#1f4e79",
+        axis.plot(current[first["field"]], current[second["field"]], marker="*", markersize=13, color=charts.INK,
                   markeredgecolor="white", linestyle="none", label="current operating point")
         axis.legend(fontsize=7, frameon=False, loc="best")
     axis.set_xlabel(f"{first['quantity']} [{units.get('points.' + first['field'], '')}]")

@@ -95,6 +95,14 @@ def test_csv_has_one_row_per_point_and_svg_draws_the_map(client):
     assert csv[0].startswith("dosing_time [s],coolant_inlet_temperature [degC],margin,adequate")
     svg = client.post("/v1/operating-window?format=svg", json=EXAMPLE)
     assert svg.mimetype == "image/svg+xml" and b"<svg" in svg.data[:400]
+    # colour-blind safe (api.charts): the house amber-to-ink map, not red against green, and the inadequate
+    # region hatched as well as coloured (common practice, no source: never colour alone)
+    from api import charts
+    from matplotlib.colors import to_hex
+
+    colours = charts.margin_colours()
+    assert to_hex(colours(0.0)) == charts.AMBER and to_hex(colours(1.0)) == charts.INK
+    assert b"<pattern" in svg.data and b"current operating point" in svg.data
 
 
 @pytest.mark.parametrize("axes, status, field", [
