@@ -331,3 +331,15 @@ def test_sizing_warnings_and_cautions():
     for phrase in ("Screening estimate", "reaction calorimetry", "licensed engineer", "pressure-vessel code",
                    "accumulates"):  # the dosing caution rides along for a dosing step
         assert phrase in cautions
+
+
+def test_combinations_alone_are_built_on_the_best_jacket_of_each_type(client):
+    # Asked for jacket + coil designs only, the service still builds them on each jacket type's most capable
+    # design (common practice, no source: a coil is added to the best jacket one can get), and answers only those.
+    body = copy.deepcopy(EXAMPLE)
+    body["options"] = dict(body.get("options") or {}, types=["jacket_and_coil"])
+    answer = client.post("/v1/jacket-sizing", json=body)
+    assert answer.status_code == 200, answer.json
+    candidates = answer.json["candidates"]
+    assert candidates and {c["type"] for c in candidates} == {"jacket_and_coil"}
+    assert all(c["coil"] is not None and c["jacket"] is not None for c in candidates)

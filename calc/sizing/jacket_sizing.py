@@ -505,9 +505,12 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     # here, so it is refused as the request's error rather than reported against every candidate
     assemble(shell, charge, coolant, process_temperature)  # its warnings are each candidate's
     jackets = _jackets(shell, coolant, options)
+    # combinations asked for without jackets alone: the jackets are still evaluated, as the combinations' bases
+    combos_only = "jacket_and_coil" in options.types and not any(t in options.types for t in JACKET_TYPES)
+    bases = _jackets(shell, coolant, replace(options, types=JACKET_TYPES)) if combos_only else []
     coils = _coils(shell, charge, process_temperature, options, warnings) \
         if any(t in options.types for t in ("coil", "jacket_and_coil")) else []
-    most = len(jackets) + len(coils) * (1 + len(JACKET_TYPES) * ("jacket_and_coil" in options.types))
+    most = len(jackets) + len(bases) + len(coils) * (1 + len(JACKET_TYPES) * ("jacket_and_coil" in options.types))
     if most > MAX_CANDIDATES:
         raise InputError("options", f"up to {most} candidates: at most {MAX_CANDIDATES} per sizing; "
                                     "give shorter lists")
@@ -517,7 +520,12 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     evaluated = evaluate_designs(designs, shell, charge, coolant, process_temperature, heat_release, safety_factor,
                                  deadline=deadline)
     jackets_alone = [e.candidate for e in evaluated if e.candidate.type in JACKET_TYPES]
-    if "jacket_and_coil" in options.types and not any(c.feasible for c in jackets_alone):
+    if combos_only:
+        jackets_alone = [e.candidate for e in evaluate_designs([Design(kind, jacket, None, nps) for kind, nps, jacket
+                                                                in bases], shell, charge, coolant,
+                                                               process_temperature, heat_release, safety_factor,
+                                                               deadline=deadline)]
+    if "jacket_and_coil" in options.types and (combos_only or not any(c.feasible for c in jackets_alone)):
         combos = []
         for kind in JACKET_TYPES:
             of_kind = [c for c in jackets_alone if c.type == kind and c.cooling_capacity > 0]
