@@ -48,10 +48,15 @@ _RENAMED = {"coolant": "calibration.measurement.coolant", "charge": "calibration
             "vessel.agitator.speed": "calibration.measurement.agitator_speed"}
 
 
+def _surfaces(result, surface: str) -> list:
+    """The solved surfaces of the measured ``surface`` ("jacket": shell and head; "coils": every coil)."""
+    return [x for s in result.streams if (s.name == "jacket") == (surface == "jacket") for x in s.surfaces]
+
+
 def measured_surface(result, surface: str) -> tuple[float, float]:
     """(UA in W/K, process-side area in m2) of the measured ``surface`` ("jacket" or "coils") in a solved network."""
-    streams = [s for s in result.streams if (s.name == "jacket") == (surface == "jacket")]
-    return sum(s.ua for s in streams), sum(x.area for s in streams for x in s.surfaces)
+    surfaces = _surfaces(result, surface)
+    return sum(x.ua for x in surfaces), sum(x.area for x in surfaces)
 
 
 def resolved(vessel: Vessel) -> Vessel:
@@ -119,7 +124,7 @@ def _resolved(vessel: Vessel) -> Vessel:
     with fields_renamed(_RENAMED):  # how much of 1/U the process film is at the measured state: how well one UA fixes a
         state = heat_transfer(replace(at, correlations=base.with_factor(name, factor)), measurement.charge,
                               measurement.coolant, measurement.process_temperature)
-    measured = [x for s in state.streams if (s.name == "jacket") == (measurement.surface == "jacket") for x in s.surfaces]
+    measured = _surfaces(state, measurement.surface)
     share = sum(x.area * x.overall.U * x.overall.resistances["process_film"] for x in measured) / sum(
         x.area for x in measured)
     unit = "W/(m2 K)" if per_area else "W/K"
