@@ -90,6 +90,8 @@ def test_backed_out_factor_by_hand_from_the_series_resistances(client):
     result = client.post("/v1/cooling-check", json=body).get_json()
     assert result["calibrated"] is True
     assert f"a times {f_hand:.4g}" in result["calibration_basis"]
+    share = 1.0 / (f_hand * h_p) / (1.0 / (f_hand * h_p) + r_rest)  # of 1/U at the measured state, by hand
+    assert f"process film is {share * 100:.0f} % of 1/U" in result["calibration_basis"]
     # at 120 rpm the calibrated film is f times the published film there (Nu = f a Re^b Pr^c)
     published = client.post("/v1/heat-transfer", json=_plain(coolant=coolant)).get_json()
     assert result["heat_transfer"]["film_coefficients"]["process_jacket"] == pytest.approx(

@@ -41,7 +41,7 @@ from calc.validity import InputError, fields_renamed
 from calc.vessel.model import Vessel
 
 if TYPE_CHECKING:
-    from calc.network.heat_transfer import HeatTransferResult
+    from calc.network.heat_transfer import HeatTransferResult, Surface
 
 #: The bracket of the multiplier on the process-side constant.
 FACTOR_RANGE = (1e-3, 1e3)
@@ -52,10 +52,15 @@ _RENAMED = {"coolant": "calibration.measurement.coolant", "charge": "calibration
             "vessel.agitator.speed": "calibration.measurement.agitator_speed"}
 
 
+def _surfaces(result: HeatTransferResult, surface: str) -> list[Surface]:
+    """The solved surfaces of the measured ``surface`` ("jacket": shell and head; "coils": every coil)."""
+    return [x for s in result.streams if (s.name == "jacket") == (surface == "jacket") for x in s.surfaces]
+
+
 def measured_surface(result: HeatTransferResult, surface: str) -> tuple[float, float]:
     """(UA in W/K, process-side area in m2) of the measured ``surface`` ("jacket" or "coils") in a solved network."""
-    streams = [s for s in result.streams if (s.name == "jacket") == (surface == "jacket")]
-    return sum(s.ua for s in streams), sum(x.area for s in streams for x in s.surfaces)
+    surfaces = _surfaces(result, surface)
+    return sum(x.ua for x in surfaces), sum(x.area for x in surfaces)
 
 
 def resolved(vessel: Vessel) -> Vessel:
@@ -120,6 +125,12 @@ def _resolved(vessel: Vessel) -> Vessel:
                                        math.log(FACTOR_RANGE[0]), math.log(FACTOR_RANGE[1]),
                                        xtol=1e-12, rtol=1e-12)))
     factor, low, high = factors
+    with fields_renamed(_RENAMED):  # how much of 1/U the process film is at the measured state: how well one UA fixes a
+        state = heat_transfer(replace(at, correlations=base.with_factor(name, factor)), measurement.charge,
+                              measurement.coolant, measurement.process_temperature)
+    measured = _surfaces(state, measurement.surface)
+    share = sum(x.area * x.overall.U * x.overall.resistances["process_film"] for x in measured) / sum(
+        x.area for x in measured)
     unit = "W/(m2 K)" if per_area else "W/K"
     quantity = "U" if per_area else "UA"
     basis = (f"single-point calibration: measured {quantity} = {measurement.value:.4g} {unit} (95 %: "
@@ -128,7 +139,9 @@ def _resolved(vessel: Vessel) -> Vessel:
              f"{measurement.coolant.inlet_temperature - 273.15:.2f} degC; reproduced with the published process-side "
              f"constant a times {factor:.4g} (95 %: {low:.4g}-{high:.4g}). The process film absorbs the difference "
              "(the least certain resistance, and one that carries to other speeds and contents through "
-             "Nu = a Re^b Pr^c); wall, fouling and coolant film as computed")
+             "Nu = a Re^b Pr^c); wall, fouling and coolant film as computed. At the measured state the process film "
+             f"is {share * 100:.0f} % of 1/U: the smaller that share, the wider the multiplier's interval for the same "
+             "UA interval; a run where the process film dominates (or a Wilson plot) narrows it")
     calibration = replace(calibration, factor=factor, factor_interval=(low, high), basis=basis)
     return replace(vessel, correlations=vessel.correlations.calibrated(calibration))
 
