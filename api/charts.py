@@ -67,7 +67,7 @@ def readable(values, unit: str) -> tuple[list, str]:
 
 
 def margins(axis, positions, values, bands, adequate, *, horizontal: bool = False,
-            band_label: str = "margin band (published alternatives)") -> None:
+            band_label: str = "margin band") -> None:
     """Margins as verdict markers with their band as error bars, the same in every chart that shows verdicts.
 
     Adequate: filled teal circles; not adequate: open amber triangles labelled "NOT adequate" in the
