@@ -90,8 +90,9 @@ def screening_report(body: dict, payload: dict, units: dict, view: Any, draw: Dr
     if isinstance(changes, dict):
         items = [f"{item.get('tag')}: {item.get('change')} ({'; '.join(item.get('details') or [])})"
                  for item in changes.get("items") or []]
-        notes.append(Section(f"Changes since screening {changes.get('previous_id')}",
-                             lines=items or ["none: the same revisions, margins and verdicts"]))
+        notes.append(Section("Changes since the previous run", lines=[  # ids stay out of headings (set in capitals)
+            f"previous run: screening {changes.get('previous_id')}",
+            *(items or ["none: the same revisions, margins and verdicts"])]))
     verdict = (f"{counts.get('adequate', 0)} of {counts.get('screened', len(rows))} vessels ADEQUATE for this step, "
                f"{counts.get('not_adequate', 0)} NOT ADEQUATE, {counts.get('no_verdict', 0)} without a verdict")
     page = reports.table_page(payload, "Screening of vessels for one process step", summary=summary, tables=[table],

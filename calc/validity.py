@@ -57,6 +57,8 @@ def range_warning(correlation: str, quantity: str, value: float,
     'outside_validity_range'
     >>> range_warning("Lehrer (1970)", "Re", 5e3, 1e3, 1e5) is None
     True
+    >>> range_warning("Schmidt (1967)", "Re", 3.731e5, None, 1.5e5).message
+    'Schmidt (1967): Re = 3.731e+05 is above the published upper limit 1.5e+05; the result is an extrapolation'
     """
     if not math.isfinite(value):
         return CalcWarning("non_finite_value", f"{correlation}: {quantity} is not a finite number")
@@ -64,12 +66,16 @@ def range_warning(correlation: str, quantity: str, value: float,
     above = high is not None and value > high
     if not (below or above):
         return None
-    lo = "-inf" if low is None else _format(low)
-    hi = "inf" if high is None else _format(high)
+    if low is not None and high is not None:
+        published = f"outside the published range [{_format(low)}, {_format(high)}]"
+    elif high is not None:  # open below: only above can be out
+        published = f"above the published upper limit {_format(high)}"
+    else:
+        assert low is not None  # open above: only below can be out
+        published = f"below the published lower limit {_format(low)}"
     return CalcWarning(
         "outside_validity_range",
-        f"{correlation}: {quantity} = {_format(value)} is outside the published range [{lo}, {hi}]; "
-        "the result is an extrapolation",
+        f"{correlation}: {quantity} = {_format(value)} is {published}; the result is an extrapolation",
     )
 
 
