@@ -21,6 +21,11 @@ Candidates (defaults; every list can be given):
 - jacket + coil: when no jacket alone meets the duty, the highest-capacity jacket of each jacket type
   with each coil.
 
+Half pipes are rated a little low (conservative): the heat the half pipe's own walls conduct into the
+coolant is left out, and the one-dimensional fin treatment of the wall between turns understates U where
+the wall's Biot number is high (``fin_biot_high``; :data:`calc.films.wall.FIN_BIOT_LIMIT`). A half pipe
+rejected by a small margin may therefore do in practice; the margin band does not cover these two.
+
 Ranking (common practice, no source): "smallest" is the least heat-transfer area that meets the duty;
 among equal areas (every jacket covers the same wall) the simplest type (plain annular, then spiral
 baffle, then half pipe), then the least coolant hold-up (the volume of the channels: the least
