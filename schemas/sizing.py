@@ -49,7 +49,9 @@ class SizingOptionsSchema(StrictSchema):
                                       "top of the straight side")
     margin_bands = fields.String(validate=validate.OneOf(sizing.BAND_SCOPES), load_default=None, metadata={
         "description": "which candidates carry the margin band: feasible (default; the recommendation is chosen "
-                       "among them) or all (every evaluated candidate; about doubles the time of a sizing)"})
+                       "among them), all (every evaluated candidate; three to four times the time of a sizing), or "
+                       "recommendation (only the feasible designs, in the order of the ranking, up to the first whose "
+                       "verdict holds across its band: the same recommendation, fastest)"})
 
     @post_load
     def _build(self, data, **kwargs):

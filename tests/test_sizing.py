@@ -266,6 +266,12 @@ def test_recommendation_is_feasible_whenever_a_candidate_is(power, available):
         elif any(not c.robust and (sizing._group(c), sizing._rank_key(c)) < (sizing._group(best), sizing._rank_key(best))
                  for c in feasible):  # a smaller or simpler design was passed over
             assert "whose verdict does not hold across the band" in result.recommendation.reasoning
+        # banding only what the recommendation needs (as a scale-up does) recommends the same, for the same reasons
+        quick = sizing.jacket_sizing(SHELL, ARGS["charge"], replace(ARGS["coolant"], available_pressure_drop=available),
+                                     ARGS["process_temperature"], heat_release_model("total_power", power=power), 1.3,
+                                     replace(options, margin_bands="recommendation"))
+        assert quick.recommendation == result.recommendation
+        assert sum(c.margin_band is not None for c in quick.candidates) <= len(feasible)
     else:
         assert chosen is None and "no candidate meets the duty" in result.recommendation.reasoning
 

@@ -31,7 +31,8 @@ among equal areas (every jacket covers the same wall) the simplest type (plain a
 baffle, then half pipe), then the least coolant hold-up (the volume of the channels: the least
 fabricated jacket or coil), then the least pressure drop.
 
-Margin bands: every feasible candidate (``options.margin_bands = "all"``: every evaluated candidate)
+Margin bands: every feasible candidate (``options.margin_bands = "all"``: every evaluated candidate;
+``"recommendation"``: only the feasible ones the recommendation has to look at, as a scale-up uses it)
 carries the cooling check's margin band (:mod:`calc.checks.margin_band`: the margin over the published
 alternatives of every resistance and the fouling range), all bands built together in shared vectorised
 passes (:func:`calc.checks.margin_band.margin_bands`), and ``verdict_not_robust`` where the verdict at
@@ -83,8 +84,9 @@ COIL_CLEARANCE_RATIO = COIL_WALL_CLEARANCE  # free space on each side of a coil 
 TURN_FRACTIONS = (0.25, 0.5, 0.75, 1.0)
 HALF_PIPE_SCHEDULE, COIL_SCHEDULE = "40", "10S"
 DEFAULT_COIL_TUBE_SIZES = ("1", "1-1/2", "2", "3")
-#: Which candidates carry a margin band: the feasible ones (default), or every evaluated one.
-BAND_SCOPES = ("feasible", "all")
+#: Which candidates carry a margin band: the feasible ones (default), every evaluated one, or only those the
+#: recommendation needs (the feasible ones in its order up to the first whose verdict holds across its band).
+BAND_SCOPES = ("feasible", "all", "recommendation")
 #: Most candidates one sizing evaluates (a request whose lists multiply beyond this is refused).
 MAX_CANDIDATES = 600
 
@@ -586,15 +588,34 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     for kind in TYPES:
         feasible = [c for c in candidates if c.type == kind and c.feasible]
         smallest[kind] = min(feasible, key=_rank_key).index if feasible else None
-    banded = [i for i, e in enumerate(evaluated) if options.margin_bands == "all" or e.candidate.feasible]
-    deadline.check()
-    for index, band in _bands(evaluated, banded, safety_factor).items():
-        codes = candidates[index].warning_codes + (() if band.holds_across_band else ("verdict_not_robust",))
-        candidates[index] = replace(candidates[index], margin_band=band, warning_codes=codes)
+    if options.margin_bands == "recommendation":
+        # in the order of the recommendation without bands, in growing batches, until one holds across its band:
+        # the first that does is the recommendation (robust first); when none does, every feasible design is banded
+        queue = sorted((c for c in candidates if c.feasible), key=lambda c: (_group(c), _rank_key(c)))
+        size = 1
+        while queue:
+            batch, queue = queue[:size], queue[size:]
+            _attach(candidates, evaluated, [c.index for c in batch], safety_factor, deadline)
+            if any(candidates[c.index].robust for c in batch):
+                break
+            size *= 4
+    else:
+        _attach(candidates, evaluated, [i for i, e in enumerate(evaluated)
+                                        if options.margin_bands == "all" or e.candidate.feasible], safety_factor,
+                deadline)
     recommendation = _recommend(candidates, safety_factor)
     duty = safety_factor * load.total if load is not None else 0.0
     cautions = check_cautions(heat_release) + (SIZING_CAUTION,)
     return JacketSizing(tuple(candidates), recommendation, smallest, load, duty, safety_factor, warnings, cautions)
+
+
+def _attach(candidates: list[Candidate], evaluated: list[Evaluated], indices: list[int], safety_factor: float,
+            deadline: Deadline) -> None:
+    """Give the candidates at ``indices`` their margin bands (and ``verdict_not_robust`` where it applies)."""
+    deadline.check()
+    for index, band in _bands(evaluated, indices, safety_factor).items():
+        codes = candidates[index].warning_codes + (() if band.holds_across_band else ("verdict_not_robust",))
+        candidates[index] = replace(candidates[index], margin_band=band, warning_codes=codes)
 
 
 def _bands(evaluated: list[Evaluated], indices: list[int], safety_factor: float) -> dict[int, MarginBand]:
