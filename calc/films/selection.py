@@ -208,7 +208,8 @@ def alternatives() -> list[Alternative]:
     for key in jacket_side.ANNULAR_CORRELATIONS:
         entry = jacket_side.CORRELATIONS[key]
         out.append(Alternative("annular_jacket", key, entry.name, key == CorrelationChoice.annular_jacket,
-                               "plain annular jacket", entry.source, _validity(entry), {}))
+                               "plain annular jacket", entry.source, _validity(entry),
+                               dict(jacket_side.ANNULAR_CONSTANTS[key])))
     curved = [coil_side.CORRELATIONS[k] for k in ("schmidt_1967_laminar", "gnielinski_coil_transition")]
     straight = [jacket_side.CORRELATIONS[k] for k in ("sieder_tate_1936_laminar", "gnielinski_2013",
                                                       "sieder_tate_1936_turbulent")]
