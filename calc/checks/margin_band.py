@@ -28,7 +28,9 @@ meaning (nominal margin >= safety factor); the band is reported beside it, and `
 plainly when the verdict holds at the nominal margin but not across the band.
 
 With a calibration (a vessel's own fitted process constant and remaining resistance, or a measured UA)
-the members are the ends of the fit's 95 % intervals instead (``basis = "calibration"``).
+the members are the ends of the fit's 95 % intervals instead (``basis = "calibration"``); for a measured UA,
+the ends of the measurement's interval under each coolant-side correlation of the measured surface, each
+with the process factor backed out under it (``calc.fits.single_point``).
 
 The heat load does not depend on the correlations (the agitator's power does not), so each member's
 margin is its duty over the nominal load. Members' warnings are not repeated: each alternative's range
