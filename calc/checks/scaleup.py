@@ -390,7 +390,7 @@ def scale_up(reference: Vessel, targets: Iterable[Target], rule: str, charge: Ch
     warnings = Warnings()
 
     with fields_renamed({"vessel": "reference"}):
-        reference = calibrated(reference)  # a measured UA is backed out on the reference, where it was measured
+        reference = calibrated(reference, deadline)  # a measured UA is backed out on the reference, where it was measured
     targets = [(carried(t[0], reference), t[1]) if isinstance(t, tuple) else
                carried(t, reference) if isinstance(t, Vessel) else t for t in targets]
     calibration = reference.correlations.calibration
