@@ -96,26 +96,31 @@ def backout_section(repeats: int = 7) -> None:
     print(f"  {'case':<36} {'alts':>4} {'plain check':>11} {'back-out scalar':>15} {'vectorised':>10} {'ratio':>6} "
           f"{'check, scalar':>13} {'check, vector':>13} {'max rel diff':>12}")
     for name, body in cases().items():
-        vessel, call = calibrated_case(body)
-        plain_vessel = replace(vessel, correlations=replace(vessel.correlations, calibration=None))
-        plain = timed(lambda: cooling_check(plain_vessel, *call, limits=False), repeats)
-        answers = {}
-        for vectorised in (False, True):
-            found = back_out(vessel, vectorised=vectorised).correlations.calibration
-            answers[vectorised] = [found.factor, *found.factor_interval] + [
-                f for *_, low, high in found.alternative_factors for f in (low, high)]
-        alternatives = len(back_out(vessel).correlations.calibration.alternative_factors)
-        scalar = timed(lambda: back_out(vessel, vectorised=False), repeats)
-        vector = timed(lambda: back_out(vessel), repeats)
-        # a first calibrated check: the back-out, then the check on the resolved vessel (what resolved() caches)
-        check_scalar = timed(lambda: cooling_check(back_out(vessel, vectorised=False), *call, limits=False), repeats)
-        check_vector = timed(lambda: cooling_check(back_out(vessel), *call, limits=False), repeats)
-        diff = max(abs(a / b - 1.0) for a, b in zip(answers[True], answers[False]))
-        print(f"  {name[:36]:<36} {alternatives:>4} {plain * 1e3:>8.1f} ms {scalar * 1e3:>12.1f} ms "
-              f"{vector * 1e3:>7.1f} ms {scalar / vector:>5.1f}x {check_scalar * 1e3:>10.1f} ms "
-              f"{check_vector * 1e3:>10.1f} ms {diff:>12.1e}")
+        _backout_row(name, body, repeats)
     print("  plain check = the same check uncalibrated (band, no limits); check = a first calibrated check, back-out "
           "included; max rel diff = the factors of both paths")
+
+
+def _backout_row(name: str, body: dict, repeats: int) -> None:
+    """One case of :func:`backout_section`."""
+    vessel, call = calibrated_case(body)
+    plain_vessel = replace(vessel, correlations=replace(vessel.correlations, calibration=None))
+    plain = timed(lambda: cooling_check(plain_vessel, *call, limits=False), repeats)
+    answers = {}
+    for vectorised in (False, True):
+        found = back_out(vessel, vectorised=vectorised).correlations.calibration
+        answers[vectorised] = [found.factor, *found.factor_interval] + [
+            f for *_, low, high in found.alternative_factors for f in (low, high)]
+    alternatives = len(back_out(vessel).correlations.calibration.alternative_factors)
+    scalar = timed(lambda: back_out(vessel, vectorised=False), repeats)
+    vector = timed(lambda: back_out(vessel), repeats)
+    # a first calibrated check: the back-out, then the check on the resolved vessel (what resolved() caches)
+    check_scalar = timed(lambda: cooling_check(back_out(vessel, vectorised=False), *call, limits=False), repeats)
+    check_vector = timed(lambda: cooling_check(back_out(vessel), *call, limits=False), repeats)
+    diff = max(abs(a / b - 1.0) for a, b in zip(answers[True], answers[False]))
+    print(f"  {name[:36]:<36} {alternatives:>4} {plain * 1e3:>8.1f} ms {scalar * 1e3:>12.1f} ms "
+          f"{vector * 1e3:>7.1f} ms {scalar / vector:>5.1f}x {check_scalar * 1e3:>10.1f} ms "
+          f"{check_vector * 1e3:>10.1f} ms {diff:>12.1e}")
 
 
 def main() -> None:
