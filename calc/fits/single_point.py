@@ -35,15 +35,16 @@ give under the nominal correlations (above the UA of the remaining resistances a
 below a thousandth of the published one) is refused with the field named.
 
 All back-outs (every measured value under every coolant-side choice) are solved together on the
-vectorised network (``calc.network.vectorised``): one pass for the bracket's ends, then one pass per
-step of a bracketed root iteration over the back-outs not yet converged (about 6 steps; 7-10 passes
-where the scalar path made 60-90 solves). Each pass first checks the request's deadline
+vectorised network (``calc.network.vectorised``): one pass over a coarse grid of f (its ends are the
+bracket), then one pass per step of a bracketed root iteration over the back-outs not yet converged
+(4-6 steps on the examples: 5-7 passes where the scalar path made 60-90 solves). Each pass first checks the request's deadline
 (:class:`calc.deadline.OutOfTime` once it has passed). The scalar path, Brent's method one network solve
 at a time (``back_out(..., vectorised=False)``), stays as the readable specification; a test holds the
 two to 1e-8.
 """
 from __future__ import annotations
 
+import functools
 import math
 import threading
 from collections import OrderedDict
@@ -240,7 +241,9 @@ def _factors_scalar(job: _Job, deadline: Deadline) -> list[list[float] | None]:
     return out
 
 
-#: Passes of the vectorised root iteration at most (Illinois converges in about 5 on the examples).
+#: The factors of the vectorised back-out's first pass (its ends: FACTOR_RANGE): each back-out starts in its cell.
+FACTOR_GRID = (FACTOR_RANGE[0], 0.1, 1.0, 10.0, FACTOR_RANGE[1])
+#: Passes of the vectorised root iteration at most (4-6 on the examples); past it, the latest iterate.
 MAX_PASSES = 100
 
 
@@ -266,13 +269,14 @@ def _times(network: Network, factor: float) -> Network:
 
 def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | None]:
     """:func:`_factors_scalar`, with every back-out solved together: one vectorised network pass
-    (``calc.network.vectorised.solve_many``) for the bracket's ends of every coolant-side choice, then one
-    pass per step of the root iteration over every back-out not yet converged. The deadline is checked
+    (``calc.network.vectorised.solve_many``) over ``FACTOR_GRID`` for every coolant-side choice (its ends are
+    the bracket the reachability is judged on; each back-out starts in the grid cell holding its target), then
+    one pass per step of the root iteration over every back-out not yet converged. The deadline is checked
     before each pass.
 
-    The iteration is Illinois' modified regula falsi (Dowell & Jarratt, BIT 11, 1971), bracket kept, in
-    u = 1/f on q = UA_target/UA - 1: with the films' temperature dependence aside, 1/UA = R + 1/(f h A) is
-    linear in 1/f, so the first step lands close to the root and the following converge superlinearly. An
+    The iteration is the Anderson-Bjorck variant of regula falsi (Anderson & Bjorck, BIT 13, 1973; from
+    memory), bracket kept, in u = 1/f on q = UA_target/UA - 1: with the films' temperature dependence aside,
+    1/UA = R + 1/(f h A) is linear in 1/f, so the steps land close to the root and converge superlinearly. An
     element stops when its step in ln f is below Brent's tolerance (``X_TOLERANCE`` + ``R_TOLERANCE`` |ln f|)
     or it hits q = 0; both paths then agree to the network's own convergence (a test holds them to 1e-8).
     """
@@ -293,9 +297,12 @@ def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | Non
             if index == 0:
                 raise
             failed, network = failed or error, None
-        if network is not None:  # the measured streams alone (each stream is solved on its own)
-            network = replace(network, streams=tuple(s for s in network.streams
-                                                     if (s.name == "jacket") == (measurement.surface == "jacket")))
+        if network is not None:  # the measured streams alone (each stream is solved on its own), each process film
+            # remembered per wall viscosity (every pass asks for it at the bulk's again)
+            network = replace(network, streams=tuple(
+                replace(s, surfaces=tuple(replace(model, process_film=functools.lru_cache(maxsize=4)(model.process_film))
+                                          for model in s.surfaces))
+                for s in network.streams if (s.name == "jacket") == (measurement.surface == "jacket")))
         networks.append(network)
     nominal = networks[0]
     assert nominal is not None
@@ -315,18 +322,19 @@ def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | Non
         return solve_many(scaled).ua
 
     usable = [i for i, network in enumerate(networks) if network is not None]
-    ends = solve([i for i in usable for _ in FACTOR_RANGE], [f for _ in usable for f in FACTOR_RANGE])
-    bracket = {i: (ends[2 * k], ends[2 * k + 1]) for k, i in enumerate(usable)}
+    grid = np.array(FACTOR_GRID)
+    found = solve([i for i in usable for _ in FACTOR_GRID], [f for _ in usable for f in FACTOR_GRID])
+    curve = {i: found[k * grid.size:(k + 1) * grid.size] for k, i in enumerate(usable)}  # UA over the grid
     choice_of: list[int] = []
     targets: list[float] = []
     out: list[list[float] | None] = []
     for index, (_, values) in enumerate(job.back_outs):
-        if index not in bracket:  # an alternative that cannot be assembled: its error, where the scalar path raises it
+        if index not in curve:  # an alternative that cannot be assembled: its error, where the scalar path raises it
             assert failed is not None
             raise failed
         try:
             for value, field in values:
-                _check_reachable(field, value * scale, *bracket[index])
+                _check_reachable(field, value * scale, curve[index][0], curve[index][-1])
         except _Unreachable:
             if index == 0:
                 raise
@@ -336,10 +344,13 @@ def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | Non
         choice_of += [index] * len(values)
         targets += [value * scale for value, _ in values]
     target = np.array(targets)
-    u_a = np.full(target.size, 1.0 / FACTOR_RANGE[0])  # q > 0 at the low factor's end
-    q_a = np.array([t / bracket[i][0] - 1.0 for t, i in zip(targets, choice_of)])
-    u_b = np.full(target.size, 1.0 / FACTOR_RANGE[1])
-    q_b = np.array([t / bracket[i][1] - 1.0 for t, i in zip(targets, choice_of)])
+    # the grid's cell holding each target (UA rises with f): UA(f_a) < target <= UA(f_b)
+    cell = np.array([np.searchsorted(curve[i], t) for t, i in zip(targets, choice_of)], dtype=int)
+    cell = np.clip(cell, 1, grid.size - 1)
+    u_a = 1.0 / grid[cell - 1]  # q > 0 at the cell's low factor
+    q_a = np.array([t / curve[i][k - 1] - 1.0 for t, i, k in zip(targets, choice_of, cell)])
+    u_b = 1.0 / grid[cell]
+    q_b = np.array([t / curve[i][k] - 1.0 for t, i, k in zip(targets, choice_of, cell)])
     factor = np.full(target.size, np.nan)
     left = np.arange(target.size)  # the elements not converged yet
     for _ in range(MAX_PASSES):
@@ -352,7 +363,9 @@ def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | Non
         done = (q == 0.0) | (step <= X_TOLERANCE + R_TOLERANCE * np.abs(np.log(u)))
         flip = q * qb < 0.0  # the newest point and the last one straddle the root: the last becomes the far end
         u_a[left] = np.where(flip, ub, ua)
-        q_a[left] = np.where(flip, qb, 0.5 * qa)  # Illinois: an end kept twice counts half
+        with np.errstate(divide="ignore", invalid="ignore"):  # q_b = 0: that element has converged
+            shrink = 1.0 - q / qb  # Anderson & Bjorck: an end kept again counts less, by how much q fell (else half)
+        q_a[left] = np.where(flip, qb, np.where(shrink > 0.0, shrink, 0.5) * qa)
         u_b[left], q_b[left] = u, q
         factor[left] = 1.0 / u
         left = left[~done]
