@@ -345,3 +345,25 @@ def test_simulation_takes_a_measured_ua_and_says_so(client):
     response = client.post("/v1/simulations", json=body)
     assert response.status_code == 422
     assert response.get_json()["errors"][0]["field"].startswith("vessel.calibration.measurement.coolant")
+
+
+@pytest.mark.parametrize("factor", [0.02, 0.7, 35.0])
+def test_a_network_scaled_after_assembly_is_the_network_assembled_with_the_factor(factor):
+    # The vectorised back-out assembles each coolant-side choice once (factor 1) and multiplies the process-side
+    # constant a afterwards: that is only right while the factor enters the film through a alone (definition of
+    # the calibration, Nu = f a Re^b Pr^c (mu/mu_w)^d). Same UA on the vectorised network, same a, both surfaces.
+    from calc.fits.single_point import _times
+    from calc.network.heat_transfer import assemble
+    from calc.network.vectorised import solve_many
+
+    vessel = _demo_measured()  # half pipe on shell and bottom head
+    plain = replace(vessel.correlations, calibration=None)
+    args = (vessel.correlations.calibration.measurement.charge, vessel.correlations.calibration.measurement.coolant,
+            323.15)
+    once = assemble(replace(vessel, correlations=plain), *args)
+    again = assemble(replace(vessel, correlations=replace(plain, process_factor=factor)), *args)
+    scaled = _times(once, factor)
+    assert [m.process_film(1e-3).arguments for s in scaled.streams for m in s.surfaces] == [
+        m.process_film(1e-3).arguments for s in again.streams for m in s.surfaces]
+    assert solve_many([scaled]).ua[0] == solve_many([again]).ua[0]
+    assert solve_many([scaled]).ua[0] != pytest.approx(solve_many([once]).ua[0], rel=1e-3)
