@@ -367,3 +367,12 @@ def test_a_network_scaled_after_assembly_is_the_network_assembled_with_the_facto
         m.process_film(1e-3).arguments for s in again.streams for m in s.surfaces]
     assert solve_many([scaled]).ua[0] == solve_many([again]).ua[0]
     assert solve_many([scaled]).ua[0] != pytest.approx(solve_many([once]).ua[0], rel=1e-3)
+
+
+def test_a_vectorised_back_out_that_does_not_converge_falls_back_to_the_scalar_path(monkeypatch):
+    # Safety net (definition): past MAX_PASSES the vectorised iteration gives up and the scalar specification answers.
+    import calc.fits.single_point as single_point
+
+    vessel = _load(_request({"ua": _synthetic_ua(0.6), "relative_uncertainty": 0.05, **RUN}))["vessel"]
+    monkeypatch.setattr(single_point, "MAX_PASSES", 1)
+    assert _answers(back_out(vessel)) == _answers(back_out(vessel, vectorised=False))

@@ -243,8 +243,12 @@ def _factors_scalar(job: _Job, deadline: Deadline) -> list[list[float] | None]:
 
 #: The factors of the vectorised back-out's first pass (its ends: FACTOR_RANGE): each back-out starts in its cell.
 FACTOR_GRID = (FACTOR_RANGE[0], 0.1, 1.0, 10.0, FACTOR_RANGE[1])
-#: Passes of the vectorised root iteration at most (4-6 on the examples); past it, the latest iterate.
-MAX_PASSES = 100
+#: Passes of the vectorised root iteration at most (4-6 on the examples); past it, the scalar path.
+MAX_PASSES = 30
+
+
+class _NoBracket(Exception):
+    """The vectorised back-out lost its bracket or did not converge: :func:`back_out` takes the scalar path."""
 
 
 def _scaled_film(film_at: Callable[[float], ProcessFilm], factor: float) -> Callable[[float], ProcessFilm]:
@@ -279,6 +283,8 @@ def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | Non
     1/UA = R + 1/(f h A) is linear in 1/f, so the steps land close to the root and converge superlinearly. An
     element stops when its step in ln f is below Brent's tolerance (``X_TOLERANCE`` + ``R_TOLERANCE`` |ln f|)
     or it hits q = 0; both paths then agree to the network's own convergence (a test holds them to 1e-8).
+    Should the grid not bracket a root (UA not rising with f, a non-finite UA) or the iteration not converge
+    within ``MAX_PASSES``, it raises :class:`_NoBracket` and :func:`back_out` takes the scalar path.
     """
     import numpy as np
 
@@ -351,6 +357,8 @@ def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | Non
     q_a = np.array([t / curve[i][k - 1] - 1.0 for t, i, k in zip(targets, choice_of, cell)])
     u_b = 1.0 / grid[cell]
     q_b = np.array([t / curve[i][k] - 1.0 for t, i, k in zip(targets, choice_of, cell)])
+    if not (np.all(q_a > 0.0) and np.all(q_b <= 0.0)):  # UA not rising with f on the grid (or not finite)
+        raise _NoBracket
     factor = np.full(target.size, np.nan)
     left = np.arange(target.size)  # the elements not converged yet
     for _ in range(MAX_PASSES):
@@ -359,6 +367,8 @@ def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | Non
         ua, qa, ub, qb = u_a[left], q_a[left], u_b[left], q_b[left]
         u = (ua * qb - ub * qa) / (qb - qa)
         q = target[left] / solve([choice_of[k] for k in left], 1.0 / u) - 1.0
+        if not np.all(np.isfinite(q)):
+            raise _NoBracket
         step = np.abs(np.log(ub / u))
         done = (q == 0.0) | (step <= X_TOLERANCE + R_TOLERANCE * np.abs(np.log(u)))
         flip = q * qb < 0.0  # the newest point and the last one straddle the root: the last becomes the far end
@@ -369,6 +379,8 @@ def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | Non
         u_b[left], q_b[left] = u, q
         factor[left] = 1.0 / u
         left = left[~done]
+    if left.size:
+        raise _NoBracket
     for k, index in enumerate(choice_of):
         found = out[index]
         assert found is not None
@@ -384,7 +396,10 @@ def back_out(vessel: Vessel, deadline: Deadline = NEVER, vectorised: bool = True
     job = _job(vessel)
     measurement = job.measurement
     try:
-        found = (_factors_vectorised if vectorised else _factors_scalar)(job, deadline)
+        try:
+            found = (_factors_vectorised if vectorised else _factors_scalar)(job, deadline)
+        except _NoBracket:  # never seen on the examples: the specification answers instead
+            found = _factors_scalar(job, deadline)
     except _Unreachable as error:
         raise InputError(error.field, error.message) from None
     nominal = found[0]
