@@ -88,7 +88,7 @@ def calibrated_case(body: dict) -> tuple:
                         args["safety_factor"])
 
 
-def backout_section(repeats: int = 7) -> None:
+def backout_section(repeats: int = 9) -> None:
     """The back-out alone and a calibrated check that backs it out (nothing cached), scalar Brent path (one network
     solve at a time: the specification, and the code before the vectorised back-out) against the vectorised one."""
     print(f"single-point back-out: scalar Brent vs vectorised (median of {repeats}, one process, nothing cached; "
@@ -105,22 +105,35 @@ def _backout_row(name: str, body: dict, repeats: int) -> None:
     """One case of :func:`backout_section`."""
     vessel, call = calibrated_case(body)
     plain_vessel = replace(vessel, correlations=replace(vessel.correlations, calibration=None))
-    plain = timed(lambda: cooling_check(plain_vessel, *call, limits=False), repeats)
     answers = {}
     for vectorised in (False, True):
         found = back_out(vessel, vectorised=vectorised).correlations.calibration
         answers[vectorised] = [found.factor, *found.factor_interval] + [
             f for *_, low, high in found.alternative_factors for f in (low, high)]
     alternatives = len(back_out(vessel).correlations.calibration.alternative_factors)
-    scalar = timed(lambda: back_out(vessel, vectorised=False), repeats)
-    vector = timed(lambda: back_out(vessel), repeats)
-    # a first calibrated check: the back-out, then the check on the resolved vessel (what resolved() caches)
-    check_scalar = timed(lambda: cooling_check(back_out(vessel, vectorised=False), *call, limits=False), repeats)
-    check_vector = timed(lambda: cooling_check(back_out(vessel), *call, limits=False), repeats)
+    # interleaved, so a busy machine slows every column alike; a first calibrated check is the back-out, then the
+    # check on the resolved vessel (what resolved() remembers)
+    plain, scalar, vector, check_scalar, check_vector = interleaved([
+        lambda: cooling_check(plain_vessel, *call, limits=False),
+        lambda: back_out(vessel, vectorised=False),
+        lambda: back_out(vessel),
+        lambda: cooling_check(back_out(vessel, vectorised=False), *call, limits=False),
+        lambda: cooling_check(back_out(vessel), *call, limits=False)], repeats)
     diff = max(abs(a / b - 1.0) for a, b in zip(answers[True], answers[False]))
     print(f"  {name[:36]:<36} {alternatives:>4} {plain * 1e3:>8.1f} ms {scalar * 1e3:>12.1f} ms "
           f"{vector * 1e3:>7.1f} ms {scalar / vector:>5.1f}x {check_scalar * 1e3:>10.1f} ms "
           f"{check_vector * 1e3:>10.1f} ms {diff:>12.1e}")
+
+
+def interleaved(functions: list, repeats: int) -> list[float]:
+    """The median time of each of ``functions``, run in turn ``repeats`` times."""
+    samples: list[list[float]] = [[] for _ in functions]
+    for _ in range(repeats):
+        for function, times in zip(functions, samples):
+            start = time.perf_counter()
+            function()
+            times.append(time.perf_counter() - start)
+    return [statistics.median(times) for times in samples]
 
 
 def main() -> None:
