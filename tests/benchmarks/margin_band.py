@@ -184,7 +184,7 @@ def main() -> None:
         factor = resolved(calibrated).correlations.calibration.factor
         print(f"  {name:<44} {factor:>7.4g} {band.low:>7.3g} {band.high:>7.3g} "
               f"{(band.high - band.low) / check.margin:>6.0%} {first / plain:>8.1f}x {after / plain:>11.2f}x")
-    print("  back-out = the first calibrated check (backs the factor out: Brent on the network, three roots) over a "
+    print("  back-out = the first calibrated check (backs the factors out together on the vectorised network) over a "
           "plain banded check; check after = later checks of the same vessel (the factor is cached)")
 
     print()
