@@ -51,6 +51,7 @@ from collections import OrderedDict
 from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING, Any, Callable
 
+import numpy as np
 from scipy.optimize import brentq
 
 from calc.deadline import NEVER, Deadline
@@ -286,8 +287,6 @@ def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | Non
     Should the grid not bracket a root (UA not rising with f, a non-finite UA) or the iteration not converge
     within ``MAX_PASSES``, it raises :class:`_NoBracket` and :func:`back_out` takes the scalar path.
     """
-    import numpy as np
-
     from calc.network.heat_transfer import assemble
     from calc.network.vectorised import solve_many
 
