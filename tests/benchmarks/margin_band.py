@@ -2,7 +2,9 @@
 
 Prints, in one run: the band's width on the demo check and on three vessels of our own (invented
 scenarios), the cost of the band relative to the plain check (with and without the solved limits),
-and the UA fit's accuracy against the noise on the logged temperatures (seeded, closed-form logs).
+the single-point back-out on the vectorised network against the scalar Brent path (``backout`` as
+the argument prints that section alone), and the UA fit's accuracy against the noise on the logged
+temperatures (seeded, closed-form logs).
 Not a test: the numbers are for the record (issue 12), nothing asserts on timings.
 """
 from __future__ import annotations
@@ -10,6 +12,7 @@ from __future__ import annotations
 import copy
 import json
 import statistics
+import sys
 import time
 from pathlib import Path
 
@@ -19,7 +22,7 @@ from dataclasses import replace
 
 from calc.checks.cooling_check import cooling_check
 from calc.films.selection import Calibration, Measurement
-from calc.fits.single_point import measured_surface, resolved
+from calc.fits.single_point import back_out, measured_surface, resolved
 from calc.network.heat_transfer import heat_transfer
 from calc.properties import LibraryLiquid
 from calc.vessel.model import Charge
@@ -68,7 +71,75 @@ def timed(function, repeats: int = 5) -> float:
     return statistics.median(samples)
 
 
+def calibrated_case(body: dict) -> tuple:
+    """(calibrated vessel, the check's other arguments) of a case: a measured UA of +-10 % of its jacket (else its
+    coils), the forward model's at 0.8 x a, at 60 rpm with water at 50 degC and the case's coolant."""
+    args = CoolingCheckRequestSchema().load(body)
+    vessel = args["vessel"]
+    run_vessel = replace(vessel, agitator=replace(vessel.agitator, speed=1.0),
+                         correlations=replace(vessel.correlations, process_factor=0.8))
+    water = Charge(LibraryLiquid("water"), volume=args["charge"].liquid_volume(args["process_temperature"]))
+    surface = "jacket" if vessel.jacket is not None else "coils"
+    ua, _ = measured_surface(heat_transfer(run_vessel, water, args["coolant"], 323.15), surface)
+    measurement = Measurement(ua, (0.9 * ua, 1.1 * ua), 323.15, water, args["coolant"], surface=surface,
+                              agitator_speed=1.0)
+    calibrated = replace(vessel, correlations=vessel.correlations.calibrated(Calibration(measurement=measurement)))
+    return calibrated, (args["charge"], args["coolant"], args["process_temperature"], args["heat_release"],
+                        args["safety_factor"])
+
+
+def backout_section(repeats: int = 9) -> None:
+    """The back-out alone and a calibrated check that backs it out (nothing cached), scalar Brent path (one network
+    solve at a time: the specification, and the code before the vectorised back-out) against the vectorised one."""
+    print(f"single-point back-out: scalar Brent vs vectorised (median of {repeats}, one process, nothing cached; "
+          "a measured UA +-10 %)")
+    print(f"  {'case':<36} {'alts':>4} {'plain check':>11} {'back-out scalar':>15} {'vectorised':>10} {'ratio':>6} "
+          f"{'check, scalar':>13} {'check, vector':>13} {'max rel diff':>12}")
+    for name, body in cases().items():
+        _backout_row(name, body, repeats)
+    print("  plain check = the same check uncalibrated (band, no limits); check = a first calibrated check, back-out "
+          "included; max rel diff = the factors of both paths")
+
+
+def _backout_row(name: str, body: dict, repeats: int) -> None:
+    """One case of :func:`backout_section`."""
+    vessel, call = calibrated_case(body)
+    plain_vessel = replace(vessel, correlations=replace(vessel.correlations, calibration=None))
+    answers = {}
+    for vectorised in (False, True):
+        found = back_out(vessel, vectorised=vectorised).correlations.calibration
+        answers[vectorised] = [found.factor, *found.factor_interval] + [
+            f for *_, low, high in found.alternative_factors for f in (low, high)]
+    alternatives = len(back_out(vessel).correlations.calibration.alternative_factors)
+    # interleaved, so a busy machine slows every column alike; a first calibrated check is the back-out, then the
+    # check on the resolved vessel (what resolved() remembers)
+    plain, scalar, vector, check_scalar, check_vector = interleaved([
+        lambda: cooling_check(plain_vessel, *call, limits=False),
+        lambda: back_out(vessel, vectorised=False),
+        lambda: back_out(vessel),
+        lambda: cooling_check(back_out(vessel, vectorised=False), *call, limits=False),
+        lambda: cooling_check(back_out(vessel), *call, limits=False)], repeats)
+    diff = max(abs(a / b - 1.0) for a, b in zip(answers[True], answers[False]))
+    print(f"  {name[:36]:<36} {alternatives:>4} {plain * 1e3:>8.1f} ms {scalar * 1e3:>12.1f} ms "
+          f"{vector * 1e3:>7.1f} ms {scalar / vector:>5.1f}x {check_scalar * 1e3:>10.1f} ms "
+          f"{check_vector * 1e3:>10.1f} ms {diff:>12.1e}")
+
+
+def interleaved(functions: list, repeats: int) -> list[float]:
+    """The median time of each of ``functions``, run in turn ``repeats`` times."""
+    samples: list[list[float]] = [[] for _ in functions]
+    for _ in range(repeats):
+        for function, times in zip(functions, samples):
+            start = time.perf_counter()
+            function()
+            times.append(time.perf_counter() - start)
+    return [statistics.median(times) for times in samples]
+
+
 def main() -> None:
+    if sys.argv[1:] == ["backout"]:
+        backout_section()
+        return
     print("margin band: width and cost (median of 5 runs each, one process)")
     print(f"  {'case':<44} {'margin':>7} {'low':>7} {'high':>7} {'width':>7} {'members':>7} "
           f"{'cost, limits':>13} {'cost, verdict':>14}")
@@ -113,8 +184,11 @@ def main() -> None:
         factor = resolved(calibrated).correlations.calibration.factor
         print(f"  {name:<44} {factor:>7.4g} {band.low:>7.3g} {band.high:>7.3g} "
               f"{(band.high - band.low) / check.margin:>6.0%} {first / plain:>8.1f}x {after / plain:>11.2f}x")
-    print("  back-out = the first calibrated check (backs the factor out: Brent on the network, three roots) over a "
+    print("  back-out = the first calibrated check (backs the factors out together on the vectorised network) over a "
           "plain banded check; check after = later checks of the same vessel (the factor is cached)")
+
+    print()
+    backout_section()
 
     print("\nUA fit against noise (closed-form cool-down, UA = 900 W/K, M c_p = 12.5 MJ/K, 120 points over 3 h;"
           " 20 seeds each)")
