@@ -32,6 +32,7 @@ from calc.cautions import HEAT_TRANSFER
 from calc.hydraulics import paths
 from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, InputError, Warnings, fields_renamed, require_positive
+from calc.films.selection import CorrelationChoice
 from calc.vessel.model import Charge, Coolant, Vessel
 
 TOLERANCE = 1e-6  # K
@@ -422,12 +423,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
     A single-point calibration (a measured UA at stated conditions) is backed out here first, once per
     vessel (``calc.fits.single_point``); ``Network.vessel`` carries the result.
     """
-    vessel = calibrated(vessel)
-    if vessel.correlations.process_fouling_factor != 1.0:  # the margin band's fouling members
-        vessel = replace(vessel, fouling=replace(vessel.fouling, process=vessel.fouling.process
-                                                 * vessel.correlations.process_fouling_factor),
-                         correlations=replace(vessel.correlations, process_fouling_factor=1.0))
-    warnings = Warnings()
+    vessel = _resolved(vessel)
     if coolant.inlet_temperature >= process_temperature:
         raise InputError("coolant.inlet_temperature",
                          "must be below the process temperature for cooling "
@@ -436,8 +432,34 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
     volume = charge.liquid_volume(process_temperature)
     filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume,
                            field="charge.volume" if charge.volume is not None else "charge.mass")
-    warnings.extend_unique(filled.warnings)
     stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
+    return _network(vessel, charge, coolant, process_temperature, props, filled, stirred)
+
+
+def _resolved(vessel: Vessel) -> Vessel:
+    """``vessel`` with a pending calibration backed out and the band's fouling factor applied to its fouling."""
+    vessel = calibrated(vessel)
+    if vessel.correlations.process_fouling_factor != 1.0:  # the margin band's fouling members
+        vessel = replace(vessel, fouling=replace(vessel.fouling, process=vessel.fouling.process
+                                                 * vessel.correlations.process_fouling_factor),
+                         correlations=replace(vessel.correlations, process_fouling_factor=1.0))
+    return vessel
+
+
+def with_correlations(network: Network, correlations: CorrelationChoice) -> Network:
+    """``network`` with the vessel's ``correlations`` replaced: equal to ``assemble`` of that vessel with the same
+    charge, coolant and process temperature, keeping the parts the correlations do not touch (the contents'
+    properties, fill and agitation) instead of recomputing them (the margin band's members)."""
+    vessel = _resolved(replace(network.vessel, correlations=correlations))
+    return _network(vessel, network.charge, network.coolant, network.process_temperature,
+                    network.process_properties, network.fill, network.agitation)
+
+
+def _network(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float, props: LiquidProperties,
+             filled: geometry.FillGeometry, stirred: agitation.AgitationResult) -> Network:
+    """The streams and surfaces of ``vessel`` (resolved) at a state whose properties, fill and agitation are known."""
+    warnings = Warnings()
+    warnings.extend_unique(filled.warnings)
     warnings.extend_unique(stirred.warnings)
     shape, agitator, level = vessel.shape, vessel.agitator, filled.liquid_level
     choice = vessel.correlations.validate(agitator.impeller)

@@ -188,19 +188,30 @@ class Prepared:
     at new coolant states several times); ``solve_many`` builds one per call.
     """
 
-    def __init__(self, networks: Sequence[Network]):
+    charge_liquids: list[Liquid]
+    coolant_liquids: list[Liquid]
+    streams_t: list[tuple[Any, ...]]  # per stream template (see __init__)
+    surfaces_t: list[tuple[Any, ...]]  # per surface template
+
+    def __init__(self, networks: Sequence[Network], base: Prepared | None = None):
+        """``base``: a Prepared whose networks are the first of ``networks`` (the same objects); their templates
+        are taken from it instead of being set up again (the limit searches add the band's members)."""
         self.networks = tuple(networks)
-        charge_liquids: list[Liquid] = []
-        coolant_liquids: list[Liquid] = []
+        done = 0 if base is None else len(base.networks)
+        if base is not None and self.networks[:done] != base.networks:
+            raise ValueError("base: its networks must be the first of networks")
+        charge_liquids: list[Liquid] = [] if base is None else list(base.charge_liquids)
+        coolant_liquids: list[Liquid] = [] if base is None else list(base.coolant_liquids)
         # (flow, per volume?, coolant liquid index, process temperature)
-        streams_t: list[tuple[Any, ...]] = []
+        streams_t: list[tuple[Any, ...]] = [] if base is None else list(base.streams_t)
         # (stream template, area, charge liquid, bulk props, film, formula, layers, remaining resistance of a
         # calibration or None)
-        surfaces_t: list[tuple[Any, ...]] = []
-        self.network_streams: list[np.ndarray] = []
-        self.network_surfaces: list[np.ndarray] = []
-        self.network_local: list[np.ndarray] = []
-        for network in self.networks:
+        surfaces_t: list[tuple[Any, ...]] = [] if base is None else list(base.surfaces_t)
+        self.network_streams: list[np.ndarray] = [] if base is None else list(base.network_streams)
+        self.network_surfaces: list[np.ndarray] = [] if base is None else list(base.network_surfaces)
+        self.network_local: list[np.ndarray] = [] if base is None else list(base.network_local)
+        self.streams_t, self.surfaces_t = streams_t, surfaces_t
+        for network in self.networks[done:]:
             charge_i = _index(charge_liquids, network.charge.liquid)
             coolant_i = _index(coolant_liquids, network.coolant.liquid)
             props = network.process_properties
