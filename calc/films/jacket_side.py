@@ -292,9 +292,9 @@ def _Stein_Schmidt_elementwise(m: float, D_tank: float, gap: float, H: float, d_
                                    (m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, rho if rho_w is None else rho_w,
                                     roughness)))
     one_state: Callable[..., _Flow] = h_jacket_Stein_Schmidt_1993
-    rows = [one_state(*(float(a.flat[i]) for a in values[:10]), inlet_type=inlet_type,
-                      inlet_location=inlet_location, rho_w=float(values[10].flat[i]),
-                      roughness=float(values[11].flat[i])) for i in range(values[0].size)]
+    states = zip(*(a.ravel().tolist() for a in values))  # Python floats, one tuple per state
+    rows = [one_state(*state[:10], inlet_type=inlet_type, inlet_location=inlet_location, rho_w=state[10],
+                      roughness=state[11]) for state in states]
     return _Flow._make(np.array(column).reshape(values[0].shape) for column in zip(*rows))
 
 
