@@ -248,18 +248,21 @@ def h_jacket_Stein_Schmidt_1993(m: float, D_tank: float, gap: float, H: float, d
         v_ch = Q / (2 * gap * b_mid) * shape
     else:
         v_z = Q / (math.pi * D_tank * gap)
-        f = friction_factor_Stein_Schmidt(1e5, roughness / d_ch)
-        v_ch = 0.0
-        for _ in range(100):
+
+        def velocity(f: float) -> float:
+            """The channel velocity with the friction factor ``f``, m/s."""
             spread = f * D_tank * H / d_inlet ** 2
             K3 = v_in / 4 - v_in / (4 * spread)
             K4 = v_in ** 2 / (2 * spread)
             v_x0 = K3 + math.sqrt(K3 ** 2 + K4)
             v_x = v_in * math.log1p(spread * v_x0 / v_in) / spread
-            previous, v_ch = v_ch, math.hypot(v_x, v_z)
-            f = friction_factor_Stein_Schmidt(rho * v_ch * d_ch / mu, roughness / d_ch)
-            if abs(v_ch - previous) <= 1e-13 * v_ch:
-                break
+            return math.hypot(v_x, v_z)
+
+        def step(v: float) -> float:
+            return velocity(friction_factor_Stein_Schmidt(rho * v * d_ch / mu, roughness / d_ch))
+
+        v_ch = _settled(step, velocity(friction_factor_Stein_Schmidt(1e5, roughness / d_ch)),
+                        PIPE_TRANSITION * mu / (rho * d_ch))
     Re = rho * v_ch * d_ch / mu
     if rho_w is not None and rho_w != rho:
         buoyancy = g * rho * abs(rho - rho_w) * d_ch ** 3 / mu ** 2 * H / d_ch / 50.0
@@ -277,6 +280,56 @@ def h_jacket_Stein_Schmidt_1993(m: float, D_tank: float, gap: float, H: float, d
                                    * (1 + (d_ch / l_ch) ** (2 / 3)))
     Nu = (Nu_A ** 3 + Nu_B ** 3 + Nu_C ** 3 + Nu_D ** 3) ** (1 / 3) * (mu / mu_w) ** 0.14
     return _Flow(Nu * k / d_ch, Re, v_ch, Nu, d_ch)
+
+
+#: The tangential-inlet velocity is settled when one more step moves it by this share or less.
+SETTLED = 1e-13
+#: Most steps of that fixed-point iteration (the first velocity, at the friction factor of Re = 1e5, included).
+FIXED_POINT_STEPS = 100
+
+
+def _plain(step: Callable[[float], float], v: float) -> float:
+    """The fixed point of ``step`` by plain iteration from ``v`` (the first step's result), as specified."""
+    for _ in range(FIXED_POINT_STEPS - 1):
+        previous, v = v, step(v)
+        if abs(v - previous) <= SETTLED * v:
+            break
+    return v
+
+
+def _settled(step: Callable[[float], float], first: float, switch: float) -> float:
+    """The fixed point v = step(v) that plain iteration from ``first`` settles on (:func:`_plain`), reached
+    faster by Steffensen's method (Aitken's extrapolation of every two steps; quadratic convergence), with the
+    same test for settling, so the two agree to about 1e-13.
+
+    Plain iteration is the specification: it is used instead when Steffensen's steps do not settle, when
+    the plain iterates could cross the friction factor's laminar switch at the velocity ``switch`` (the
+    step is discontinuous there, and the two could settle on different sides), or when plain iteration
+    would be slow to contract (it might not settle within its steps and then ends elsewhere).
+    """
+    v = first
+    contraction = 0.0
+    for _ in range(12):
+        a = step(v)
+        if abs(a - v) <= SETTLED * a:
+            v = a
+            break
+        b = step(a)
+        if abs(b - a) <= SETTLED * b:
+            v = b
+            break
+        curvature = b - 2.0 * a + v
+        if curvature == 0.0:
+            return _plain(step, first)
+        contraction = max(contraction, abs((b - a) / (a - v)))
+        extrapolated = v - (a - v) ** 2 / curvature
+        v = extrapolated if math.isfinite(extrapolated) and extrapolated > 0.0 else b
+    else:
+        return _plain(step, first)
+    reach = abs(first - v)
+    if contraction > 0.7 or reach > v or v - reach <= switch <= v + reach:
+        return _plain(step, first)
+    return v
 
 
 def _Stein_Schmidt_elementwise(m: float, D_tank: float, gap: float, H: float, d_inlet: float, rho: float,
