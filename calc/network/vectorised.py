@@ -418,12 +418,15 @@ class Prepared:
         h_service = np.empty(sid.size)
         starts = np.flatnonzero(np.r_[True, sid[1:] != sid[:-1]])
         for iteration in range(1, MAX_ITERATIONS + 1):
+            # a correlation whose rows have all settled is not evaluated again: those rows keep the films of
+            # the iteration they settled in (as the scalar path reports them), and nothing else reads them
+            rows_active = active[sid]
             state = coolant.states(np.clip(mean, c_low, c_high))
             ratio = mu_bulk / charge.viscosity(np.clip(process_wall, p_low, p_high))
             for function, rows, arguments in process:
                 if rows is None:
                     h_process[:] = function(viscosity_ratio=ratio, **arguments) * k_bulk
-                else:
+                elif rows_active[rows].any():
                     h_process[rows] = function(viscosity_ratio=ratio[rows], **arguments) * k_bulk[rows]
             at_wall = np.clip(service_wall, c_low_rows, c_high_rows)
             wall_viscosity, wall_density = coolant_rows.viscosity(at_wall), coolant_rows.density(at_wall)
@@ -431,7 +434,7 @@ class Prepared:
             for function, rows, fixed in service:
                 if rows is None:
                     h_service[:] = function(bulk, flow_rows, wall_viscosity, wall_density, **fixed)[0]
-                else:
+                elif rows_active[rows].any():
                     h_service[rows] = function(_take(bulk, rows), flow_rows[rows], wall_viscosity[rows],
                                                wall_density[rows], **fixed)[0]
             overall = wall.overall_from_layers(h_process, h_service, layers)  # type: ignore[arg-type]  # arrays
@@ -449,7 +452,6 @@ class Prepared:
             outlet = np.where(active, new_outlet, outlet)
             iterations = np.where(active, iteration, iterations)
             mean = np.where(active, new_mean, mean)
-            rows_active = active[sid]
             process_wall = np.where(rows_active, temperatures.process_surface, process_wall)
             service_wall = np.where(rows_active, temperatures.service_surface, service_wall)
             active &= ~(change < TOLERANCE)
