@@ -506,12 +506,13 @@ def _network(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
                     baffled=agitator.baffled, surface=_surface, alternative=choice.process_wall,
                     factor=choice.process_factor, constants=choice.process_constants),
                 service, jacket_formula, choice.remaining_resistance, channel))
-        streams.append(StreamModel("jacket", coolant.mass_flow(), tuple(models),
+        streams.append(StreamModel("jacket", jacket_flow, tuple(models),
                                    paths.jacket_path(jacket, outer, max(jacket_height, 1e-3))))
     elif vessel.jacket is not None:
         warnings.add(CalcWarning("jacket_not_wetted", "the liquid does not reach the jacket: no jacket heat transfer"))
 
     coil_area_total = 0.0
+    coil_flow: float | None = None  # each coil's mass flow, worked out for the first wetted coil
     for index, coil in enumerate(vessel.coils):
         _, area = geometry.coil_submerged(shape, coil, level)
         coil_area_total += area
@@ -530,17 +531,18 @@ def _network(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         with fields_renamed({"vessel.coils": f"vessel.coils[{index}]"}):
             formula = coil_side.coil_film_formula(coil.tube_inner_diameter, coil.helix_diameter, pitch=coil.pitch,
                                                   correlation=choice.coil_tube)
+        flow = coil_flow = coolant.coil_mass_flow() if coil_flow is None else coil_flow
         model = _SurfaceModel(
             f"coil_{index}", area, coil_wall, coil.tube_outer_diameter / 2.0, "outside",
             lambda mu_w, _coil=coil: process_side.process_film_coil(
                 agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
                 _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled,
                 factor=choice.coil_process_factor, alternative=choice.process_coil),
-            lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
-                _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
+            lambda props_c, mu_w, rho_w, _coil=coil, _flow=flow: coil_side.service_film_coil(
+                _coil.tube_inner_diameter, _coil.helix_diameter, props_c, _flow, mu_w,
                 pitch=_coil.pitch, correlation=choice.coil_tube),
             formula)
-        streams.append(StreamModel(f"coil_{index}", coolant.coil_mass_flow(), (model,), paths.coil_path(coil)))
+        streams.append(StreamModel(f"coil_{index}", flow, (model,), paths.coil_path(coil)))
     if not streams:
         warnings.add(CalcWarning("no_cooling_surface", "no wetted jacket or coil area: the vessel cannot be cooled"))
     return Network(vessel, charge, coolant, process_temperature, props, filled, stirred, tuple(streams), warnings)

@@ -211,6 +211,11 @@ class Prepared:
         self.network_surfaces: list[np.ndarray] = [] if base is None else list(base.network_surfaces)
         self.network_local: list[np.ndarray] = [] if base is None else list(base.network_local)
         self.streams_t, self.surfaces_t = streams_t, surfaces_t
+        # Networks built from one network by ``heat_transfer.with_correlations`` (the band's members) share its
+        # agitation object and so its geometry: a surface's film at the bulk viscosity and its wall layers
+        # depend then only on the process-side choice and the fouling. Keyed by that object's id, which stays
+        # valid while these networks (held here) live; a base's entries are its own networks'.
+        self.films: dict[tuple[Any, ...], Any] = {} if base is None else dict(base.films)
         for network in self.networks[done:]:
             charge_i = _index(charge_liquids, network.charge.liquid)
             coolant_i = _index(coolant_liquids, network.coolant.liquid)
@@ -226,10 +231,17 @@ class Prepared:
                     flow = coolant.flow if stream.name == "jacket" or coolant.coil_flow is None else coolant.coil_flow
                 follows = stream.name == "jacket" or coolant.coil_flow is None  # moves with coolant.flow
                 streams_t.append((flow, volume, coolant_i, network.process_temperature, follows))
+                choice = network.vessel.correlations
                 for model in stream.surfaces:
-                    film = model.process_film(props.viscosity)  # at ratio 1: the correlation's other arguments
-                    layer, _ = wall.wall_layers(model.wall, network.vessel.fouling, model.process_radius,
-                                                model.process_side, channel=model.channel)
+                    key = (id(network.agitation), model.name, network.vessel.fouling, choice.process_wall,
+                           choice.process_factor, choice.process_constants, choice.process_coil,
+                           choice.coil_process_factor)
+                    if key not in self.films:
+                        film = model.process_film(props.viscosity)  # at ratio 1: the correlation's other arguments
+                        layer, _ = wall.wall_layers(model.wall, network.vessel.fouling, model.process_radius,
+                                                    model.process_side, channel=model.channel)
+                        self.films[key] = (film, layer)
+                    film, layer = self.films[key]
                     surfaces.append(len(surfaces_t))
                     surfaces_t.append((streams[-1], model.area, charge_i, props, film, model.service_formula, layer,
                                        model.remaining_resistance))
