@@ -451,13 +451,16 @@ def with_correlations(network: Network, correlations: CorrelationChoice) -> Netw
     charge, coolant and process temperature, keeping the parts the correlations do not touch (the contents'
     properties, fill and agitation) instead of recomputing them (the margin band's members)."""
     vessel = _resolved(replace(network.vessel, correlations=correlations))
+    flows = {stream.name[:4]: stream.mass_flow for stream in network.streams}  # the same coolant: the same flows
     return _network(vessel, network.charge, network.coolant, network.process_temperature,
-                    network.process_properties, network.fill, network.agitation)
+                    network.process_properties, network.fill, network.agitation, flows.get("jack"), flows.get("coil"))
 
 
 def _network(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float, props: LiquidProperties,
-             filled: geometry.FillGeometry, stirred: agitation.AgitationResult) -> Network:
-    """The streams and surfaces of ``vessel`` (resolved) at a state whose properties, fill and agitation are known."""
+             filled: geometry.FillGeometry, stirred: agitation.AgitationResult, jacket_flow: float | None = None,
+             coil_flow: float | None = None) -> Network:
+    """The streams and surfaces of ``vessel`` (resolved) at a state whose properties, fill and agitation are known
+    (and the coolant's jacket and coil mass flows, kg/s, when they are: else worked out from ``coolant``)."""
     warnings = Warnings()
     warnings.extend_unique(filled.warnings)
     warnings.extend_unique(stirred.warnings)
@@ -481,7 +484,7 @@ def _network(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         chosen_jacket = choice.jacket(jacket)
         jacket_formula, geometry_warnings = jacket_side.jacket_film_formula(chosen_jacket, outer,
                                                                             max(jacket_height, 1e-3))
-        jacket_flow = require_positive("coolant.flow", coolant.mass_flow())
+        jacket_flow = require_positive("coolant.flow", coolant.mass_flow() if jacket_flow is None else jacket_flow)
 
         def service(props_c: LiquidProperties, mu_w: float, rho_w: float | None,
                     _formula: jacket_side.FilmFormula = jacket_formula) -> CoolantFilm:
@@ -512,7 +515,6 @@ def _network(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         warnings.add(CalcWarning("jacket_not_wetted", "the liquid does not reach the jacket: no jacket heat transfer"))
 
     coil_area_total = 0.0
-    coil_flow: float | None = None  # each coil's mass flow, worked out for the first wetted coil
     for index, coil in enumerate(vessel.coils):
         _, area = geometry.coil_submerged(shape, coil, level)
         coil_area_total += area
