@@ -233,15 +233,16 @@ class Prepared:
                 streams_t.append((flow, volume, coolant_i, network.process_temperature, follows))
                 choice = network.vessel.correlations
                 for model in stream.surfaces:
-                    key = (id(network.agitation), model.name, network.vessel.fouling, choice.process_wall,
-                           choice.process_factor, choice.process_constants, choice.process_coil,
-                           choice.coil_process_factor)
-                    if key not in self.films:
-                        film = model.process_film(props.viscosity)  # at ratio 1: the correlation's other arguments
-                        layer, _ = wall.wall_layers(model.wall, network.vessel.fouling, model.process_radius,
-                                                    model.process_side, channel=model.channel)
-                        self.films[key] = (film, layer)
-                    film, layer = self.films[key]
+                    key = (id(network.agitation), model.name, choice.process_wall, choice.process_factor,
+                           choice.process_constants, choice.process_coil, choice.coil_process_factor)
+                    if key not in self.films:  # at ratio 1: the correlation's other arguments
+                        self.films[key] = model.process_film(props.viscosity)
+                    layers = (id(network.agitation), model.name, network.vessel.fouling)
+                    if layers not in self.films:
+                        self.films[layers] = wall.wall_layers(model.wall, network.vessel.fouling,
+                                                              model.process_radius, model.process_side,
+                                                              channel=model.channel)[0]
+                    film, layer = self.films[key], self.films[layers]
                     surfaces.append(len(surfaces_t))
                     surfaces_t.append((streams[-1], model.area, charge_i, props, film, model.service_formula, layer,
                                        model.remaining_resistance))
