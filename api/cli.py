@@ -351,16 +351,20 @@ def _sizing(answer: dict) -> int:
     _, power_unit = _kw(0.0, units["candidates.cooling_capacity"])
     _, drop_unit = _kw(0.0, units["candidates.pressure_drop"])
     print("  smallest feasible design of each type:")
-    print(f"  {'type':<24} {'#':>4} {'margin':>7} {'capacity':>9} {'drop':>8}  design")
-    print(f"  {'':<24} {'':>4} {'':>7} {power_unit:>9} {drop_unit:>8}")
+    print(f"  {'type':<24} {'#':>4} {'margin':>7} {'band':>11} {'capacity':>9} {'drop':>8}  design")
+    print(f"  {'':<24} {'':>4} {'':>7} {'':>11} {power_unit:>9} {drop_unit:>8}")
     for entry in answer["smallest_feasible"]:
         found = by_index.get(entry["index"])
         if found is None:
             print(f"  {entry['type']:<24} {'-':>4}  no feasible design of this type")
             continue
-        print(f"  {entry['type']:<24} {found['index']:>4} {found['margin']:>7.3g} "
+        band = found.get("margin_band") or {}
+        spread = "-" if band.get("low") is None else f"{band['low']:.3g}-{band['high']:.3g}" + (
+            "!" if found.get("verdict_not_robust") else "")
+        print(f"  {entry['type']:<24} {found['index']:>4} {found['margin']:>7.3g} {spread:>11} "
               f"{_kw(found['cooling_capacity'], units['candidates.cooling_capacity'])[0]:>9} "
               f"{_kw(found['pressure_drop'], units['candidates.pressure_drop'])[0]:>8}  {found['description']}")
+    print("  band: the margin over the published alternatives; ! the verdict does not hold across it")
     print(f"  recommended: {recommendation.get('description') or 'none feasible'}")
     print(f"  why: {recommendation.get('reasoning', '-')}")
     for warning in answer.get("warnings", []):

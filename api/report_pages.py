@@ -164,6 +164,8 @@ def sizing_report(body: dict, payload: dict, units: dict, view: Any, draw: Draw)
                else "NO FEASIBLE DESIGN among the candidates evaluated")
     if chosen is not None:
         verdict += f" (margin {number(chosen.get('margin'), 3)} against {number(payload.get('safety_factor'), 3)})"
+        if chosen.get("verdict_not_robust"):
+            verdict += f"; margin band {_band(chosen)}: NOT robust, below the safety factor at its low end"
     pages = [reports.table_page(payload, "Jacket and coil sizing", summary=summary, tables=[reasoning, first],
                                 verdict=verdict, adequate=chosen is not None,
                                 chart=reports.chart(draw, payload, units, "Cooling capacity against pressure drop "

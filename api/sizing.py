@@ -31,6 +31,16 @@ def sizing_chart(payload: dict, fmt: str, units: dict) -> bytes:
     fig, (axis,) = charts.figure(1)
     fig.set_size_inches(7.5, 4.6)
     candidates = [c for c in payload["candidates"] if c["pressure_drop"] and c["pressure_drop"] > 0]
+    # the margin band as capacity error bars (capacity x band / margin: the members share the nominal load), in the
+    # style of charts.margins
+    banded = [c for c in candidates if c.get("margin") and (c.get("margin_band") or {}).get("low") is not None]
+    if banded:
+        shown = power([c["cooling_capacity"] for c in banded])[0]
+        lows = [v * c["margin_band"]["low"] / c["margin"] for v, c in zip(shown, banded)]
+        highs = [v * c["margin_band"]["high"] / c["margin"] for v, c in zip(shown, banded)]
+        axis.errorbar(drop([c["pressure_drop"] for c in banded])[0], shown,
+                      yerr=[[v - lo for v, lo in zip(shown, lows)], [hi - v for v, hi in zip(shown, highs)]],
+                      fmt="none", ecolor="#777777", elinewidth=1.0, capsize=3, zorder=1, label="margin band")
     for colour, (kind, marker) in zip(charts.COLOURS * 2, MARKERS.items()):
         rows = [c for c in candidates if c["type"] == kind]
         if not rows:
@@ -64,7 +74,8 @@ def sizing_chart(payload: dict, fmt: str, units: dict) -> bytes:
 def jacket_sizing():
     return calculate(_request, _size, _result, rows="candidates", chart=sizing_chart,
                      report=partial(report_pages.sizing_report, draw=sizing_chart),
-                     lead=("index", "type", "description", "feasible", "margin", "cooling_capacity", "pressure_drop",
+                     lead=("index", "type", "description", "feasible", "margin", "margin_band.low", "margin_band.high",
+                           "verdict_not_robust", "cooling_capacity", "pressure_drop",
                            "velocity", "coolant_flow"))
 
 

@@ -59,8 +59,11 @@ class CandidateSchema(StrictSchema):
     # by name: schemas.cooling (which defines it) imports this module
     margin_band = fields.Nested("MarginBandSchema", allow_none=True, metadata={
         "description": "the margin over the published alternatives of every resistance, as the cooling check "
-                       "gives it; computed for the smallest feasible design of each type (the recommendation "
-                       "among them), null for the others"})
+                       "gives it; computed for every feasible design (every evaluated one with "
+                       "options.margin_bands = all; with = recommendation, the feasible ones in the ranking up to the "
+                       "recommended one), null for the others"})
+    verdict_not_robust = fields.Boolean(allow_none=True, metadata={
+        "description": "the verdict (feasible or not) changes within the margin band; null without a band"})
 
 
 class RecommendationSchema(StrictSchema):

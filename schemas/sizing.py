@@ -47,6 +47,11 @@ class SizingOptionsSchema(StrictSchema):
     jacket_top = Quantity("length", minimum=0, load_default=None,
                           description="height of the jacket's top edge above the lowest inside point; default the "
                                       "top of the straight side")
+    margin_bands = fields.String(validate=validate.OneOf(sizing.BAND_SCOPES), load_default=None, metadata={
+        "description": "which candidates carry the margin band: feasible (default; the recommendation is chosen "
+                       "among them), all (every evaluated candidate; three to four times the time of a sizing), or "
+                       "recommendation (only the feasible designs, in the order of the ranking, up to the first whose "
+                       "verdict holds across its band: the same recommendation, fastest)"})
 
     @post_load
     def _build(self, data, **kwargs):

@@ -59,6 +59,23 @@ def test_process_film_rederived_from_the_published_constants_alone(client, impel
     assert result["film_coefficients"]["process_jacket"] == pytest.approx(h, rel=1e-9)
 
 
+def test_the_default_annular_film_lists_every_factor_it_applies(client):
+    # Independent checks re-derive a film from the published constants alone: the default annular jacket lists
+    # Lehrer's equation, the laminar annulus (Gnielinski, VDI Heat Atlas G2) with its constants, and the cube sum
+    # joining them (Churchill & Usagi 1972) with its exponent; tests/test_service_side.py re-derives the film
+    # from exactly these (ht's Lehrer as oracle for the first).
+    items = client.get("/v1/correlations").get_json()["items"]
+    default = next(i for i in items if i["resistance"] == "annular_jacket" and i["default"])
+    assert default["id"] == "lehrer_1970" and default["name"] == "Lehrer (1970) + laminar annulus"
+    constants = default["constants"]
+    assert constants["n"] == 3.0 and "(h_laminar^n + h_turbulent^n)^(1/n)" in constants["combination"]
+    for term in ("3.66 + 1.2 a^-0.8", "1.615 (1 + 0.14 a^-0.5)", "[2/(1 + 22 Pr)]^(1/6)", "d_h = 2 gap",
+                 "v_ax = Q/(pi (D_t + gap) gap)"):
+        assert term in constants["laminar"], term
+    assert "0.03 Re^0.75 Pr / [1 + 1.74 (Pr - 1) Re^-0.125]" in constants["turbulent"]
+    assert "Churchill & Usagi" in default["source"] and "G2" in default["source"]
+
+
 def test_every_listed_alternative_is_choosable_and_changes_the_film(client):
     # Each option /v1/correlations lists for the service side is accepted over HTTP and used.
     items = client.get("/v1/correlations").get_json()["items"]

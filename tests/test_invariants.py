@@ -97,8 +97,8 @@ def test_more_coolant_flow_never_removes_less(case, more):
 def test_colder_coolant_never_removes_less_in_turbulent_flow(case, colder):
     # Restricted to turbulent coolant flow for plain annular jackets: below it a colder, more viscous coolant can
     # lose more film coefficient than it gains driving force (tests/test_colder_coolant.py pins where and why:
-    # Lehrer extrapolated to laminar glycol, an artefact its range warnings flag; Stein & Schmidt's transitional
-    # term, physics). Curved channels hold at every Reynolds number (the next test).
+    # Lehrer beyond its Prandtl range, an artefact its range warnings flag; Stein & Schmidt's transitional
+    # term, physics; laminar flow holds, tested there). Curved channels hold at every Reynolds number (the next test).
     vessel, charge, coolant, process, _ = case
     base = _network(case)
     low, _ = coolant.liquid.liquid_range()

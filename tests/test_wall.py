@@ -235,3 +235,79 @@ def test_pitch_down_to_the_channel_width_covers_the_whole_wall(h_p, h_s, width, 
     assert 1.0 - 1.01 * gap < near.surface_efficiency <= 1.0
     assert near.fin_efficiency > 1.0 - gap
     assert near.U == pytest.approx(plain.U, rel=2.0 * gap)
+
+
+def _half_pipe_wall_2d(t: float, k: float, w: float, p: float, h_p: float, h_s: float, cells: int = 16) -> float:
+    """U (W/(m2 K), on the jacketed area) of a flat wall under half-pipe channels by steady two-dimensional
+    conduction (finite volumes, scipy.sparse): half a pitch, x from mid-channel (0) to mid-land (p/2), y across the
+    thickness t; process face convection h_p to 1, coolant face convection h_s to 0 under the channel (x < w/2),
+    adiabatic under the land; symmetry at both ends. The test's oracle for the one-dimensional fin treatment."""
+    import numpy as np
+    import scipy.sparse as sparse
+    from scipy.sparse.linalg import spsolve
+
+    dy = t / cells
+    edges = np.linspace(0.0, w / 2, max(round(w / 2 / dy), 2) + 1)
+    if p > w:  # the land
+        edges = np.r_[edges, np.linspace(w / 2, p / 2, max(round((p - w) / 2 / dy), 1) + 1)[1:]]
+    dx, centres = np.diff(edges), 0.5 * (edges[1:] + edges[:-1])
+    nx = dx.size
+    cell = np.arange(nx * cells).reshape(cells, nx)  # [row j across the wall, column i along it]
+    g_x = k * dy / (0.5 * (dx[:-1] + dx[1:]))  # between columns i and i+1
+    g_y = k * dx / dy  # between rows
+    rows, cols, values = [], [], []
+    diagonal = np.zeros(nx * cells)
+    for a, b, g in ([(cell[:, :-1], cell[:, 1:], np.broadcast_to(g_x, (cells, nx - 1)))]
+                    + [(cell[:-1, :], cell[1:, :], np.broadcast_to(g_y, (cells - 1, nx)))]):
+        a, b, g = a.ravel(), b.ravel(), g.ravel()
+        rows += [a, b]
+        cols += [b, a]
+        values += [-g, -g]
+        np.add.at(diagonal, a, g)
+        np.add.at(diagonal, b, g)
+    g_process = 1.0 / (1.0 / (h_p * dx) + 0.5 * dy / (k * dx))
+    g_coolant = np.where(centres < w / 2, 1.0 / (1.0 / (h_s * dx) + 0.5 * dy / (k * dx)), 0.0)
+    diagonal[cell[0]] += g_process
+    diagonal[cell[-1]] += g_coolant
+    matrix = sparse.csr_matrix((np.concatenate(values + [diagonal]),
+                                (np.concatenate(rows + [np.arange(diagonal.size)]),
+                                 np.concatenate(cols + [np.arange(diagonal.size)]))))
+    source = np.zeros(diagonal.size)
+    source[cell[0]] = g_process
+    temperature = spsolve(matrix.tocsc(), source)
+    return float(np.sum(g_process * (1.0 - temperature[cell[0]]))) / (p / 2)
+
+
+def test_fin_treatment_against_two_dimensional_conduction_sets_the_biot_warning():
+    # Oracle: steady 2-D conduction in the wall under and between the channels (finite volumes; a numerical
+    # solution of Laplace's equation, Incropera & DeWitt sec. 4.4, from memory), NPS 2 schedule-40 half pipes
+    # (52.5 mm bore, 60.3 mm OD, ASME B36.10M) on 316L. The one-dimensional fin treatment is within 5 % of it up to
+    # the warning's Biot number FIN_BIOT_LIMIT, never more than 5 % optimistic beyond it, and conservative there
+    # by more than 5 % where the warning fires.
+    from calc.films.wall import FIN_BIOT_LIMIT, FIN_BIOT_WARNING
+
+    k = 13.4
+    # the oracle itself: a wall wetted all over is the series sum exactly; the grid is converged to 0.1 %
+    assert _half_pipe_wall_2d(0.01, k, 0.05, 0.05, 800.0, 3000.0) == pytest.approx(
+        1.0 / (1.0 / 800.0 + 0.01 / k + 1.0 / 3000.0), rel=1e-9)
+    assert _half_pipe_wall_2d(0.01, k, 0.0525, 0.0905, 800.0, 3000.0) == pytest.approx(
+        _half_pipe_wall_2d(0.01, k, 0.0525, 0.0905, 800.0, 3000.0, cells=48), rel=1e-3)
+    for t, h_p, h_s, ratio in [(0.004, 500.0, 500.0, 2.0), (0.006, 300.0, 8000.0, 1.5), (0.004, 200.0, 500.0, 2.0),
+                               (0.006, 330.0, 2000.0, 1.25), (0.01, 1000.0, 3000.0, 1.5), (0.012, 2000.0, 8000.0, 2.0),
+                               (0.008, 600.0, 2000.0, 1.25), (0.016, 4000.0, 500.0, 1.5)]:
+        wall = WallSpec(t, "stainless_316l")
+        one_d = overall_coefficient(h_p, h_s, wall, channel=(0.0525, ratio * 0.0603))
+        two_d = _half_pipe_wall_2d(t, k, 0.0525, ratio * 0.0603, h_p, h_s)
+        biot = h_p * t / k
+        flagged = FIN_BIOT_WARNING in {w.code for w in one_d.warnings}
+        assert flagged == (biot > FIN_BIOT_LIMIT), biot
+        assert one_d.U <= 1.05 * two_d, (t, h_p, h_s, ratio)  # never materially optimistic
+        if biot <= FIN_BIOT_LIMIT:
+            assert one_d.U == pytest.approx(two_d, rel=0.05), (t, h_p, h_s, ratio)
+        elif biot > 0.5:
+            assert one_d.U < 0.95 * two_d, (t, h_p, h_s, ratio)  # material, and conservative
+    # just above the limit the error is already material (so the limit cannot be raised much): 16 mm wall,
+    # h' = 160, coolant film 8000 W/(m2 K), pitch two diameters, Bi = 0.19: 1-D U about 7 % low
+    one_d = overall_coefficient(160.0, 8000.0, WallSpec(0.016, "stainless_316l"), channel=(0.0525, 2.0 * 0.0603))
+    assert one_d.U < 0.95 * _half_pipe_wall_2d(0.016, k, 0.0525, 2.0 * 0.0603, 160.0, 8000.0)
+    assert FIN_BIOT_WARNING in {w.code for w in one_d.warnings}

@@ -51,6 +51,7 @@ from calc.checks.heat_load import Dosing, HeatLoad, HeatRelease, heat_load
 from calc.checks.margin_band import BandSteps, MarginBand, band_start, band_step, band_steps
 from calc.network.flow_limit import FlowLimit, flow_limit
 from calc.network.heat_transfer import HeatTransferResult, Network, assemble, heat_transfer, solve
+from calc.network.heat_transfer import calibrated as back_out_calibration
 from calc.validity import CalcWarning, CalculationError, InputError, Warnings
 from calc.vessel.model import Charge, Coolant, Vessel
 
@@ -588,8 +589,8 @@ def cooling_checks(cases: list[CheckCase], safety_factor: float = DEFAULT_SAFETY
         if index:  # a lone check keeps its whole budget for the searches
             deadline.check()
         try:
-            pending[index] = begin_check(case.vessel, case.charge, case.coolant, case.process_temperature,
-                                         case.heat_release, safety_factor, limits, band)
+            pending[index] = begin_check(back_out_calibration(case.vessel, deadline), case.charge, case.coolant,
+                                         case.process_temperature, case.heat_release, safety_factor, limits, band)
         except (InputError, CalculationError) as error:
             answers[index] = error
     for index, answer in zip(pending, finish_checks(list(pending.values()), deadline)):
@@ -606,5 +607,5 @@ def cooling_check(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     ``band=False`` the margin band, for callers that need only the verdict. The limit searches stop with
     :class:`calc.deadline.OutOfTime` once ``deadline`` has passed.
     """
-    return finish_checks([begin_check(vessel, charge, coolant, process_temperature, heat_release, safety_factor,
-                                      limits, band)], deadline)[0]
+    return finish_checks([begin_check(back_out_calibration(vessel, deadline), charge, coolant, process_temperature,
+                                      heat_release, safety_factor, limits, band)], deadline)[0]

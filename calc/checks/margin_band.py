@@ -31,7 +31,9 @@ meaning (nominal margin >= safety factor); the band is reported beside it, and `
 plainly when the verdict holds at the nominal margin but not across the band.
 
 With a calibration (a vessel's own fitted process constant and remaining resistance, or a measured UA)
-the members are the ends of the fit's 95 % intervals instead (``basis = "calibration"``).
+the members are the ends of the fit's 95 % intervals instead (``basis = "calibration"``); for a measured UA,
+the ends of the measurement's interval under each coolant-side correlation of the measured surface, each
+with the process factor backed out under it (``calc.fits.single_point``).
 
 The heat load does not depend on the correlations (the agitator's power does not), so each member's
 margin is its duty over the nominal load. Members' warnings are not repeated: each alternative's range
@@ -98,11 +100,15 @@ def published_members(result: HeatTransferResult, vessel: Vessel) -> list[tuple[
     calibration = base.calibration
     measured = None if calibration is None or calibration.measurement is None else calibration.measurement.surface
     if measured is not None and calibration is not None and calibration.factor_interval is not None:
-        # a measured UA: the factor backed out at each end of the measurement's interval; the measured surface's
-        # published alternatives are replaced by it (each would reproduce the same measurement)
+        # a measured UA: the factor backed out at each end of the measurement's interval, under the nominal and
+        # under each coolant-side alternative of the measured surface (calc.fits.single_point); the measured
+        # surface's published alternatives are replaced by these (each reproduces the same measurement)
         name = calibration.measurement.factor_field if calibration.measurement is not None else "process_factor"
         members += [("calibrated_process_factor", f"factor={f:.4g}", base.with_factor(name, f))
                     for f in calibration.factor_interval]
+        members += [("calibrated_process_factor", f"factor={f:.4g} with {field}={option}",
+                     base.with_factor(name, f).with_service_option(field, option))
+                    for field, option, *ends in calibration.alternative_factors for f in ends]
         if measured == "jacket":
             jacket = False
         else:

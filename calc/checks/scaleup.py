@@ -49,7 +49,7 @@ from calc.fits.single_point import carried
 from calc.network import vectorised
 from calc.network.heat_transfer import calibrated
 from calc.properties import LiquidProperties
-from calc.sizing.jacket_sizing import SizedDesign, jacket_sizing
+from calc.sizing.jacket_sizing import SizedDesign, SizingOptions, jacket_sizing
 from calc.validity import CalcWarning, CalculationError, InputError, TooLarge, Warnings, fields_renamed
 from calc.vessel.model import Charge, Coolant, Vessel
 
@@ -300,7 +300,8 @@ def _target_scale(ref: _Reference, target: float | Vessel, own_coolant: Coolant 
     design = None
     if size_jacket and generated:
         design = jacket_sizing(case.vessel, case.charge, case.coolant, process_temperature, case.heat_release,
-                               safety_factor, deadline=deadline).recommended
+                               safety_factor, SizingOptions(margin_bands="recommendation"),
+                               deadline=deadline).recommended
     return check, partial(ScaleResult, case.vessel.name, case.volume, case.charge_volume, case.scale_factor,
                           generated, case.vessel.agitator.speed, case.vessel, case.coolant, jacket_design=design)
 
@@ -389,7 +390,7 @@ def scale_up(reference: Vessel, targets: Iterable[Target], rule: str, charge: Ch
     warnings = Warnings()
 
     with fields_renamed({"vessel": "reference"}):
-        reference = calibrated(reference)  # a measured UA is backed out on the reference, where it was measured
+        reference = calibrated(reference, deadline)  # a measured UA is backed out on the reference, where it was measured
     targets = [(carried(t[0], reference), t[1]) if isinstance(t, tuple) else
                carried(t, reference) if isinstance(t, Vessel) else t for t in targets]
     calibration = reference.correlations.calibration

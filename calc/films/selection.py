@@ -75,6 +75,10 @@ class Calibration:
     measurement: Measurement | None = None
     factor: float | None = None  # backed out from ``measurement`` (None until resolved)
     factor_interval: tuple[float, float] | None = None
+    #: (field of CorrelationChoice, option, factor at the interval's low end, at its high end): the back-out redone
+    #: under each coolant-side alternative of the measured surface (the measurement fixes U at its state; under
+    #: another service-side correlation another process factor reproduces it)
+    alternative_factors: tuple[tuple[str, str, float, float], ...] = ()
     basis: str = ""
 
     def constants(self, a: float | None = None) -> FilmConstants:
@@ -135,6 +139,18 @@ class CorrelationChoice:
         if name == "coil_process_factor":
             return replace(self, coil_process_factor=value)
         return replace(self, process_factor=value)
+
+    def with_service_option(self, name: str, option: str) -> "CorrelationChoice":
+        """This choice with the coolant-side field ``name`` (annular_jacket, channel or coil_tube) set to ``option``."""
+        from dataclasses import replace
+
+        if name == "annular_jacket":
+            return replace(self, annular_jacket=option)
+        if name == "channel":
+            return replace(self, channel=option)
+        if name == "coil_tube":
+            return replace(self, coil_tube=option)
+        raise ValueError(f"{name!r} is not a coolant-side choice")
 
     def validate(self, impeller: str | None = None) -> "CorrelationChoice":
         """Raise :class:`InputError` naming ``correlations.<field>`` for an unknown option."""
@@ -208,7 +224,8 @@ def alternatives() -> list[Alternative]:
     for key in jacket_side.ANNULAR_CORRELATIONS:
         entry = jacket_side.CORRELATIONS[key]
         out.append(Alternative("annular_jacket", key, entry.name, key == CorrelationChoice.annular_jacket,
-                               "plain annular jacket", entry.source, _validity(entry), {}))
+                               "plain annular jacket", entry.source, _validity(entry),
+                               dict(jacket_side.ANNULAR_CONSTANTS[key])))
     curved = [coil_side.CORRELATIONS[k] for k in ("schmidt_1967_laminar", "gnielinski_coil_transition")]
     straight = [jacket_side.CORRELATIONS[k] for k in ("sieder_tate_1936_laminar", "gnielinski_2013",
                                                       "sieder_tate_1936_turbulent")]

@@ -22,21 +22,35 @@ the usual single-point calibration of an agitated vessel (common practice, no so
   flows and temperatures: a Wilson plot (two or more speeds) separates the two.
 
 The root is found with Brent's method on ln f over [1e-3, 1e3] (UA rises strictly with f). The band
-then comes from the measurement's stated 95 % interval: the same back-out at each end gives the
-interval of f (``Calibration.factor_interval``), and the margin band's members are those two factors.
-A measurement outside what any f in the bracket can give (above the UA of the remaining resistances
-alone, or a process film below a thousandth of the published one) is refused with the field named.
+then comes from the measurement's stated 95 % interval and from the coolant side: the same back-out at
+each end of the interval gives the interval of f (``Calibration.factor_interval``), and it is redone
+under each published coolant-side alternative of the measured surface (the other annular-jacket
+correlation, the other channel treatment, the other coil-tube correlation): the measurement fixes U at
+its state whatever the coolant film is, so under another coolant-side correlation another f reproduces
+it, and the margin at the design state (another coolant flow, temperature, speed) follows from that
+pair (``Calibration.alternative_factors``). The margin band's members are the interval's ends under
+every coolant-side alternative. An alternative that cannot reproduce the measurement with any f in the
+bracket is ruled out by it (named in the basis, not a member). A measurement outside what any f can
+give under the nominal correlations (above the UA of the remaining resistances alone, or a process film
+below a thousandth of the published one) is refused with the field named.
+
+Each network solve of the back-out first checks the request's deadline (about 12 solves per end and
+correlation): :class:`calc.deadline.OutOfTime` once it has passed.
 """
 from __future__ import annotations
 
 import math
+import threading
+from collections import OrderedDict
 from dataclasses import replace
-from functools import lru_cache
 from typing import TYPE_CHECKING
 
 from scipy.optimize import brentq
 
-from calc.films.selection import Measurement
+from calc.deadline import NEVER, Deadline
+from calc.films.coil_side import COIL_CORRELATIONS
+from calc.films.jacket_side import ANNULAR_CORRELATIONS, CHANNEL_TREATMENTS
+from calc.films.selection import CorrelationChoice, Measurement
 from calc.validity import InputError, fields_renamed
 from calc.vessel.model import Vessel
 
@@ -63,12 +77,46 @@ def measured_surface(result: HeatTransferResult, surface: str) -> tuple[float, f
     return sum(x.ua for x in surfaces), sum(x.area for x in surfaces)
 
 
-def resolved(vessel: Vessel) -> Vessel:
-    """``vessel`` with a pending single-point calibration backed out (the factor applied); else unchanged."""
+def resolved(vessel: Vessel, deadline: Deadline = NEVER) -> Vessel:
+    """``vessel`` with a pending single-point calibration backed out (the factor applied); else unchanged.
+
+    The back-out checks ``deadline`` before each network solve; a finished one is remembered per vessel."""
     calibration = vessel.correlations.calibration
     if calibration is None or not calibration.pending:
         return vessel
-    return _resolved(vessel)
+    with _LOCK:
+        known = _RESOLVED.get(vessel)
+        if known is not None:
+            _RESOLVED.move_to_end(vessel)
+            return known
+    answer = _resolved(vessel, deadline)
+    with _LOCK:
+        _RESOLVED[vessel] = answer
+        while len(_RESOLVED) > _REMEMBERED:
+            _RESOLVED.popitem(last=False)
+    return answer
+
+
+#: Vessels resolved lately (the same calibrated vessel is assembled by every solve of a check).
+_RESOLVED: OrderedDict[Vessel, Vessel] = OrderedDict()
+_REMEMBERED = 256
+_LOCK = threading.Lock()
+
+
+def service_alternatives(vessel: Vessel, surface: str) -> list[tuple[str, str]]:
+    """(field of CorrelationChoice, option) of every published coolant-side alternative of the measured ``surface``:
+    the options the margin band would vary there (``calc.checks.margin_band.published_members``)."""
+    base = vessel.correlations
+    coil_tube = [("coil_tube", key) for key in COIL_CORRELATIONS if key != base.coil_tube]
+    if surface == "coils":
+        return coil_tube
+    jacket_type = vessel.jacket.type if vessel.jacket is not None else None
+    if jacket_type == "annular":
+        return [("annular_jacket", key) for key in ANNULAR_CORRELATIONS if key != base.annular_jacket]
+    if jacket_type in ("half_pipe", "annular_spiral_baffle"):
+        channel = [("channel", key) for key in CHANNEL_TREATMENTS if key != base.channel]
+        return channel + (coil_tube if base.channel == "curved" else [])
+    return []
 
 
 def carried(target: Vessel, reference: Vessel) -> Vessel:
@@ -80,8 +128,15 @@ def carried(target: Vessel, reference: Vessel) -> Vessel:
     return replace(target, correlations=target.correlations.calibrated(calibration))
 
 
-@lru_cache(maxsize=256)
-def _resolved(vessel: Vessel) -> Vessel:
+class _Unreachable(Exception):
+    """The target UA lies outside what any factor in FACTOR_RANGE gives (``field`` and ``message`` say why)."""
+
+    def __init__(self, field: str, message: str):
+        super().__init__(message)
+        self.field, self.message = field, message
+
+
+def _resolved(vessel: Vessel, deadline: Deadline) -> Vessel:
     from calc.network.heat_transfer import heat_transfer
 
     calibration = vessel.correlations.calibration
@@ -92,39 +147,58 @@ def _resolved(vessel: Vessel) -> Vessel:
     base = replace(vessel.correlations, calibration=None, process_constants=None,
                    remaining_resistance=None).with_factor(name, 1.0)
     at = replace(vessel, agitator=replace(vessel.agitator, speed=speed))
+    per_area = measurement.quantity == "overall_coefficient"
+    fields = [f"calibration.measurement.{measurement.quantity}",
+              f"calibration.measurement.{measurement.quantity}_interval"]
 
-    def solve(factor: float) -> tuple[float, float]:
+    def solve(choice: CorrelationChoice, factor: float) -> tuple[float, float]:
+        deadline.check()
         with fields_renamed(_RENAMED):
-            result = heat_transfer(replace(at, correlations=base.with_factor(name, factor)), measurement.charge,
+            result = heat_transfer(replace(at, correlations=choice.with_factor(name, factor)), measurement.charge,
                                    measurement.coolant, measurement.process_temperature)
         return measured_surface(result, measurement.surface)
 
-    ua_low, area = solve(FACTOR_RANGE[0])
-    if not area > 0.0:
-        raise InputError("calibration.measurement.surface",
-                         f"the measured charge wets no {measurement.surface} surface of this vessel")
-    ua_high, _ = solve(FACTOR_RANGE[1])
-    per_area = measurement.quantity == "overall_coefficient"
-    scale = area if per_area else 1.0
-    targets = [measurement.value * scale] + [v * scale for v in measurement.interval]
-    fields = [f"calibration.measurement.{measurement.quantity}",
-              f"calibration.measurement.{measurement.quantity}_interval"]
-    factors = []
-    for i, target in enumerate(targets):
-        field = fields[min(i, 1)]
-        if target >= ua_high:
-            raise InputError(field, f"UA = {target:.4g} W/K cannot be reproduced: even a process film "
-                                    f"{FACTOR_RANGE[1]:g} times the published one gives {ua_high:.4g} W/K through the "
-                                    "computed wall, fouling and coolant film; check the measurement, its conditions "
-                                    "and the stated fouling, or fit the resistances separately (/v1/wilson-plot)")
-        if target <= ua_low:
-            raise InputError(field, f"UA = {target:.4g} W/K would need a process film below "
-                                    f"{FACTOR_RANGE[0]:g} of the published one (that gives {ua_low:.4g} W/K): check "
-                                    "the measurement, the wetted surface and the conditions")
-        factors.append(math.exp(brentq(lambda x, t=target: math.log(solve(math.exp(x))[0] / t),
-                                       math.log(FACTOR_RANGE[0]), math.log(FACTOR_RANGE[1]),
-                                       xtol=1e-12, rtol=1e-12)))
+    def back_out(choice: CorrelationChoice, values: list[float], field_of: list[str]) -> list[float]:
+        """The factor reproducing each measured value under ``choice`` (raises _Unreachable)."""
+        ua_low, area = solve(choice, FACTOR_RANGE[0])
+        if not area > 0.0:
+            raise InputError("calibration.measurement.surface",
+                             f"the measured charge wets no {measurement.surface} surface of this vessel")
+        ua_high, _ = solve(choice, FACTOR_RANGE[1])
+        scale = area if per_area else 1.0
+        factors = []
+        for value, field in zip(values, field_of):
+            target = value * scale
+            if target >= ua_high:
+                raise _Unreachable(field, f"UA = {target:.4g} W/K cannot be reproduced: even a process film "
+                                          f"{FACTOR_RANGE[1]:g} times the published one gives {ua_high:.4g} W/K through "
+                                          "the computed wall, fouling and coolant film; check the measurement, its "
+                                          "conditions and the stated fouling, or fit the resistances separately "
+                                          "(/v1/wilson-plot)")
+            if target <= ua_low:
+                raise _Unreachable(field, f"UA = {target:.4g} W/K would need a process film below "
+                                          f"{FACTOR_RANGE[0]:g} of the published one (that gives {ua_low:.4g} W/K): "
+                                          "check the measurement, the wetted surface and the conditions")
+            factors.append(math.exp(brentq(lambda x, t=target: math.log(solve(choice, math.exp(x))[0] / t),
+                                           math.log(FACTOR_RANGE[0]), math.log(FACTOR_RANGE[1]),
+                                           xtol=1e-12, rtol=1e-12)))
+        return factors
+
+    try:
+        factors = back_out(base, [measurement.value, *measurement.interval], [fields[0], fields[1], fields[1]])
+    except _Unreachable as error:
+        raise InputError(error.field, error.message) from None
+    alternatives: list[tuple[str, str, float, float]] = []
+    ruled_out: list[str] = []
+    for field, option in service_alternatives(vessel, measurement.surface):
+        try:
+            low_alt, high_alt = back_out(base.with_service_option(field, option), list(measurement.interval), fields[1:] * 2)
+        except _Unreachable:
+            ruled_out.append(f"{field}={option}")
+            continue
+        alternatives.append((field, option, low_alt, high_alt))
     factor, low, high = factors
+    deadline.check()
     with fields_renamed(_RENAMED):  # how much of 1/U the process film is at the measured state: how well one UA fixes a
         state = heat_transfer(replace(at, correlations=base.with_factor(name, factor)), measurement.charge,
                               measurement.coolant, measurement.process_temperature)
@@ -142,6 +216,13 @@ def _resolved(vessel: Vessel) -> Vessel:
              "Nu = a Re^b Pr^c); wall, fouling and coolant film as computed. At the measured state the process film "
              f"is {share * 100:.0f} % of 1/U: the smaller that share, the wider the multiplier's interval for the same "
              "UA interval; a run where the process film dominates (or a Wilson plot) narrows it")
-    calibration = replace(calibration, factor=factor, factor_interval=(low, high), basis=basis)
+    if alternatives:
+        basis += ("; under the other coolant-side correlations the same measurement gives a times " + ", ".join(
+            f"{lo:.4g}-{hi:.4g} ({field}={option})" for field, option, lo, hi in alternatives)
+            + ", and the band spans them")
+    if ruled_out:
+        basis += ("; ruled out by the measurement (no process factor reproduces it): " + ", ".join(ruled_out))
+    calibration = replace(calibration, factor=factor, factor_interval=(low, high),
+                          alternative_factors=tuple(alternatives), basis=basis)
     return replace(vessel, correlations=vessel.correlations.calibrated(calibration))
 

@@ -29,6 +29,7 @@ from calc.films import wall
 from calc.films.jacket_side import CoolantFilm
 from calc.films.process_side import ProcessFilm
 from calc.cautions import HEAT_TRANSFER
+from calc.deadline import NEVER, Deadline
 from calc.hydraulics import paths
 from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, InputError, Warnings, fields_renamed, require_positive
@@ -407,14 +408,15 @@ def _outer_diameter(vessel: Vessel) -> float:
     return vessel.shape.diameter + 2.0 * (spec.thickness + lining)
 
 
-def calibrated(vessel: Vessel) -> Vessel:
-    """``vessel`` with a pending single-point calibration resolved (``calc.fits.single_point.resolved``)."""
+def calibrated(vessel: Vessel, deadline: Deadline = NEVER) -> Vessel:
+    """``vessel`` with a pending single-point calibration resolved (``calc.fits.single_point.resolved``; its
+    network solves check ``deadline``)."""
     calibration = vessel.correlations.calibration
     if calibration is None or not calibration.pending:
         return vessel
     from calc.fits.single_point import resolved  # the back-out solves this network: imported on use
 
-    return resolved(vessel)
+    return resolved(vessel, deadline)
 
 
 def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float) -> Network:

@@ -7,7 +7,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, replace
 
-from calc.network.heat_transfer import lumped_exchange
+from calc.network.heat_transfer import calibrated, lumped_exchange
 from calc.properties import Liquid
 from calc.safety.dynamics import simulate
 from calc.safety.tank_model import Jacket, SimulationInput, SimulationResult
@@ -40,7 +40,9 @@ def simulate_in_vessel(inp: SimulationInput, given: RunVessel | None) -> Simulat
     # the request's own paths: the vessel and its coolant sit under "vessel", the start state under "charge"
     with fields_renamed({"vessel": "vessel.vessel", "coolant": "vessel.coolant", "calibration": "vessel.calibration",
                          "process_temperature": "charge.temperature"}):
-        exchange = lumped_exchange(given.vessel, contents, given.coolant, inp.charge.temperature)
+        # a measured UA is backed out first, on the caller's clock
+        vessel = calibrated(given.vessel, inp.budget.deadline.within(inp.budget.wall_time))
+        exchange = lumped_exchange(vessel, contents, given.coolant, inp.charge.temperature)
     jacket = Jacket(exchange.ua, exchange.coolant_flow, exchange.coolant_heat_capacity, exchange.inlet_temperature)
     shaft_power = exchange.shaft_power if given.agitator_power else inp.shaft_power
     result = simulate(replace(inp, jacket=jacket, shaft_power=shaft_power))

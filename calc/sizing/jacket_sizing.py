@@ -21,12 +21,33 @@ Candidates (defaults; every list can be given):
 - jacket + coil: when no jacket alone meets the duty, the highest-capacity jacket of each jacket type
   with each coil.
 
+Half pipes are rated a little low (conservative): the heat the half pipe's own walls conduct into the
+coolant is left out, and the one-dimensional fin treatment of the wall between turns understates U where
+the wall's Biot number is high (``fin_biot_high``; :data:`calc.films.wall.FIN_BIOT_LIMIT`). A half pipe
+rejected by a small margin may therefore do in practice; the margin band does not cover these two.
+
 Ranking (common practice, no source): "smallest" is the least heat-transfer area that meets the duty;
 among equal areas (every jacket covers the same wall) the simplest type (plain annular, then spiral
 baffle, then half pipe), then the least coolant hold-up (the volume of the channels: the least
-fabricated jacket or coil), then the least pressure drop. The overall recommendation prefers a jacket
-alone (no internals to clean, no displaced volume, no obstruction to the flow), then a jacket with a
-coil, then a coil alone.
+fabricated jacket or coil), then the least pressure drop.
+
+Margin bands: every feasible candidate (``options.margin_bands = "all"``: every evaluated candidate;
+``"recommendation"``: only the feasible ones the recommendation has to look at, as a scale-up uses it)
+carries the cooling check's margin band (:mod:`calc.checks.margin_band`: the margin over the published
+alternatives of every resistance and the fouling range), all bands built together in shared vectorised
+passes (:func:`calc.checks.margin_band.margin_bands`), and ``verdict_not_robust`` where the verdict at
+the nominal margin does not hold across the band. Bands of the infeasible candidates are left out by
+default because they double the time of a sizing (tests/benchmarks/sizing.py) and cannot change the
+recommendation.
+
+The overall recommendation (common practice, no source) is robust first: a feasible design whose band
+stays at or above the safety factor is preferred to any feasible design whose band falls below it (a
+design that meets the duty only with the nominal correlations is a bet on one correlation, and a new
+vessel has no measured UA to settle it). Among designs equally robust it prefers a jacket alone (no
+internals to clean, no displaced volume, no obstruction to the flow), then a jacket with a coil, then a
+coil alone; within those, the ranking above. When no feasible design's verdict holds across its band,
+the recommendation says so. ``smallest_feasible`` keeps its plain meaning (the smallest feasible design
+of each type, robust or not).
 """
 from __future__ import annotations
 
@@ -40,7 +61,7 @@ import numpy as np
 from calc.cautions import COOLING_CHECK
 from calc.checks.cooling_check import charge_mass, check_cautions, margin_of
 from calc.checks.heat_load import HeatLoad, HeatRelease, heat_load
-from calc.checks.margin_band import MarginBand, margin_band
+from calc.checks.margin_band import MarginBand, band_steps, margin_bands
 from calc.deadline import NEVER, Deadline
 from calc.films.jacket_side import JacketSpec
 from calc.network.flow_limit import FlowLimit, flow_limit, within_limits
@@ -63,6 +84,9 @@ COIL_CLEARANCE_RATIO = COIL_WALL_CLEARANCE  # free space on each side of a coil 
 TURN_FRACTIONS = (0.25, 0.5, 0.75, 1.0)
 HALF_PIPE_SCHEDULE, COIL_SCHEDULE = "40", "10S"
 DEFAULT_COIL_TUBE_SIZES = ("1", "1-1/2", "2", "3")
+#: Which candidates carry a margin band: the feasible ones (default), every evaluated one, or only those the
+#: recommendation needs (the feasible ones in its order up to the first whose verdict holds across its band).
+BAND_SCOPES = ("feasible", "all", "recommendation")
 #: Most candidates one sizing evaluates (a request whose lists multiply beyond this is refused).
 MAX_CANDIDATES = 600
 
@@ -86,6 +110,7 @@ class SizingOptions:
     coil_helix_diameter: float | None = None
     covers_bottom_head: bool = True
     jacket_top: float | None = None
+    margin_bands: str = "feasible"  # one of BAND_SCOPES
 
 
 @dataclass(frozen=True)
@@ -120,8 +145,19 @@ class Candidate:
     #: turns, :func:`calc.films.wall.half_pipe_surface_efficiency`); None for other designs
     surface_efficiency: float | None = None
     #: the margin over the published alternatives of every resistance (:mod:`calc.checks.margin_band`): given for
-    #: the smallest feasible design of each type (so for the recommendation), None for the others
+    #: every feasible design (every evaluated one with ``options.margin_bands = "all"``), None for the others
     margin_band: MarginBand | None = None
+
+    @property
+    def verdict_not_robust(self) -> bool | None:
+        """The verdict (feasible or not) changes within the margin band; None without a band."""
+        return None if self.margin_band is None else not self.margin_band.holds_across_band
+
+    @property
+    def robust(self) -> bool:
+        """Feasible, and still so across the margin band (no net load: nothing to hold)."""
+        return self.feasible and (self.margin is None or (self.margin_band is not None
+                                                          and self.margin_band.holds_across_band))
 
     @property
     def jacket_geometry(self) -> dict[str, Any] | None:
@@ -207,6 +243,9 @@ def check_envelope(vessel: Vessel, options: SizingOptions) -> None:
                 raise InputError(f"options.pipe_pitches[{i}]",
                                  f"{pitch:g} m is below the width of the NPS {widest.nps} half pipe "
                                  f"({widest.outer_diameter:g} m): neighbouring turns would overlap")
+    if options.margin_bands not in BAND_SCOPES:
+        raise InputError("options.margin_bands", f"must be one of {', '.join(BAND_SCOPES)}, got "
+                                                 f"{options.margin_bands!r}")
     for i, zones in enumerate(options.zones):
         if not 1 <= zones <= 20:
             raise InputError(f"options.zones[{i}]", f"must be between 1 and 20, got {zones!r}")
@@ -549,38 +588,107 @@ def jacket_sizing(vessel: Vessel, charge: Charge, coolant: Coolant, process_temp
     for kind in TYPES:
         feasible = [c for c in candidates if c.type == kind and c.feasible]
         smallest[kind] = min(feasible, key=_rank_key).index if feasible else None
-    for index in dict.fromkeys(i for i in smallest.values() if i is not None):
-        deadline.check()
-        candidates[index] = replace(candidates[index], margin_band=_band(evaluated[index], safety_factor))
-    recommendation = _recommend(candidates, smallest, safety_factor)
+    if options.margin_bands == "recommendation":
+        # in the order of the recommendation without bands, in growing batches, until one holds across its band:
+        # the first that does is the recommendation (robust first); when none does, every feasible design is banded
+        queue = sorted((c for c in candidates if c.feasible), key=lambda c: (_group(c), _rank_key(c)))
+        size = 1
+        while queue:
+            batch, queue = queue[:size], queue[size:]
+            _attach(candidates, evaluated, [c.index for c in batch], safety_factor, deadline)
+            if any(candidates[c.index].robust for c in batch):
+                break
+            size *= 4
+    else:
+        _attach(candidates, evaluated, [i for i, e in enumerate(evaluated)
+                                        if options.margin_bands == "all" or e.candidate.feasible], safety_factor,
+                deadline)
+    recommendation = _recommend(candidates, safety_factor)
     duty = safety_factor * load.total if load is not None else 0.0
     cautions = check_cautions(heat_release) + (SIZING_CAUTION,)
     return JacketSizing(tuple(candidates), recommendation, smallest, load, duty, safety_factor, warnings, cautions)
 
 
-def _band(evaluated: Evaluated, safety_factor: float) -> MarginBand | None:
-    """The margin band of an evaluated design (:func:`calc.checks.margin_band.margin_band`, as the cooling check)."""
-    network, result, load = evaluated.network, evaluated.result, evaluated.load
-    if network is None or result is None or load is None:
-        return None
-    return margin_band(network.vessel, network.charge, network.coolant, network.process_temperature, result,
-                       load.total, evaluated.candidate.margin, safety_factor)
+def _attach(candidates: list[Candidate], evaluated: list[Evaluated], indices: list[int], safety_factor: float,
+            deadline: Deadline) -> None:
+    """Give the candidates at ``indices`` their margin bands (and ``verdict_not_robust`` where it applies)."""
+    deadline.check()
+    for index, band in _bands(evaluated, indices, safety_factor).items():
+        codes = candidates[index].warning_codes + (() if band.holds_across_band else ("verdict_not_robust",))
+        candidates[index] = replace(candidates[index], margin_band=band, warning_codes=codes)
 
 
-def _recommend(candidates: list[Candidate], smallest: dict[str, int | None], safety_factor: float) -> Recommendation:
-    for group in (JACKET_TYPES, ("jacket_and_coil",), ("coil",)):
-        chosen = [candidates[i] for i in (smallest.get(k) for k in group) if i is not None]
-        if not chosen:
-            continue
-        best = min(chosen, key=_rank_key)
-        why = {JACKET_TYPES: "a jacket alone meets the duty (no internals to clean, no displaced volume)",
-               ("jacket_and_coil",): "no jacket alone meets the duty; a jacket with an internal coil does",
-               ("coil",): "only an internal coil meets the duty"}[group]
-        reasoning = (f"{why}; of the feasible designs this has the least heat-transfer area "
+def _bands(evaluated: list[Evaluated], indices: list[int], safety_factor: float) -> dict[int, MarginBand]:
+    """The margin bands of the evaluated designs at ``indices``, all together: each is the cooling check's band
+    (:func:`calc.checks.margin_band.band_steps` of the network as solved, at the flow the utility can push), and
+    every pass solves the members of all bands in one call of the vectorised network."""
+    chosen = [(i, e) for i, e in ((i, evaluated[i]) for i in indices)
+              if e.network is not None and e.result is not None and e.load is not None]
+    steps = []
+    for _, e in chosen:
+        assert e.network is not None and e.result is not None and e.load is not None
+        network = e.network
+        steps.append(band_steps(network.vessel, network.charge, network.coolant, network.process_temperature,
+                                e.result, e.load.total, e.candidate.margin, safety_factor))
+    return dict(zip((i for i, _ in chosen), margin_bands(steps))) if steps else {}
+
+
+def _group(candidate: Candidate) -> int:
+    """Rank of the candidate's kind in the recommendation: a jacket alone, a jacket with a coil, a coil alone."""
+    return 0 if candidate.type in JACKET_TYPES else 1 if candidate.type == "jacket_and_coil" else 2
+
+
+def _recommend_key(candidate: Candidate) -> tuple[bool, int, tuple[float, int, float, float, int]]:
+    return not candidate.robust, _group(candidate), _rank_key(candidate)
+
+
+WHY = ("a jacket alone meets the duty (no internals to clean, no displaced volume)",
+       "no jacket alone meets the duty; a jacket with an internal coil does",
+       "only an internal coil meets the duty")
+KINDS = ("a jacket alone", "a jacket with an internal coil", "an internal coil alone")
+
+
+def _band_text(candidate: Candidate) -> str:
+    band = candidate.margin_band
+    if band is None or band.low is None or band.high is None:
+        return ""
+    return f" (band {band.low:.3g}-{band.high:.3g}, low end with {band.low_set_by})"
+
+
+def _recommend(candidates: list[Candidate], safety_factor: float) -> Recommendation:
+    feasible = [c for c in candidates if c.feasible]
+    if feasible:
+        best = min(feasible, key=_recommend_key)
+        margin = best.margin if best.margin is None else round(best.margin, 3)
+        why = WHY[_group(best)] if _group(best) == min(map(_group, feasible)) else (
+            f"{KINDS[_group(best)]} meets the duty across its margin band, where the simpler kinds meet it only at "
+            "the nominal margin")
+        reasoning = (f"{why}; "
+                     f"of the feasible designs this has the least heat-transfer area "
                      f"({best.heat_transfer_area:.3g} m2) and, among equal areas, the simplest type and the least "
                      f"coolant hold-up ({best.holdup_volume * 1e3:.3g} L); pressure drop "
-                     f"{best.pressure_drop / 1e5:.3g} bar, margin {best.margin if best.margin is None else round(best.margin, 3)} "
-                     f"against the safety factor {safety_factor:g} at {best.coolant_flow:.3g} kg/s")
+                     f"{best.pressure_drop / 1e5:.3g} bar, margin {margin}{_band_text(best)} against the safety "
+                     f"factor {safety_factor:g} at {best.coolant_flow:.3g} kg/s")
+        if best.robust:
+            reasoning = reasoning.replace("of the feasible designs this has",
+                                          "of the feasible designs whose verdict holds across their margin band "
+                                          "this has", 1)
+            passed = [c for c in feasible if not c.robust and (_group(c), _rank_key(c)) < (_group(best),
+                                                                                          _rank_key(best))]
+            if passed:
+                first = min(passed, key=lambda c: (_group(c), _rank_key(c)))
+                reasoning += (f". Preferred to {len(passed)} smaller or simpler feasible design(s), such as "
+                              f"#{first.index} ({first.description}, margin {first.margin:.3g}"
+                              f"{_band_text(first)}), whose verdict does not hold across the band: they meet the "
+                              "duty only with the nominal correlations")
+        else:
+            reasoning += (". CAUTION: no feasible design's verdict holds across its margin band; this one falls to "
+                          f"{best.margin_band.low:.3g} with {best.margin_band.low_set_by}, below the safety factor. "
+                          "It meets the duty only with the nominal correlations: confirm the film coefficients "
+                          "(a water run on a similar vessel) or design for more margin (a colder coolant, a longer "
+                          "dosing time, a higher available pressure difference)"
+                          if best.margin_band is not None and best.margin_band.low is not None else
+                          ". Its margin band was not computed")
         return Recommendation(best.index, best.type, best.description, reasoning)
     top = max(candidates, key=lambda c: c.cooling_capacity)
     return Recommendation(None, None, "no feasible design",

@@ -5,7 +5,8 @@ Measures, in-process (no network, no gunicorn), the median wall time of
 2. the sizing calculation alone (``calc.sizing.jacket_sizing.jacket_sizing``) for the demo request
    (examples/jacket_sizing_request.json) and for the same duty made harder (no jacket alone suffices, so
    jacket + coil combinations are evaluated too);
-   and for the harder duty over wider option lists (about 200 candidates);
+   and for the harder duty over wider option lists (about 200 candidates), with the margin bands of the
+   feasible candidates (the default) and of every candidate (``options.margin_bands = "all"``);
 3. the same ~200 candidates one by one on the scalar path (flow limit, then the readable network solve: how
    the sizing evaluated them before it used the vectorised network), and the ratio of the two;
 4. the whole request through the Flask test client (schemas, JSON), for the demo request;
@@ -63,20 +64,24 @@ def main(argv: list[str] | None = None) -> int:
     with app.app_context():
         demo, hard = JacketSizingRequestSchema().load(body), JacketSizingRequestSchema().load(harder)
         many = JacketSizingRequestSchema().load(wide)
+        every = JacketSizingRequestSchema().load(dict(wide, options=dict(wide["options"], margin_bands="all")))
 
     one = replace(demo["vessel"], jacket=JacketSpec("half_pipe", pipe_diameter=0.0525, pipe_pitch=0.09))
     network = _median(lambda: heat_transfer(one, demo["charge"], demo["coolant"], demo["process_temperature"]),
                       args.repeats * 10)
     print(f"one network solve (half-pipe jacket): {1000 * network:.2f} ms")
-    print(f"{'case':<46}{'candidates':>11}{'ms/request':>12}{'ms/candidate':>14}{'x network':>11}")
+    print(f"{'case':<56}{'candidates':>11}{'ms/request':>12}{'ms/candidate':>14}{'x network':>11}")
     for label, a in (("demo (a jacket alone suffices)", demo), ("harder duty (jacket + coil evaluated)", hard),
-                     ("harder duty, wider option lists", many)):
+                     ("harder duty, wider option lists", many),
+                     ("same, a margin band on every candidate", every)):
         def run(a=a):
             return jacket_sizing(a["vessel"], a["charge"], a["coolant"], a["process_temperature"], a["heat_release"],
                                  a["safety_factor"], a["options"])
-        count = len(run().candidates)
+        answer = run()
+        count, banded = len(answer.candidates), sum(c.margin_band is not None for c in answer.candidates)
         seconds = _median(run, args.repeats)
-        print(f"{label:<46}{count:>11}{1000 * seconds:>12.1f}{1000 * seconds / count:>14.2f}"
+        label = f"{label} [{banded} bands]"
+        print(f"{label:<56}{count:>11}{1000 * seconds:>12.1f}{1000 * seconds / count:>14.2f}"
               f"{seconds / count / network:>11.2f}")
     # the same candidates of the widest case one by one on the scalar path (as before the vectorised pass): the
     # flow limit, then the readable network solve at the flow the utility can push
@@ -98,12 +103,12 @@ def main(argv: list[str] | None = None) -> int:
     scalar = _median(one_by_one, max(1, args.repeats // 2))
     vector = _median(lambda: jacket_sizing(a["vessel"], a["charge"], a["coolant"], a["process_temperature"],
                                            a["heat_release"], a["safety_factor"], a["options"]), args.repeats)
-    print(f"{'same, scalar path one by one (no bands)':<46}{count:>11}{1000 * scalar:>12.1f}"
+    print(f"{'same, scalar path one by one (no bands)':<56}{count:>11}{1000 * scalar:>12.1f}"
           f"{1000 * scalar / count:>14.2f}{scalar / count / network:>11.2f}")
     print(f"whole sizing (vectorised, with bands) / scalar path one by one: {vector / scalar:.2f}")
     client = app.test_client()
     seconds = _median(lambda: client.post("/v1/jacket-sizing", json=body), args.repeats)
-    print(f"{'demo through the Flask test client':<46}{'':>11}{1000 * seconds:>12.1f}")
+    print(f"{'demo through the Flask test client':<56}{'':>11}{1000 * seconds:>12.1f}")
     return 0
 
 
