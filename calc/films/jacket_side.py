@@ -419,39 +419,66 @@ def _plain(step: Callable[[float], float], v: float) -> float:
     return v
 
 
+def _steffensen(step: Callable[[float], float], v: float) -> tuple[float | None, float]:
+    """The fixed point of ``step`` by Steffensen's method from ``v`` (None when it does not settle), and the
+    largest contraction ``|step(b) - step(a)| / |b - a|`` seen on the way."""
+    contraction = 0.0
+    for _ in range(12):
+        a = step(v)
+        if abs(a - v) <= SETTLED * a:
+            return a, contraction
+        b = step(a)
+        if abs(b - a) <= SETTLED * b:
+            return b, contraction
+        curvature = b - 2.0 * a + v
+        if curvature == 0.0:
+            return None, contraction
+        contraction = max(contraction, abs((b - a) / (a - v)))
+        extrapolated = v - (a - v) ** 2 / curvature
+        v = extrapolated if math.isfinite(extrapolated) and extrapolated > 0.0 else b
+    return None, contraction
+
+
+#: Plain steps :func:`_settled` may take towards the fixed point's side of the laminar switch before it gives
+#: up on Steffensen's method (the plain iteration left then settles within its steps at the contraction allowed).
+WALK_STEPS = 8
+
+
 def _settled(step: Callable[[float], float], first: float, switch: float) -> float:
     """The fixed point v = step(v) that plain iteration from ``first`` settles on (:func:`_plain`), reached
     faster by Steffensen's method (Aitken's extrapolation of every two steps; quadratic convergence), with the
     same test for settling, so the two agree to about 1e-13.
 
-    Plain iteration is the specification: it is used instead when Steffensen's steps do not settle, when
-    the plain iterates could cross the friction factor's laminar switch at the velocity ``switch`` (the
-    step is discontinuous there, and the two could settle on different sides), or when plain iteration
-    would be slow to contract (it might not settle within its steps and then ends elsewhere).
+    Plain iteration is the specification. Steffensen's answer stands only where plain iteration from the
+    current iterate ends there too: it contracts fast enough to settle within its steps (at the largest
+    contraction seen, with a margin of 1000) and its iterates, which stay within the distance from the
+    iterate to the fixed point, cannot reach the friction factor's laminar switch at the velocity ``switch``
+    (the step is discontinuous there, and the two could settle on different sides). Where the switch lies between them, plain steps are taken until the
+    iterate has crossed it (as plain iteration does), and Steffensen's method is tried again from there;
+    otherwise plain iteration from ``first`` decides.
     """
     v = first
-    contraction = 0.0
-    for _ in range(12):
-        a = step(v)
-        if abs(a - v) <= SETTLED * a:
-            v = a
+    walked = 0
+    while walked <= WALK_STEPS:
+        found, contraction = _steffensen(step, v)
+        if found is None:
             break
-        b = step(a)
-        if abs(b - a) <= SETTLED * b:
-            v = b
+        reach = abs(v - found)
+        left = FIXED_POINT_STEPS - 10 - walked  # plain steps left, less a margin
+        if contraction >= 1.0 or contraction ** left * reach > 1e-3 * SETTLED * found:
+            break  # plain iteration might not settle within its steps
+        if not found - reach <= switch <= found + reach:
+            return found
+        if (v - switch) * (found - switch) > 0.0 or walked == WALK_STEPS:
+            break  # the switch is within reach from the fixed point's own side: plain iteration decides
+        while (v - switch) * (found - switch) <= 0.0 and walked < WALK_STEPS:  # the plain steps across it
+            previous, v = v, step(v)
+            walked += 1
+            if abs(v - previous) <= SETTLED * v:
+                return v
+        if (v - switch) * (found - switch) <= 0.0:
             break
-        curvature = b - 2.0 * a + v
-        if curvature == 0.0:
-            return _plain(step, first)
-        contraction = max(contraction, abs((b - a) / (a - v)))
-        extrapolated = v - (a - v) ** 2 / curvature
-        v = extrapolated if math.isfinite(extrapolated) and extrapolated > 0.0 else b
-    else:
-        return _plain(step, first)
-    reach = abs(first - v)
-    if contraction > 0.7 or reach > v or v - reach <= switch <= v + reach:
-        return _plain(step, first)
-    return v
+    return _plain(step, first)
 
 
 def _Stein_Schmidt_elementwise(m: float, D_tank: float, gap: float, H: float, d_inlet: float, rho: float,
