@@ -35,6 +35,30 @@ def test_a_client_over_its_limit_gets_a_429_problem_with_retry_after():
     assert "more than 3 per 1 minute" in response.json["detail"] and response.json["instance"]
 
 
+def test_memory_counting_starts_no_thread_per_request_and_still_expires(monkeypatch):
+    # The library's memory storage starts a 10 ms timer thread after a hit whenever the last one has ended;
+    # ours sweeps on the request (a thread per request is overhead, common practice, no source).
+    import threading
+    import time
+
+    from api import limits
+
+    client = _app(RATE_LIMIT="100 per second").test_client()
+    client.get("/v1/fluids")
+    time.sleep(0.05)  # the one timer the library's constructor starts has run
+    threads = threading.active_count()
+    for _ in range(5):
+        assert client.get("/v1/fluids").status_code == 200
+        assert threading.active_count() == threads
+    storage = client.application.extensions["coolmargin.limiter"].storage
+    assert isinstance(storage, limits.InlineMemory)
+    monkeypatch.setattr(limits, "SWEEP_SECONDS", 0.0)
+    time.sleep(1.05)  # every entry is now past its one-second window: the next request sweeps them away
+    storage.next_sweep = 0.0
+    assert client.get("/v1/fluids").status_code == 200
+    assert [len(events) for events in storage.events.values()] == [1]  # only the entry of that request
+
+
 def test_probes_are_never_limited():
     client = _app(RATE_LIMIT="1 per minute").test_client()
     assert _statuses(client, 10, "/health") == [200] * 10

@@ -405,3 +405,22 @@ def test_half_pipe_curved_equals_a_coil_tube_of_the_same_equivalent_diameter():
         m_tube = jacket.reynolds * math.pi * d_e * glycol.viscosity / 4  # same Re in a round tube of De
         tube = service_film_coil(d_e, D_o, glycol, m_tube, 8e-3)
         assert jacket.nusselt == pytest.approx(tube.nusselt, rel=1e-12)
+
+
+@pytest.mark.parametrize("m", [0.002, 0.005, 0.05, 0.3, 0.6, 2.5, 10.0, 40.0])
+@pytest.mark.parametrize("roughness", [0.0, 1e-4])
+@pytest.mark.parametrize("coolant", [(995.7, 4178.1, 0.615, 798e-6, 355e-6, VDI_RHO_WALL),  # VDI example's water
+                                     (1045.0, 3600.0, 0.45, 4.0e-3, 6.0e-3, 1048.0)])  # glycol-like, laminar
+def test_stein_schmidt_accelerated_velocity_is_the_plain_fixed_point(m, roughness, coolant, monkeypatch):
+    # The tangential-inlet velocity is the fixed point of Stein & Schmidt's friction-factor iteration (VDI
+    # Heat Atlas, 2010); plain iteration is the specification, Steffensen's method only reaches it sooner
+    # (laminar, turbulent, and flows whose iterates cross the friction factor's laminar switch).
+    from calc.films import jacket_side
+
+    *properties, rho_wall = coolant
+    args = (m, 0.6, 0.025, 0.6, 0.025, *properties)
+    fast = h_jacket_Stein_Schmidt_1993(*args, rho_w=rho_wall, roughness=roughness)
+    monkeypatch.setattr(jacket_side, "_settled", lambda step, first, switch: jacket_side._plain(step, first))
+    plain = h_jacket_Stein_Schmidt_1993(*args, rho_w=rho_wall, roughness=roughness)
+    assert fast.velocity == pytest.approx(plain.velocity, rel=1e-12)
+    assert fast.h == pytest.approx(plain.h, rel=1e-12)

@@ -426,14 +426,13 @@ def _solve_limits(checks: list[tuple[Network, HeatTransferResult, float, FlowLim
         inlets = np.array([x if owners[i][3] else given_inlets[owners[i][0]] for i, x in wanted])
         factors = np.array([owners[i][1] if owners[i][3] else math.exp(x - owners[i][2]) for i, x in wanted])
         solver = prepared
-        cases = [case for batch in asked.values() for case in batch]
-        if cases:  # the band members join the pass: networks of their own, started cold, at their own coolant
-            members, member_index = vectorised.assemble_cases(cases)
-            solver = vectorised.Prepared(prepared.networks + tuple(members))
+        members = [network for batch in asked.values() for network in batch]
+        if members:  # the band members join the pass: networks of their own, started cold, at their own coolant
+            solver = vectorised.Prepared(prepared.networks + tuple(members), base=prepared)
             solver.warm_start([result for _, result, _, _ in checks] + [None] * len(members))
-            index = np.r_[index, len(checks) + member_index]
-            inlets = np.r_[inlets, [members[m].coolant.inlet_temperature for m in member_index]]
-            factors = np.r_[factors, np.ones(member_index.size)]
+            index = np.r_[index, len(checks) + np.arange(len(members))]
+            inlets = np.r_[inlets, [member.coolant.inlet_temperature for member in members]]
+            factors = np.r_[factors, np.ones(len(members))]
         duty = solver.solve(index, inlets, factors).duty if index.size else np.zeros(0)
         _record(searches, wanted, duty[:len(wanted)] / targets[index[:len(wanted)]] - 1.0)
         asked = band_step(bands, found, asked, duty[len(wanted):])
@@ -532,8 +531,8 @@ def finish_checks(pending: list[PendingCheck], deadline: Deadline = NEVER) -> li
     banded = [p for p in pending if p.band]
     limits, bands = _solve_limits(
         [(p.network, p.result, p.args[5] * p.load.total, limit) for p, limit in searched],
-        [band_steps(p.args[0], p.args[1], p.args[2], p.args[3], p.result, p.load.total, p.margin, p.args[5])
-         for p in banded], deadline)
+        [band_steps(p.args[0], p.args[1], p.args[2], p.args[3], p.result, p.load.total, p.margin, p.args[5],
+                    network=p.network) for p in banded], deadline)
     found = dict(zip((id(p) for p, _ in searched), limits))
     spreads = dict(zip(map(id, banded), bands))
     return [_checked(p, found.get(id(p)), spreads.get(id(p))) for p in pending]

@@ -3,8 +3,11 @@
 The nominal margin uses one correlation per resistance. The published alternatives disagree by more
 than the safety factor usually allows for (``calc.films.selection``), so every check also reports the
 spread of the margin over them: an ensemble, each member one solve of the heat-transfer network
-(all members in one pass of ``calc.network.vectorised.heat_transfer_many``, the network's public
-ensemble entry; the joint members in a second) with one resistance's correlation replaced:
+(all members in one pass of ``calc.network.vectorised.solve_many``, the network's public ensemble entry,
+or in the limit searches' passes of a check; the joint members in the next) with one resistance's
+correlation replaced. A member's network is the nominal one with its correlations swapped
+(``calc.network.heat_transfer.with_correlations``: the contents' properties, fill and agitation do not
+depend on them):
 
 * process side at the wall: every other published constant set of the impeller
   (``calc.films.process_side.wall_alternatives``); where none is published, the constant a times
@@ -46,8 +49,8 @@ import numpy as np
 
 from calc.films import process_side
 from calc.films.selection import CorrelationChoice
-from calc.network.heat_transfer import HeatTransferResult
-from calc.network.vectorised import heat_transfer_many
+from calc.network.heat_transfer import HeatTransferResult, Network, assemble, with_correlations
+from calc.network.vectorised import solve_many
 from calc.vessel.model import Charge, Coolant, Vessel
 
 #: The fouling members: the stated process-side fouling resistance doubled, and a clean wall (factor 0).
@@ -163,15 +166,16 @@ def _joint(base: CorrelationChoice, picks: list[BandMember]) -> CorrelationChoic
 def margin_band(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float,
                 result: HeatTransferResult, load_total: float,
                 nominal: float | None, safety_factor: float,
-                members: list[tuple[str, str, CorrelationChoice]] | None = None) -> MarginBand:
-    """The band around ``nominal`` (capacity/load of ``result``); ``members`` default: :func:`published_members`."""
+                members: list[tuple[str, str, CorrelationChoice]] | None = None,
+                network: Network | None = None) -> MarginBand:
+    """The band around ``nominal`` (capacity/load of ``result``); ``members`` default: :func:`published_members`.
+    ``network``: the assembled network of ``result`` when the caller has it (the members are built from it)."""
     return margin_bands([band_steps(vessel, charge, coolant, process_temperature, result, load_total, nominal,
-                                    safety_factor, members)])[0]
+                                    safety_factor, members, network)])[0]
 
 
-#: The steps of one band: yields the network cases of a pass, receives their duties, returns the band.
-NetworkCase = tuple[Vessel, Charge, Coolant, float]  # (vessel, charge, coolant, process temperature in K)
-BandSteps = Generator[list[NetworkCase], np.ndarray, MarginBand]
+#: The steps of one band: yields the member networks of a pass, receives their duties, returns the band.
+BandSteps = Generator[list[Network], np.ndarray, MarginBand]
 
 
 def margin_bands(steps: list[BandSteps]) -> list[MarginBand]:
@@ -179,21 +183,21 @@ def margin_bands(steps: list[BandSteps]) -> list[MarginBand]:
     bands: list[MarginBand | None] = [None] * len(steps)
     asked = band_start(steps, bands)
     while asked:
-        cases = [case for batch in asked.values() for case in batch]
-        asked = band_step(steps, bands, asked, heat_transfer_many(cases).duty if cases else np.zeros(0))
+        networks = [network for batch in asked.values() for network in batch]
+        asked = band_step(steps, bands, asked, solve_many(networks).duty if networks else np.zeros(0))
     return [band for band in bands if band is not None]
 
 
-def band_start(steps: list[BandSteps], bands: list[MarginBand | None]) -> dict[int, list[NetworkCase]]:
-    """The first cases each band asks for, by band; a band that needs no solve goes straight into ``bands``."""
+def band_start(steps: list[BandSteps], bands: list[MarginBand | None]) -> dict[int, list[Network]]:
+    """The first networks each band asks for, by band; a band that needs no solve goes straight into ``bands``."""
     return band_step(steps, bands, {i: [] for i in range(len(steps))}, None)
 
 
-def band_step(steps: list[BandSteps], bands: list[MarginBand | None], asked: dict[int, list[NetworkCase]],
-              duty: np.ndarray | None) -> dict[int, list[NetworkCase]]:
-    """Hand each band the duties of the cases it ``asked`` for (in order, concatenated; None to start them) and
+def band_step(steps: list[BandSteps], bands: list[MarginBand | None], asked: dict[int, list[Network]],
+              duty: np.ndarray | None) -> dict[int, list[Network]]:
+    """Hand each band the duties of the networks it ``asked`` for (in order, concatenated; None to start them) and
     collect what each asks for next; finished bands go into ``bands``."""
-    following: dict[int, list[NetworkCase]] = {}
+    following: dict[int, list[Network]] = {}
     start = 0
     for i, batch in asked.items():
         try:
@@ -206,8 +210,13 @@ def band_step(steps: list[BandSteps], bands: list[MarginBand | None], asked: dic
 
 def band_steps(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float, result: HeatTransferResult, load_total: float,
                nominal: float | None, safety_factor: float,
-               members: list[tuple[str, str, CorrelationChoice]] | None = None) -> BandSteps:
-    """:func:`margin_band` as steps for :func:`margin_bands` (the members of several checks in one pass)."""
+               members: list[tuple[str, str, CorrelationChoice]] | None = None,
+               network: Network | None = None) -> BandSteps:
+    """:func:`margin_band` as steps for :func:`margin_bands` (the members of several checks in one pass).
+
+    Each member's network is ``network`` (assembled here when not given) with the member's correlations
+    (:func:`calc.network.heat_transfer.with_correlations`: the state's properties, fill and agitation are the
+    nominal network's, the same as assembling the member's vessel)."""
     basis = "published_alternatives" if vessel.correlations.calibration is None else "calibration"
     if members is None:
         members = published_members(result, vessel)
@@ -216,9 +225,14 @@ def band_steps(vessel: Vessel, charge: Charge, coolant: Coolant, process_tempera
                           ())
     nominal_margin: float = nominal
 
-    def cases(batch: list[tuple[str, str, CorrelationChoice]]) -> list[NetworkCase]:
-        """The network cases of ``batch``: solved in one pass of the vectorised network (the ensemble entry)."""
-        return [(replace(vessel, correlations=choice), charge, coolant, process_temperature) for _, _, choice in batch]
+    nominal_network = network
+
+    def cases(batch: list[tuple[str, str, CorrelationChoice]]) -> list[Network]:
+        """The networks of ``batch``: solved in one pass of the vectorised network (the ensemble entry)."""
+        nonlocal nominal_network
+        if nominal_network is None:
+            nominal_network = assemble(vessel, charge, coolant, process_temperature)
+        return [with_correlations(nominal_network, choice) for _, _, choice in batch]
 
     def solved_members(batch: list[tuple[str, str, CorrelationChoice]], duty: np.ndarray) -> list[BandMember]:
         return [BandMember(resistance, alternative, float(d) / load_total, choice)

@@ -370,18 +370,21 @@ def h_jacket_Stein_Schmidt_1993(m: float, D_tank: float, gap: float, H: float, d
         v_ch = Q / (2 * gap * b_mid) * shape
     else:
         v_z = Q / (math.pi * D_tank * gap)
-        f = friction_factor_Stein_Schmidt(1e5, roughness / d_ch)
-        v_ch = 0.0
-        for _ in range(100):
+
+        def velocity(f: float) -> float:
+            """The channel velocity with the friction factor ``f``, m/s."""
             spread = f * D_tank * H / d_inlet ** 2
             K3 = v_in / 4 - v_in / (4 * spread)
             K4 = v_in ** 2 / (2 * spread)
             v_x0 = K3 + math.sqrt(K3 ** 2 + K4)
             v_x = v_in * math.log1p(spread * v_x0 / v_in) / spread
-            previous, v_ch = v_ch, math.hypot(v_x, v_z)
-            f = friction_factor_Stein_Schmidt(rho * v_ch * d_ch / mu, roughness / d_ch)
-            if abs(v_ch - previous) <= 1e-13 * v_ch:
-                break
+            return math.hypot(v_x, v_z)
+
+        def step(v: float) -> float:
+            return velocity(friction_factor_Stein_Schmidt(rho * v * d_ch / mu, roughness / d_ch))
+
+        v_ch = _settled(step, velocity(friction_factor_Stein_Schmidt(1e5, roughness / d_ch)),
+                        PIPE_TRANSITION * mu / (rho * d_ch))
     Re = rho * v_ch * d_ch / mu
     if rho_w is not None and rho_w != rho:
         buoyancy = g * rho * abs(rho - rho_w) * d_ch ** 3 / mu ** 2 * H / d_ch / 50.0
@@ -401,6 +404,83 @@ def h_jacket_Stein_Schmidt_1993(m: float, D_tank: float, gap: float, H: float, d
     return _Flow(Nu * k / d_ch, Re, v_ch, Nu, d_ch)
 
 
+#: The tangential-inlet velocity is settled when one more step moves it by this share or less.
+SETTLED = 1e-13
+#: Most steps of that fixed-point iteration (the first velocity, at the friction factor of Re = 1e5, included).
+FIXED_POINT_STEPS = 100
+
+
+def _plain(step: Callable[[float], float], v: float) -> float:
+    """The fixed point of ``step`` by plain iteration from ``v`` (the first step's result), as specified."""
+    for _ in range(FIXED_POINT_STEPS - 1):
+        previous, v = v, step(v)
+        if abs(v - previous) <= SETTLED * v:
+            break
+    return v
+
+
+def _steffensen(step: Callable[[float], float], v: float) -> tuple[float | None, float]:
+    """The fixed point of ``step`` by Steffensen's method from ``v`` (None when it does not settle), and the
+    largest contraction ``|step(b) - step(a)| / |b - a|`` seen on the way."""
+    contraction = 0.0
+    for _ in range(12):
+        a = step(v)
+        if abs(a - v) <= SETTLED * a:
+            return a, contraction
+        b = step(a)
+        if abs(b - a) <= SETTLED * b:
+            return b, contraction
+        curvature = b - 2.0 * a + v
+        if curvature == 0.0:
+            return None, contraction
+        contraction = max(contraction, abs((b - a) / (a - v)))
+        extrapolated = v - (a - v) ** 2 / curvature
+        v = extrapolated if math.isfinite(extrapolated) and extrapolated > 0.0 else b
+    return None, contraction
+
+
+#: Plain steps :func:`_settled` may take towards the fixed point's side of the laminar switch before it gives
+#: up on Steffensen's method (the plain iteration left then settles within its steps at the contraction allowed).
+WALK_STEPS = 8
+
+
+def _settled(step: Callable[[float], float], first: float, switch: float) -> float:
+    """The fixed point v = step(v) that plain iteration from ``first`` settles on (:func:`_plain`), reached
+    faster by Steffensen's method (Aitken's extrapolation of every two steps; quadratic convergence), with the
+    same test for settling, so the two agree to about 1e-13.
+
+    Plain iteration is the specification. Steffensen's answer stands only where plain iteration from the
+    current iterate ends there too: it contracts fast enough to settle within its steps (at the largest
+    contraction seen, with a margin of 1000) and its iterates, which stay within the distance from the
+    iterate to the fixed point, cannot reach the friction factor's laminar switch at the velocity ``switch``
+    (the step is discontinuous there, and the two could settle on different sides). Where the switch lies between them, plain steps are taken until the
+    iterate has crossed it (as plain iteration does), and Steffensen's method is tried again from there;
+    otherwise plain iteration from ``first`` decides.
+    """
+    v = first
+    walked = 0
+    while walked <= WALK_STEPS:
+        found, contraction = _steffensen(step, v)
+        if found is None:
+            break
+        reach = abs(v - found)
+        left = FIXED_POINT_STEPS - 10 - walked  # plain steps left, less a margin
+        if contraction >= 1.0 or contraction ** left * reach > 1e-3 * SETTLED * found:
+            break  # plain iteration might not settle within its steps
+        if not found - reach <= switch <= found + reach:
+            return found
+        if (v - switch) * (found - switch) > 0.0 or walked == WALK_STEPS:
+            break  # the switch is within reach from the fixed point's own side: plain iteration decides
+        while (v - switch) * (found - switch) <= 0.0 and walked < WALK_STEPS:  # the plain steps across it
+            previous, v = v, step(v)
+            walked += 1
+            if abs(v - previous) <= SETTLED * v:
+                return v
+        if (v - switch) * (found - switch) <= 0.0:
+            break
+    return _plain(step, first)
+
+
 def _Stein_Schmidt_elementwise(m: float, D_tank: float, gap: float, H: float, d_inlet: float, rho: float,
                                cp: float, k: float, mu: float, mu_w: float, inlet_type: str, inlet_location: str,
                                rho_w: float | None, roughness: float) -> _Flow:
@@ -414,9 +494,9 @@ def _Stein_Schmidt_elementwise(m: float, D_tank: float, gap: float, H: float, d_
                                    (m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, rho if rho_w is None else rho_w,
                                     roughness)))
     one_state: Callable[..., _Flow] = h_jacket_Stein_Schmidt_1993
-    rows = [one_state(*(float(a.flat[i]) for a in values[:10]), inlet_type=inlet_type,
-                      inlet_location=inlet_location, rho_w=float(values[10].flat[i]),
-                      roughness=float(values[11].flat[i])) for i in range(values[0].size)]
+    states = zip(*(a.ravel().tolist() for a in values))  # Python floats, one tuple per state
+    rows = [one_state(*state[:10], inlet_type=inlet_type, inlet_location=inlet_location, rho_w=state[10],
+                      roughness=state[11]) for state in states]
     return _Flow._make(np.array(column).reshape(values[0].shape) for column in zip(*rows))
 
 

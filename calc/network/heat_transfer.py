@@ -33,6 +33,7 @@ from calc.deadline import NEVER, Deadline
 from calc.hydraulics import paths
 from calc.properties import LiquidProperties
 from calc.validity import CalcWarning, InputError, Warnings, fields_renamed, require_positive
+from calc.films.selection import CorrelationChoice
 from calc.vessel.model import Charge, Coolant, Vessel
 
 TOLERANCE = 1e-6  # K
@@ -424,12 +425,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
     A single-point calibration (a measured UA at stated conditions) is backed out here first, once per
     vessel (``calc.fits.single_point``); ``Network.vessel`` carries the result.
     """
-    vessel = calibrated(vessel)
-    if vessel.correlations.process_fouling_factor != 1.0:  # the margin band's fouling members
-        vessel = replace(vessel, fouling=replace(vessel.fouling, process=vessel.fouling.process
-                                                 * vessel.correlations.process_fouling_factor),
-                         correlations=replace(vessel.correlations, process_fouling_factor=1.0))
-    warnings = Warnings()
+    vessel = _resolved(vessel)
     if coolant.inlet_temperature >= process_temperature:
         raise InputError("coolant.inlet_temperature",
                          "must be below the process temperature for cooling "
@@ -438,8 +434,37 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
     volume = charge.liquid_volume(process_temperature)
     filled = geometry.fill(vessel.shape, vessel.coverage, vessel.coils, volume=volume,
                            field="charge.volume" if charge.volume is not None else "charge.mass")
-    warnings.extend_unique(filled.warnings)
     stirred = agitation.agitation(vessel.agitator, props, filled.volume, vessel.shape.diameter)
+    return _network(vessel, charge, coolant, process_temperature, props, filled, stirred)
+
+
+def _resolved(vessel: Vessel) -> Vessel:
+    """``vessel`` with a pending calibration backed out and the band's fouling factor applied to its fouling."""
+    vessel = calibrated(vessel)
+    if vessel.correlations.process_fouling_factor != 1.0:  # the margin band's fouling members
+        vessel = replace(vessel, fouling=replace(vessel.fouling, process=vessel.fouling.process
+                                                 * vessel.correlations.process_fouling_factor),
+                         correlations=replace(vessel.correlations, process_fouling_factor=1.0))
+    return vessel
+
+
+def with_correlations(network: Network, correlations: CorrelationChoice) -> Network:
+    """``network`` with the vessel's ``correlations`` replaced: equal to ``assemble`` of that vessel with the same
+    charge, coolant and process temperature, keeping the parts the correlations do not touch (the contents'
+    properties, fill and agitation) instead of recomputing them (the margin band's members)."""
+    vessel = _resolved(replace(network.vessel, correlations=correlations))
+    flows = {stream.name[:4]: stream.mass_flow for stream in network.streams}  # the same coolant: the same flows
+    return _network(vessel, network.charge, network.coolant, network.process_temperature,
+                    network.process_properties, network.fill, network.agitation, flows.get("jack"), flows.get("coil"))
+
+
+def _network(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperature: float, props: LiquidProperties,
+             filled: geometry.FillGeometry, stirred: agitation.AgitationResult, jacket_flow: float | None = None,
+             coil_flow: float | None = None) -> Network:
+    """The streams and surfaces of ``vessel`` (resolved) at a state whose properties, fill and agitation are known
+    (and the coolant's jacket and coil mass flows, kg/s, when they are: else worked out from ``coolant``)."""
+    warnings = Warnings()
+    warnings.extend_unique(filled.warnings)
     warnings.extend_unique(stirred.warnings)
     shape, agitator, level = vessel.shape, vessel.agitator, filled.liquid_level
     choice = vessel.correlations.validate(agitator.impeller)
@@ -461,7 +486,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         chosen_jacket = choice.jacket(jacket)
         jacket_formula, geometry_warnings = jacket_side.jacket_film_formula(chosen_jacket, outer,
                                                                             max(jacket_height, 1e-3))
-        jacket_flow = require_positive("coolant.flow", coolant.mass_flow())
+        jacket_flow = require_positive("coolant.flow", coolant.mass_flow() if jacket_flow is None else jacket_flow)
 
         def service(props_c: LiquidProperties, mu_w: float, rho_w: float | None,
                     _formula: jacket_side.FilmFormula = jacket_formula) -> CoolantFilm:
@@ -486,7 +511,7 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
                     baffled=agitator.baffled, surface=_surface, alternative=choice.process_wall,
                     factor=choice.process_factor, constants=choice.process_constants),
                 service, jacket_formula, choice.remaining_resistance, channel))
-        streams.append(StreamModel("jacket", coolant.mass_flow(), tuple(models),
+        streams.append(StreamModel("jacket", jacket_flow, tuple(models),
                                    paths.jacket_path(jacket, outer, max(jacket_height, 1e-3))))
     elif vessel.jacket is not None:
         warnings.add(CalcWarning("jacket_not_wetted", "the liquid does not reach the jacket: no jacket heat transfer"))
@@ -510,17 +535,18 @@ def assemble(vessel: Vessel, charge: Charge, coolant: Coolant, process_temperatu
         with fields_renamed({"vessel.coils": f"vessel.coils[{index}]"}):
             formula = coil_side.coil_film_formula(coil.tube_inner_diameter, coil.helix_diameter, pitch=coil.pitch,
                                                   correlation=choice.coil_tube)
+        flow = coil_flow = coolant.coil_mass_flow() if coil_flow is None else coil_flow
         model = _SurfaceModel(
             f"coil_{index}", area, coil_wall, coil.tube_outer_diameter / 2.0, "outside",
             lambda mu_w, _coil=coil: process_side.process_film_coil(
                 agitator.impeller, stirred.reynolds, props, mu_w, shape.diameter, level,
                 _coil.tube_outer_diameter, agitator.diameter, baffled=agitator.baffled,
                 factor=choice.coil_process_factor, alternative=choice.process_coil),
-            lambda props_c, mu_w, rho_w, _coil=coil: coil_side.service_film_coil(
-                _coil.tube_inner_diameter, _coil.helix_diameter, props_c, coolant.coil_mass_flow(), mu_w,
+            lambda props_c, mu_w, rho_w, _coil=coil, _flow=flow: coil_side.service_film_coil(
+                _coil.tube_inner_diameter, _coil.helix_diameter, props_c, _flow, mu_w,
                 pitch=_coil.pitch, correlation=choice.coil_tube),
             formula)
-        streams.append(StreamModel(f"coil_{index}", coolant.coil_mass_flow(), (model,), paths.coil_path(coil)))
+        streams.append(StreamModel(f"coil_{index}", flow, (model,), paths.coil_path(coil)))
     if not streams:
         warnings.add(CalcWarning("no_cooling_surface", "no wetted jacket or coil area: the vessel cannot be cooled"))
     return Network(vessel, charge, coolant, process_temperature, props, filled, stirred, tuple(streams), warnings)

@@ -188,19 +188,35 @@ class Prepared:
     at new coolant states several times); ``solve_many`` builds one per call.
     """
 
-    def __init__(self, networks: Sequence[Network]):
+    charge_liquids: list[Liquid]
+    coolant_liquids: list[Liquid]
+    streams_t: list[tuple[Any, ...]]  # per stream template (see __init__)
+    surfaces_t: list[tuple[Any, ...]]  # per surface template
+
+    def __init__(self, networks: Sequence[Network], base: Prepared | None = None):
+        """``base``: a Prepared whose networks are the first of ``networks`` (the same objects); their templates
+        are taken from it instead of being set up again (the limit searches add the band's members)."""
         self.networks = tuple(networks)
-        charge_liquids: list[Liquid] = []
-        coolant_liquids: list[Liquid] = []
+        done = 0 if base is None else len(base.networks)
+        if base is not None and self.networks[:done] != base.networks:
+            raise ValueError("base: its networks must be the first of networks")
+        charge_liquids: list[Liquid] = [] if base is None else list(base.charge_liquids)
+        coolant_liquids: list[Liquid] = [] if base is None else list(base.coolant_liquids)
         # (flow, per volume?, coolant liquid index, process temperature)
-        streams_t: list[tuple[Any, ...]] = []
+        streams_t: list[tuple[Any, ...]] = [] if base is None else list(base.streams_t)
         # (stream template, area, charge liquid, bulk props, film, formula, layers, remaining resistance of a
         # calibration or None)
-        surfaces_t: list[tuple[Any, ...]] = []
-        self.network_streams: list[np.ndarray] = []
-        self.network_surfaces: list[np.ndarray] = []
-        self.network_local: list[np.ndarray] = []
-        for network in self.networks:
+        surfaces_t: list[tuple[Any, ...]] = [] if base is None else list(base.surfaces_t)
+        self.network_streams: list[np.ndarray] = [] if base is None else list(base.network_streams)
+        self.network_surfaces: list[np.ndarray] = [] if base is None else list(base.network_surfaces)
+        self.network_local: list[np.ndarray] = [] if base is None else list(base.network_local)
+        self.streams_t, self.surfaces_t = streams_t, surfaces_t
+        # Networks built from one network by ``heat_transfer.with_correlations`` (the band's members) share its
+        # agitation object and so its geometry: a surface's film at the bulk viscosity and its wall layers
+        # depend then only on the process-side choice and the fouling. Keyed by that object's id, which stays
+        # valid while these networks (held here) live; a base's entries are its own networks'.
+        self.films: dict[tuple[Any, ...], Any] = {} if base is None else dict(base.films)
+        for network in self.networks[done:]:
             charge_i = _index(charge_liquids, network.charge.liquid)
             coolant_i = _index(coolant_liquids, network.coolant.liquid)
             props = network.process_properties
@@ -215,10 +231,18 @@ class Prepared:
                     flow = coolant.flow if stream.name == "jacket" or coolant.coil_flow is None else coolant.coil_flow
                 follows = stream.name == "jacket" or coolant.coil_flow is None  # moves with coolant.flow
                 streams_t.append((flow, volume, coolant_i, network.process_temperature, follows))
+                choice = network.vessel.correlations
                 for model in stream.surfaces:
-                    film = model.process_film(props.viscosity)  # at ratio 1: the correlation's other arguments
-                    layer, _ = wall.wall_layers(model.wall, network.vessel.fouling, model.process_radius,
-                                                model.process_side, channel=model.channel)
+                    key = (id(network.agitation), model.name, choice.process_wall, choice.process_factor,
+                           choice.process_constants, choice.process_coil, choice.coil_process_factor)
+                    if key not in self.films:  # at ratio 1: the correlation's other arguments
+                        self.films[key] = model.process_film(props.viscosity)
+                    layers = (id(network.agitation), model.name, network.vessel.fouling)
+                    if layers not in self.films:
+                        self.films[layers] = wall.wall_layers(model.wall, network.vessel.fouling,
+                                                              model.process_radius, model.process_side,
+                                                              channel=model.channel)[0]
+                    film, layer = self.films[key], self.films[layers]
                     surfaces.append(len(surfaces_t))
                     surfaces_t.append((streams[-1], model.area, charge_i, props, film, model.service_formula, layer,
                                        model.remaining_resistance))
@@ -407,12 +431,15 @@ class Prepared:
         h_service = np.empty(sid.size)
         starts = np.flatnonzero(np.r_[True, sid[1:] != sid[:-1]])
         for iteration in range(1, MAX_ITERATIONS + 1):
+            # a correlation whose rows have all settled is not evaluated again: those rows keep the films of
+            # the iteration they settled in (as the scalar path reports them), and nothing else reads them
+            rows_active = active[sid]
             state = coolant.states(np.clip(mean, c_low, c_high))
             ratio = mu_bulk / charge.viscosity(np.clip(process_wall, p_low, p_high))
             for function, rows, arguments in process:
                 if rows is None:
                     h_process[:] = function(viscosity_ratio=ratio, **arguments) * k_bulk
-                else:
+                elif rows_active[rows].any():
                     h_process[rows] = function(viscosity_ratio=ratio[rows], **arguments) * k_bulk[rows]
             at_wall = np.clip(service_wall, c_low_rows, c_high_rows)
             wall_viscosity, wall_density = coolant_rows.viscosity(at_wall), coolant_rows.density(at_wall)
@@ -420,7 +447,7 @@ class Prepared:
             for function, rows, fixed in service:
                 if rows is None:
                     h_service[:] = function(bulk, flow_rows, wall_viscosity, wall_density, **fixed)[0]
-                else:
+                elif rows_active[rows].any():
                     h_service[rows] = function(_take(bulk, rows), flow_rows[rows], wall_viscosity[rows],
                                                wall_density[rows], **fixed)[0]
             overall = wall.overall_from_layers(h_process, h_service, layers)  # type: ignore[arg-type]  # arrays
@@ -438,7 +465,6 @@ class Prepared:
             outlet = np.where(active, new_outlet, outlet)
             iterations = np.where(active, iteration, iterations)
             mean = np.where(active, new_mean, mean)
-            rows_active = active[sid]
             process_wall = np.where(rows_active, temperatures.process_surface, process_wall)
             service_wall = np.where(rows_active, temperatures.service_surface, service_wall)
             active &= ~(change < TOLERANCE)

@@ -8,6 +8,9 @@
 2. In-process median time of one request through the Flask test client (no network, no gunicorn).
 3. In-process median of the calculations alone, including the vectorised network on 200 candidate jackets
    (one vessel shell, jacket designs varied) and on a 100-vessel fleet (target: each under 1 s).
+4. The floor of a cooling check request: /health, the request with its calculation precomputed (what Flask,
+   the rate limiter, the schemas and the presentation cost), the calculation alone and the whole request,
+   round-robin in one process.
 
 The machine may be shared: only ratios measured within one run mean anything, and the in-process
 figures are medians.
@@ -23,6 +26,7 @@ import statistics
 import sys
 import time
 from pathlib import Path
+from typing import Callable
 
 if not __package__:  # run as a script: import from tests/ and the project, not from this folder
     _HERE = Path(__file__).resolve().parent
@@ -128,6 +132,13 @@ def main(argv: list[str] | None = None) -> int:
     print("\nIn-process median of the calculation alone (no HTTP, no schemas)")
     for label, seconds in calculation_medians():
         print(f"{label:<56}{1000 * seconds:>10.2f} ms")
+    print("\nThe floor of a cooling check request (in-process, interleaved medians, the same rate limiter as served)")
+    floor = request_floor()
+    health = floor["/health"]
+    for label, seconds in floor.items():
+        print(f"{label:<56}{1000 * seconds:>10.2f} ms  = {health / seconds:>5.2f} x /health")
+    print("  a request costs at least its frame: with the calculation free, a check would reach "
+          f"{health / floor['cooling check, calculation precomputed (the frame)']:.2f} x /health")
     if misses:
         print(f"\n{misses} route(s) below the throughput target")
     return 0
@@ -177,6 +188,51 @@ def calculation_medians(repeats: int = 21) -> list[tuple[str, float]]:
             times.append(time.perf_counter() - start)
         out.append((label, statistics.median(times)))
     return out
+
+
+def request_floor(rounds: int = 200) -> dict[str, float]:
+    """Median times (s) of /health, of a cooling check request whose calculation returns a result computed
+    beforehand (Flask, rate limiter, JSON, schema load, dump and presentation: the frame), of the calculation
+    alone and of the whole request, measured round-robin in one process. Not a cache: the precomputed result
+    stands in for the calculation only here, to show what the frame costs."""
+    from api import create_app
+    from calc.checks import cooling_check
+    from schemas.cooling import CoolingCheckRequestSchema
+
+    from benchmarks.requests import EXAMPLES
+
+    body = EXAMPLES["/v1/cooling-check"].body
+    app = create_app({"RATE_LIMIT": UNLIMITED})
+    client = app.test_client()
+    with app.app_context():
+        args = CoolingCheckRequestSchema().load(body)
+    call = (args["vessel"], args["charge"], args["coolant"], args["process_temperature"], args["heat_release"],
+            args["safety_factor"])
+    solved = cooling_check.cooling_check(*call)
+    real = cooling_check.cooling_check
+
+    def post(precomputed: bool) -> None:
+        cooling_check.cooling_check = (lambda *_, **__: solved) if precomputed else real  # type: ignore[assignment]
+        try:
+            response = client.post("/v1/cooling-check", json=body)
+        finally:
+            cooling_check.cooling_check = real
+        if response.status_code != 200:
+            raise SystemExit(f"/v1/cooling-check -> {response.status_code}")
+
+    cases: dict[str, Callable[[], object]] = {
+        "/health": lambda: client.get("/health"),
+        "cooling check, calculation precomputed (the frame)": lambda: post(True),
+        "cooling check, the calculation alone": lambda: real(*call),
+        "cooling check, the whole request": lambda: post(False),
+    }
+    times: dict[str, list[float]] = {label: [] for label in cases}
+    for _ in range(rounds):
+        for label, function in cases.items():
+            start = time.perf_counter()
+            function()
+            times[label].append(time.perf_counter() - start)
+    return {label: statistics.median(values) for label, values in times.items()}
 
 
 def _candidates(check: dict, count: int) -> list[tuple]:
