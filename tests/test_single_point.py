@@ -362,11 +362,15 @@ def test_a_network_scaled_after_assembly_is_the_network_assembled_with_the_facto
             323.15)
     once = assemble(replace(vessel, correlations=plain), *args)
     again = assemble(replace(vessel, correlations=replace(plain, process_factor=factor)), *args)
-    scaled = _times(once, factor)
+    scaled = _times(once, "process_factor", factor)
     assert [m.process_film(1e-3).arguments for s in scaled.streams for m in s.surfaces] == [
         m.process_film(1e-3).arguments for s in again.streams for m in s.surfaces]
     assert solve_many([scaled]).ua[0] == solve_many([again]).ua[0]
     assert solve_many([scaled]).ua[0] != pytest.approx(solve_many([once]).ua[0], rel=1e-3)
+    # in one pass with the network it was scaled from (the back-out's passes): the pass shares process films
+    # between networks of one agitation by their correlation choice, so the scaled copy must say its factor
+    together = solve_many([once, scaled]).ua
+    assert together[1] == solve_many([again]).ua[0] and together[0] == solve_many([once]).ua[0]
 
 
 def test_a_vectorised_back_out_that_does_not_converge_falls_back_to_the_scalar_path(monkeypatch):

@@ -262,11 +262,14 @@ def _scaled_film(film_at: Callable[[float], ProcessFilm], factor: float) -> Call
     return film
 
 
-def _times(network: Network, factor: float) -> Network:
+def _times(network: Network, name: str, factor: float) -> Network:
     """``network`` (assembled with the factor 1) as assembled with ``factor``: the factor multiplies the
     process-side constant a and nothing else (``calc.films.process_side``), and the vectorised network
-    evaluates each process film from its ``arguments``, so a is scaled there without assembling again."""
-    return replace(network, streams=tuple(
+    evaluates each process film from its ``arguments``, so a is scaled there without assembling again. The
+    vessel's correlations say the factor too (``name``, as :meth:`CorrelationChoice.with_factor`): the
+    vectorised network shares process films between networks of one agitation by their choice, factor included."""
+    vessel = replace(network.vessel, correlations=network.vessel.correlations.with_factor(name, factor))
+    return replace(network, vessel=vessel, streams=tuple(
         replace(stream, surfaces=tuple(replace(model, process_film=_scaled_film(model.process_film, factor))
                                        for model in stream.surfaces))
         for stream in network.streams))
@@ -323,7 +326,7 @@ def _factors_vectorised(job: _Job, deadline: Deadline) -> list[list[float] | Non
         for index, factor in zip(which, factors):
             network = networks[index]
             assert network is not None
-            scaled.append(_times(network, float(factor)))
+            scaled.append(_times(network, job.name, float(factor)))
         return solve_many(scaled).ua
 
     usable = [i for i, network in enumerate(networks) if network is not None]
