@@ -629,7 +629,7 @@ def _bands(evaluated: list[Evaluated], indices: list[int], safety_factor: float)
         assert e.network is not None and e.result is not None and e.load is not None
         network = e.network
         steps.append(band_steps(network.vessel, network.charge, network.coolant, network.process_temperature,
-                                e.result, e.load.total, e.candidate.margin, safety_factor))
+                                e.result, e.load.total, e.candidate.margin, safety_factor, network=network))
     return dict(zip((i for i, _ in chosen), margin_bands(steps))) if steps else {}
 
 
