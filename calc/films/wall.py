@@ -435,9 +435,9 @@ def overall_from_layers(h_process: float, h_service: float, layers: WallLayers,
         biot = layers.wall / face  # h' t / k of the land (t/k is the wall's resistance)
         if not arrays.is_array(biot) and biot > FIN_BIOT_LIMIT and layers.land > 0:
             warnings.add(CalcWarning(FIN_BIOT_WARNING,
-                                     f"half-pipe jacket: wall between turns at Biot h t/k {biot:.2g} > "
-                                     f"{FIN_BIOT_LIMIT:g}: the one-dimensional fin understates U (by up to about "
-                                     "25 % against two-dimensional conduction: conservative)"))
+                                     f"half-pipe jacket: wall between turns at Biot h t/k above {FIN_BIOT_LIMIT:g}: "
+                                     "the one-dimensional fin understates U (by up to about 25 % against "
+                                     "two-dimensional conduction: conservative)"))
     total = sum(resistances.values())
     controlling = ""
     if not arrays.is_array(total):
