@@ -425,7 +425,7 @@ def h_jacket_Stein_Schmidt_1993(m: float, D_tank: float, gap: float, H: float, d
 #: The tangential-inlet velocity is settled when one more step moves it by this share or less.
 SETTLED = 1e-13
 #: Arrays of this many states or more take the vectorised path (:func:`_plain_many`); fewer go state by state.
-VECTOR_FROM = 8
+VECTOR_FROM = 16
 #: Most steps of that fixed-point iteration (the first velocity, at the friction factor of Re = 1e5, included).
 FIXED_POINT_STEPS = 100
 
