@@ -15,8 +15,8 @@ from calc.properties import LiquidProperties
 from calc.films import coil_side
 from calc.films.coil_side import service_film_coil
 from calc.hydraulics.friction import friction_factor_Colebrook_1939
-from calc.films.jacket_side import (CORRELATIONS, JacketSpec, Nu_annulus_laminar_Gnielinski, h_jacket_Lehrer_1970,
-                                    h_jacket_Stein_Schmidt_1993, service_film_jacket)
+from calc.films.jacket_side import (CORRELATIONS, VECTOR_FROM, JacketSpec, Nu_annulus_laminar_Gnielinski,
+                                    h_jacket_Lehrer_1970, h_jacket_Stein_Schmidt_1993, service_film_jacket)
 from calc.validity import InputError
 
 # VDI Heat Atlas (2010) worked example, as reproduced in ht.conv_jacket's docstrings: water at about 30 degC.
@@ -444,7 +444,7 @@ def _agree_element_by_element(vector, scalar):
                                                                                                       - 1)))
 
 
-STEIN_STATES = st.integers(16, 40).flatmap(lambda n: st.tuples(*(
+STEIN_STATES = st.integers(VECTOR_FROM, VECTOR_FROM + 16).flatmap(lambda n: st.tuples(*(
     st.lists(st.floats(low, high), min_size=n, max_size=n) for low, high in
     ((-2.7, 1.6),  # log10 of the mass flow, kg/s: laminar to turbulent jacket flow
      (950.0, 1100.0), (3000.0, 4300.0), (0.35, 0.65), (-3.5, -1.7),  # rho, cp, k, log10 mu of water to brines
@@ -459,8 +459,9 @@ STEIN_STATES = st.integers(16, 40).flatmap(lambda n: st.tuples(*(
 def test_stein_schmidt_on_arrays_is_the_scalar_function_state_by_state(states, inlet_type, inlet_location,
                                                                           roughness, buoyancy, geometry):
     # The project's own scalar path is the reference (tests above hold it to the VDI Heat Atlas example and the
-    # ht oracle): arrays of 16 states or more iterate the tangential-inlet velocity together, element by element,
-    # and must give every state's value to 1e-12, with and without buoyancy (rho_w != rho; equal in some states).
+    # ht oracle): arrays of VECTOR_FROM states or more iterate the tangential-inlet velocity together, element by
+    # element, and must give every state's value to 1e-12, with and without buoyancy (rho_w != rho; equal in
+    # some states).
     log_m, rho, cp, k, log_mu, wall, drho = (np.array(v) for v in states)
     mu = 10.0 ** log_mu
     rho_w = np.where(np.arange(rho.size) % 5 == 0, rho, rho + drho) if buoyancy else None
@@ -480,7 +481,7 @@ def test_stein_schmidt_on_arrays_across_the_laminar_switch(coolant, flows, rough
     # iteration (the specification) and the scalar function do.
     from calc.films import jacket_side
 
-    args = (np.linspace(*flows, 64), 0.6, 0.025, 0.6, 0.025, *coolant)
+    args = (np.linspace(*flows, 2 * VECTOR_FROM), 0.6, 0.025, 0.6, 0.025, *coolant)
     vector = h_jacket_Stein_Schmidt_1993(*args, rho_w=VDI_RHO_WALL, roughness=roughness)
     channel = coolant[0] * vector.velocity * 0.05 / coolant[3]  # Re of the channel velocity (before buoyancy)
     assert np.any(channel < 2040.0) and np.any(channel > 2040.0)
