@@ -15,8 +15,8 @@ from calc.properties import LiquidProperties
 from calc.films import coil_side
 from calc.films.coil_side import service_film_coil
 from calc.hydraulics.friction import friction_factor_Colebrook_1939
-from calc.films.jacket_side import (CORRELATIONS, JacketSpec, Nu_annulus_laminar_Gnielinski, h_jacket_Lehrer_1970,
-                                    h_jacket_Stein_Schmidt_1993, service_film_jacket)
+from calc.films.jacket_side import (CORRELATIONS, VECTOR_FROM, JacketSpec, Nu_annulus_laminar_Gnielinski,
+                                    h_jacket_Lehrer_1970, h_jacket_Stein_Schmidt_1993, service_film_jacket)
 from calc.validity import InputError
 
 # VDI Heat Atlas (2010) worked example, as reproduced in ht.conv_jacket's docstrings: water at about 30 degC.
@@ -424,3 +424,75 @@ def test_stein_schmidt_accelerated_velocity_is_the_plain_fixed_point(m, roughnes
     plain = h_jacket_Stein_Schmidt_1993(*args, rho_w=rho_wall, roughness=roughness)
     assert fast.velocity == pytest.approx(plain.velocity, rel=1e-12)
     assert fast.h == pytest.approx(plain.h, rel=1e-12)
+
+
+def _stein_schmidt_each(args, **kwargs):
+    """h_jacket_Stein_Schmidt_1993 state by state on the scalar path (the specification), as arrays."""
+    arrays_ = np.broadcast_arrays(*(np.asarray(a, dtype=float) for a in args))
+    rho_w = kwargs.pop("rho_w", None)
+    rho_w = None if rho_w is None else np.broadcast_to(rho_w, arrays_[0].shape)
+    rows = [h_jacket_Stein_Schmidt_1993(*(float(a[i]) for a in arrays_), **kwargs,
+                                        rho_w=None if rho_w is None else float(rho_w[i]))
+            for i in range(arrays_[0].size)]
+    return [np.array(column) for column in zip(*rows)]
+
+
+def _agree_element_by_element(vector, scalar):
+    for name, got, expected in zip(("h", "reynolds", "velocity", "nusselt", "length_scale"), vector, scalar):
+        assert np.shape(got) == np.shape(expected), name
+        assert np.allclose(got, expected, rtol=1e-12, atol=0.0, equal_nan=True), (name, np.max(np.abs(got / expected
+                                                                                                      - 1)))
+
+
+STEIN_STATES = st.integers(VECTOR_FROM, VECTOR_FROM + 16).flatmap(lambda n: st.tuples(*(
+    st.lists(st.floats(low, high), min_size=n, max_size=n) for low, high in
+    ((-2.7, 1.6),  # log10 of the mass flow, kg/s: laminar to turbulent jacket flow
+     (950.0, 1100.0), (3000.0, 4300.0), (0.35, 0.65), (-3.5, -1.7),  # rho, cp, k, log10 mu of water to brines
+     (0.5, 2.0),  # mu_w / mu
+     (-40.0, 40.0)))))  # rho_w - rho, kg/m3
+
+
+@settings(max_examples=40, deadline=None)
+@given(STEIN_STATES, st.sampled_from(["tangential", "radial"]), st.sampled_from(["bottom", "top"]),
+       st.sampled_from([0.0, 1e-4]), st.booleans(), st.tuples(st.floats(0.3, 3.0), st.floats(0.015, 0.1),
+                                                              st.floats(0.3, 3.0), st.floats(0.015, 0.1)))
+def test_stein_schmidt_on_arrays_is_the_scalar_function_state_by_state(states, inlet_type, inlet_location,
+                                                                          roughness, buoyancy, geometry):
+    # The project's own scalar path is the reference (tests above hold it to the VDI Heat Atlas example and the
+    # ht oracle): arrays of VECTOR_FROM states or more iterate the tangential-inlet velocity together, element by
+    # element, and must give every state's value to 1e-12, with and without buoyancy (rho_w != rho; equal in
+    # some states).
+    log_m, rho, cp, k, log_mu, wall, drho = (np.array(v) for v in states)
+    mu = 10.0 ** log_mu
+    rho_w = np.where(np.arange(rho.size) % 5 == 0, rho, rho + drho) if buoyancy else None
+    args = (10.0 ** log_m, *geometry, rho, cp, k, mu, mu * wall)
+    kwargs = dict(inlet_type=inlet_type, inlet_location=inlet_location, roughness=roughness)
+    vector = h_jacket_Stein_Schmidt_1993(*args, rho_w=rho_w, **kwargs)
+    _agree_element_by_element(vector, _stein_schmidt_each(args, rho_w=rho_w, **kwargs))
+
+
+@pytest.mark.parametrize("coolant, flows", [((995.7, 4178.1, 0.615, 798e-6, 355e-6), (0.11, 0.19)),  # VDI water
+                                            ((1045.0, 3600.0, 0.45, 4.0e-3, 6.0e-3), (0.55, 0.95))])  # glycol-like
+@pytest.mark.parametrize("roughness", [0.0, 1e-4])
+def test_stein_schmidt_on_arrays_across_the_laminar_switch(coolant, flows, roughness, monkeypatch):
+    # Flows whose Re sits within 10 % of the friction factor's switch at 2040 (VDI example geometry). Some have
+    # no fixed point (the 64/Re and Colebrook branches do not meet): plain iteration cycles across the switch
+    # and ends where its 100th value falls. The array path must end there too, state by state, as the plain
+    # iteration (the specification) and the scalar function do.
+    from calc.films import jacket_side
+
+    args = (np.linspace(*flows, 2 * VECTOR_FROM), 0.6, 0.025, 0.6, 0.025, *coolant)
+    vector = h_jacket_Stein_Schmidt_1993(*args, rho_w=VDI_RHO_WALL, roughness=roughness)
+    channel = coolant[0] * vector.velocity * 0.05 / coolant[3]  # Re of the channel velocity (before buoyancy)
+    assert np.any(channel < 2040.0) and np.any(channel > 2040.0)
+    _agree_element_by_element(vector, _stein_schmidt_each(args, rho_w=VDI_RHO_WALL, roughness=roughness))
+    cycling = []
+
+    def plain(step, first, switch):  # the specification, noting the states whose iteration does not settle
+        v = jacket_side._plain(step, first)
+        cycling.append(abs(step(v) - v) > jacket_side.SETTLED * v)
+        return v
+
+    monkeypatch.setattr(jacket_side, "_settled", plain)
+    _agree_element_by_element(vector, _stein_schmidt_each(args, rho_w=VDI_RHO_WALL, roughness=roughness))
+    assert 0 < sum(cycling) < len(cycling)

@@ -74,11 +74,15 @@ class _Flow(NamedTuple):
 
 def friction_factor_Stein_Schmidt(Re: float, relative_roughness: float = 0.0) -> float:
     """Darcy friction factor of the Stein & Schmidt tangential-inlet model: 64/Re below Re = 2040,
-    Colebrook (1939) above (:func:`calc.hydraulics.friction.friction_factor_Colebrook_1939`).
+    Colebrook (1939) above (:func:`calc.hydraulics.friction.friction_factor_Colebrook_1939`). ``Re`` may be
+    an array (element by element).
 
     >>> round(friction_factor_Stein_Schmidt(1e5), 6), friction_factor_Stein_Schmidt(1000.0)
     (0.01799, 0.064)
     """
+    if isinstance(Re, np.ndarray):  # Colebrook on the turbulent elements (the laminar ones take it at 2040, unused)
+        turbulent = friction_factor_Colebrook_1939(np.maximum(Re, PIPE_TRANSITION), relative_roughness)
+        return arrays.where(Re < PIPE_TRANSITION, 64.0 / Re, turbulent)
     if Re < PIPE_TRANSITION:
         return 64.0 / Re
     return friction_factor_Colebrook_1939(Re, relative_roughness)
@@ -336,7 +340,10 @@ def h_jacket_Stein_Schmidt_1993(m: float, D_tank: float, gap: float, H: float, d
     -----
     Buoyancy adds to Re when it helps the flow (coolant heated at the wall, rho_w < rho, entering at the
     bottom; or cooled and entering at the top) and subtracts otherwise; Re_eq is kept >= 0, so Nu >= 3.66.
-    The tangential-inlet friction factor is iterated to a fixed point (Colebrook, smooth by default).
+    The tangential-inlet friction factor is iterated to a fixed point (Colebrook, smooth by default):
+    plain iteration is the specification (:func:`_plain`); one state reaches it sooner by Steffensen's
+    method where that provably lands on the same value (:func:`_settled`), arrays of states step together
+    with each element stopping where its own iteration would (:func:`_plain_many`). Arrays give no warnings.
     Covers laminar to turbulent flow by the blend of Nu_A..Nu_D.
 
     Examples
@@ -353,54 +360,65 @@ def h_jacket_Stein_Schmidt_1993(m: float, D_tank: float, gap: float, H: float, d
     einfachen Mantel". Forsch. Ingenieurwes. 59, 73-90 (1993), doi:10.1007/BF02561203.
     VDI Heat Atlas, 2nd ed., Springer 2010 (worked example).
     """
-    if arrays.is_array(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, rho_w,
-                       roughness):
+    inputs = (m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, rho_w, roughness)
+    vector = arrays.is_array(*inputs)
+    if vector and np.broadcast(*(v for v in inputs if v is not None)).size < VECTOR_FROM:
         return _Stein_Schmidt_elementwise(m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, inlet_type,
                                           inlet_location, rho_w, roughness)
     Q = m / rho
     Pr = cp * mu / k
     d_ch = 2.0 * gap
-    l_ch = math.sqrt((math.pi / 2) ** 2 * D_tank ** 2 + H ** 2)
+    l_ch = arrays.sqrt((math.pi / 2) ** 2 * D_tank ** 2 + H ** 2)
     v_in = Q / (math.pi / 4 * d_inlet ** 2)
     if inlet_type == "radial":
         b_in = math.pi / 8 * d_inlet ** 2 / gap
-        b_mid = math.pi / 2 * D_tank * math.sqrt(1 + math.pi ** 2 / 4 * D_tank ** 2 / H ** 2)
+        b_mid = math.pi / 2 * D_tank * arrays.sqrt(1 + math.pi ** 2 / 4 * D_tank ** 2 / H ** 2)
         ratio = b_in / b_mid
-        shape = 1.0 if abs(ratio - 1.0) < 1e-12 else -math.log(ratio) / (1.0 - ratio)
+        equal = abs(ratio - 1.0) < 1e-12  # the limit of the shape factor is 1 there
+        apart = arrays.where(equal, 0.5, ratio)
+        shape = arrays.where(equal, 1.0, -arrays.log(apart) / (1.0 - apart))
         v_ch = Q / (2 * gap * b_mid) * shape
     else:
         v_z = Q / (math.pi * D_tank * gap)
+        # what stays put while the friction factor is iterated, computed once
+        spread_per_f, quarter, half_square = D_tank * H / d_inlet ** 2, v_in / 4, v_in ** 2 / 2
+        Re_per_v, relative_roughness = rho * d_ch / mu, roughness / d_ch
+        ops = np if vector else math  # the same velocity on arrays, element by element
 
         def velocity(f: float) -> float:
             """The channel velocity with the friction factor ``f``, m/s."""
-            spread = f * D_tank * H / d_inlet ** 2
-            K3 = v_in / 4 - v_in / (4 * spread)
-            K4 = v_in ** 2 / (2 * spread)
-            v_x0 = K3 + math.sqrt(K3 ** 2 + K4)
-            v_x = v_in * math.log1p(spread * v_x0 / v_in) / spread
-            return math.hypot(v_x, v_z)
+            spread = f * spread_per_f
+            K3 = quarter - quarter / spread
+            K4 = half_square / spread
+            v_x0 = K3 + ops.sqrt(K3 ** 2 + K4)
+            v_x = v_in * ops.log1p(spread * v_x0 / v_in) / spread
+            speed: float = ops.hypot(v_x, v_z)
+            return speed
 
         def step(v: float) -> float:
-            return velocity(friction_factor_Stein_Schmidt(rho * v * d_ch / mu, roughness / d_ch))
+            return velocity(friction_factor_Stein_Schmidt(Re_per_v * v, relative_roughness))
 
-        v_ch = _settled(step, velocity(friction_factor_Stein_Schmidt(1e5, roughness / d_ch)),
-                        PIPE_TRANSITION * mu / (rho * d_ch))
+        first = velocity(friction_factor_Stein_Schmidt(1e5, relative_roughness))
+        v_ch = _plain_many(step, first) if vector else _settled(step, first, PIPE_TRANSITION / Re_per_v)
     Re = rho * v_ch * d_ch / mu
-    if rho_w is not None and rho_w != rho:
+    if rho_w is not None:
         buoyancy = g * rho * abs(rho - rho_w) * d_ch ** 3 / mu ** 2 * H / d_ch / 50.0
         assists = (rho_w < rho) == (inlet_location == "bottom")
-        squared = Re ** 2 + buoyancy if assists else Re ** 2 - buoyancy
-        if squared < 0.25 * Re ** 2 and warnings is not None:
+        squared = arrays.where(assists, Re ** 2 + buoyancy, Re ** 2 - buoyancy)
+        if warnings is not None and np.any(squared < 0.25 * Re ** 2):
             warnings.add(CalcWarning("buoyancy_opposes_flow",
                                      "Stein & Schmidt (1993): buoyancy opposes the jacket flow and dominates it; "
                                      "mixed convection, the film coefficient is uncertain"))
-        Re = math.sqrt(max(squared, 0.0))
+        Re = arrays.where(rho_w != rho, arrays.sqrt(arrays.maximum(squared, 0.0)), Re)
     Nu_A = 3.66
     Nu_B = 1.62 * (Re * Pr * d_ch / l_ch) ** (1 / 3)
-    Nu_C = 0.664 * Pr ** (1 / 3) * math.sqrt(Re * d_ch / l_ch)
-    Nu_D = 0.0 if Re <= 2300 else (0.0115 * Pr ** (1 / 3) * Re ** 0.9 * (1 - (2300 / Re) ** 2.5)
-                                   * (1 + (d_ch / l_ch) ** (2 / 3)))
+    Nu_C = 0.664 * Pr ** (1 / 3) * arrays.sqrt(Re * d_ch / l_ch)
+    # 0 up to Re = 2300, where the bracket [1 - (2300/Re)^2.5] vanishes
+    Nu_D = (0.0115 * Pr ** (1 / 3) * Re ** 0.9 * (1 - (2300 / arrays.maximum(Re, 2300.0)) ** 2.5)
+            * (1 + (d_ch / l_ch) ** (2 / 3)))
     Nu = (Nu_A ** 3 + Nu_B ** 3 + Nu_C ** 3 + Nu_D ** 3) ** (1 / 3) * (mu / mu_w) ** 0.14
+    if vector:  # every item of the flow as an array of the states' shape
+        return _Flow._make(np.broadcast_arrays(Nu * k / d_ch, Re, v_ch, Nu, d_ch))
     return _Flow(Nu * k / d_ch, Re, v_ch, Nu, d_ch)
 
 
@@ -408,6 +426,11 @@ def h_jacket_Stein_Schmidt_1993(m: float, D_tank: float, gap: float, H: float, d
 SETTLED = 1e-13
 #: Most steps of that fixed-point iteration (the first velocity, at the friction factor of Re = 1e5, included).
 FIXED_POINT_STEPS = 100
+#: Arrays of this many states or more take the vectorised path (:func:`_plain_many`); fewer go state by state.
+#: Measured break-even: about 16 states near the laminar switch (where one state's iteration takes its full
+#: steps), about 60 elsewhere (where Steffensen's method settles one state in a few); the sizing's margin bands
+#: pass 44 states near the switch.
+VECTOR_FROM = 32
 
 
 def _plain(step: Callable[[float], float], v: float) -> float:
@@ -417,6 +440,41 @@ def _plain(step: Callable[[float], float], v: float) -> float:
         if abs(v - previous) <= SETTLED * v:
             break
     return v
+
+
+#: Cycle lengths :func:`_plain_many` looks for, one a step in turn (those seen where there is no fixed point).
+CYCLES = (2, 3, 4, 5)
+
+
+def _plain_many(step: Callable[[float], float], first: float) -> float:
+    """:func:`_plain` on an array of states: each element steps until its own change is within SETTLED (it
+    then keeps that value while the others go on), so each is the value plain iteration gives it alone.
+
+    Near the friction factor's laminar switch the step may have no fixed point: the iterates then fall into
+    a cycle across the switch and plain iteration ends on whichever value its last step gives. An element
+    whose iterate repeats one of p steps before exactly (the step is deterministic, so it repeats from there
+    on) takes that end value at once and stops stepping; p is tried in turn from :data:`CYCLES`.
+    """
+    v: Any = first  # an array of states
+    moving = np.ones(np.shape(v), dtype=bool)
+    iterates = [v]
+    steps = FIXED_POINT_STEPS - 1
+    for taken in range(1, steps + 1):
+        following = step(v)
+        settled = abs(following - v) <= SETTLED * following
+        v = np.where(moving, following, v)
+        moving &= ~settled
+        period = CYCLES[taken % len(CYCLES)]
+        if taken >= period:
+            cycling = moving & (following == iterates[taken - period])
+            if cycling.any():  # iterate n >= taken - period is iterate taken - period + (n - taken + period) % period
+                v = np.where(cycling, iterates[taken - period + (steps - taken + period) % period], v)
+                moving &= ~cycling
+        iterates.append(v)
+        if not moving.any():
+            break
+    settled_values: float = v
+    return settled_values
 
 
 def _steffensen(step: Callable[[float], float], v: float) -> tuple[float | None, float]:
@@ -484,11 +542,10 @@ def _settled(step: Callable[[float], float], first: float, switch: float) -> flo
 def _Stein_Schmidt_elementwise(m: float, D_tank: float, gap: float, H: float, d_inlet: float, rho: float,
                                cp: float, k: float, mu: float, mu_w: float, inlet_type: str, inlet_location: str,
                                rho_w: float | None, roughness: float) -> _Flow:
-    """:func:`h_jacket_Stein_Schmidt_1993` over arrays of states, one element at a time.
+    """:func:`h_jacket_Stein_Schmidt_1993` over a few states (fewer than :data:`VECTOR_FROM`), one at a time.
 
-    Its tangential-inlet velocity is itself a fixed-point iteration on the friction factor, with a
-    branch per element; it is evaluated state by state (the one correlation of this module that is
-    not vectorised; Lehrer's, the default, is).
+    For so few, the scalar path's accelerated fixed point (:func:`_settled`) beats the plain iteration on
+    arrays (:func:`_plain_many`), whose steps cost numpy's overhead per call rather than per element.
     """
     values = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in
                                    (m, D_tank, gap, H, d_inlet, rho, cp, k, mu, mu_w, rho if rho_w is None else rho_w,

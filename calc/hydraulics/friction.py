@@ -17,6 +17,7 @@ import math
 from dataclasses import dataclass
 from typing import Callable
 
+import numpy as np
 from scipy.special import wrightomega
 
 from calc.validity import Correlation
@@ -80,6 +81,7 @@ def friction_factor_Colebrook_1939(Re: float, relative_roughness: float = 0.0) -
     -----
     Turbulent flow, 4000 < Re < 1e8, e/D < 0.05. The omega form is the Lambert-W solution of
     Colebrook's equation (Keady 1998), exact to rounding: no iteration, no root finder.
+    ``Re`` and ``relative_roughness`` may be numpy arrays (element by element, as :mod:`calc.arrays`).
 
     Examples
     --------
@@ -94,8 +96,12 @@ def friction_factor_Colebrook_1939(Re: float, relative_roughness: float = 0.0) -
     a = 2.0 / math.log(10.0)
     s = a * 2.51 / Re
     c = relative_roughness / 3.7
-    y = s * float(wrightomega(c / s - math.log(s)).real)
-    return 1.0 / (a * math.log(y)) ** 2
+    vector = isinstance(Re, np.ndarray) or isinstance(relative_roughness, np.ndarray)  # as arrays.is_array, sooner
+    ops = np if vector else math  # arrays: element by element
+    omega = wrightomega(c / s - ops.log(s))
+    y = s * (omega if vector else float(omega.real))
+    f: float = 1.0 / (a * ops.log(y)) ** 2
+    return f
 
 
 def friction_factor_coil_laminar_Schmidt_1967(Re: float, r: float) -> float:
