@@ -420,7 +420,7 @@ def test_stein_schmidt_accelerated_velocity_is_the_plain_fixed_point(m, roughnes
     *properties, rho_wall = coolant
     args = (m, 0.6, 0.025, 0.6, 0.025, *properties)
     fast = h_jacket_Stein_Schmidt_1993(*args, rho_w=rho_wall, roughness=roughness)
-    monkeypatch.setattr(jacket_side, "_settled", lambda step, first, switch: jacket_side._plain(step, first))
+    monkeypatch.setattr(jacket_side, "_settled", lambda step, first, switch: jacket_side._plain(step, first, switch))
     plain = h_jacket_Stein_Schmidt_1993(*args, rho_w=rho_wall, roughness=roughness)
     assert fast.velocity == pytest.approx(plain.velocity, rel=1e-12)
     assert fast.h == pytest.approx(plain.h, rel=1e-12)
@@ -476,9 +476,9 @@ def test_stein_schmidt_on_arrays_is_the_scalar_function_state_by_state(states, i
 @pytest.mark.parametrize("roughness", [0.0, 1e-4])
 def test_stein_schmidt_on_arrays_across_the_laminar_switch(coolant, flows, roughness, monkeypatch):
     # Flows whose Re sits within 10 % of the friction factor's switch at 2040 (VDI example geometry). Some have
-    # no fixed point (the 64/Re and Colebrook branches do not meet): plain iteration cycles across the switch
-    # and ends where its 100th value falls. The array path must end there too, state by state, as the plain
-    # iteration (the specification) and the scalar function do.
+    # no fixed point (the 64/Re and Colebrook branches do not meet): plain iteration cycles across the switch,
+    # and the channel runs at the switch velocity. The array path must end there too, state by state, as the
+    # plain iteration (the specification) and the scalar function do.
     from calc.films import jacket_side
 
     args = (np.linspace(*flows, 2 * VECTOR_FROM), 0.6, 0.025, 0.6, 0.025, *coolant)
@@ -489,10 +489,27 @@ def test_stein_schmidt_on_arrays_across_the_laminar_switch(coolant, flows, rough
     cycling = []
 
     def plain(step, first, switch):  # the specification, noting the states whose iteration does not settle
-        v = jacket_side._plain(step, first)
+        v = jacket_side._plain(step, first, switch)
         cycling.append(abs(step(v) - v) > jacket_side.SETTLED * v)
+        assert not cycling[-1] or v == switch  # no fixed point: the switch velocity
         return v
 
     monkeypatch.setattr(jacket_side, "_settled", plain)
     _agree_element_by_element(vector, _stein_schmidt_each(args, rho_w=VDI_RHO_WALL, roughness=roughness))
     assert 0 < sum(cycling) < len(cycling)
+
+
+@pytest.mark.parametrize("coolant, flows", [((995.7, 4178.1, 0.615, 798e-6, 355e-6), (0.11, 0.19)),  # VDI water
+                                            ((1045.0, 3600.0, 0.45, 4.0e-3, 6.0e-3), (0.55, 0.95))])  # glycol-like
+def test_stein_schmidt_film_is_continuous_in_the_flow_across_the_laminar_switch(coolant, flows):
+    # The film must vary smoothly where the physics does (no jump at a table's or a friction factor's switch).
+    # 2000 flows across the switch, one by one on the scalar path and together on the array path: neighbouring
+    # films differ by at most 0.5 % (a flow step of 0.05 % moves a smooth film by about that much; before the
+    # channel was pinned at the switch where the iteration has no fixed point, neighbours jumped by up to 40 %).
+    flow = np.linspace(*flows, 2000)
+    args = (0.6, 0.025, 0.6, 0.025, *coolant)
+    each = np.array([h_jacket_Stein_Schmidt_1993(m, *args, rho_w=VDI_RHO_WALL).h for m in flow])
+    together = h_jacket_Stein_Schmidt_1993(flow, *args, rho_w=VDI_RHO_WALL).h
+    for h in (each, together):
+        assert np.max(np.abs(np.diff(h)) / h[:-1]) < 5e-3
+    np.testing.assert_allclose(together, each, rtol=1e-12)

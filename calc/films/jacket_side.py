@@ -399,7 +399,8 @@ def h_jacket_Stein_Schmidt_1993(m: float, D_tank: float, gap: float, H: float, d
             return velocity(friction_factor_Stein_Schmidt(Re_per_v * v, relative_roughness))
 
         first = velocity(friction_factor_Stein_Schmidt(1e5, relative_roughness))
-        v_ch = _plain_many(step, first) if vector else _settled(step, first, PIPE_TRANSITION / Re_per_v)
+        switch = PIPE_TRANSITION / Re_per_v  # the channel velocity at the friction factor's laminar switch
+        v_ch = _plain_many(step, first, switch) if vector else _settled(step, first, switch)
     Re = rho * v_ch * d_ch / mu
     if rho_w is not None:
         buoyancy = g * rho * abs(rho - rho_w) * d_ch ** 3 / mu ** 2 * H / d_ch / 50.0
@@ -433,27 +434,43 @@ FIXED_POINT_STEPS = 100
 VECTOR_FROM = 32
 
 
-def _plain(step: Callable[[float], float], v: float) -> float:
-    """The fixed point of ``step`` by plain iteration from ``v`` (the first step's result), as specified."""
+#: The last iterates :func:`_plain` looks at when it has not settled: spanning the switch, the step has no fixed point.
+TRAIL = 10
+
+
+def _plain(step: Callable[[float], float], v: float, switch: float) -> float:
+    """The fixed point of ``step`` by plain iteration from ``v`` (the first step's result), as specified.
+
+    The friction factor jumps up at its laminar switch (64/Re = 0.031 against Colebrook's 0.049 at Re = 2040),
+    so the step jumps down at the switch velocity ``switch``: where the laminar branch's step lies above the
+    switch and the turbulent branch's below, there is no fixed point and the iterates cycle across it. The
+    channel then runs at the switch (the friction factor somewhere within its jump: the fixed point of the
+    step with the jump filled in), which joins the two branches' fixed points continuously as the flow
+    changes; before, the answer was wherever the cycle's last step fell (jumps of up to 40 % in h between
+    neighbouring flows). Not settled and the last :data:`TRAIL` iterates on both sides of the switch: the switch.
+    """
+    trail: list[float] = []
     for _ in range(FIXED_POINT_STEPS - 1):
         previous, v = v, step(v)
         if abs(v - previous) <= SETTLED * v:
-            break
-    return v
+            return v
+        trail = (trail + [v])[-TRAIL:]
+    return switch if min(trail) < switch < max(trail) else v
 
 
 #: Cycle lengths :func:`_plain_many` looks for, one a step in turn (those seen where there is no fixed point).
 CYCLES = (2, 3, 4, 5)
 
 
-def _plain_many(step: Callable[[float], float], first: float) -> float:
+def _plain_many(step: Callable[[float], float], first: float, switch: float) -> float:
     """:func:`_plain` on an array of states: each element steps until its own change is within SETTLED (it
     then keeps that value while the others go on), so each is the value plain iteration gives it alone.
 
     Near the friction factor's laminar switch the step may have no fixed point: the iterates then fall into
-    a cycle across the switch and plain iteration ends on whichever value its last step gives. An element
-    whose iterate repeats one of p steps before exactly (the step is deterministic, so it repeats from there
-    on) takes that end value at once and stops stepping; p is tried in turn from :data:`CYCLES`.
+    a cycle across the switch, and the answer is the switch velocity ``switch`` (:func:`_plain`). An element
+    whose iterate repeats one of p steps before exactly (the step is deterministic, so it cycles from there
+    on, across the switch) takes it at once and stops stepping; p is tried in turn from :data:`CYCLES`. One
+    still moving after the last step takes it when its last :data:`TRAIL` iterates span it, as :func:`_plain`.
     """
     v: Any = first  # an array of states
     moving = np.ones(np.shape(v), dtype=bool)
@@ -467,12 +484,15 @@ def _plain_many(step: Callable[[float], float], first: float) -> float:
         period = CYCLES[taken % len(CYCLES)]
         if taken >= period:
             cycling = moving & (following == iterates[taken - period])
-            if cycling.any():  # iterate n >= taken - period is iterate taken - period + (n - taken + period) % period
-                v = np.where(cycling, iterates[taken - period + (steps - taken + period) % period], v)
+            if cycling.any():
+                v = np.where(cycling, switch, v)
                 moving &= ~cycling
         iterates.append(v)
         if not moving.any():
             break
+    if moving.any():
+        recent = np.array(iterates[-TRAIL:])
+        v = np.where(moving & (recent.min(axis=0) < switch) & (switch < recent.max(axis=0)), switch, v)
     settled_values: float = v
     return settled_values
 
@@ -536,7 +556,7 @@ def _settled(step: Callable[[float], float], first: float, switch: float) -> flo
                 return v
         if (v - switch) * (found - switch) <= 0.0:
             break
-    return _plain(step, first)
+    return _plain(step, first, switch)
 
 
 def _Stein_Schmidt_elementwise(m: float, D_tank: float, gap: float, H: float, d_inlet: float, rho: float,
