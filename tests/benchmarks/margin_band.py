@@ -175,19 +175,8 @@ def main() -> None:
     print("\nsingle-point calibration (a measured UA of +-10 %, the forward model's at 0.8 x a, at 60 rpm, water at 50 degC)")
     print(f"  {'case':<44} {'factor':>7} {'low':>7} {'high':>7} {'width':>7} {'back-out':>9} {'check after':>12}")
     for name, body in cases().items():
-        args = CoolingCheckRequestSchema().load(body)
-        vessel = args["vessel"]
-        run_vessel = replace(vessel, agitator=replace(vessel.agitator, speed=1.0),
-                             correlations=replace(vessel.correlations, process_factor=0.8))
-        water = Charge(LibraryLiquid("water"), volume=args["charge"].liquid_volume(args["process_temperature"]))
-        surface = "jacket" if vessel.jacket is not None else "coils"
-        result = heat_transfer(run_vessel, water, args["coolant"], 323.15)
-        ua, _ = measured_surface(result, surface)
-        measurement = Measurement(ua, (0.9 * ua, 1.1 * ua), 323.15, water, args["coolant"], surface=surface,
-                                  agitator_speed=1.0)
-        calibrated = replace(vessel, correlations=vessel.correlations.calibrated(Calibration(measurement=measurement)))
-        call = (args["charge"], args["coolant"], args["process_temperature"], args["heat_release"],
-                args["safety_factor"])
+        calibrated, call = calibrated_case(body)
+        vessel = replace(calibrated, correlations=replace(calibrated.correlations, calibration=None))
         start = time.perf_counter()
         check = cooling_check(calibrated, *call, limits=False)
         first = time.perf_counter() - start
