@@ -663,16 +663,14 @@ def _recommend(candidates: list[Candidate], safety_factor: float) -> Recommendat
         why = WHY[_group(best)] if _group(best) == min(map(_group, feasible)) else (
             f"{KINDS[_group(best)]} meets the duty across its margin band, where the simpler kinds meet it only at "
             "the nominal margin")
+        which = " whose verdict holds across their margin band" if best.robust else ""
         reasoning = (f"{why}; "
-                     f"of the feasible designs this has the least heat-transfer area "
+                     f"of the feasible designs{which} this has the least heat-transfer area "
                      f"({best.heat_transfer_area:.3g} m2) and, among equal areas, the simplest type and the least "
                      f"coolant hold-up ({best.holdup_volume * 1e3:.3g} L); pressure drop "
                      f"{best.pressure_drop / 1e5:.3g} bar, margin {margin}{_band_text(best)} against the safety "
                      f"factor {safety_factor:g} at {best.coolant_flow:.3g} kg/s")
         if best.robust:
-            reasoning = reasoning.replace("of the feasible designs this has",
-                                          "of the feasible designs whose verdict holds across their margin band "
-                                          "this has", 1)
             passed = [c for c in feasible if not c.robust and (_group(c), _rank_key(c)) < (_group(best),
                                                                                           _rank_key(best))]
             if passed:
